@@ -1,0 +1,46 @@
+// One jest run for everything except the browser tests (see jest.e2e.config.js).
+// Projects: the award engine (no database), the server (real PostgreSQL from the bootstrap),
+// and the Angular components (jsdom, zoneless).
+const { createCjsPreset } = require('jest-preset-angular/presets');
+
+const serverTransform = {
+  '^.+\\.ts$': ['ts-jest', {
+    tsconfig: '<rootDir>/tsconfig.spec-server.json',
+    isolatedModules: true,
+    diagnostics: false,
+  }],
+};
+const sharedAlias = { '^@shared/(.*)$': '<rootDir>/shared/$1' };
+
+module.exports = {
+  projects: [
+    {
+      displayName: 'award',
+      rootDir: __dirname,
+      testEnvironment: 'node',
+      testMatch: ['<rootDir>/spec/award/**/*.spec.ts'],
+      transform: serverTransform,
+      moduleNameMapper: sharedAlias,
+    },
+    {
+      displayName: 'server',
+      rootDir: __dirname,
+      testEnvironment: 'node',
+      testMatch: ['<rootDir>/spec/server/**/*.spec.ts'],
+      transform: serverTransform,
+      moduleNameMapper: sharedAlias,
+      setupFiles: ['<rootDir>/spec/support/env.ts'],
+    },
+    {
+      displayName: 'components',
+      rootDir: __dirname,
+      ...createCjsPreset({
+        testEnvironment: 'jest-preset-angular/environments/jest-jsdom-env',
+        tsconfig: '<rootDir>/tsconfig.spec.json',
+      }),
+      setupFilesAfterEnv: ['<rootDir>/src/test-setup.ts'],
+      testMatch: ['<rootDir>/src/**/*.spec.ts'],
+      moduleNameMapper: sharedAlias,
+    },
+  ],
+};

@@ -1,0 +1,147 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import { randomUUID } from 'node:crypto';
+import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
+import connectPgSimple from 'connect-pg-simple';
+import cookieParser from 'cookie-parser';
+import express, { type Express } from 'express';
+import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
+import session from 'express-session';
+import helmet from 'helmet';
+import type { Pool } from 'pg';
+import type PgBoss from 'pg-boss';
+import { pinoHttp } from 'pino-http';
+import { configurePassport } from './auth/passport';
+import type { Config } from './config';
+import { AppError } from './http/errors';
+import { apiNotFound, errorHandler } from './http/error-handler';
+import { openApiDocument } from './http/openapi';
+import { mountRoutes, route, type AnyRoute } from './http/route';
+import { xsrf } from './http/xsrf';
+import { logger } from './logger';
+import { outboxRoutes } from './routes/outbox.routes';
+import { peopleRoutes } from './routes/people.routes';
+import { sessionRoutes } from './routes/session.routes';
+
+export interface AppDeps {
+  config: Config;
+  orm: MikroORM;
+  boss: PgBoss;
+  /** Pool for the session store. */
+  sessionPool: Pool;
+}
+
+export const SESSION_COOKIE = 'tendara.sid';
+const SESSION_HOURS = 8;
+
+/** Every API route of the app, in one list (mounted, documented and tested from it). */
+export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): AnyRoute[] {
+  const routes: AnyRoute[] = [...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes()];
+  routes.push(
+    route({
+      method: 'get', path: '/openapi.json', tag: 'Meta', access: 'public',
+      summary: 'This document.',
+      handler: () => openApiDocument(routes, process.env['npm_package_version'] ?? '0.1.0'),
+    }),
+  );
+  return routes;
+}
+
+/** Builds the Express app; `server/main.ts` starts it, tests drive it with supertest. */
+export function createApp(deps: AppDeps): Express {
+  const { config, orm } = deps;
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', config.trustProxy ? 1 : false);
+  app.set('query parser', 'simple');
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        directives: {
+          'default-src': ["'self'"],
+          'script-src': ["'self'"],
+          // Angular and Material add component styles at run time.
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'img-src': ["'self'", 'data:'],
+          'font-src': ["'self'"],
+          'frame-src': ["'self'"],
+          'upgrade-insecure-requests': config.trustProxy ? [] : null,
+        },
+      },
+      strictTransportSecurity: config.trustProxy,
+    }),
+  );
+  app.use(
+    pinoHttp({
+      logger,
+      genReqId: (req, res) => {
+        const id = (req.headers['x-request-id'] as string | undefined)?.slice(0, 64) || randomUUID();
+        res.setHeader('X-Request-Id', id);
+        return id;
+      },
+      autoLogging: { ignore: (req) => !req.url?.startsWith('/api') },
+      // Method, path and status only: headers carry cookies and tokens.
+      serializers: {
+        req: (req: { id: string; method: string; url: string }) => ({ id: req.id, method: req.method, url: req.url.split('?')[0] }),
+        res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
+      },
+      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
+    }),
+  );
+
+  const api = express.Router();
+  api.use(cookieParser());
+  api.use(xsrf());
+  api.use(express.json({ limit: '1mb' }));
+  api.use((_req, _res, next) => RequestContext.create(orm.em, next));
+  const PgStore = connectPgSimple(session);
+  api.use(
+    session({
+      name: SESSION_COOKIE,
+      secret: config.sessionSecret,
+      store: new PgStore({ pool: deps.sessionPool, tableName: 'http_session', createTableIfMissing: false, pruneSessionInterval: 15 * 60 }),
+      resave: false,
+      saveUninitialized: false,
+      rolling: true,
+      proxy: config.trustProxy,
+      cookie: { httpOnly: true, sameSite: 'lax', secure: 'auto', maxAge: SESSION_HOURS * 3600_000, path: '/' },
+    }),
+  );
+  const auth = configurePassport(orm);
+  api.use(auth.initialize());
+  api.use(auth.session());
+  // Failed sign-ins per IP and e-mail: 10 per 15 minutes (successful ones do not count).
+  api.post(
+    '/session',
+    rateLimit({
+      windowMs: 15 * 60_000,
+      limit: 10,
+      skipSuccessfulRequests: true,
+      standardHeaders: 'draft-8',
+      legacyHeaders: false,
+      keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`,
+      handler: (_req, _res, next) =>
+        next(new AppError(429, 'Too many attempts', 'Too many failed sign-ins. Wait 15 minutes and try again.')),
+    }),
+  );
+  mountRoutes(api, apiRoutes(deps, auth));
+  api.use(apiNotFound);
+  app.use('/api', api);
+
+  const dist = config.clientDist;
+  if (dist && fs.existsSync(path.join(dist, 'index.html'))) {
+    app.use(express.static(dist, { index: false, maxAge: '1h', setHeaders: noCacheIndex }));
+    // Every other path is a client route: the Angular app decides.
+    app.get('/{*splat}', (_req, res) => {
+      res.setHeader('Cache-Control', 'no-cache');
+      res.sendFile(path.join(dist, 'index.html'));
+    });
+  }
+  app.use(errorHandler);
+  return app;
+}
+
+function noCacheIndex(res: express.Response, file: string): void {
+  if (file.endsWith('index.html')) res.setHeader('Cache-Control', 'no-cache');
+}

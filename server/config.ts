@@ -1,0 +1,68 @@
+import { z } from 'zod';
+
+/**
+ * Configuration, read and validated once at start-up from the environment.
+ * The bootstrap script (server/ops/bootstrap.sh) sets these for `npm start` and `npm test`.
+ */
+const envSchema = z.object({
+  NODE_ENV: z.enum(['development', 'production', 'test']).default('production'),
+  HOST: z.string().default('127.0.0.1'),
+  PORT: z.coerce.number().int().min(0).max(65535).default(3000),
+  DATABASE_URL: z.url({ error: 'DATABASE_URL must be a postgres:// URL' }),
+  /** Where outgoing mail goes: the local catcher by default, a real relay in production. */
+  SMTP_URL: z.url().default('smtp://127.0.0.1:2525'),
+  /** When set, this process also runs the SMTP catcher on that port (npm start and tests). */
+  MAIL_CATCHER_PORT: z.coerce.number().int().min(0).max(65535).optional(),
+  MAIL_FROM: z.string().default('Tendara <no-reply@tendara.test>'),
+  SESSION_SECRET: z.string().min(32, { error: 'SESSION_SECRET must be at least 32 characters' }),
+  /** The address people use to reach the app; used in e-mailed links. */
+  PUBLIC_URL: z.url().optional(),
+  /** Set to 1 behind a TLS-terminating proxy: cookies become Secure and the proxy's address is trusted. */
+  TRUST_PROXY: z.enum(['0', '1']).default('0'),
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  /** The built Angular app; the server serves it when the folder exists. */
+  CLIENT_DIST: z.string().optional(),
+  /** Run queue workers (solve and mail jobs) in this process. */
+  RUN_WORKERS: z.enum(['0', '1']).default('1'),
+});
+
+export type Config = {
+  env: 'development' | 'production' | 'test';
+  host: string;
+  port: number;
+  databaseUrl: string;
+  smtpUrl: string;
+  mailCatcherPort: number | undefined;
+  mailFrom: string;
+  sessionSecret: string;
+  publicUrl: string;
+  trustProxy: boolean;
+  logLevel: string;
+  clientDist: string | undefined;
+  runWorkers: boolean;
+};
+
+/** Reads the environment; throws one error listing every bad variable. */
+export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = envSchema.safeParse(env);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
+    throw new Error(`Invalid configuration:\n${lines.join('\n')}`);
+  }
+  const e = parsed.data;
+  return {
+    env: e.NODE_ENV,
+    host: e.HOST,
+    port: e.PORT,
+    databaseUrl: e.DATABASE_URL,
+    smtpUrl: e.SMTP_URL,
+    mailCatcherPort: e.MAIL_CATCHER_PORT,
+    mailFrom: e.MAIL_FROM,
+    sessionSecret: e.SESSION_SECRET,
+    publicUrl: (e.PUBLIC_URL ?? `http://${e.HOST}:${e.PORT}`).replace(/\/$/, ''),
+    trustProxy: e.TRUST_PROXY === '1',
+    logLevel: e.LOG_LEVEL,
+    clientDist: e.CLIENT_DIST,
+    runWorkers: e.RUN_WORKERS === '1',
+  };
+}

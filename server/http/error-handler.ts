@@ -1,0 +1,40 @@
+import type { ErrorRequestHandler, RequestHandler } from 'express';
+import { UniqueConstraintViolationException } from '@mikro-orm/core';
+import { AppError } from './errors';
+
+const PROBLEM = 'application/problem+json';
+
+/** 404 for /api paths nobody declared. */
+export const apiNotFound: RequestHandler = (req, _res, next) => {
+  next(new AppError(404, 'Not found', `No API route ${req.method} ${req.originalUrl}.`));
+};
+
+/**
+ * The one error handler: AppErrors as they are; body-parser and database errors mapped to clear
+ * answers; everything else a 500 with a generic message (the full error goes to the log only).
+ */
+export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
+  let problem: AppError;
+  if (err instanceof AppError) problem = err;
+  else if (err?.type === 'entity.parse.failed') {
+    problem = new AppError(400, 'Malformed JSON', 'The request body is not valid JSON.', [{ field: '(body)', message: 'The request body is not valid JSON.' }]);
+  } else if (err?.type === 'entity.too.large') {
+    problem = new AppError(413, 'Request too large', 'The request body is larger than allowed.');
+  } else if (err?.type === 'encoding.unsupported' || err?.type === 'charset.unsupported') {
+    problem = new AppError(415, 'Unsupported encoding', 'Send the body as UTF-8 JSON.');
+  } else if (err instanceof UniqueConstraintViolationException) {
+    problem = new AppError(409, 'Conflict', 'This would duplicate something that must be unique.');
+  } else {
+    req.log?.error({ err }, 'unhandled error');
+    problem = new AppError(500, 'Internal error', 'Something went wrong on our side. It has been logged; try again later.');
+  }
+  if (problem.status >= 500 && err instanceof AppError) req.log?.error({ err }, 'server error');
+  if (res.headersSent) return;
+  res.status(problem.status).type(PROBLEM).json({
+    type: 'about:blank',
+    title: problem.title,
+    status: problem.status,
+    ...(problem.detail ? { detail: problem.detail } : {}),
+    ...(problem.errors ? { errors: problem.errors } : {}),
+  });
+};

@@ -1,0 +1,91 @@
+import type { NextFunction, Request, RequestHandler, Response, Router } from 'express';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { RequestContext } from '@mikro-orm/core';
+import { z } from 'zod';
+import type { Role } from '@shared/auth';
+import type { User } from '../entities';
+import { ForbiddenError, UnauthorizedError } from './errors';
+import { parseOr400 } from './validate';
+
+/** Who may call a route: anyone, anyone signed in, or the listed roles. */
+export type Access = 'public' | 'signed-in' | readonly Role[];
+
+type Method = 'get' | 'post' | 'put' | 'patch' | 'delete';
+
+export interface RouteInput<P, Q, B> {
+  params: P;
+  query: Q;
+  body: B;
+  /** The signed-in person (undefined only on public routes). */
+  user: User;
+  /** This request's own EntityManager (MikroORM RequestContext). */
+  em: EntityManager;
+  req: Request;
+  res: Response;
+}
+
+/**
+ * One API route: its documentation, who may call it, the schemas of its input, and the handler.
+ * Routes are declared with `route()` in server/routes and collected in one list, from which the
+ * Express router, the OpenAPI document and the sign-in/role tests are all derived — so no route can
+ * exist without a role check, a schema and documentation.
+ */
+export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
+  method: Method;
+  /** Express path below /api, e.g. `/users/:id/deactivate`. */
+  path: string;
+  summary: string;
+  tag: string;
+  access: Access;
+  params?: z.ZodType<P>;
+  query?: z.ZodType<Q>;
+  body?: z.ZodType<B>;
+  /** Success status; 204 sends no body. */
+  status?: number;
+  /** Response descriptions for the OpenAPI document, by status. */
+  responses?: Record<number, string>;
+  /** The success body's content type when it is not JSON (exports). */
+  produces?: string;
+  /** Returns the JSON body, or writes the response itself and returns undefined. */
+  handler: (input: RouteInput<P, Q, B>) => Promise<unknown> | unknown;
+}
+
+export type AnyRoute = RouteDef<any, any, any>; // eslint-disable-line @typescript-eslint/no-explicit-any -- heterogeneous list
+
+export function route<P = Record<string, never>, Q = Record<string, never>, B = undefined>(
+  def: RouteDef<P, Q, B>,
+): RouteDef<P, Q, B> {
+  return def;
+}
+
+/** The one server guard: 401 when signed out, 403 when the role is not allowed. */
+export function requireRole(access: Access): RequestHandler {
+  return (req: Request, _res: Response, next: NextFunction) => {
+    if (access === 'public') return next();
+    if (!req.user) return next(new UnauthorizedError());
+    if (access !== 'signed-in' && !access.includes(req.user.role)) return next(new ForbiddenError());
+    next();
+  };
+}
+
+/** Mounts every route on `router`: guard → validation → handler. */
+export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
+  for (const def of routes) {
+    router[def.method](def.path, requireRole(def.access), async (req: Request, res: Response) => {
+      const input: RouteInput<unknown, unknown, unknown> = {
+        params: def.params ? parseOr400(def.params, req.params) : req.params,
+        query: def.query ? parseOr400(def.query, req.query) : {},
+        body: def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
+        user: req.user as User,
+        em: RequestContext.getEntityManager() as EntityManager,
+        req,
+        res,
+      };
+      const result = await def.handler(input);
+      if (res.headersSent) return;
+      const status = def.status ?? 200;
+      if (status === 204 || result === undefined) res.status(status === 200 ? 204 : status).end();
+      else res.status(status).json(result);
+    });
+  }
+}

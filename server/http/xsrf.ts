@@ -1,0 +1,39 @@
+import { randomBytes, timingSafeEqual } from 'node:crypto';
+import type { RequestHandler } from 'express';
+import { AppError } from './errors';
+
+export const XSRF_COOKIE = 'XSRF-TOKEN';
+export const XSRF_HEADER = 'x-xsrf-token';
+const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
+
+/**
+ * Angular's XSRF convention (double-submit cookie): the server sets a random `XSRF-TOKEN`
+ * cookie readable by the page; every state-changing request must echo it in `X-XSRF-TOKEN`.
+ * Another site cannot read our cookie, so it cannot forge the header. Sign-in is included.
+ */
+export function xsrf(): RequestHandler {
+  return (req, res, next) => {
+    let token: unknown = req.cookies?.[XSRF_COOKIE];
+    if (typeof token !== 'string' || !/^[A-Za-z0-9_-]{32,64}$/.test(token)) {
+      token = randomBytes(32).toString('base64url');
+      res.cookie(XSRF_COOKIE, token, { httpOnly: false, sameSite: 'lax', secure: req.secure, path: '/' });
+      // A request without the cookie cannot carry a matching header.
+      if (!SAFE_METHODS.has(req.method)) return next(forbidden());
+      return next();
+    }
+    if (SAFE_METHODS.has(req.method)) return next();
+    const header = req.get(XSRF_HEADER);
+    if (!header || !equal(header, token as string)) return next(forbidden());
+    next();
+  };
+}
+
+function equal(a: string, b: string): boolean {
+  const x = Buffer.from(a);
+  const y = Buffer.from(b);
+  return x.length === y.length && timingSafeEqual(x, y);
+}
+
+function forbidden() {
+  return new AppError(403, 'Missing XSRF token', 'This request needs the X-XSRF-TOKEN header matching the XSRF-TOKEN cookie. Reload the page and try again.');
+}

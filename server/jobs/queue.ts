@@ -1,0 +1,51 @@
+import PgBoss from 'pg-boss';
+import { logger } from '../logger';
+import type { Mailer, OutgoingMail } from '../mail/mailer';
+
+/** Queue names. Jobs live in PostgreSQL (pg-boss), so workers on other machines can share them. */
+export const QUEUES = {
+  mail: 'mail-send',
+} as const;
+
+/** pg-boss keeps its tables in this schema, installed by `server/ops/migrate.ts`. */
+export const BOSS_SCHEMA = 'pgboss';
+
+/**
+ * A pg-boss instance. Only `server/ops/migrate.ts` passes `install: true`: the app itself never
+ * changes a schema at run time.
+ */
+export function createBoss(databaseUrl: string, options: { install?: boolean } = {}): PgBoss {
+  const boss = new PgBoss({
+    connectionString: databaseUrl,
+    schema: BOSS_SCHEMA,
+    max: 4,
+    migrate: options.install ?? false,
+    supervise: !options.install,
+    schedule: !options.install,
+  });
+  boss.on('error', (err) => logger.error({ err }, 'job queue error'));
+  return boss;
+}
+
+/** Creates the queues (idempotent). */
+export async function ensureQueues(boss: PgBoss): Promise<void> {
+  for (const name of Object.values(QUEUES)) {
+    if (!(await boss.getQueue(name))) {
+      await boss.createQueue(name, { name, retryLimit: 8, retryDelay: 15, retryBackoff: true, expireInSeconds: 120 });
+    }
+  }
+}
+
+/** Queues one e-mail; the mail worker sends it, retrying while the SMTP server is unreachable. */
+export async function enqueueMail(boss: PgBoss, mail: OutgoingMail, key?: string): Promise<string | null> {
+  return boss.send(QUEUES.mail, mail, key ? { singletonKey: key } : {});
+}
+
+export async function startMailWorker(boss: PgBoss, mailer: Mailer): Promise<void> {
+  await boss.work<OutgoingMail>(QUEUES.mail, { batchSize: 5, pollingIntervalSeconds: 1 }, async (jobs) => {
+    for (const job of jobs) {
+      await mailer.send(job.data);
+      logger.info({ jobId: job.id, to: job.data.to, subject: job.data.subject }, 'mail sent');
+    }
+  });
+}

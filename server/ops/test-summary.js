@@ -1,0 +1,28 @@
+// Adds up the jest JSON reports given as arguments and prints CI's summary line:
+//   N passed, N failed, N skipped
+// Exits 1 when a test failed or a suite could not run (a suite that fails to load counts as one failure).
+const fs = require('node:fs');
+
+let passed = 0, failed = 0, skipped = 0;
+for (const file of process.argv.slice(2)) {
+  let report;
+  try {
+    report = JSON.parse(fs.readFileSync(file, 'utf8'));
+  } catch {
+    console.error(`[tendara] no readable test report in ${file}`);
+    failed += 1;
+    continue;
+  }
+  passed += report.numPassedTests;
+  failed += report.numFailedTests;
+  skipped += report.numPendingTests + report.numTodoTests;
+  // Suites that crashed before running any test (syntax error, failed import) report no tests.
+  for (const suite of report.testResults) {
+    if (suite.status === 'failed' && suite.assertionResults.every((a) => a.status !== 'failed')) {
+      console.error(`[tendara] suite failed to run: ${suite.name}\n${suite.message}`);
+      failed += 1;
+    }
+  }
+}
+console.log(`${passed} passed, ${failed} failed, ${skipped} skipped`);
+process.exit(failed > 0 ? 1 : 0);

@@ -1,0 +1,43 @@
+import { z } from 'zod';
+
+/** The four roles of Tendara. A person has exactly one. */
+export const ROLES = ['admin', 'buyer', 'compliance', 'vendor'] as const;
+export const roleSchema = z.enum(ROLES);
+export type Role = z.infer<typeof roleSchema>;
+
+/** Passwords are at least 12 characters (and at most 200, so hashing stays cheap). */
+export const PASSWORD_MIN_LENGTH = 12;
+export const passwordSchema = z
+  .string({ error: 'Password is required.' })
+  .min(PASSWORD_MIN_LENGTH, { error: `Password must be at least ${PASSWORD_MIN_LENGTH} characters.` })
+  .max(200, { error: 'Password must be at most 200 characters.' });
+
+export const emailSchema = z
+  .string({ error: 'E-mail is required.' })
+  .trim()
+  .max(254, { error: 'E-mail must be at most 254 characters.' })
+  .pipe(z.email({ error: 'Enter a valid e-mail address.' }));
+
+/** POST /api/session. The password is not length-checked here: a wrong one gets the same 401. */
+export const signInSchema = z.object({
+  email: z.string({ error: 'E-mail is required.' }).trim().min(1, { error: 'E-mail is required.' }).max(254, { error: 'E-mail must be at most 254 characters.' }),
+  password: z.string({ error: 'Password is required.' }).min(1, { error: 'Password is required.' }).max(200, { error: 'Password must be at most 200 characters.' }),
+});
+export type SignIn = z.infer<typeof signInSchema>;
+
+/** The signed-in person as the API returns it. */
+export interface SessionUser {
+  id: string;
+  email: string;
+  name: string;
+  role: Role;
+  vendorOrganisation: { id: string; name: string } | null;
+}
+
+/** Home page of each role, used by the client after sign-in. */
+export const ROLE_LABELS: Record<Role, string> = {
+  admin: 'Administrator',
+  buyer: 'Buyer',
+  compliance: 'Compliance officer',
+  vendor: 'Vendor',
+};

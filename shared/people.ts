@@ -1,0 +1,90 @@
+import { z } from 'zod';
+import { emailSchema, passwordSchema, roleSchema, type Role } from './auth';
+
+const uuid = z.uuid({ error: 'Must be a valid id.' });
+
+/** POST /api/users: invite a person. Vendors must name their organisation. */
+export const inviteUserSchema = z
+  .object({
+    name: z.string({ error: 'Name is required.' }).trim().min(1, { error: 'Name is required.' }).max(120, { error: 'Name must be at most 120 characters.' }),
+    email: emailSchema,
+    role: roleSchema,
+    vendorOrganisationId: uuid.nullish(),
+  })
+  .superRefine((v, ctx) => {
+    if (v.role === 'vendor' && !v.vendorOrganisationId) {
+      ctx.addIssue({ code: 'custom', path: ['vendorOrganisationId'], message: 'A vendor must belong to a vendor organisation.' });
+    }
+    if (v.role !== 'vendor' && v.vendorOrganisationId) {
+      ctx.addIssue({ code: 'custom', path: ['vendorOrganisationId'], message: 'Only vendors belong to a vendor organisation.' });
+    }
+  });
+export type InviteUser = z.infer<typeof inviteUserSchema>;
+
+/** POST /api/vendor-organisations */
+export const vendorOrganisationSchema = z.object({
+  name: z.string({ error: 'Name is required.' }).trim().min(1, { error: 'Name is required.' }).max(160, { error: 'Name must be at most 160 characters.' }),
+  registrationNumber: z.string({ error: 'Registration number is required.' }).trim().min(1, { error: 'Registration number is required.' }).max(40, { error: 'Registration number must be at most 40 characters.' }),
+  sme: z.boolean({ error: 'SME must be true or false.' }),
+  contactEmail: emailSchema,
+});
+export type VendorOrganisationInput = z.infer<typeof vendorOrganisationSchema>;
+
+/** POST /api/account-setup/:token */
+export const setPasswordSchema = z.object({ password: passwordSchema });
+
+export const idParamSchema = z.object({ id: uuid });
+export const tokenParamSchema = z.object({
+  token: z.string().regex(/^[A-Za-z0-9_-]{20,100}$/, { error: 'The link is not valid.' }),
+});
+
+export interface PersonView {
+  id: string;
+  email: string;
+  name: string;
+  role: Role;
+  active: boolean;
+  invitationPending: boolean;
+  vendorOrganisation: { id: string; name: string } | null;
+  createdAt: string;
+  lastSignInAt: string | null;
+}
+
+export interface VendorOrganisationView {
+  id: string;
+  name: string;
+  registrationNumber: string;
+  sme: boolean;
+  contactEmail: string;
+}
+
+/** GET /api/account-setup/:token: whom the link is for. */
+export interface AccountSetupView {
+  email: string;
+  name: string;
+  expiresAt: string;
+}
+
+/** GET /api/outbox */
+export interface OutboxSummary {
+  id: string;
+  from: string;
+  to: string[];
+  subject: string;
+  date: string;
+  hasHtml: boolean;
+}
+/** GET /api/outbox/:id */
+export interface OutboxMessage extends OutboxSummary {
+  text: string;
+  html: string | null;
+}
+
+/** application/problem+json body (RFC 9457) with Tendara's field list. */
+export interface Problem {
+  type: string;
+  title: string;
+  status: number;
+  detail?: string;
+  errors?: { field: string; message: string }[];
+}
