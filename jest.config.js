@@ -6,7 +6,6 @@ const { createCjsPreset } = require('jest-preset-angular/presets');
 const serverTransform = {
   '^.+\\.ts$': ['ts-jest', {
     tsconfig: '<rootDir>/tsconfig.spec-server.json',
-    isolatedModules: true,
     diagnostics: false,
   }],
 };

@@ -1,0 +1,93 @@
+import { SESSION_COOKIE } from '../../server/app';
+import { Browser, makeUser, startTestApp, TEST_PASSWORD, type TestApp } from '../support/app';
+
+let t: TestApp;
+beforeAll(async () => {
+  t = await startTestApp({ workers: false });
+});
+afterAll(() => t.close());
+
+test('GET /api/session when signed out answers 401 problem+json and sets the XSRF-TOKEN cookie', async () => {
+  const res = await new Browser(t.app).agent.get('/api/session');
+  expect(res.status).toBe(401);
+  expect(res.type).toBe('application/problem+json');
+  expect(res.body).toMatchObject({ status: 401, title: 'Not signed in' });
+  const cookies = ([] as string[]).concat(res.headers['set-cookie'] ?? []);
+  expect(cookies.some((c) => /^XSRF-TOKEN=[A-Za-z0-9_-]{32,};/.test(c) && !/HttpOnly/i.test(c))).toBe(true);
+});
+
+test('sign-in without the XSRF header is refused with 403', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await new Browser(t.app).init();
+  const res = await b.agent.post('/api/session').send({ email: user.email, password: TEST_PASSWORD });
+  expect(res.status).toBe(403);
+});
+
+test('sign-in, session and sign-out: the cookie is httpOnly and SameSite=Lax; the e-mail is matched regardless of case', async () => {
+  const user = await makeUser(t, 'compliance');
+  const b = await new Browser(t.app).init();
+  const res = await b.signIn(user.email.toUpperCase());
+  expect(res.status).toBe(200);
+  expect(res.body.user).toEqual({ id: user.id, email: user.email, name: user.name, role: 'compliance', vendorOrganisation: null });
+  const cookie = ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith(`${SESSION_COOKIE}=`));
+  expect(cookie).toMatch(/HttpOnly/i);
+  expect(cookie).toMatch(/SameSite=Lax/i);
+  expect((await b.get('/api/session')).body.user.id).toBe(user.id);
+  expect((await b.send('delete', '/api/session')).status).toBe(204);
+  expect((await b.get('/api/session')).status).toBe(401);
+});
+
+test('an unknown e-mail and a wrong password get the same 401 answer', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await new Browser(t.app).init();
+  const unknown = await b.signIn('nobody@nowhere.test', 'whatever-password');
+  const wrong = await b.signIn(user.email, 'not-the-password');
+  expect(unknown.status).toBe(401);
+  expect(wrong.status).toBe(401);
+  expect(unknown.body).toEqual(wrong.body);
+  expect(unknown.body).toEqual({ type: 'about:blank', title: 'Sign-in failed', status: 401, detail: 'E-mail or password is not correct.' });
+});
+
+test('a deactivated person cannot sign in, with the same answer as a wrong password', async () => {
+  const user = await makeUser(t, 'buyer', { active: false });
+  const res = await (await new Browser(t.app).init()).signIn(user.email);
+  expect(res.status).toBe(401);
+  expect(res.body.detail).toBe('E-mail or password is not correct.');
+});
+
+test('after 10 failed sign-ins for one e-mail the next is refused with 429, even with the right password', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await new Browser(t.app).init();
+  for (let i = 0; i < 10; i++) expect((await b.signIn(user.email, 'wrong-password-x')).status).toBe(401);
+  const res = await b.signIn(user.email);
+  expect(res.status).toBe(429);
+  expect(res.body.title).toBe('Too many attempts');
+});
+
+test('a sign-in body with wrong types or over-long strings is refused with 400 naming the field', async () => {
+  const b = await new Browser(t.app).init();
+  const res = await b.post('/api/session', { email: 42, password: 'x'.repeat(500) });
+  expect(res.status).toBe(400);
+  expect(res.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['email', 'password']);
+});
+
+test('malformed JSON gets a 400 that says so', async () => {
+  const b = await new Browser(t.app).init();
+  const res = await b.agent.post('/api/session').set('X-XSRF-TOKEN', b.token).set('Content-Type', 'application/json').send('{"email": ');
+  expect(res.status).toBe(400);
+  expect(res.body.title).toBe('Malformed JSON');
+});
+
+test('security headers are set (helmet): CSP, nosniff, frame options', async () => {
+  const res = await new Browser(t.app).agent.get('/api/session');
+  expect(res.headers['content-security-policy']).toContain("script-src 'self'");
+  expect(res.headers['x-content-type-options']).toBe('nosniff');
+  expect(res.headers['x-frame-options']).toBe('SAMEORIGIN');
+  expect(res.headers['x-powered-by']).toBeUndefined();
+});
+
+test('an unknown API path is a 404 problem, never the client app', async () => {
+  const res = await new Browser(t.app).agent.get('/api/no-such-thing');
+  expect(res.status).toBe(404);
+  expect(res.type).toBe('application/problem+json');
+});
