@@ -1,0 +1,123 @@
+import { z } from 'zod';
+
+/** Most regions one tender may have; the bid workbook and the tabulation are sized for it. */
+export const MAX_REGIONS = 500;
+
+/** Upper bound for money and quantities: far above any real contract, low enough to stay exact in a double. */
+export const MAX_AMOUNT = 1e12;
+
+/**
+ * True when `value` has at most `places` decimals as written. `toFixed` rounds to the nearest
+ * representable decimal, so 61.55 passes with 2 places while 0.1 + 0.2 (0.30000000000000004) does not:
+ * a price computed elsewhere must be rounded by the vendor, not silently by us.
+ */
+export function hasAtMostDecimals(value: number, places: number): boolean {
+  return Number.isFinite(value) && Number(value.toFixed(places)) === value;
+}
+
+/** Region codes as they appear in workbooks, e-mails and the award engine's problem file. */
+export const REGION_CODE_PATTERN = /^[A-Za-z0-9._-]{1,20}$/;
+
+export const regionCodeSchema = z
+  .string({ error: 'Region code is required.' })
+  .trim()
+  .min(1, { error: 'Region code is required.', abort: true })
+  .max(20, { error: 'Region code must be at most 20 characters.' })
+  .regex(REGION_CODE_PATTERN, { error: 'Region code may only contain letters, digits, ".", "_" and "-".' });
+
+/** A tender's region row as the buyer enters or imports it. */
+export const regionInputSchema = z.object({
+  code: regionCodeSchema,
+  name: z
+    .string({ error: 'Region name is required.' })
+    .trim()
+    .min(1, { error: 'Region name is required.' })
+    .max(120, { error: 'Region name must be at most 120 characters.' }),
+  forecast: z
+    .number({ error: 'Forecast must be a number above 0.' })
+    .gt(0, { error: 'Forecast must be a number above 0.' })
+    .lt(MAX_AMOUNT, { error: `Forecast must be below ${MAX_AMOUNT.toExponential()}.` }),
+});
+export type RegionInput = z.infer<typeof regionInputSchema>;
+
+/**
+ * Codes that repeat an earlier one, compared without regard to case and surrounding spaces; blank
+ * codes are skipped (they are reported as missing instead). Exported so an importer can report
+ * duplicates even when other fields of the list are invalid, which stops the schema's own check.
+ */
+export function findDuplicateRegionCodes(regions: ReadonlyArray<{ code: string }>): Array<{ index: number; message: string }> {
+  const firstIndex = new Map<string, number>();
+  const duplicates: Array<{ index: number; message: string }> = [];
+  regions.forEach((region, i) => {
+    const code = region.code.trim();
+    if (code === '') return;
+    const first = firstIndex.get(code.toUpperCase());
+    if (first === undefined) firstIndex.set(code.toUpperCase(), i);
+    else duplicates.push({ index: i, message: `Region code "${code}" is used twice (first at region ${first + 1}).` });
+  });
+  return duplicates;
+}
+
+/**
+ * A tender's full list of regions: 1 to 500, codes unique. Codes are compared without regard to
+ * case, because "r07" and "R07" in one workbook would confuse every reader. A duplicate is reported
+ * at its own index (path `[i, 'code']`) and names the index it repeats.
+ */
+export const regionListSchema = z
+  .array(regionInputSchema, { error: 'Regions must be a list.' })
+  .min(1, { error: 'A tender needs at least one region.' })
+  .max(MAX_REGIONS, { error: `A tender has at most ${MAX_REGIONS} regions.` })
+  .superRefine((regions, ctx) => {
+    for (const duplicate of findDuplicateRegionCodes(regions)) {
+      ctx.addIssue({ code: 'custom', path: [duplicate.index, 'code'], message: duplicate.message });
+    }
+  });
+export type RegionList = z.infer<typeof regionListSchema>;
+
+/** Fixed fee: 0 or more, at most 2 decimals. */
+export const fixedFeeSchema = z
+  .number({ error: 'Fixed fee must be a number (0 if there is none).' })
+  .min(0, { error: 'Fixed fee must be 0 or more.' })
+  .lt(MAX_AMOUNT, { error: `Fixed fee must be below ${MAX_AMOUNT.toExponential()}.` })
+  .refine((v) => hasAtMostDecimals(v, 2), { error: 'Fixed fee may have at most 2 decimals.' });
+
+/** Capacity cap over the whole contract; null means no cap. */
+export const capacitySchema = z
+  .number({ error: 'Capacity cap must be a number above 0, or empty for no cap.' })
+  .gt(0, { error: 'Capacity cap must be a positive number (leave it empty for no cap).' })
+  .lt(MAX_AMOUNT, { error: `Capacity cap must be below ${MAX_AMOUNT.toExponential()}.` })
+  .nullable();
+
+/** A delivered unit price for one region: above 0, at most 4 decimals. */
+export const unitPriceSchema = z
+  .number({ error: 'Unit price must be a number above 0.' })
+  .gt(0, { error: 'Unit price must be a positive number.' })
+  .lt(MAX_AMOUNT, { error: `Unit price must be below ${MAX_AMOUNT.toExponential()}.` })
+  .refine((v) => hasAtMostDecimals(v, 4), { error: 'Unit price may have at most 4 decimals.' });
+
+/**
+ * PUT /api/tenders/:id/bid. `prices` maps region code → unit price; a region left out is not
+ * offered. `capacity: null` means no cap. Issues on a price carry the path `prices.<code>`.
+ * Whether each code belongs to the tender is checked by the service, which knows the regions.
+ */
+export const bidInputSchema = z
+  .object({
+    fixedFee: fixedFeeSchema,
+    capacity: capacitySchema,
+    prices: z.record(regionCodeSchema, unitPriceSchema, { error: 'Prices must map region codes to unit prices.' }),
+    submit: z.boolean({ error: 'Submit must be true or false.' }),
+  })
+  .superRefine((bid, ctx) => {
+    const offered = Object.keys(bid.prices).length;
+    if (offered > MAX_REGIONS) {
+      ctx.addIssue({ code: 'custom', path: ['prices'], message: `A bid prices at most ${MAX_REGIONS} regions.` });
+    }
+    // A draft may be saved empty; a submitted bid that offers nothing could never be awarded.
+    if (bid.submit && offered === 0) {
+      ctx.addIssue({ code: 'custom', path: ['prices'], message: 'Enter a unit price for at least one region before submitting.' });
+    }
+  });
+export type BidInput = z.infer<typeof bidInputSchema>;
+
+/** The figures of a bid, without the draft/submit switch: what a workbook carries. */
+export type BidFigures = Omit<BidInput, 'submit'>;
