@@ -22,6 +22,8 @@ import { logger } from './logger';
 import { outboxRoutes } from './routes/outbox.routes';
 import { peopleRoutes } from './routes/people.routes';
 import { sessionRoutes } from './routes/session.routes';
+import { tenderRoutes } from './routes/tenders.routes';
+import { bidRoutes } from './routes/bids.routes';
 
 export interface AppDeps {
   config: Config;
@@ -36,7 +38,9 @@ const SESSION_HOURS = 8;
 
 /** Every API route of the app, in one list (mounted, documented and tested from it). */
 export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): AnyRoute[] {
-  const routes: AnyRoute[] = [...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes()];
+  const routes: AnyRoute[] = [
+    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(), ...tenderRoutes(deps), ...bidRoutes(deps),
+  ];
   routes.push(
     route({
       method: 'get', path: '/openapi.json', tag: 'Meta', access: 'public',

@@ -4,7 +4,8 @@ import { MikroORM } from '@mikro-orm/postgresql';
 import { Pool } from 'pg';
 import { createApp } from './app';
 import { loadConfig, type Config } from './config';
-import { createBoss, startMailWorker } from './jobs/queue';
+import { createBoss, startMailWorker, startTenderCloseWorker } from './jobs/queue';
+import { closeAllDue, closeIfDue } from './services/tender-access';
 import { logger } from './logger';
 import { startMailCatcher, type MailCatcher } from './mail/catcher';
 import { createMailer } from './mail/mailer';
@@ -30,7 +31,14 @@ export async function start(config: Config): Promise<Running> {
   let catcher: MailCatcher | undefined;
   if (config.mailCatcherPort !== undefined) catcher = await startMailCatcher(orm, config.mailCatcherPort);
   const mailer = createMailer(config.smtpUrl, config.mailFrom);
-  if (config.runWorkers) await startMailWorker(boss, mailer);
+  if (config.runWorkers) {
+    await startMailWorker(boss, mailer);
+    await startTenderCloseWorker(boss, async (id) => {
+      const em = orm.em.fork();
+      if (id) await closeIfDue(em, id);
+      else await closeAllDue(em);
+    });
+  }
 
   const app = createApp({ config, orm, boss, sessionPool });
   const server: Server = await new Promise((resolve, reject) => {

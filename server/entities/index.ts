@@ -1,8 +1,14 @@
 import { AccountToken } from './account-token.entity';
+import { Bid } from './bid.entity';
+import { BidDocument } from './bid-document.entity';
+import { BidLine } from './bid-line.entity';
+import { Invitation } from './invitation.entity';
 import { MailMessage } from './mail-message.entity';
+import { Region } from './region.entity';
+import { Tender } from './tender.entity';
 import { User } from './user.entity';
 import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
-export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage];
-export { AccountToken, MailMessage, User, VendorOrganisation };
+export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument];
+export { AccountToken, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation };

@@ -1,4 +1,4 @@
-import { Entity, Enum, ManyToOne, Property, type Opt } from '@mikro-orm/core';
+import { Check, Entity, Enum, Index, ManyToOne, Property, type Opt } from '@mikro-orm/core';
 import { ROLES, type Role } from '@shared/auth';
 import { BaseEntity } from './base.entity';
 import { VendorOrganisation } from './vendor-organisation.entity';
@@ -8,6 +8,8 @@ import { VendorOrganisation } from './vendor-organisation.entity';
  * created by the migration); it is stored as typed, trimmed.
  */
 @Entity({ tableName: 'app_user' })
+@Index({ name: 'app_user_email_lower_unique', expression: 'create unique index "app_user_email_lower_unique" on "app_user" (lower("email"))' })
+@Check({ name: 'app_user_vendor_organisation_check', expression: "(role = 'vendor') = (vendor_organisation_id is not null)" })
 export class User extends BaseEntity {
   @Property({ type: 'string', length: 254 })
   email!: string;

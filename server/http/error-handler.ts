@@ -1,5 +1,6 @@
 import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { UniqueConstraintViolationException } from '@mikro-orm/core';
+import { MulterError } from 'multer';
 import { AppError } from './errors';
 
 const PROBLEM = 'application/problem+json';
@@ -22,6 +23,10 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     problem = new AppError(413, 'Request too large', 'The request body is larger than allowed.');
   } else if (err?.type === 'encoding.unsupported' || err?.type === 'charset.unsupported') {
     problem = new AppError(415, 'Unsupported encoding', 'Send the body as UTF-8 JSON.');
+  } else if (err instanceof MulterError) {
+    problem = err.code === 'LIMIT_FILE_SIZE'
+      ? new AppError(413, 'File too large', 'The file is larger than allowed.', [{ field: err.field ?? 'file', message: 'The file is larger than allowed (at most 5 MB).' }])
+      : new AppError(400, 'Invalid upload', err.message, [{ field: err.field ?? 'file', message: err.message }]);
   } else if (err instanceof UniqueConstraintViolationException) {
     problem = new AppError(409, 'Conflict', 'This would duplicate something that must be unique.');
   } else {

@@ -51,6 +51,7 @@ export function openApiDocument(routes: readonly AnyRoute[], version: string): o
       'x-roles': r.access,
       ...(r.access === 'public' ? { security: [] } : {}),
       ...(parameters.length ? { parameters } : {}),
+      ...(r.upload ? { requestBody: { required: true, content: { 'multipart/form-data': { schema: { type: 'object', required: [r.upload.field], properties: { [r.upload.field]: { type: 'string', format: 'binary', maxLength: r.upload.maxBytes } } } } } } } : {}),
       ...(r.body ? { requestBody: { required: true, content: { 'application/json': { schema: jsonSchema(r.body) } } } } : {}),
       responses,
     };

@@ -1,6 +1,7 @@
 import type { NextFunction, Request, RequestHandler, Response, Router } from 'express';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { RequestContext } from '@mikro-orm/core';
+import multer from 'multer';
 import { z } from 'zod';
 import type { Role } from '@shared/auth';
 import type { User } from '../entities';
@@ -46,6 +47,8 @@ export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
   responses?: Record<number, string>;
   /** The success body's content type when it is not JSON (exports). */
   produces?: string;
+  /** A multipart upload of one file in `field` (kept in memory, at most `maxBytes`). */
+  upload?: { field: string; maxBytes: number };
   /** Returns the JSON body, or writes the response itself and returns undefined. */
   handler: (input: RouteInput<P, Q, B>) => Promise<unknown> | unknown;
 }
@@ -71,7 +74,10 @@ export function requireRole(access: Access): RequestHandler {
 /** Mounts every route on `router`: guard → validation → handler. */
 export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
   for (const def of routes) {
-    router[def.method](def.path, requireRole(def.access), async (req: Request, res: Response) => {
+    const upload: RequestHandler[] = def.upload
+      ? [multer({ storage: multer.memoryStorage(), limits: { fileSize: def.upload.maxBytes, files: 1, fields: 20 } }).single(def.upload.field)]
+      : [];
+    router[def.method](def.path, requireRole(def.access), ...upload, async (req: Request, res: Response) => {
       const input: RouteInput<unknown, unknown, unknown> = {
         params: def.params ? parseOr400(def.params, req.params) : req.params,
         query: def.query ? parseOr400(def.query, req.query) : {},

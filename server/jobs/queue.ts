@@ -5,6 +5,8 @@ import type { Mailer, OutgoingMail } from '../mail/mailer';
 /** Queue names. Jobs live in PostgreSQL (pg-boss), so workers on other machines can share them. */
 export const QUEUES = {
   mail: 'mail-send',
+  /** Closes a tender at its closing time (reads also close a tender that is due). */
+  tenderClose: 'tender-close',
 } as const;
 
 /** pg-boss keeps its tables in this schema, installed by `server/ops/migrate.ts`. */
@@ -48,4 +50,12 @@ export async function startMailWorker(boss: PgBoss, mailer: Mailer): Promise<voi
       logger.info({ jobId: job.id, to: job.data.to, subject: job.data.subject }, 'mail sent');
     }
   });
+}
+
+/** Closes tenders at their closing time; also sweeps any that were missed while no worker ran. */
+export async function startTenderCloseWorker(boss: PgBoss, close: (tenderId: string | null) => Promise<void>): Promise<void> {
+  await boss.work<{ tenderId: string }>(QUEUES.tenderClose, { pollingIntervalSeconds: 2 }, async (jobs) => {
+    for (const job of jobs) await close(job.data.tenderId);
+  });
+  await close(null);
 }

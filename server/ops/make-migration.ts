@@ -1,10 +1,11 @@
+/** `npm run migration:create`: writes a migration from the difference between entities and database. */
 import 'reflect-metadata';
 import { MikroORM } from '@mikro-orm/postgresql';
 import { ormConfig } from '../mikro-orm.config';
 (async () => {
   const orm = await MikroORM.init(ormConfig(process.env.DATABASE_URL!));
   const r = await orm.getMigrator().createMigration(undefined, false, process.argv[2] === 'initial');
-  console.log(r.fileName);
-  console.log(r.code);
+  // A command-line tool: it reports on stdout.
+  process.stdout.write(r.fileName ? `Wrote server/migrations/${r.fileName}\n` : 'No changes: the entities match the database.\n');
   await orm.close();
 })();

@@ -8,7 +8,8 @@ import type { Role } from '@shared/auth';
 import { createApp, type AppDeps } from '../../server/app';
 import { loadConfig, type Config } from '../../server/config';
 import { MailMessage, User, VendorOrganisation } from '../../server/entities';
-import { createBoss, startMailWorker } from '../../server/jobs/queue';
+import { createBoss, startMailWorker, startTenderCloseWorker } from '../../server/jobs/queue';
+import { closeIfDue } from '../../server/services/tender-access';
 import { startMailCatcher, type MailCatcher } from '../../server/mail/catcher';
 import { createMailer, type Mailer } from '../../server/mail/mailer';
 import { ormConfig } from '../../server/mikro-orm.config';
@@ -46,6 +47,9 @@ export async function startTestApp(options: { workers?: boolean } = {}): Promise
   if (options.workers !== false) {
     mailer = createMailer(config.smtpUrl, config.mailFrom);
     await startMailWorker(boss, mailer);
+    await startTenderCloseWorker(boss, async (id) => {
+      if (id) await closeIfDue(orm.em.fork(), id);
+    });
   }
   const sessionPool = new Pool({ connectionString: databaseUrl, max: 3 });
   const deps: AppDeps = { config, orm, boss, sessionPool };
@@ -126,10 +130,14 @@ export async function signedIn(t: TestApp, user: User): Promise<Browser> {
 }
 
 /** Waits until the catcher has stored a message to `to` (the mail worker polls every second). */
-export async function waitForMail(t: TestApp, to: string, timeoutMs = 15_000): Promise<MailMessage> {
+export async function waitForMail(t: TestApp, to: string, subjectStart = '', timeoutMs = 15_000): Promise<MailMessage> {
   const deadline = Date.now() + timeoutMs;
   for (;;) {
-    const found = await t.em().findOne(MailMessage, { toAddresses: { $contains: [to] } }, { orderBy: { createdAt: 'desc' } });
+    const found = await t.em().findOne(
+      MailMessage,
+      { toAddresses: { $contains: [to] }, subject: { $like: `${subjectStart.replace(/[\\%_]/g, (c) => `\\${c}`)}%` } },
+      { orderBy: { createdAt: 'desc' } },
+    );
     if (found) return found;
     if (Date.now() > deadline) throw new Error(`no mail to ${to} within ${timeoutMs} ms`);
     await new Promise((r) => setTimeout(r, 200));

@@ -1,0 +1,50 @@
+import { Collection, DecimalType, Entity, Enum, ManyToOne, OneToMany, Property, Unique, type Opt } from '@mikro-orm/core';
+import { BID_STATUSES, type BidStatus } from '@shared/tenders';
+import { BaseEntity } from './base.entity';
+import { BidLine } from './bid-line.entity';
+import type { BidDocument } from './bid-document.entity';
+import { Tender } from './tender.entity';
+import { VendorOrganisation } from './vendor-organisation.entity';
+
+/**
+ * A vendor organisation's one live bid on a tender. `version` guards against two tabs saving over
+ * each other (optimistic locking); `revision` counts submissions; `digest` is the SHA-256 of the
+ * canonical content at the last submission (the vendor's receipt carries it).
+ */
+@Entity({ tableName: 'bid' })
+@Unique({ properties: ['tender', 'vendorOrganisation'] })
+export class Bid extends BaseEntity {
+  @ManyToOne({ entity: () => Tender, deleteRule: 'cascade' })
+  tender!: Tender;
+
+  @ManyToOne({ entity: () => VendorOrganisation, deleteRule: 'restrict' })
+  vendorOrganisation!: VendorOrganisation;
+
+  @Enum({ items: () => BID_STATUSES, nativeEnumName: 'bid_status', default: 'draft' })
+  status: BidStatus & Opt = 'draft';
+
+  @Property({ type: new DecimalType('number'), precision: 16, scale: 2 })
+  fixedFee!: number;
+
+  /** null = no cap. */
+  @Property({ type: new DecimalType('number'), precision: 16, scale: 4, nullable: true })
+  capacity?: number | null;
+
+  @Property({ type: 'datetime', nullable: true })
+  submittedAt?: Date | null;
+
+  @Property({ type: 'string', length: 64, nullable: true })
+  digest?: string | null;
+
+  @Property({ type: 'integer', default: 0 })
+  revision: number & Opt = 0;
+
+  @Property({ type: 'integer', version: true })
+  version!: number & Opt;
+
+  @ManyToOne({ entity: 'BidDocument', nullable: true, deleteRule: 'set null' })
+  document?: BidDocument | null;
+
+  @OneToMany({ entity: () => BidLine, mappedBy: 'bid', orphanRemoval: true })
+  lines = new Collection<BidLine>(this);
+}

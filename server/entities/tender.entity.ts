@@ -1,0 +1,51 @@
+import { Collection, Entity, Enum, ManyToOne, OneToMany, Property, Unique, type Opt } from '@mikro-orm/core';
+import { TENDER_STATUSES, type TenderStatus } from '@shared/tenders';
+import { BaseEntity } from './base.entity';
+import { Region } from './region.entity';
+import { User } from './user.entity';
+
+/** A call for bids over many delivery regions. Times are stored in UTC. */
+@Entity({ tableName: 'tender' })
+export class Tender extends BaseEntity {
+  @Unique()
+  @Property({ type: 'string', length: 40 })
+  reference!: string;
+
+  @Property({ type: 'string', length: 200 })
+  title!: string;
+
+  @Property({ type: 'string', length: 120 })
+  commodity!: string;
+
+  /** Unit of measure of forecasts, capacities and unit prices (t, m³, meals…). */
+  @Property({ type: 'string', length: 20 })
+  unit!: string;
+
+  /** ISO 4217 code. */
+  @Property({ type: 'string', length: 3 })
+  currency!: string;
+
+  @Property({ type: 'datetime' })
+  closesAt!: Date;
+
+  @Property({ type: 'integer', default: 10 })
+  standstillDays: number & Opt = 10;
+
+  @Property({ type: 'text', default: '' })
+  description: string & Opt = '';
+
+  @Enum({ items: () => TENDER_STATUSES, nativeEnumName: 'tender_status', default: 'draft' })
+  status: TenderStatus & Opt = 'draft';
+
+  @ManyToOne({ entity: () => User, deleteRule: 'restrict' })
+  createdBy!: User;
+
+  @Property({ type: 'datetime', nullable: true })
+  publishedAt?: Date | null;
+
+  @Property({ type: 'datetime', nullable: true })
+  closedAt?: Date | null;
+
+  @OneToMany({ entity: () => Region, mappedBy: 'tender', orderBy: { position: 'asc' } })
+  regions = new Collection<Region>(this);
+}

@@ -1,0 +1,72 @@
+import { z } from 'zod';
+import { bidSaveSchema, tenderIdParamSchema } from '@shared/tenders';
+import type { AppDeps } from '../app';
+import { ValidationError } from '../http/errors';
+import { route, type AnyRoute } from '../http/route';
+import * as bids from '../services/bids.service';
+import { UPLOAD_MAX_BYTES } from './tenders.routes';
+
+const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+
+export function bidRoutes(deps: AppDeps): AnyRoute[] {
+  const ctx = (em: import('@mikro-orm/postgresql').EntityManager) => ({ em, boss: deps.boss, publicUrl: deps.config.publicUrl });
+  return [
+    route({
+      method: 'get', path: '/tenders/:id/bids', tag: 'Bids', access: ['buyer', 'compliance'], params: tenderIdParamSchema,
+      summary: 'Before closing only {submitted: n}; after closing also every submitted bid (the bid tabulation).',
+      handler: ({ em, user, params }) => bids.bidsOf(em, user, params.id),
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/tabulation.xlsx', tag: 'Bids', access: ['buyer', 'compliance'], params: tenderIdParamSchema, produces: XLSX,
+      summary: 'The bid tabulation as a workbook (after closing only).',
+      responses: { 409: 'Bids are sealed until closing' },
+      handler: async ({ em, user, params, res }) => {
+        const file = await bids.tabulationWorkbook(em, user, params.id);
+        res.attachment(file.filename).type(XLSX).send(file.content);
+      },
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/documents/:documentId', tag: 'Bids', access: ['buyer', 'compliance'],
+      params: z.object({ id: z.uuid({ error: 'Must be a valid id.' }), documentId: z.uuid({ error: 'Must be a valid id.' }) }), produces: XLSX,
+      summary: 'A workbook a vendor uploaded with its bid (after closing only).',
+      handler: async ({ em, user, params, res }) => {
+        const doc = await bids.bidDocument(em, user, params.id, params.documentId);
+        res.attachment(doc.filename).type(XLSX).send(doc.content);
+      },
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/bid', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,
+      summary: "The vendor's own bid on the tender, or null.",
+      handler: async ({ em, user, params }) => ({ bid: await bids.ownBid(em, user, params.id) }),
+    }),
+    route({
+      method: 'put', path: '/tenders/:id/bid', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, body: bidSaveSchema,
+      summary: 'Save a draft (submit: false) or submit/revise (submit: true) before closing. Send the version you loaded (null for a first save).',
+      responses: { 409: 'Closed, or changed elsewhere since loaded' },
+      handler: ({ em, user, params, body }) => bids.saveBid(ctx(em), user, params.id, body),
+    }),
+    route({
+      method: 'post', path: '/tenders/:id/bid/withdraw', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,
+      body: z.object({ version: z.number({ error: 'Version is required.' }).int().min(1) }),
+      summary: 'Withdraw the bid before closing.',
+      handler: ({ em, user, params, body }) => bids.withdrawBid(ctx(em), user, params.id, body.version),
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/bid-workbook', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, produces: XLSX,
+      summary: 'The bid workbook for this tender, with the figures saved so far.',
+      handler: async ({ em, user, params, res }) => {
+        const file = await bids.vendorWorkbook(em, user, params.id);
+        res.attachment(file.filename).type(XLSX).send(file.content);
+      },
+    }),
+    route({
+      method: 'post', path: '/tenders/:id/bid-workbook', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,
+      upload: { field: 'file', maxBytes: UPLOAD_MAX_BYTES },
+      summary: 'Upload a filled-in bid workbook (.xlsx, at most 5 MB): returns its figures for review, or every problem by sheet and cell. Nothing is submitted.',
+      handler: async ({ em, user, params, req }) => {
+        if (!req.file) throw new ValidationError([{ field: 'file', message: 'Choose the bid workbook (.xlsx) to upload.' }]);
+        return bids.uploadWorkbook(em, user, params.id, req.file);
+      },
+    }),
+  ];
+}

@@ -1,0 +1,139 @@
+import { z } from 'zod';
+import { bidInputSchema, regionListSchema } from './bids';
+
+/** A tender's life: draft → open (published) → closed (bids unsealed) → awarded → notified. */
+export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified'] as const;
+export type TenderStatus = (typeof TENDER_STATUSES)[number];
+
+/** A bid's life: draft → submitted → revised (submitted again) / withdrawn; locked at closing. */
+export const BID_STATUSES = ['draft', 'submitted', 'revised', 'withdrawn'] as const;
+export type BidStatus = (typeof BID_STATUSES)[number];
+
+const text = (label: string, max: number) =>
+  z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` });
+
+/** POST /api/tenders and PUT /api/tenders/:id (drafts only). */
+export const tenderInputSchema = z.object({
+  reference: z
+    .string({ error: 'Reference is required.' })
+    .trim()
+    .min(1, { error: 'Reference is required.' })
+    .max(40, { error: 'Reference must be at most 40 characters.' })
+    .regex(/^[A-Za-z0-9][A-Za-z0-9/._-]*$/, { error: 'Reference may only contain letters, digits, "/", ".", "_" and "-".' }),
+  title: text('Title', 200),
+  commodity: text('Commodity', 120),
+  unit: text('Unit of measure', 20),
+  currency: z
+    .string({ error: 'Currency is required.' })
+    .regex(/^[A-Z]{3}$/, { error: 'Currency must be a three-letter ISO 4217 code such as EUR.' }),
+  /** ISO 8601 with an offset or Z; stored in UTC. */
+  closesAt: z.iso.datetime({ offset: true, error: 'Closing time must be a date and time (ISO 8601 with a time zone).' }),
+  standstillDays: z
+    .number({ error: 'Standstill period must be a whole number of days.' })
+    .int({ error: 'Standstill period must be a whole number of days.' })
+    .min(0, { error: 'Standstill period cannot be negative.' })
+    .max(90, { error: 'Standstill period must be at most 90 days.' }),
+  description: z.string({ error: 'Description must be text.' }).max(5000, { error: 'Description must be at most 5000 characters.' }).default(''),
+  regions: regionListSchema,
+});
+export type TenderInput = z.infer<typeof tenderInputSchema>;
+
+export const tenderListQuerySchema = z.object({
+  status: z.enum(TENDER_STATUSES, { error: 'Unknown status.' }).optional(),
+  q: z.string().max(100, { error: 'Search must be at most 100 characters.' }).optional(),
+});
+
+/** POST /api/tenders/:id/invitations: existing organisations and/or a new vendor contact. */
+export const invitationInputSchema = z
+  .object({
+    vendorOrganisationIds: z.array(z.uuid({ error: 'Must be a valid id.' })).max(200).default([]),
+    newVendor: z
+      .object({
+        organisationName: text('Organisation name', 160),
+        registrationNumber: text('Registration number', 40),
+        sme: z.boolean({ error: 'SME must be true or false.' }),
+        contactName: text('Contact name', 120),
+        contactEmail: z.string().trim().max(254).pipe(z.email({ error: 'Enter a valid e-mail address.' })),
+      })
+      .optional(),
+  })
+  .refine((v) => v.vendorOrganisationIds.length > 0 || v.newVendor, {
+    error: 'Choose at least one vendor organisation or enter a new vendor contact.',
+    path: ['vendorOrganisationIds'],
+  });
+export type InvitationInput = z.infer<typeof invitationInputSchema>;
+
+export const tenderIdParamSchema = z.object({ id: z.uuid({ error: 'Must be a valid id.' }) });
+
+export interface RegionView {
+  code: string;
+  name: string;
+  forecast: number;
+}
+
+export interface TenderSummary {
+  id: string;
+  reference: string;
+  title: string;
+  commodity: string;
+  unit: string;
+  currency: string;
+  status: TenderStatus;
+  closesAt: string;
+  regionCount: number;
+  totalForecast: number;
+  /** For vendors: the state of their own bid, if any. */
+  myBidStatus?: BidStatus | null;
+}
+
+export interface TenderView extends TenderSummary {
+  description: string;
+  standstillDays: number;
+  publishedAt: string | null;
+  closedAt: string | null;
+  regions: RegionView[];
+  /** Buyer, compliance and admin only. */
+  invitations?: { vendorOrganisation: { id: string; name: string; sme: boolean }; invitedAt: string }[];
+  /** Buyer, compliance and admin: how many vendors have a submitted bid (never what they bid before closing). */
+  submittedBids?: number;
+}
+
+export interface BidView {
+  id: string;
+  status: BidStatus;
+  fixedFee: number;
+  capacity: number | null;
+  prices: Record<string, number>;
+  revision: number;
+  version: number;
+  submittedAt: string | null;
+  digest: string | null;
+  updatedAt: string;
+  document: { id: string; filename: string; size: number; digest: string } | null;
+}
+
+export interface TabulatedBid {
+  vendor: { id: string; name: string; sme: boolean };
+  fixedFee: number;
+  capacity: number | null;
+  prices: Record<string, number>;
+  submittedAt: string;
+  digest: string;
+  documentId: string | null;
+}
+
+/** GET /api/tenders/:id/bids */
+export type BidsAnswer = { submitted: number } | { submitted: number; bids: TabulatedBid[] };
+
+/**
+ * The body of PUT /api/tenders/:id/bid: the bid (see `bidInputSchema`) plus the `version` the vendor
+ * loaded (null for a first save), so that two tabs cannot overwrite each other silently, and the
+ * uploaded workbook the figures came from, if any.
+ */
+export const bidSaveSchema = bidInputSchema.and(
+  z.object({
+    version: z.number({ error: 'Version must be a number.' }).int().min(1).nullable().optional(),
+    documentId: z.uuid({ error: 'Must be a valid id.' }).nullable().optional(),
+  }),
+);
+export type BidSave = z.infer<typeof bidSaveSchema>;

@@ -1,0 +1,124 @@
+import { MailMessage, Region, Tender } from '../../server/entities';
+import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
+import { openTender, tenderBody } from '../support/tenders';
+
+let t: TestApp;
+let buyer: Browser;
+let vendorA: Browser;
+let vendorB: Browser;
+let orgA: string;
+let vendorAEmail: string;
+
+beforeAll(async () => {
+  t = await startTestApp();
+  buyer = await signedIn(t, await makeUser(t, 'buyer'));
+  const a = await makeUser(t, 'vendor');
+  vendorAEmail = a.email;
+  orgA = a.vendorOrganisation!.id;
+  vendorA = await signedIn(t, a);
+  vendorB = await signedIn(t, await makeUser(t, 'vendor'));
+});
+afterAll(() => t.close());
+
+test('a buyer creates a draft tender with its regions; the closing time is stored in UTC', async () => {
+  const body = tenderBody(3, 120, { closesAt: '2031-03-02T14:00:00+02:00' });
+  const res = await buyer.post('/api/tenders', body);
+  expect(res.status).toBe(201);
+  expect(res.body).toMatchObject({ status: 'draft', closesAt: '2031-03-02T12:00:00.000Z', regionCount: 3, totalForecast: 6000 });
+  expect(res.body.regions).toEqual(body.regions);
+});
+
+test('bad tender input is refused naming each field, and nothing is stored', async () => {
+  const before = await t.em().count(Tender, {});
+  const res = await buyer.post('/api/tenders', {
+    ...tenderBody(), currency: 'euro', closesAt: 'tomorrow', standstillDays: -1,
+    regions: [{ code: 'R1', name: 'A', forecast: 0 }, { code: 'r1', name: 'B', forecast: 5 }],
+  });
+  expect(res.status).toBe(400);
+  expect(res.body.errors.map((e: { field: string }) => e.field).sort()).toEqual(['closesAt', 'currency', 'regions[0].forecast', 'regions[1].code', 'standstillDays']);
+  expect(await t.em().count(Tender, {})).toBe(before);
+});
+
+test('a closing time in the past is refused', async () => {
+  const res = await buyer.post('/api/tenders', tenderBody(2, -5));
+  expect(res.status).toBe(400);
+  expect(res.body.errors).toEqual([{ field: 'closesAt', message: 'Closing time must be in the future.' }]);
+});
+
+test('a duplicate reference is a 409 naming the field', async () => {
+  const body = tenderBody();
+  await buyer.post('/api/tenders', body);
+  const res = await buyer.post('/api/tenders', body);
+  expect(res.status).toBe(409);
+  expect(res.body.errors[0].field).toBe('reference');
+});
+
+test('publishing needs regions, an invitation and a future closing time, and says what is missing', async () => {
+  const created = await buyer.post('/api/tenders', tenderBody());
+  const res = await buyer.post(`/api/tenders/${created.body.id}/publish`);
+  expect(res.status).toBe(400);
+  expect(res.body.errors).toEqual([{ field: 'invitations', message: 'Invite at least one vendor.' }]);
+});
+
+test('publishing e-mails every invited vendor; only invited vendors see the tender, never a draft', async () => {
+  const draft = await buyer.post('/api/tenders', tenderBody());
+  expect((await vendorA.get(`/api/tenders/${draft.body.id}`)).status).toBe(404);
+  const id = await openTender(buyer, [orgA]);
+  const mail = await waitForMail(t, vendorAEmail);
+  expect(mail.subject).toMatch(/^Invitation to tender T-/);
+  expect(mail.text).toContain(`/tenders/${id}`);
+  const listA = await vendorA.get('/api/tenders');
+  expect(listA.body.map((x: { id: string }) => x.id)).toEqual([id]);
+  expect((await vendorA.get(`/api/tenders/${id}`)).body.invitations).toBeUndefined();
+  expect((await vendorB.get('/api/tenders')).body).toEqual([]);
+  expect((await vendorB.get(`/api/tenders/${id}`)).status).toBe(404);
+});
+
+test('a published tender cannot be edited', async () => {
+  const id = await openTender(buyer, [orgA]);
+  const res = await (buyer.send('put', `/api/tenders/${id}`, tenderBody()));
+  expect(res.status).toBe(409);
+  expect(await t.em().count(Region, { tender: id })).toBe(3);
+});
+
+test('the tender list filters by status and searches reference and title', async () => {
+  const body = tenderBody(1, 60, { title: 'Treatment chemicals for nine works' });
+  await buyer.post('/api/tenders', body);
+  const found = await buyer.get('/api/tenders').query({ q: 'chemicals', status: 'draft' });
+  expect(found.body.map((x: { reference: string }) => x.reference)).toEqual([body.reference]);
+  const bad = await buyer.get('/api/tenders').query({ status: 'sleeping' });
+  expect(bad.status).toBe(400);
+  expect(bad.body.errors[0].field).toBe('status');
+});
+
+test('inviting a new vendor contact registers the firm and e-mails an account link', async () => {
+  const created = await buyer.post('/api/tenders', tenderBody());
+  const res = await buyer.post(`/api/tenders/${created.body.id}/invitations`, {
+    newVendor: { organisationName: 'Moorgate Grit', registrationNumber: 'MG-77', sme: true, contactName: 'Ada Moor', contactEmail: 'ada@moorgate.test' },
+  });
+  expect(res.status).toBe(200);
+  expect(res.body.invitations.map((i: { vendorOrganisation: { name: string } }) => i.vendorOrganisation.name)).toContain('Moorgate Grit');
+  const mail = await waitForMail(t, 'ada@moorgate.test');
+  expect(mail.subject).toBe('Your Tendara account: set your password');
+});
+
+test('region import reads a CSV and reports bad rows by number', async () => {
+  const ok = await buyer.agent.post('/api/tenders/regions/import').set('X-XSRF-TOKEN', buyer.token)
+    .attach('file', Buffer.from('code;name;forecast\nN1;North depot;1500\nS1;South depot;2200\n'), 'regions.csv');
+  expect(ok.status).toBe(200);
+  expect(ok.body.regions).toEqual([{ code: 'N1', name: 'North depot', forecast: 1500 }, { code: 'S1', name: 'South depot', forecast: 2200 }]);
+  const bad = await buyer.agent.post('/api/tenders/regions/import').set('X-XSRF-TOKEN', buyer.token)
+    .attach('file', Buffer.from('code,name,forecast\nN1,North,abc\n'), 'regions.csv');
+  expect(bad.status).toBe(400);
+  expect(bad.body.errors[0]).toMatchObject({ field: 'row 2' });
+  expect(bad.body.errors[0].message).toMatch(/Row 2: forecast/);
+});
+
+test('no e-mail to vendors is sent for a draft', async () => {
+  const body = tenderBody();
+  const created = await buyer.post('/api/tenders', body);
+  await buyer.post(`/api/tenders/${created.body.id}/invitations`, { vendorOrganisationIds: [orgA] });
+  // The mail worker polls every second: give it time to send anything it was (wrongly) given.
+  await new Promise((r) => setTimeout(r, 2500));
+  expect(await t.em().count(MailMessage, { subject: { $like: `Invitation to tender ${body.reference}%` } })).toBe(0);
+});
