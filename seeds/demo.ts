@@ -2,6 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { User, VendorOrganisation } from '../server/entities';
 import { hashPassword } from '../server/auth/password';
 import { DEMO_ORGANISATIONS, DEMO_PASSWORD, DEMO_PEOPLE } from './demo-people';
+import { loadDemoTenders } from './demo-tenders';
 
 /**
  * Loads the demo data set (fictional people and firms) in one transaction. Called through
@@ -13,13 +14,16 @@ export async function loadDemo(em: EntityManager): Promise<void> {
     orgs.set(o.key, em.create(VendorOrganisation, { name: o.name, registrationNumber: o.registrationNumber, sme: o.sme, contactEmail: o.contactEmail }));
   }
   const hash = await hashPassword(DEMO_PASSWORD);
+  let buyer: User | undefined;
   for (const p of DEMO_PEOPLE) {
-    em.create(User, {
+    const user = em.create(User, {
       email: p.email,
       name: p.name,
       role: p.role,
       vendorOrganisation: p.organisation ? orgs.get(p.organisation) : null,
       passwordHash: hash,
     });
+    if (p.role === 'buyer') buyer = user;
   }
+  loadDemoTenders(em, buyer!, orgs);
 }

@@ -54,8 +54,10 @@ export async function startMailWorker(boss: PgBoss, mailer: Mailer): Promise<voi
 
 /** Closes tenders at their closing time; also sweeps any that were missed while no worker ran. */
 export async function startTenderCloseWorker(boss: PgBoss, close: (tenderId: string | null) => Promise<void>): Promise<void> {
-  await boss.work<{ tenderId: string }>(QUEUES.tenderClose, { pollingIntervalSeconds: 2 }, async (jobs) => {
+  await boss.work<{ tenderId: string | null }>(QUEUES.tenderClose, { pollingIntervalSeconds: 2 }, async (jobs) => {
     for (const job of jobs) await close(job.data.tenderId);
   });
+  // A sweep every minute as well: tenders seeded or published while no worker ran still close.
+  await boss.schedule(QUEUES.tenderClose, '* * * * *', { tenderId: null });
   await close(null);
 }

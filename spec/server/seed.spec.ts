@@ -1,4 +1,4 @@
-import { User, VendorOrganisation } from '../../server/entities';
+import { Bid, Tender, User, VendorOrganisation } from '../../server/entities';
 import { seed } from '../../server/ops/seed';
 import { DEMO_PASSWORD } from '../../seeds/demo-people';
 import { Browser, startTestApp, type TestApp } from '../support/app';
@@ -16,6 +16,20 @@ test('the demo data loads once: a second load adds nothing', async () => {
   expect(await t.em().count(VendorOrganisation, {})).toBe(7);
   expect(await seed(t.em(), 'demo')).toBe(false);
   expect(await t.em().count(User, {})).toBe(users);
+  expect(await t.em().count(Tender, {})).toBe(2);
+});
+
+test('the demo salt tender is closed with a submitted bid from each of the seven vendors; the second is open for two weeks', async () => {
+  const salt = await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' }, { populate: ['regions'] });
+  expect(salt.status).toBe('closed');
+  expect(salt.regions).toHaveLength(12);
+  const forecasts = salt.regions.getItems().map((r) => r.forecast);
+  expect(Math.min(...forecasts)).toBe(1500);
+  expect(Math.max(...forecasts)).toBe(9000);
+  expect(await t.em().count(Bid, { tender: salt, status: 'submitted' })).toBe(7);
+  const bins = await t.em().findOneOrFail(Tender, { reference: 'NHP-2027-002' });
+  expect(bins.status).toBe('open');
+  expect(bins.closesAt.getTime() - Date.now()).toBeGreaterThan(13.9 * 86_400_000);
 });
 
 test.each(['admin', 'buyer', 'compliance', 'vendor1', 'vendor7'])('the demo sign-in %s works with the demo password', async (who) => {
