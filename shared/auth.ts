@@ -1,9 +1,11 @@
 import { z } from 'zod';
 
+import { ROLES } from './roles';
+
+export { ROLES, ROLE_LABELS, type Role, type SessionUser } from './roles';
+
 /** The four roles of Tendara. A person has exactly one. */
-export const ROLES = ['admin', 'buyer', 'compliance', 'vendor'] as const;
-export const roleSchema = z.enum(ROLES);
-export type Role = z.infer<typeof roleSchema>;
+export const roleSchema = z.enum(ROLES, { error: 'Choose a role.' });
 
 /** Passwords are at least 12 characters (and at most 200, so hashing stays cheap). */
 export const PASSWORD_MIN_LENGTH = 12;
@@ -24,20 +26,3 @@ export const signInSchema = z.object({
   password: z.string({ error: 'Password is required.' }).min(1, { error: 'Password is required.' }).max(200, { error: 'Password must be at most 200 characters.' }),
 });
 export type SignIn = z.infer<typeof signInSchema>;
-
-/** The signed-in person as the API returns it. */
-export interface SessionUser {
-  id: string;
-  email: string;
-  name: string;
-  role: Role;
-  vendorOrganisation: { id: string; name: string } | null;
-}
-
-/** Home page of each role, used by the client after sign-in. */
-export const ROLE_LABELS: Record<Role, string> = {
-  admin: 'Administrator',
-  buyer: 'Buyer',
-  compliance: 'Compliance officer',
-  vendor: 'Vendor',
-};

@@ -130,7 +130,7 @@ else
   npx jest --ci --json --outputFile=.test-results/unit.json "${@:2}" || status=1
   if [ -z "${SKIP_E2E:-}" ]; then
     say "Running the browser tests (Chromium)"
-    npx jest --ci -c jest.e2e.config.js --json --outputFile=.test-results/e2e.json || status=1
+    npx jest --ci -c jest.e2e.config.js --forceExit --json --outputFile=.test-results/e2e.json || status=1
   fi
   node server/ops/test-summary.js .test-results/*.json || status=1
   exit $status

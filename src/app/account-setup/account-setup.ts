@@ -1,0 +1,102 @@
+import { DatePipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, DestroyRef, inject, input, signal } from '@angular/core';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { AbstractControl, NonNullableFormBuilder, ReactiveFormsModule, ValidationErrors } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { Router, RouterLink } from '@angular/router';
+import { PASSWORD_MIN_LENGTH } from '@shared/auth';
+import { setPasswordSchema } from '@shared/people';
+import { ApiError } from '../core/http/api-error';
+import { Logo } from '../ui/logo';
+import { applyServerErrors } from '../ui/server-errors';
+import { fieldMessage, zodValidator } from '../ui/zod-validator';
+import { AccountSetupApi } from './account-setup-api';
+
+/** A typing slip is caught here; the server only ever sees one password. */
+function sameAsPassword(control: AbstractControl): ValidationErrors | null {
+  const password = control.parent?.get('password')?.value;
+  return control.value === password ? null : { zod: 'The two passwords are not the same.' };
+}
+
+/** /account-setup/:token — the page an invitation e-mail links to. */
+@Component({
+  selector: 'app-account-setup',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    ReactiveFormsModule,
+    RouterLink,
+    DatePipe,
+    MatFormFieldModule,
+    MatInputModule,
+    MatButtonModule,
+    MatIconModule,
+    MatProgressBarModule,
+    Logo,
+  ],
+  templateUrl: './account-setup.html',
+  styleUrl: '../sign-in/sign-in.scss',
+})
+export class AccountSetup {
+  private readonly api = inject(AccountSetupApi);
+  private readonly router = inject(Router);
+  private readonly destroyRef = inject(DestroyRef);
+
+  /** Route parameter. */
+  readonly token = input.required<string>();
+
+  protected readonly invitation = rxResource({
+    params: () => this.token(),
+    stream: ({ params }) => this.api.find(params),
+  });
+  protected readonly form = inject(NonNullableFormBuilder).group({
+    password: ['', zodValidator(setPasswordSchema.shape.password)],
+    confirm: ['', sameAsPassword],
+  });
+  protected readonly busy = signal(false);
+  protected readonly failure = signal<string | null>(null);
+  protected readonly minLength = PASSWORD_MIN_LENGTH;
+  protected readonly fieldMessage = fieldMessage;
+
+  constructor() {
+    this.form.controls.password.valueChanges
+      .pipe(takeUntilDestroyed())
+      .subscribe(() => this.form.controls.confirm.updateValueAndValidity({ emitEvent: false }));
+  }
+
+  protected invitationProblem(): string {
+    const error = this.invitation.error();
+    if (error instanceof ApiError && error.status === 404) {
+      return 'This link is unknown, already used or expired. Ask your administrator to send a new invitation.';
+    }
+    return error instanceof ApiError ? error.userMessage : 'The invitation could not be loaded.';
+  }
+
+  protected submit(): void {
+    if (this.busy()) return;
+    if (this.form.invalid) {
+      this.form.markAllAsTouched();
+      return;
+    }
+    this.busy.set(true);
+    this.failure.set(null);
+    this.api
+      .setPassword(this.token(), this.form.controls.password.value)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: () => void this.router.navigate(['/sign-in'], { queryParams: { passwordSet: 1 } }),
+        error: (error: unknown) => {
+          this.busy.set(false);
+          if (error instanceof ApiError) {
+            const unplaced = applyServerErrors(this.form, error.fieldErrors);
+            this.failure.set([error.userMessage, ...unplaced].join(' '));
+          } else {
+            this.failure.set('The password could not be set. Please try again.');
+          }
+        },
+      });
+  }
+}

@@ -1,0 +1,26 @@
+import { ROLES, type Role } from '@shared/roles';
+
+/** One entry of the side navigation. */
+export interface NavItem {
+  label: string;
+  /** A Material Symbols ligature. */
+  icon: string;
+  link: string;
+  roles: readonly Role[];
+  /** Only "Overview" needs an exact match; other items stay lit on their sub-pages. */
+  exact?: boolean;
+}
+
+/**
+ * The navigation of every role, in display order. A new area (tenders, bids, awards) adds its
+ * entry here next to its route in app.routes.ts.
+ */
+export const NAV_ITEMS: readonly NavItem[] = [
+  { label: 'Overview', icon: 'space_dashboard', link: '/', roles: ROLES, exact: true },
+  { label: 'People', icon: 'group', link: '/people', roles: ['admin'] },
+  { label: 'Outbox', icon: 'outbox', link: '/outbox', roles: ['admin'] },
+];
+
+export function navigationFor(role: Role): NavItem[] {
+  return NAV_ITEMS.filter((item) => item.roles.includes(role));
+}

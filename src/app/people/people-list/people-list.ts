@@ -1,0 +1,223 @@
+import {
+  ChangeDetectionStrategy,
+  Component,
+  DestroyRef,
+  computed,
+  effect,
+  inject,
+  signal,
+  viewChild,
+} from '@angular/core';
+import { BreakpointObserver } from '@angular/cdk/layout';
+import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatMenuModule } from '@angular/material/menu';
+import { MatPaginator, MatPaginatorModule } from '@angular/material/paginator';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSort, MatSortModule } from '@angular/material/sort';
+import { MatTableDataSource, MatTableModule } from '@angular/material/table';
+import { ROLE_LABELS } from '@shared/roles';
+import type { PersonView } from '@shared/people';
+import { Observable, map } from 'rxjs';
+import { Auth } from '../../core/auth/auth';
+import { ApiError } from '../../core/http/api-error';
+import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { InviteDialog } from '../invite-dialog/invite-dialog';
+import { PeopleApi } from '../people-api';
+import { STATUS_LABELS, personStatus } from '../person-status';
+
+/** The text a row is sorted and filtered by, per column. */
+function cellText(person: PersonView, column: string): string {
+  switch (column) {
+    case 'role':
+      return ROLE_LABELS[person.role];
+    case 'organisation':
+      return person.vendorOrganisation?.name ?? '';
+    case 'status':
+      return STATUS_LABELS[personStatus(person)];
+    case 'email':
+      return person.email;
+    default:
+      return person.name;
+  }
+}
+
+const FILTER_COLUMNS = ['name', 'email', 'role', 'organisation', 'status'];
+
+function matches(person: PersonView, filter: string): boolean {
+  return FILTER_COLUMNS.some((column) => cellText(person, column).toLocaleLowerCase().includes(filter));
+}
+
+/** /people — everyone who can sign in, and the administrator's actions on them. */
+@Component({
+  selector: 'app-people-list',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    MatTableModule,
+    MatSortModule,
+    MatPaginatorModule,
+    MatFormFieldModule,
+    MatInputModule,
+    MatButtonModule,
+    MatIconModule,
+    MatMenuModule,
+    MatProgressBarModule,
+  ],
+  templateUrl: './people-list.html',
+  styleUrl: './people-list.scss',
+})
+export class PeopleList {
+  private readonly api = inject(PeopleApi);
+  private readonly dialog = inject(MatDialog);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly me = inject(Auth).user;
+  private readonly sort = viewChild.required(MatSort);
+  private readonly paginator = viewChild.required(MatPaginator);
+
+  /** On a phone the e-mail, role and organisation move under the name, so nothing scrolls. */
+  protected readonly narrow = toSignal(
+    inject(BreakpointObserver).observe('(max-width: 719.98px)').pipe(map((state) => state.matches)),
+    { initialValue: false },
+  );
+  protected readonly columns = computed(() =>
+    this.narrow()
+      ? ['name', 'status', 'actions']
+      : ['name', 'email', 'role', 'organisation', 'status', 'actions'],
+  );
+  protected readonly people = new MatTableDataSource<PersonView>([]);
+  protected readonly loading = signal(true);
+  protected readonly loadError = signal<string | null>(null);
+  /** Announced politely after each action ("Invitation sent to …"). */
+  protected readonly status = signal('');
+  protected readonly filter = signal('');
+  private readonly normalisedFilter = computed(() => this.filter().trim().toLocaleLowerCase());
+  private readonly rows = signal<PersonView[]>([]);
+  protected readonly count = computed(() => this.rows().length);
+  protected readonly shown = computed(() => {
+    const filter = this.normalisedFilter();
+    return filter ? this.rows().filter((person) => matches(person, filter)).length : this.count();
+  });
+  protected readonly statusLabel = STATUS_LABELS;
+  protected readonly statusOf = personStatus;
+
+  constructor() {
+    this.people.sortingDataAccessor = (person, column) => cellText(person, column).toLocaleLowerCase();
+    this.people.filterPredicate = matches;
+    effect(() => {
+      this.people.sort = this.sort();
+      this.people.paginator = this.paginator();
+    });
+    effect(() => {
+      this.people.data = this.rows();
+    });
+    effect(() => {
+      this.people.filter = this.normalisedFilter();
+      this.people.paginator?.firstPage();
+    });
+    this.load();
+  }
+
+  protected roleText(person: PersonView): string {
+    return ROLE_LABELS[person.role];
+  }
+
+  protected isMe(person: PersonView): boolean {
+    return person.id === this.me()?.id;
+  }
+
+  protected onFilter(event: Event): void {
+    this.filter.set((event.target as HTMLInputElement).value);
+  }
+
+  protected load(): void {
+    this.loading.set(true);
+    this.loadError.set(null);
+    this.api
+      .list()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (people) => {
+          this.rows.set(people);
+          this.loading.set(false);
+        },
+        error: (error: unknown) => {
+          this.loading.set(false);
+          this.loadError.set(error instanceof ApiError ? error.userMessage : 'People could not be loaded.');
+        },
+      });
+  }
+
+  protected invite(): void {
+    this.dialog
+      .open<InviteDialog, void, PersonView>(InviteDialog, { width: '560px', maxWidth: '95vw' })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((person) => {
+        if (!person) return;
+        this.rows.update((rows) => [...rows, person]);
+        this.status.set(`Invitation sent to ${person.email}.`);
+      });
+  }
+
+  protected deactivate(person: PersonView): void {
+    this.confirmThen(
+      {
+        title: `Deactivate ${person.name}?`,
+        message: `${person.name} can no longer sign in, and every session they have open ends at once. You can reactivate them later.`,
+        confirm: 'Deactivate',
+        destructive: true,
+      },
+      () => this.api.deactivate(person.id),
+      `${person.name} is deactivated; their sessions have ended.`,
+    );
+  }
+
+  protected reactivate(person: PersonView): void {
+    this.confirmThen(
+      {
+        title: `Reactivate ${person.name}?`,
+        message: `${person.name} can sign in again with their existing password, in the role ${ROLE_LABELS[person.role]}.`,
+        confirm: 'Reactivate',
+      },
+      () => this.api.reactivate(person.id),
+      `${person.name} is active again.`,
+    );
+  }
+
+  protected resendInvitation(person: PersonView): void {
+    this.api
+      .resendInvitation(person.id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: () => this.status.set(`A new invitation link was sent to ${person.email}. Earlier links no longer work.`),
+        error: (error: unknown) => this.status.set(this.describe(error)),
+      });
+  }
+
+  private confirmThen(question: ConfirmData, action: () => Observable<PersonView>, done: string): void {
+    this.dialog
+      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data: question, maxWidth: '95vw' })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((confirmed) => {
+        if (!confirmed) return;
+        action()
+          .pipe(takeUntilDestroyed(this.destroyRef))
+          .subscribe({
+            next: (updated) => {
+              this.rows.update((rows) => rows.map((row) => (row.id === updated.id ? updated : row)));
+              this.status.set(done);
+            },
+            error: (error: unknown) => this.status.set(this.describe(error)),
+          });
+      });
+  }
+
+  private describe(error: unknown): string {
+    return error instanceof ApiError ? error.userMessage : 'That did not work. Please try again.';
+  }
+}

@@ -1,0 +1,46 @@
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
+import { MatButtonModule } from '@angular/material/button';
+import { MAT_DIALOG_DATA, MatDialogModule } from '@angular/material/dialog';
+
+export interface ConfirmData {
+  title: string;
+  message: string;
+  confirm: string;
+  /** Destructive actions get the error colour on their button. */
+  destructive?: boolean;
+}
+
+/** A yes/no question. Closes with true when confirmed, undefined otherwise. */
+@Component({
+  selector: 'app-confirm-dialog',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatDialogModule, MatButtonModule],
+  template: `
+    <h2 mat-dialog-title>{{ data.title }}</h2>
+    <mat-dialog-content>
+      <p>{{ data.message }}</p>
+    </mat-dialog-content>
+    <mat-dialog-actions align="end">
+      <button mat-button type="button" mat-dialog-close>Cancel</button>
+      <button
+        mat-flat-button
+        type="button"
+        [class.destructive]="data.destructive"
+        [mat-dialog-close]="true"
+        cdkFocusInitial
+      >
+        {{ data.confirm }}
+      </button>
+    </mat-dialog-actions>
+  `,
+  styles: `
+    p { margin: 0; max-width: 52ch; }
+    .destructive {
+      --mat-button-filled-container-color: var(--mat-sys-error);
+      --mat-button-filled-label-text-color: var(--mat-sys-on-error);
+    }
+  `,
+})
+export class ConfirmDialog {
+  protected readonly data = inject<ConfirmData>(MAT_DIALOG_DATA);
+}
