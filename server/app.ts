@@ -90,7 +90,8 @@ export function createApp(deps: AppDeps): Express {
         req: (req: { id: string; method: string; url: string }) => ({ id: req.id, method: req.method, url: req.url.split('?')[0] }),
         res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
       },
-      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
+      // A 4xx is the client's business (a 401 on GET /api/session is how the page learns it is signed out).
+      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : 'info'),
     }),
   );
 
