@@ -1,4 +1,5 @@
 import { MailMessage, Region, Tender } from '../../server/entities';
+import { QUEUES } from '../../server/jobs/queue';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
 import { openTender, tenderBody } from '../support/tenders';
 
@@ -121,4 +122,17 @@ test('no e-mail to vendors is sent for a draft', async () => {
   // The mail worker polls every second: give it time to send anything it was (wrongly) given.
   await new Promise((r) => setTimeout(r, 2500));
   expect(await t.em().count(MailMessage, { subject: { $like: `Invitation to tender ${body.reference}%` } })).toBe(0);
+});
+
+test('the scheduled close job closes a tender at its closing time without anyone reading it', async () => {
+  const id = await openTender(buyer, [orgA]);
+  // Publishing scheduled the job for the closing time; run the clock forward and send it now.
+  await t.em().nativeUpdate(Tender, { id }, { closesAt: new Date(Date.now() - 1000) });
+  await t.boss.send(QUEUES.tenderClose, { tenderId: id });
+  let status = 'open';
+  for (let i = 0; i < 50 && status !== 'closed'; i++) {
+    await new Promise((r) => setTimeout(r, 200));
+    status = (await t.em().findOneOrFail(Tender, { id })).status;
+  }
+  expect(status).toBe('closed');
 });
