@@ -24,6 +24,8 @@ import { peopleRoutes } from './routes/people.routes';
 import { sessionRoutes } from './routes/session.routes';
 import { tenderRoutes } from './routes/tenders.routes';
 import { bidRoutes } from './routes/bids.routes';
+import { evaluationRoutes } from './routes/evaluation.routes';
+import { noticeRoutes } from './routes/notices.routes';
 
 export interface AppDeps {
   config: Config;
@@ -39,7 +41,7 @@ const SESSION_HOURS = 8;
 /** Every API route of the app, in one list (mounted, documented and tested from it). */
 export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): AnyRoute[] {
   const routes: AnyRoute[] = [
-    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(), ...tenderRoutes(deps), ...bidRoutes(deps),
+    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(), ...tenderRoutes(deps), ...bidRoutes(deps), ...evaluationRoutes(deps), ...noticeRoutes(deps),
   ];
   routes.push(
     route({

@@ -24,6 +24,8 @@ const envSchema = z.object({
   CLIENT_DIST: z.string().optional(),
   /** Run queue workers (solve and mail jobs) in this process. */
   RUN_WORKERS: z.enum(['0', '1']).default('1'),
+  /** Award solves one process runs at once (each uses worker threads of its own). */
+  SOLVE_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(1),
 });
 
 export type Config = {
@@ -40,6 +42,7 @@ export type Config = {
   logLevel: string;
   clientDist: string | undefined;
   runWorkers: boolean;
+  solveConcurrency: number;
 };
 
 /** Reads the environment; throws one error listing every bad variable. */
@@ -64,5 +67,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     logLevel: e.LOG_LEVEL,
     clientDist: e.CLIENT_DIST,
     runWorkers: e.RUN_WORKERS === '1',
+    solveConcurrency: e.SOLVE_CONCURRENCY,
   };
 }

@@ -4,7 +4,10 @@ import { MikroORM } from '@mikro-orm/postgresql';
 import { Pool } from 'pg';
 import { createApp } from './app';
 import { loadConfig, type Config } from './config';
+import { closeSolverPool } from './award';
 import { createBoss, startMailWorker, startTenderCloseWorker } from './jobs/queue';
+import { startSolveWorker } from './jobs/solve-job';
+import { startNoticeWorker } from './jobs/notice-job';
 import { closeAllDue, closeIfDue } from './services/tender-access';
 import { logger } from './logger';
 import { startMailCatcher, type MailCatcher } from './mail/catcher';
@@ -38,6 +41,8 @@ export async function start(config: Config): Promise<Running> {
       if (id) await closeIfDue(em, id);
       else await closeAllDue(em);
     });
+    await startSolveWorker(boss, orm, config.solveConcurrency);
+    await startNoticeWorker(boss, orm, mailer);
   }
 
   const app = createApp({ config, orm, boss, sessionPool });
@@ -58,6 +63,7 @@ export async function start(config: Config): Promise<Running> {
         server.closeIdleConnections();
         await new Promise<void>((resolve) => server.close(() => resolve()));
         await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
+        await closeSolverPool();
         await catcher?.close();
         mailer.close();
         await sessionPool.end();

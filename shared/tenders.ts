@@ -17,7 +17,7 @@ export const tenderInputSchema = z.object({
   reference: z
     .string({ error: 'Reference is required.' })
     .trim()
-    .min(1, { error: 'Reference is required.' })
+    .min(1, { error: 'Reference is required.', abort: true })
     .max(40, { error: 'Reference must be at most 40 characters.' })
     .regex(/^[A-Za-z0-9][A-Za-z0-9/._-]*$/, { error: 'Reference may only contain letters, digits, "/", ".", "_" and "-".' }),
   title: text('Title', 200),
@@ -33,6 +33,12 @@ export const tenderInputSchema = z.object({
     .int({ error: 'Standstill period must be a whole number of days.' })
     .min(0, { error: 'Standstill period cannot be negative.' })
     .max(90, { error: 'Standstill period must be at most 90 days.' }),
+  /** Locale of the letters (money and dates), e.g. en-GB or de-DE. */
+  locale: z
+    .string({ error: 'Locale must be text.' })
+    .regex(/^[a-z]{2,3}(-[A-Z]{2})?$/, { error: 'Locale must look like en-GB or de-DE.' })
+    .refine((l) => { try { return Intl.NumberFormat.supportedLocalesOf([l]).length === 1; } catch { return false; } }, { error: 'This locale is not supported.' })
+    .default('en-GB'),
   description: z.string({ error: 'Description must be text.' }).max(5000, { error: 'Description must be at most 5000 characters.' }).default(''),
   regions: regionListSchema,
 });
@@ -88,6 +94,7 @@ export interface TenderSummary {
 
 export interface TenderView extends TenderSummary {
   description: string;
+  locale: string;
   standstillDays: number;
   publishedAt: string | null;
   closedAt: string | null;

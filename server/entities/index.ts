@@ -1,14 +1,23 @@
 import { AccountToken } from './account-token.entity';
+import { AuditEntry } from './audit-entry.entity';
 import { Bid } from './bid.entity';
 import { BidDocument } from './bid-document.entity';
 import { BidLine } from './bid-line.entity';
 import { Invitation } from './invitation.entity';
 import { MailMessage } from './mail-message.entity';
+import { Notice } from './notice.entity';
+import { Recommendation } from './recommendation.entity';
 import { Region } from './region.entity';
+import { Run } from './run.entity';
+import { RunAward } from './run-award.entity';
+import { Scenario } from './scenario.entity';
 import { Tender } from './tender.entity';
 import { User } from './user.entity';
 import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
-export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument];
-export { AccountToken, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation };
+export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice];
+export {
+  AccountToken, AuditEntry, Notice, Recommendation, Run, RunAward, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+};

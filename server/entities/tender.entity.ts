@@ -28,6 +28,10 @@ export class Tender extends BaseEntity {
   @Property({ type: 'datetime' })
   closesAt!: Date;
 
+  /** BCP 47 locale for money and dates in letters (e.g. en-GB, de-DE). */
+  @Property({ type: 'string', length: 20, default: 'en-GB' })
+  locale: string & Opt = 'en-GB';
+
   @Property({ type: 'integer', default: 10 })
   standstillDays: number & Opt = 10;
 

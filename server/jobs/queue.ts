@@ -7,6 +7,10 @@ export const QUEUES = {
   mail: 'mail-send',
   /** Closes a tender at its closing time (reads also close a tender that is due). */
   tenderClose: 'tender-close',
+  /** Award engine runs. */
+  solve: 'award-solve',
+  /** Award and regret letters, one job per notice. */
+  notice: 'notice-send',
 } as const;
 
 /** pg-boss keeps its tables in this schema, installed by `server/ops/migrate.ts`. */
@@ -24,6 +28,8 @@ export function createBoss(databaseUrl: string, options: { install?: boolean } =
     migrate: options.install ?? false,
     supervise: !options.install,
     schedule: !options.install,
+    // How soon the jobs of a worker that died are expired and retried elsewhere.
+    maintenanceIntervalSeconds: Number(process.env['QUEUE_MAINTENANCE_SECONDS'] ?? 15),
   });
   boss.on('error', (err) => logger.error({ err }, 'job queue error'));
   return boss;

@@ -15,7 +15,7 @@ export async function seed(em: EntityManager, name: string): Promise<boolean> {
   if (!load) throw new Error(`Unknown data set "${name}". Known: ${Object.keys(SEEDS).join(', ')}`);
   return em.transactional(async (tx) => {
     // The row lock makes two concurrent starts load it once.
-    const inserted = await tx.getConnection().execute<{ name: string }[]>(
+    const inserted = await tx.execute<{ name: string }[]>(
       `insert into seed_history (name) values (?) on conflict do nothing returning name`, [name],
     );
     if (inserted.length === 0) return false;

@@ -66,7 +66,7 @@ export async function ownBid(em: EntityManager, user: User, tenderId: string): P
  * and checks, by the database server's clock inside this transaction, that bidding is open.
  */
 async function lockOpenTender(tx: EntityManager, tenderId: string): Promise<Tender> {
-  const rows = await tx.getConnection().execute<{ status: string; closes_at: Date; now: Date }[]>(
+  const rows = await tx.execute<{ status: string; closes_at: Date; now: Date }[]>(
     `select status, closes_at, clock_timestamp() as now from tender where id = ? for share`, [tenderId],
   );
   const row = rows[0];

@@ -134,7 +134,7 @@ export async function setActive(em: EntityManager, id: string, active: boolean, 
   const user = await findUser(em, id);
   await em.transactional(async (tx) => {
     await tx.nativeUpdate(User, { id }, { active });
-    if (!active) await tx.getConnection().execute(`delete from http_session where sess #>> '{passport,user}' = ?`, [id]);
+    if (!active) await tx.execute(`delete from http_session where sess #>> '{passport,user}' = ?`, [id]);
   });
   user.active = active;
   return personView(user, !user.passwordHash);

@@ -7,7 +7,7 @@ import { NotFoundError } from '../http/errors';
  * idempotent: the scheduled close job and any read may race it, only one changes the row.
  */
 export async function closeIfDue(em: EntityManager, tenderId: string): Promise<boolean> {
-  const rows = await em.getConnection().execute<{ id: string }[]>(
+  const rows = await em.execute<{ id: string }[]>(
     `update tender set status = 'closed', closed_at = closes_at, updated_at = now()
        where id = ? and status = 'open' and closes_at <= clock_timestamp() returning id`,
     [tenderId],
@@ -17,7 +17,7 @@ export async function closeIfDue(em: EntityManager, tenderId: string): Promise<b
 
 /** Closes every open tender whose time has come (run at start-up and by the close job). */
 export async function closeAllDue(em: EntityManager): Promise<number> {
-  const rows = await em.getConnection().execute<{ id: string }[]>(
+  const rows = await em.execute<{ id: string }[]>(
     `update tender set status = 'closed', closed_at = closes_at, updated_at = now()
        where status = 'open' and closes_at <= clock_timestamp() returning id`,
   );

@@ -39,7 +39,7 @@ export function regionInputs(tender: Tender): RegionInput[] {
 
 export async function listTenders(em: EntityManager, user: User, query: z.infer<typeof tenderListQuerySchema>): Promise<TenderSummary[]> {
   // Close what is due first, so lists never show an open tender past its closing time.
-  await em.getConnection().execute(
+  await em.execute(
     `update tender set status = 'closed', closed_at = closes_at, updated_at = now() where status = 'open' and closes_at <= clock_timestamp()`,
   );
   const where: Record<string, unknown> = {};
@@ -69,6 +69,7 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
   const view: TenderView = {
     ...tenderSummary(tender, regions),
     description: tender.description,
+    locale: tender.locale,
     standstillDays: tender.standstillDays,
     publishedAt: tender.publishedAt?.toISOString() ?? null,
     closedAt: tender.closedAt?.toISOString() ?? null,

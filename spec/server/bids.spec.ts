@@ -176,7 +176,7 @@ test('workbook round trip: download, fill in, upload → the same figures; then 
   expect(dl.status).toBe(200);
   expect(dl.headers['content-disposition']).toMatch(/-bid\.xlsx/);
   const wb = await XlsxPopulate.fromDataAsync(dl.body as Buffer);
-  const sheet = wb.sheet('Bid');
+  const sheet = wb.sheet('Bid')!;
   sheet.cell('C4').value(18000);
   sheet.cell('E8').value(70.25);
   sheet.cell('E10').value(71);
@@ -204,7 +204,7 @@ test('a broken upload is refused naming the cell, a renamed non-xlsx file by con
       r.on('end', () => cb(null, Buffer.concat(chunks)));
     })).body as Buffer,
   );
-  wb.sheet('Bid').cell('E9').value('cheap');
+  wb.sheet('Bid')!.cell('E9').value('cheap');
   const bad = await v!.b.agent.post(`/api/tenders/${id}/bid-workbook`).set('X-XSRF-TOKEN', v!.b.token).attach('file', (await wb.outputAsync()) as Buffer, 'bid.xlsx');
   expect(bad.status).toBe(400);
   expect(bad.body.errors).toContainEqual({ field: 'Bid!E9', message: expect.stringMatching(/^Bid!E9: unit price must be a number/) });

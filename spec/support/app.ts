@@ -10,6 +10,8 @@ import { loadConfig, type Config } from '../../server/config';
 import { MailMessage, User, VendorOrganisation } from '../../server/entities';
 import { createBoss, startMailWorker, startTenderCloseWorker } from '../../server/jobs/queue';
 import { closeIfDue } from '../../server/services/tender-access';
+import { startSolveWorker } from '../../server/jobs/solve-job';
+import { startNoticeWorker } from '../../server/jobs/notice-job';
 import { startMailCatcher, type MailCatcher } from '../../server/mail/catcher';
 import { createMailer, type Mailer } from '../../server/mail/mailer';
 import { ormConfig } from '../../server/mikro-orm.config';
@@ -30,7 +32,7 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
-export async function startTestApp(options: { workers?: boolean } = {}): Promise<TestApp> {
+export async function startTestApp(options: { workers?: boolean; solver?: boolean } = {}): Promise<TestApp> {
   const databaseUrl = await createTestDatabase();
   const orm = await MikroORM.init(ormConfig(databaseUrl));
   const catcher = await startMailCatcher(orm, 0);
@@ -50,6 +52,8 @@ export async function startTestApp(options: { workers?: boolean } = {}): Promise
     await startTenderCloseWorker(boss, async (id) => {
       if (id) await closeIfDue(orm.em.fork(), id);
     });
+    if (options.solver !== false) await startSolveWorker(boss, orm);
+    await startNoticeWorker(boss, orm, mailer);
   }
   const sessionPool = new Pool({ connectionString: databaseUrl, max: 3 });
   const deps: AppDeps = { config, orm, boss, sessionPool };

@@ -5,6 +5,7 @@ import type { Browser, TestApp } from './app';
 let seq = 0;
 /** A tender body with `n` regions R01…, closing in `minutes`. */
 export function tenderBody(n = 3, minutes = 60, overrides: Partial<TenderInput> = {}): TenderInput {
+  const locale = 'en-GB';
   seq += 1;
   return {
     reference: `T-${Date.now().toString(36)}-${seq}`,
@@ -14,6 +15,7 @@ export function tenderBody(n = 3, minutes = 60, overrides: Partial<TenderInput> 
     currency: 'EUR',
     closesAt: new Date(Date.now() + minutes * 60_000).toISOString(),
     standstillDays: 10,
+    locale,
     description: '',
     regions: Array.from({ length: n }, (_, i) => ({ code: `R${String(i + 1).padStart(2, '0')}`, name: `Depot ${i + 1}`, forecast: 1000 * (i + 1) })),
     ...overrides,

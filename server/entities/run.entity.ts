@@ -1,0 +1,55 @@
+import { Entity, Enum, Index, ManyToOne, Property, type Opt } from '@mikro-orm/core';
+import type { AwardProblem, AwardResult } from '@shared/award';
+import { RUN_STATUSES, type RunStatus } from '@shared/evaluation';
+import { BaseEntity } from './base.entity';
+import { Scenario } from './scenario.entity';
+import { Tender } from './tender.entity';
+import { User } from './user.entity';
+
+/**
+ * One solve of a scenario: the exact problem (bids and rules, as the engine's problem file), its
+ * SHA-256, the engine's result and the timings. A resilience run re-solves its parent without one vendor.
+ */
+@Entity({ tableName: 'run' })
+@Index({ properties: ['tender', 'createdAt'] })
+export class Run extends BaseEntity {
+  @ManyToOne({ entity: () => Tender, deleteRule: 'cascade' })
+  tender!: Tender;
+
+  @ManyToOne({ entity: () => Scenario, deleteRule: 'cascade' })
+  scenario!: Scenario;
+
+  @Enum({ items: () => RUN_STATUSES, nativeEnumName: 'run_status', default: 'queued' })
+  status: RunStatus & Opt = 'queued';
+
+  @ManyToOne({ entity: () => User, deleteRule: 'restrict' })
+  requestedBy!: User;
+
+  @Property({ type: 'datetime', nullable: true })
+  startedAt?: Date | null;
+
+  @Property({ type: 'datetime', nullable: true })
+  finishedAt?: Date | null;
+
+  @Property({ type: 'integer' })
+  timeLimitSeconds!: number;
+
+  @Property({ type: 'json' })
+  problem!: AwardProblem;
+
+  @Property({ type: 'string', length: 64 })
+  inputDigest!: string;
+
+  @Property({ type: 'json', nullable: true })
+  result?: AwardResult | null;
+
+  @Property({ type: 'integer', default: 0 })
+  attempts: number & Opt = 0;
+
+  /** Resilience: the run this one re-solves, and the vendor left out. */
+  @ManyToOne({ entity: 'Run', nullable: true, deleteRule: 'cascade' })
+  parent?: Run | null;
+
+  @Property({ type: 'uuid', nullable: true })
+  droppedVendor?: string | null;
+}

@@ -1,0 +1,78 @@
+import type { MikroORM } from '@mikro-orm/postgresql';
+import type PgBoss from 'pg-boss';
+import type { AwardResult } from '@shared/award';
+import { AwardInputError, solveAward } from '../award';
+import { Run, RunAward } from '../entities';
+import { logger } from '../logger';
+import { audit } from '../services/audit.service';
+import { QUEUES } from './queue';
+
+/** How often a solving run looks whether someone cancelled it. */
+const CANCEL_POLL_MS = 1000;
+
+/**
+ * Solves one queued run. Safe to run again for the same run: a worker that died mid-solve leaves
+ * the run 'solving', and the retried job claims it again; a cancelled or finished run is left alone.
+ */
+export async function solveRun(orm: MikroORM, runId: string): Promise<void> {
+  const em = orm.em.fork();
+  const claimed = await em.execute<{ id: string }[]>(
+    `update run set status = 'solving', started_at = now(), attempts = attempts + 1, updated_at = now()
+       where id = ? and status in ('queued', 'solving') returning id`, [runId],
+  );
+  if (!claimed.length) return;
+  const run = await em.findOneOrFail(Run, { id: runId });
+
+  const controller = new AbortController();
+  const watch = setInterval(() => {
+    orm.em.fork().getConnection()
+      .execute<{ status: string }[]>(`select status from run where id = ?`, [runId])
+      .then((rows) => { if (rows[0]?.status === 'cancelled') controller.abort(new Error('cancelled')); })
+      .catch((err: unknown) => logger.warn({ err, runId }, 'could not check for cancellation'));
+  }, CANCEL_POLL_MS);
+
+  let result: AwardResult;
+  try {
+    result = await solveAward(run.problem, { signal: controller.signal, timeLimitSeconds: run.timeLimitSeconds });
+  } catch (err) {
+    if (controller.signal.aborted) return;
+    result = {
+      status: 'failed', objective: null, fixedCost: null, variableCost: null, bound: null, boundSource: null, gap: null,
+      solveSeconds: 0, engine: 'none', awards: [],
+      diagnosis: err instanceof AwardInputError ? err.errors.map((e) => `${e.field}: ${e.message}`) : ['The award engine failed; the error is in the server log.'],
+    };
+    if (!(err instanceof AwardInputError)) logger.error({ err, runId }, 'award engine failed');
+  } finally {
+    clearInterval(watch);
+  }
+
+  await em.transactional(async (tx) => {
+    const done = await tx.execute<{ id: string }[]>(
+      `update run set status = ?, result = ?::jsonb, finished_at = now(), updated_at = now() where id = ? and status = 'solving' returning id`,
+      [result.status, JSON.stringify(result), runId],
+    );
+    if (!done.length) return; // cancelled meanwhile
+    for (const award of result.awards) {
+      for (const line of award.lines) {
+        tx.create(RunAward, { run: runId, vendorOrganisation: award.vendor, regionCode: line.region, quantity: line.quantity, unitPrice: line.unitPrice, cost: line.cost });
+      }
+    }
+    await tx.flush();
+    await audit(tx, {
+      tenderId: run.tender.id, actor: null, action: 'run.finished', subject: `run ${runId}`,
+      detail: { status: result.status, objective: result.objective, engine: result.engine, solveSeconds: result.solveSeconds },
+      after: result,
+    });
+  });
+  logger.info({ runId, status: result.status, objective: result.objective, seconds: result.solveSeconds }, 'run finished');
+}
+
+/** Takes solve jobs from the queue; `concurrency` runs at once in this process. */
+export async function startSolveWorker(boss: PgBoss, orm: MikroORM, concurrency = 1): Promise<void> {
+  // One pg-boss worker per concurrent solve (each fetches one job at a time).
+  for (let i = 0; i < concurrency; i++) {
+    await boss.work<{ runId: string }>(QUEUES.solve, { batchSize: 1, pollingIntervalSeconds: 1 }, async (jobs) => {
+      for (const job of jobs) await solveRun(orm, job.data.runId);
+    });
+  }
+}

@@ -1,0 +1,129 @@
+import { z } from 'zod';
+import { compareQuerySchema, decisionInputSchema, recommendationInputSchema, returnInputSchema, scenarioInputSchema } from '@shared/evaluation';
+import { tenderIdParamSchema } from '@shared/tenders';
+import type { AppDeps } from '../app';
+import { route, type AnyRoute } from '../http/route';
+import { auditCsv, auditTrail, verifyTrail } from '../services/audit.service';
+import { currentRecommendation, decide, recommend } from '../services/evaluation/recommendation.service';
+import { compareRuns, findRun, resilienceOf, runView, startResilience } from '../services/evaluation/results.service';
+import { findVisibleTender } from '../services/tender-access';
+import { cancelRun, createScenario, listRuns, listScenarios, queueRun, updateScenario } from '../services/evaluation/scenarios.service';
+import { buildAwardWorkbook } from '../workbooks/award-workbook';
+
+const id = z.object({ id: z.uuid({ error: 'Must be a valid id.' }) });
+const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
+const EVALUATORS = ['buyer', 'compliance'] as const;
+
+export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
+  const ctx = (em: import('@mikro-orm/postgresql').EntityManager) => ({ em, boss: deps.boss });
+  return [
+    route({
+      method: 'get', path: '/tenders/:id/scenarios', tag: 'Evaluation', access: EVALUATORS, params: tenderIdParamSchema,
+      summary: 'Scenarios of a closed tender with their latest run (the built-in all-split and all-sole ones included).',
+      handler: ({ em, user, params }) => listScenarios(em, user, params.id),
+    }),
+    route({
+      method: 'post', path: '/tenders/:id/scenarios', tag: 'Evaluation', access: ['buyer'], params: tenderIdParamSchema, body: scenarioInputSchema, status: 201,
+      summary: 'Create a scenario: a name and the award rules (vendor ids = organisation ids, region ids = region codes).',
+      handler: ({ em, user, params, body }) => createScenario(ctx(em), user, params.id, body),
+    }),
+    route({
+      method: 'put', path: '/scenarios/:id', tag: 'Evaluation', access: ['buyer'], params: id, body: scenarioInputSchema,
+      summary: "Change a scenario's name, rules or time limit (not the built-in ones; not once awarded).",
+      handler: ({ em, user, params, body }) => updateScenario(ctx(em), user, params.id, body),
+    }),
+    route({
+      method: 'post', path: '/scenarios/:id/runs', tag: 'Evaluation', access: ['buyer'], params: id, status: 202,
+      summary: 'Queue a solve of the scenario over the submitted bids; poll GET /api/runs/:id.',
+      handler: async ({ em, user, params }) => {
+        const run = await queueRun(ctx(em), user, params.id);
+        return { id: run.id, status: run.status };
+      },
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/runs', tag: 'Evaluation', access: EVALUATORS, params: tenderIdParamSchema,
+      summary: 'Runs of the tender, newest first (resilience re-solves left out).',
+      handler: ({ em, user, params }) => listRuns(em, user, params.id),
+    }),
+    route({
+      method: 'get', path: '/runs/:id', tag: 'Evaluation', access: EVALUATORS, params: id,
+      summary: "A run: status, timings, the input digest and the engine's result (vendor = organisation id, region = region code).",
+      handler: ({ em, user, params }) => runView(em, user, params.id),
+    }),
+    route({
+      method: 'post', path: '/runs/:id/cancel', tag: 'Evaluation', access: ['buyer'], params: id,
+      summary: 'Cancel a queued or solving run.',
+      handler: ({ em, user, params }) => cancelRun(em, user, params.id),
+    }),
+    route({
+      method: 'get', path: '/runs/:id/export.xlsx', tag: 'Evaluation', access: EVALUATORS, params: id, produces: XLSX,
+      summary: "The run's award as a workbook.",
+      handler: async ({ em, user, params, res }) => {
+        const run = await findRun(em, user, params.id);
+        const file = await buildAwardWorkbook(await runView(em, user, params.id), run.tender);
+        res.attachment(`${run.tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-award-${run.id.slice(0, 8)}.xlsx`).type(XLSX).send(file);
+      },
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/compare', tag: 'Evaluation', access: EVALUATORS, params: tenderIdParamSchema, query: compareQuerySchema,
+      summary: 'Runs side by side against the plain split baseline, and the cost of sole award.',
+      handler: ({ em, user, params, query }) => compareRuns(em, user, params.id, query.runs),
+    }),
+    route({
+      method: 'post', path: '/runs/:id/resilience', tag: 'Evaluation', access: EVALUATORS, params: id, status: 202,
+      summary: 'Re-solve the award without each awarded vendor in turn (queued runs).',
+      handler: ({ em, user, params }) => startResilience(ctx(em), user, params.id),
+    }),
+    route({
+      method: 'get', path: '/runs/:id/resilience', tag: 'Evaluation', access: EVALUATORS, params: id,
+      summary: 'The cost (or infeasibility) of the award if each awarded vendor dropped out; the worst case marked.',
+      handler: ({ em, user, params }) => resilienceOf(em, user, params.id),
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/recommendation', tag: 'Evaluation', access: EVALUATORS, params: tenderIdParamSchema,
+      summary: 'The latest recommendation and its state.',
+      handler: ({ em, user, params }) => currentRecommendation(em, user, params.id),
+    }),
+    route({
+      method: 'post', path: '/tenders/:id/recommendation', tag: 'Evaluation', access: ['buyer'], params: tenderIdParamSchema, body: recommendationInputSchema, status: 201,
+      summary: "Recommend a run's award, with a justification.",
+      handler: ({ em, user, params, body }) => recommend(em, user, params.id, body),
+    }),
+    route({
+      method: 'post', path: '/tenders/:id/recommendation/approve', tag: 'Evaluation', access: ['compliance'], params: tenderIdParamSchema, body: decisionInputSchema,
+      summary: 'Approve the recommendation (never the person who made it): the tender becomes awarded; scenarios and bids freeze.',
+      handler: ({ em, user, params, body }) => decide(em, user, params.id, 'approved', body.comment),
+    }),
+    route({
+      method: 'post', path: '/tenders/:id/recommendation/return', tag: 'Evaluation', access: ['compliance'], params: tenderIdParamSchema, body: returnInputSchema,
+      summary: 'Return the recommendation to the buyer with a comment.',
+      handler: ({ em, user, params, body }) => decide(em, user, params.id, 'returned', body.comment),
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/audit', tag: 'Audit', access: EVALUATORS, params: tenderIdParamSchema,
+      summary: 'The audit trail of the tender: every state change and decision, chained by hash.',
+      handler: async ({ em, user, params }) => {
+        await findVisibleTender(em, user, params.id);
+        return auditTrail(em, params.id);
+      },
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/audit/verify', tag: 'Audit', access: EVALUATORS, params: tenderIdParamSchema,
+      summary: 'Recompute every hash of the chain and say whether it is intact.',
+      handler: async ({ em, user, params }) => {
+        await findVisibleTender(em, user, params.id);
+        return verifyTrail(em, params.id);
+      },
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/audit.csv', tag: 'Audit', access: EVALUATORS, params: tenderIdParamSchema, produces: 'text/csv',
+      summary: 'The audit trail as CSV (cells that could start a spreadsheet formula are quoted as text).',
+      handler: async ({ em, user, params, res }) => {
+        const tender = await findVisibleTender(em, user, params.id);
+        res.attachment(`${tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-audit-trail.csv`).type('text/csv; charset=utf-8').send(await auditCsv(em, params.id));
+      },
+    }),
+  ];
+}
+
+

@@ -1,0 +1,132 @@
+import { createHash } from 'node:crypto';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
+import { AuditEntry, type User } from '../entities';
+
+/** The hash before the first entry of a tender's chain. */
+export const GENESIS = '0'.repeat(64);
+
+/** JSON with keys sorted at every level, so equal content always hashes the same. */
+export function canonicalJson(value: unknown): string {
+  if (value === null || typeof value !== 'object') return JSON.stringify(value ?? null);
+  if (value instanceof Date) return JSON.stringify(value.toISOString());
+  if (Array.isArray(value)) return `[${value.map(canonicalJson).join(',')}]`;
+  const entries = Object.entries(value as Record<string, unknown>).filter(([, v]) => v !== undefined).sort(([a], [b]) => (a < b ? -1 : a > b ? 1 : 0));
+  return `{${entries.map(([k, v]) => `${JSON.stringify(k)}:${canonicalJson(v)}`).join(',')}}`;
+}
+
+export const sha256 = (text: string) => createHash('sha256').update(text).digest('hex');
+
+/** The SHA-256 of a value's canonical JSON: how "before" and "after" states are recorded. */
+export const digestOf = (value: unknown) => sha256(canonicalJson(value));
+
+interface EntryContent {
+  at: Date;
+  tenderId: string | null;
+  actorId: string | null;
+  action: string;
+  subject: string;
+  detail: Record<string, unknown>;
+  beforeDigest: string | null;
+  afterDigest: string | null;
+}
+
+function entryHash(prevHash: string, c: EntryContent): string {
+  return sha256(prevHash + canonicalJson({ ...c, at: c.at.toISOString() }));
+}
+
+export interface AuditInput {
+  tenderId: string | null;
+  actor: User | null;
+  action: string;
+  subject: string;
+  detail?: Record<string, unknown>;
+  before?: unknown;
+  after?: unknown;
+}
+
+/**
+ * Appends an entry to the tender's chain, inside the caller's transaction (so the change and its
+ * record commit together). A transaction-scoped advisory lock per tender keeps the chain linear
+ * when two changes race.
+ */
+export async function audit(em: EntityManager, input: AuditInput): Promise<void> {
+  const chain = input.tenderId ?? 'global';
+  await em.execute(`select pg_advisory_xact_lock(hashtext(?))`, [`audit:${chain}`]);
+  const last = await em.execute<{ hash: string }[]>(
+    input.tenderId
+      ? `select hash from audit_entry where tender_id = ? order by seq desc limit 1`
+      : `select hash from audit_entry where tender_id is null order by seq desc limit 1`,
+    input.tenderId ? [input.tenderId] : [],
+  );
+  const prevHash = last[0]?.hash ?? GENESIS;
+  const content: EntryContent = {
+    at: new Date(),
+    tenderId: input.tenderId,
+    actorId: input.actor?.id ?? null,
+    action: input.action,
+    subject: input.subject,
+    detail: input.detail ?? {},
+    beforeDigest: input.before === undefined ? null : digestOf(input.before),
+    afterDigest: input.after === undefined ? null : digestOf(input.after),
+  };
+  await em.execute(
+    `insert into audit_entry (at, tender_id, actor_id, action, subject, detail, before_digest, after_digest, prev_hash, hash)
+     values (?, ?, ?, ?, ?, ?::jsonb, ?, ?, ?, ?)`,
+    [content.at, content.tenderId, content.actorId, content.action, content.subject, JSON.stringify(content.detail),
+      content.beforeDigest, content.afterDigest, prevHash, entryHash(prevHash, content)],
+  );
+}
+
+export async function auditTrail(em: EntityManager, tenderId: string): Promise<AuditEntryView[]> {
+  const entries = await em.find(AuditEntry, { tender: tenderId }, { populate: ['actor'], orderBy: { seq: 'asc' } });
+  return entries.map((e) => ({
+    seq: Number(e.seq),
+    at: e.at.toISOString(),
+    actor: e.actor ? { id: e.actor.id, name: e.actor.name, role: e.actor.role } : null,
+    action: e.action,
+    subject: e.subject,
+    detail: e.detail,
+    beforeDigest: e.beforeDigest ?? null,
+    afterDigest: e.afterDigest ?? null,
+    hash: e.hash,
+  }));
+}
+
+/** Recomputes every hash of the tender's chain from the stored content. */
+export async function verifyTrail(em: EntityManager, tenderId: string): Promise<AuditVerification> {
+  const rows = await em.execute<{
+    seq: string; at: Date; tender_id: string | null; actor_id: string | null; action: string; subject: string;
+    detail: Record<string, unknown>; before_digest: string | null; after_digest: string | null; prev_hash: string; hash: string;
+  }[]>(`select * from audit_entry where tender_id = ? order by seq`, [tenderId]);
+  let prev = GENESIS;
+  for (const r of rows) {
+    const expected = entryHash(prev, {
+      at: new Date(r.at), tenderId: r.tender_id, actorId: r.actor_id, action: r.action, subject: r.subject,
+      detail: r.detail, beforeDigest: r.before_digest, afterDigest: r.after_digest,
+    });
+    if (r.prev_hash !== prev || r.hash !== expected) {
+      return { ok: false, entries: rows.length, brokenAt: Number(r.seq), message: `Entry ${r.seq} does not match its recorded hash: the trail was changed after it was written.` };
+    }
+    prev = r.hash;
+  }
+  return { ok: true, entries: rows.length, brokenAt: null, message: `All ${rows.length} entries verify: each hash matches its content and the entry before it.` };
+}
+
+/** A CSV cell that a spreadsheet cannot take for a formula. */
+export function csvCell(value: unknown): string {
+  let text = value === null || value === undefined ? '' : typeof value === 'string' ? value : JSON.stringify(value);
+  if (/^[=+\-@\t\r]/.test(text)) text = `'${text}`;
+  return `"${text.replace(/"/g, '""')}"`;
+}
+
+export async function auditCsv(em: EntityManager, tenderId: string): Promise<string> {
+  const rows = await auditTrail(em, tenderId);
+  const header = ['seq', 'at (UTC)', 'actor', 'role', 'action', 'subject', 'detail', 'before digest', 'after digest', 'hash'];
+  const lines = [header.map(csvCell).join(',')];
+  for (const r of rows) {
+    lines.push([r.seq, r.at, r.actor?.name ?? 'system', r.actor?.role ?? '', r.action, r.subject, r.detail, r.beforeDigest, r.afterDigest, r.hash].map(csvCell).join(','));
+  }
+  // A byte-order mark so spreadsheet programs read the file as UTF-8.
+  return `\uFEFF${lines.join('\r\n')}\r\n`;
+}

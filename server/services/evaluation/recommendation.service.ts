@@ -1,0 +1,76 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { RecommendationView } from '@shared/evaluation';
+import { Recommendation, Run, Tender, type User } from '../../entities';
+import { AppError, ConflictError, NotFoundError, ValidationError } from '../../http/errors';
+import { audit } from '../audit.service';
+import { evaluableTender } from './scenarios.service';
+
+function view(r: Recommendation): RecommendationView {
+  return {
+    id: r.id, tenderId: r.tender.id, runId: r.run.id, status: r.status, justification: r.justification,
+    recommendedBy: { id: r.recommendedBy.id, name: r.recommendedBy.name }, recommendedAt: r.createdAt.toISOString(),
+    decidedBy: r.decidedBy ? { id: r.decidedBy.id, name: r.decidedBy.name } : null,
+    decidedAt: r.decidedAt?.toISOString() ?? null, comment: r.comment ?? null,
+  };
+}
+
+async function current(em: EntityManager, tenderId: string): Promise<Recommendation | null> {
+  return em.findOne(Recommendation, { tender: tenderId }, { populate: ['recommendedBy', 'decidedBy', 'run', 'tender'], orderBy: { createdAt: 'desc' } });
+}
+
+export async function currentRecommendation(em: EntityManager, user: User, tenderId: string): Promise<{ recommendation: RecommendationView | null }> {
+  await evaluableTender(em, user, tenderId);
+  const r = await current(em, tenderId);
+  return { recommendation: r ? view(r) : null };
+}
+
+/** The buyer recommends one run's award, with a justification. */
+export async function recommend(em: EntityManager, user: User, tenderId: string, input: { runId: string; justification: string }): Promise<RecommendationView> {
+  const tender = await evaluableTender(em, user, tenderId, true);
+  const run = await em.findOne(Run, { id: input.runId, tender });
+  if (!run) throw new ValidationError([{ field: 'runId', message: 'This run does not belong to the tender.' }]);
+  if (run.parent) throw new ValidationError([{ field: 'runId', message: 'A resilience re-solve cannot be recommended.' }]);
+  if (run.status !== 'optimal' && run.status !== 'feasible') throw new ValidationError([{ field: 'runId', message: 'Only a run with an award can be recommended.' }]);
+  const live = await current(em, tenderId);
+  if (live && live.status === 'recommended') throw new ConflictError('A recommendation is awaiting compliance; it must be approved or returned first.');
+  const id = await em.transactional(async (tx) => {
+    const r = tx.create(Recommendation, { tender, run, justification: input.justification, recommendedBy: user });
+    await tx.flush();
+    await audit(tx, {
+      tenderId, actor: user, action: 'recommendation.made', subject: `run ${run.id}`,
+      detail: { justification: input.justification, objective: run.result?.objective ?? null }, after: { runId: run.id, inputDigest: run.inputDigest, result: run.result },
+    });
+    return r.id;
+  });
+  return view((await em.fork().findOne(Recommendation, { id }, { populate: ['recommendedBy', 'decidedBy', 'run', 'tender'] }))!);
+}
+
+/**
+ * Compliance approves (the tender becomes `awarded`: scenarios and bids are frozen) or returns the
+ * recommendation. Never the person who recommended it (four-eyes rule).
+ */
+export async function decide(em: EntityManager, user: User, tenderId: string, decision: 'approved' | 'returned', comment: string): Promise<RecommendationView> {
+  await evaluableTender(em, user, tenderId, true);
+  const id = await em.transactional(async (tx) => {
+    const r = await tx.findOne(Recommendation, { tender: tenderId, status: 'recommended' }, { populate: ['recommendedBy'] });
+    if (!r) throw new NotFoundError('A recommendation awaiting a decision');
+    if (r.recommendedBy.id === user.id) {
+      throw new AppError(403, 'Not allowed', 'You made this recommendation: someone else must approve or return it (four-eyes rule).');
+    }
+    r.status = decision;
+    r.decidedBy = user;
+    r.decidedAt = new Date();
+    r.comment = comment || null;
+    if (decision === 'approved') {
+      const changed = await tx.nativeUpdate(Tender, { id: tenderId, status: 'closed' }, { status: 'awarded' });
+      if (changed !== 1) throw new ConflictError('The tender is no longer open to an award decision.');
+    }
+    await tx.flush();
+    await audit(tx, {
+      tenderId, actor: user, action: `recommendation.${decision}`, subject: `recommendation ${r.id}`,
+      detail: { comment }, before: { status: 'recommended' }, after: { status: decision },
+    });
+    return r.id;
+  });
+  return view((await em.fork().findOne(Recommendation, { id }, { populate: ['recommendedBy', 'decidedBy', 'run', 'tender'] }))!);
+}

@@ -1,0 +1,119 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { AwardResult } from '@shared/award';
+import type { Comparison, ComparedRun, ResilienceView, RunView } from '@shared/evaluation';
+import { Run, Scenario, type User } from '../../entities';
+import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
+import { evaluableTender, queueRun, runSummary, type EvaluationDeps } from './scenarios.service';
+
+export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
+  const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender'] });
+  if (!run) throw new NotFoundError('The run');
+  await evaluableTender(em, user, run.tender.id);
+  return run;
+}
+
+export async function runView(em: EntityManager, user: User, runId: string): Promise<RunView> {
+  const run = await findRun(em, user, runId);
+  const p = run.problem;
+  return {
+    ...runSummary(run),
+    tenderId: run.tender.id,
+    currency: run.tender.currency,
+    unit: run.tender.unit,
+    inputDigest: run.inputDigest,
+    result: run.result ?? null,
+    vendors: Object.fromEntries(p.vendors.map((v) => [v.id, { name: v.name ?? v.id, sme: v.sme ?? false }])),
+    regions: Object.fromEntries(p.regions.map((r) => [r.id, { name: r.name ?? r.id, forecast: r.demand }])),
+  };
+}
+
+const usable = (r: AwardResult | null | undefined) => !!r && (r.status === 'optimal' || r.status === 'feasible') && r.objective !== null;
+
+/** The latest finished run of a built-in scenario (not a resilience re-solve). */
+async function latestBuiltIn(em: EntityManager, tenderId: string, kind: 'split' | 'sole'): Promise<Run | null> {
+  const scenario = await em.findOne(Scenario, { tender: tenderId, builtIn: kind });
+  if (!scenario) return null;
+  return em.findOne(Run, { scenario, parent: null, status: { $in: ['optimal', 'feasible'] } }, { orderBy: { finishedAt: 'desc' } });
+}
+
+function regionsSplit(result: AwardResult): number {
+  const suppliers = new Map<string, number>();
+  for (const a of result.awards) for (const l of a.lines) if (l.quantity > 0) suppliers.set(l.region, (suppliers.get(l.region) ?? 0) + 1);
+  return [...suppliers.values()].filter((n) => n > 1).length;
+}
+
+/** Runs side by side, each priced against the plain split baseline; and the cost of sole award. */
+export async function compareRuns(em: EntityManager, user: User, tenderId: string, runIds: string[]): Promise<Comparison> {
+  const tender = await evaluableTender(em, user, tenderId);
+  const runs = await em.find(Run, { id: { $in: runIds }, tender }, { populate: ['scenario'] });
+  if (runs.length !== new Set(runIds).size) {
+    throw new ValidationError([{ field: 'runs', message: 'Some runs do not belong to this tender.' }]);
+  }
+  const split = await latestBuiltIn(em, tender.id, 'split');
+  const sole = await latestBuiltIn(em, tender.id, 'sole');
+  const base = split?.result?.objective ?? null;
+  const ordered = runIds.map((id) => runs.find((r) => r.id === id)!);
+  const columns: ComparedRun[] = ordered.map((r) => {
+    const res = r.result;
+    const ok = usable(res);
+    const over = ok && base !== null ? res!.objective! - base : null;
+    return {
+      runId: r.id,
+      scenarioName: r.scenario.name,
+      status: r.status,
+      objective: ok ? res!.objective : null,
+      fixedCost: ok ? res!.fixedCost : null,
+      variableCost: ok ? res!.variableCost : null,
+      vendorsAwarded: ok ? res!.awards.length : 0,
+      largestShare: ok && res!.awards.length ? Math.max(...res!.awards.map((a) => a.share)) : null,
+      regionsSplit: ok ? regionsSplit(res!) : 0,
+      priceOverSplit: over,
+      priceOverSplitPercent: over !== null && base ? over / base : null,
+    };
+  });
+  const soleCost = split && sole && usable(split.result) && usable(sole.result)
+    ? sole.result!.objective! - split.result!.objective!
+    : null;
+  return {
+    currency: tender.currency,
+    runs: columns,
+    baseline: split && base !== null ? { runId: split.id, objective: base } : null,
+    costOfSoleAward: soleCost === null ? null : { amount: soleCost, percent: soleCost / split!.result!.objective! },
+  };
+}
+
+/** Re-solves the run without each awarded vendor in turn (one queued run each). */
+export async function startResilience(deps: EvaluationDeps, user: User, runId: string): Promise<{ queued: number }> {
+  const run = await findRun(deps.em, user, runId);
+  if (run.parent) throw new ConflictError('This is already a resilience re-solve.');
+  if (!usable(run.result)) throw new ConflictError('Only a run with an award can be checked for resilience.');
+  const existing = await deps.em.find(Run, { parent: run });
+  let queued = 0;
+  for (const award of run.result!.awards) {
+    if (existing.some((e) => e.droppedVendor === award.vendor)) continue;
+    await queueRun(deps, user, run.scenario.id, { parent: run, vendor: award.vendor });
+    queued += 1;
+  }
+  return { queued };
+}
+
+export async function resilienceOf(em: EntityManager, user: User, runId: string): Promise<ResilienceView> {
+  const run = await findRun(em, user, runId);
+  const children = await em.find(Run, { parent: run }, { orderBy: { createdAt: 'asc' } });
+  const base = run.result?.objective ?? null;
+  const names = new Map(run.problem.vendors.map((v) => [v.id, v.name ?? v.id]));
+  const rows = children.map((c) => {
+    const obj = usable(c.result) ? c.result!.objective! : null;
+    const increase = obj !== null && base !== null ? obj - base : null;
+    return {
+      vendor: c.droppedVendor!, vendorName: names.get(c.droppedVendor!) ?? c.droppedVendor!, status: c.status, objective: obj,
+      increase, increasePercent: increase !== null && base ? increase / base : null,
+      diagnosis: c.result?.diagnosis ?? [], worst: false,
+    };
+  });
+  // Worst case: losing the vendor makes the award impossible, else the largest increase.
+  const done = rows.filter((r) => r.status === 'infeasible' || r.increase !== null);
+  const worst = done.find((r) => r.status === 'infeasible') ?? done.sort((a, b) => (b.increase ?? 0) - (a.increase ?? 0))[0];
+  if (worst) worst.worst = true;
+  return { runId: run.id, objective: base, rows };
+}

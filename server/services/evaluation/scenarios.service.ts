@@ -1,0 +1,167 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type PgBoss from 'pg-boss';
+import { awardRulesSchema } from '@shared/award';
+import type { RunSummary, ScenarioInput, ScenarioView } from '@shared/evaluation';
+import { Run, Scenario, type Tender, type User } from '../../entities';
+import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
+import { QUEUES } from '../../jobs/queue';
+import { audit } from '../audit.service';
+import { findVisibleTender } from '../tender-access';
+import { buildProblem, plainRules } from './problem';
+
+export interface EvaluationDeps {
+  em: EntityManager;
+  boss: PgBoss;
+}
+
+export function runSummary(run: Run): RunSummary {
+  return {
+    id: run.id,
+    scenarioId: run.scenario.id,
+    scenarioName: run.scenario.name,
+    status: run.status,
+    queuedAt: run.createdAt.toISOString(),
+    startedAt: run.startedAt?.toISOString() ?? null,
+    finishedAt: run.finishedAt?.toISOString() ?? null,
+    timeLimitSeconds: run.timeLimitSeconds,
+    objective: run.result?.objective ?? null,
+    droppedVendor: run.droppedVendor ?? null,
+  };
+}
+
+/** Evaluation happens on closed tenders; once awarded, scenarios and runs are frozen. */
+export async function evaluableTender(em: EntityManager, user: User, tenderId: string, forChange = false): Promise<Tender> {
+  const tender = await findVisibleTender(em, user, tenderId);
+  if (tender.status === 'draft' || tender.status === 'open') {
+    throw new ConflictError('Award scenarios can be built only after the closing time, when the bids are unsealed.');
+  }
+  if (forChange && tender.status !== 'closed') {
+    throw new ConflictError('This tender is awarded: its scenarios and bids are frozen.');
+  }
+  await ensureBuiltInScenarios(em, tender);
+  return tender;
+}
+
+/** Every closed tender starts with two ready scenarios: all regions split, and all regions sole. */
+export async function ensureBuiltInScenarios(em: EntityManager, tender: Tender): Promise<void> {
+  const existing = await em.count(Scenario, { tender, builtIn: { $ne: null } });
+  if (existing >= 2) return;
+  await em.execute(
+    `insert into scenario (id, created_at, updated_at, tender_id, name, rules, time_limit_seconds, built_in)
+     values (gen_random_uuid(), now(), now(), ?, 'All regions split', ?::jsonb, 60, 'split'),
+            (gen_random_uuid(), now(), now(), ?, 'All regions sole', ?::jsonb, 60, 'sole')
+     on conflict do nothing`,
+    [tender.id, JSON.stringify(plainRules('split')), tender.id, JSON.stringify(plainRules('sole'))],
+  );
+}
+
+function scenarioView(s: Scenario, latest: Run | undefined): ScenarioView {
+  return {
+    id: s.id, tenderId: s.tender.id, name: s.name, rules: s.rules, timeLimitSeconds: s.timeLimitSeconds,
+    builtIn: s.builtIn ?? null, createdAt: s.createdAt.toISOString(), latestRun: latest ? runSummary(latest) : null,
+  };
+}
+
+export async function listScenarios(em: EntityManager, user: User, tenderId: string): Promise<ScenarioView[]> {
+  const tender = await evaluableTender(em, user, tenderId);
+  const scenarios = await em.find(Scenario, { tender }, { orderBy: { builtIn: 'asc', createdAt: 'asc' } });
+  const runs = await em.find(Run, { tender, parent: null }, { populate: ['scenario'], orderBy: { createdAt: 'desc' } });
+  return scenarios.map((s) => scenarioView(s, runs.find((r) => r.scenario.id === s.id)));
+}
+
+/** Rules must name this tender's regions and bidders. */
+async function checkRules(em: EntityManager, tender: Tender, input: ScenarioInput): Promise<void> {
+  const rules = awardRulesSchema.parse(input.rules);
+  const { problem } = await buildProblem(em, tender, rules, 1);
+  const regions = new Set(problem.regions.map((r) => r.id));
+  const vendors = new Set(problem.vendors.map((v) => v.id));
+  const errors = [
+    ...rules.soleRegions.flatMap((c, i) => (regions.has(c) ? [] : [{ field: `rules.soleRegions[${i}]`, message: `Region ${c} is not part of this tender.` }])),
+    ...rules.exclude.flatMap((v, i) => (vendors.has(v) ? [] : [{ field: `rules.exclude[${i}]`, message: 'This vendor has no submitted bid on this tender.' }])),
+    ...rules.require.flatMap((v, i) => (vendors.has(v) ? [] : [{ field: `rules.require[${i}]`, message: 'This vendor has no submitted bid on this tender.' }])),
+  ];
+  if (errors.length) throw new ValidationError(errors);
+}
+
+export async function createScenario(deps: EvaluationDeps, user: User, tenderId: string, input: ScenarioInput & { timeLimitSeconds: number }): Promise<ScenarioView> {
+  const { em } = deps;
+  const tender = await evaluableTender(em, user, tenderId, true);
+  await checkRules(em, tender, input);
+  if (await em.count(Scenario, { tender, name: input.name })) {
+    throw new ConflictError('A scenario with this name exists.', [{ field: 'name', message: 'Choose another name.' }]);
+  }
+  const scenario = await em.transactional(async (tx) => {
+    const s = tx.create(Scenario, { tender: tender.id, name: input.name, rules: awardRulesSchema.parse(input.rules), timeLimitSeconds: input.timeLimitSeconds, createdBy: user });
+    await tx.flush();
+    await audit(tx, { tenderId: tender.id, actor: user, action: 'scenario.created', subject: `scenario ${s.name}`, detail: { rules: s.rules }, after: s.rules });
+    return s;
+  });
+  return scenarioView(scenario, undefined);
+}
+
+export async function updateScenario(deps: EvaluationDeps, user: User, scenarioId: string, input: ScenarioInput & { timeLimitSeconds: number }): Promise<ScenarioView> {
+  const { em } = deps;
+  const scenario = await em.findOne(Scenario, { id: scenarioId });
+  if (!scenario) throw new NotFoundError('The scenario');
+  const tender = await evaluableTender(em, user, scenario.tender.id, true);
+  if (scenario.builtIn) throw new ConflictError('The two built-in scenarios cannot be changed; create your own.');
+  await checkRules(em, tender, input);
+  const before = scenario.rules;
+  await em.transactional(async (tx) => {
+    const s = await tx.findOneOrFail(Scenario, { id: scenarioId });
+    tx.assign(s, { name: input.name, rules: awardRulesSchema.parse(input.rules), timeLimitSeconds: input.timeLimitSeconds });
+    await tx.flush();
+    await audit(tx, { tenderId: tender.id, actor: user, action: 'scenario.updated', subject: `scenario ${s.name}`, before, after: s.rules });
+  });
+  return scenarioView(await em.fork().findOneOrFail(Scenario, { id: scenarioId }), undefined);
+}
+
+/** Queues a solve of the scenario (202): a pg-boss job any worker process may take. */
+export async function queueRun(deps: EvaluationDeps, user: User, scenarioId: string, dropVendor?: { parent: Run; vendor: string }): Promise<Run> {
+  const { em } = deps;
+  const scenario = await em.findOne(Scenario, { id: scenarioId });
+  if (!scenario) throw new NotFoundError('The scenario');
+  const tender = await evaluableTender(em, user, scenario.tender.id, true);
+  const rules = awardRulesSchema.parse(scenario.rules);
+  if (dropVendor) rules.exclude = [...new Set([...rules.exclude, dropVendor.vendor])];
+  const { problem, digest } = await buildProblem(em, tender, rules, scenario.timeLimitSeconds);
+  const run = await em.transactional(async (tx) => {
+    const r = tx.create(Run, {
+      tender: tender.id, scenario, requestedBy: user, timeLimitSeconds: scenario.timeLimitSeconds, problem, inputDigest: digest,
+      parent: dropVendor?.parent ?? null, droppedVendor: dropVendor?.vendor ?? null,
+    });
+    await tx.flush();
+    await audit(tx, {
+      tenderId: tender.id, actor: user, action: dropVendor ? 'run.resilience-queued' : 'run.queued', subject: `run ${r.id}`,
+      detail: { scenario: scenario.name, ...(dropVendor ? { droppedVendor: dropVendor.vendor } : {}) }, after: { inputDigest: digest },
+    });
+    return r;
+  });
+  await deps.boss.send(QUEUES.solve, { runId: run.id }, {
+    retryLimit: 3, retryDelay: 1,
+    // A worker that dies mid-solve lets the job expire; pg-boss then gives it to another worker.
+    expireInSeconds: scenario.timeLimitSeconds + 30,
+  });
+  return run;
+}
+
+export async function listRuns(em: EntityManager, user: User, tenderId: string): Promise<RunSummary[]> {
+  const tender = await evaluableTender(em, user, tenderId);
+  const runs = await em.find(Run, { tender, parent: null }, { populate: ['scenario'], orderBy: { createdAt: 'desc' } });
+  return runs.map(runSummary);
+}
+
+export async function cancelRun(em: EntityManager, user: User, runId: string): Promise<RunSummary> {
+  const run = await em.findOne(Run, { id: runId }, { populate: ['scenario'] });
+  if (!run) throw new NotFoundError('The run');
+  await findVisibleTender(em, user, run.tender.id);
+  await em.transactional(async (tx) => {
+    const changed = await tx.execute<{ id: string }[]>(
+      `update run set status = 'cancelled', finished_at = now(), updated_at = now() where id = ? and status in ('queued', 'solving') returning id`, [runId],
+    );
+    if (!changed.length) throw new ConflictError('This run has already finished.');
+    await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.cancelled', subject: `run ${run.id}` });
+  });
+  em.clear();
+  return runSummary(await em.findOneOrFail(Run, { id: runId }, { populate: ['scenario'] }));
+}

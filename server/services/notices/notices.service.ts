@@ -1,0 +1,90 @@
+import type { EntityManager, FilterQuery } from '@mikro-orm/postgresql';
+import type PgBoss from 'pg-boss';
+import type { NoticePreview, NoticeStatus, NoticeSummary, NoticeView } from '@shared/notices';
+import { Notice, Tender, type User } from '../../entities';
+import { ConflictError, NotFoundError } from '../../http/errors';
+import { queueNotice } from '../../jobs/notice-job';
+import { audit } from '../audit.service';
+import { findVisibleTender } from '../tender-access';
+import { approvedRun, composeLetters } from './letters';
+
+export interface NoticeDeps {
+  em: EntityManager;
+  boss: PgBoss;
+}
+
+function summary(n: Notice): NoticeSummary {
+  return {
+    id: n.id, tenderId: n.tender.id, tenderReference: n.tender.reference, tenderTitle: n.tender.title,
+    vendor: { id: n.vendorOrganisation.id, name: n.vendorOrganisation.name }, kind: n.kind, subject: n.subject, status: n.status,
+    attempts: n.attempts, lastError: n.lastError ?? null, queuedAt: n.createdAt.toISOString(), sentAt: n.sentAt?.toISOString() ?? null,
+    standstillEndsAt: n.standstillEndsAt.toISOString(),
+  };
+}
+
+export async function previewNotices(em: EntityManager, user: User, tenderId: string): Promise<NoticePreview[]> {
+  const tender = await findVisibleTender(em, user, tenderId);
+  const letters = await composeLetters(em, tender);
+  return letters.map((l) => ({ vendor: l.vendor, kind: l.kind, to: l.to, subject: l.subject, html: l.html, text: l.text }));
+}
+
+/**
+ * Queues one notice per bidder that has none yet: sending twice never duplicates a notice
+ * (a unique row per tender and vendor, created in one transaction).
+ */
+export async function sendNotices(deps: NoticeDeps, user: User, tenderId: string): Promise<{ queued: number }> {
+  const { em } = deps;
+  const tender = await findVisibleTender(em, user, tenderId);
+  if (tender.status !== 'awarded' && tender.status !== 'notified') throw new ConflictError('Notices go out once compliance has approved an award for this tender.');
+  const run = await approvedRun(em, tender);
+  const letters = await composeLetters(em, tender);
+  const created = await em.transactional(async (tx) => {
+    await tx.execute(`select id from tender where id = ? for update`, [tenderId]);
+    const existing = new Set((await tx.find(Notice, { tender: tenderId })).map((n) => n.vendorOrganisation.id));
+    const fresh = letters.filter((l) => !existing.has(l.vendor.id)).map((l) => tx.create(Notice, {
+      tender: tenderId, run, vendorOrganisation: l.vendor.id, kind: l.kind, toAddresses: l.to, subject: l.subject,
+      html: l.html, text: l.text, standstillEndsAt: l.standstillEndsAt,
+    }));
+    await tx.flush();
+    if (fresh.length) {
+      await audit(tx, { tenderId, actor: user, action: 'notices.queued', subject: `${fresh.length} notices`, detail: { award: fresh.filter((n) => n.kind === 'award').length, regret: fresh.filter((n) => n.kind === 'regret').length } });
+    }
+    return fresh.map((n) => n.id);
+  });
+  for (const id of created) await queueNotice(deps.boss, id);
+  return { queued: created.length };
+}
+
+export async function listNotices(em: EntityManager, user: User, query: { tenderId?: string; status?: NoticeStatus }): Promise<NoticeSummary[]> {
+  const where: FilterQuery<Notice> = {};
+  if (query.tenderId) where.tender = query.tenderId;
+  if (query.status) where.status = query.status;
+  if (user.role === 'vendor') {
+    where.vendorOrganisation = user.vendorOrganisation!.id;
+    // A vendor reads its letter once it has been sent.
+    where.status = 'sent';
+  } else if (user.role === 'buyer') {
+    where.tender = { ...(query.tenderId ? { id: query.tenderId } : {}), createdBy: user.id };
+  }
+  const notices = await em.find(Notice, where, { populate: ['tender', 'vendorOrganisation'], orderBy: { createdAt: 'desc', vendorOrganisation: { name: 'asc' } } });
+  return notices.map(summary);
+}
+
+export async function readNotice(em: EntityManager, user: User, id: string): Promise<NoticeView> {
+  const n = await em.findOne(Notice, { id }, { populate: ['tender', 'vendorOrganisation'] });
+  const visible = n && (user.role === 'vendor'
+    ? n.vendorOrganisation.id === user.vendorOrganisation?.id && n.status === 'sent'
+    : user.role === 'buyer' ? n.tender.createdBy.id === user.id : true);
+  if (!n || !visible) throw new NotFoundError('The notice');
+  return { ...summary(n), html: n.html, text: n.text };
+}
+
+/** Marks the tender notified once every one of its notices is sent. */
+export async function notifiedIfAllSent(em: EntityManager, tenderId: string): Promise<void> {
+  await em.transactional(async (tx) => {
+    const rows = await tx.execute<{ open: string }[]>(`select count(*) as open from notice where tender_id = ? and status <> 'sent'`, [tenderId]);
+    if (Number(rows[0]!.open) > 0) return;
+    const changed = await tx.nativeUpdate(Tender, { id: tenderId, status: 'awarded' }, { status: 'notified' });
+    if (changed) await audit(tx, { tenderId, actor: null, action: 'tender.notified', subject: 'tender', detail: {}, before: { status: 'awarded' }, after: { status: 'notified' } });
+  });
+}

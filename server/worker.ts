@@ -1,0 +1,47 @@
+import 'reflect-metadata';
+import { MikroORM } from '@mikro-orm/postgresql';
+import { closeSolverPool } from './award';
+import { loadConfig } from './config';
+import { createBoss, startMailWorker, startTenderCloseWorker } from './jobs/queue';
+import { startSolveWorker } from './jobs/solve-job';
+import { startNoticeWorker } from './jobs/notice-job';
+import { logger } from './logger';
+import { createMailer } from './mail/mailer';
+import { ormConfig } from './mikro-orm.config';
+import { closeAllDue, closeIfDue } from './services/tender-access';
+
+/**
+ * `npm run worker`: a process that only takes jobs (solves, mail, closings) from the PostgreSQL
+ * queue. Start as many as you like, on any machine that reaches the database (DATABASE_URL).
+ */
+async function main(): Promise<void> {
+  const config = loadConfig();
+  const orm = await MikroORM.init(ormConfig(config.databaseUrl));
+  const boss = createBoss(config.databaseUrl);
+  await boss.start();
+  const mailer = createMailer(config.smtpUrl, config.mailFrom);
+  await startMailWorker(boss, mailer);
+  await startTenderCloseWorker(boss, async (id) => {
+    const em = orm.em.fork();
+    if (id) await closeIfDue(em, id);
+    else await closeAllDue(em);
+  });
+  await startSolveWorker(boss, orm, config.solveConcurrency);
+  await startNoticeWorker(boss, orm, mailer);
+  logger.info({ pid: process.pid, solveConcurrency: config.solveConcurrency }, 'worker ready');
+  const stop = async (signal: string) => {
+    logger.info({ signal }, 'worker stopping');
+    await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
+    await closeSolverPool();
+    mailer.close();
+    await orm.close();
+    process.exit(0);
+  };
+  process.once('SIGINT', () => void stop('SIGINT'));
+  process.once('SIGTERM', () => void stop('SIGTERM'));
+}
+
+main().catch((err: unknown) => {
+  logger.fatal({ err }, 'worker could not start');
+  process.exit(1);
+});

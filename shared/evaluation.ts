@@ -1,0 +1,163 @@
+import { z } from 'zod';
+import { awardRulesSchema, type AwardResult, type AwardRules } from './award';
+
+/**
+ * Evaluation of a closed tender: scenarios (named sets of award rules), runs of the award engine,
+ * comparison, resilience, the recommendation and its approval, and the audit trail.
+ * In rules, vendor ids are vendor organisation ids and region ids are region codes.
+ */
+
+export const RUN_STATUSES = ['queued', 'solving', 'optimal', 'feasible', 'infeasible', 'failed', 'cancelled'] as const;
+export type RunStatus = (typeof RUN_STATUSES)[number];
+export const FINISHED_RUN_STATUSES: readonly RunStatus[] = ['optimal', 'feasible', 'infeasible', 'failed', 'cancelled'];
+
+export const RECOMMENDATION_STATUSES = ['recommended', 'approved', 'returned'] as const;
+export type RecommendationStatus = (typeof RECOMMENDATION_STATUSES)[number];
+
+const text = (label: string, max: number) =>
+  z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` });
+
+/** POST /api/tenders/:id/scenarios and PUT /api/scenarios/:id */
+export const scenarioInputSchema = z.object({
+  name: text('Name', 120),
+  rules: awardRulesSchema,
+  /** Seconds the engine may take (default 60). */
+  timeLimitSeconds: z.number({ error: 'Time limit must be a number of seconds.' }).int().min(1).max(600, { error: 'Time limit must be at most 600 seconds.' }).default(60),
+});
+export type ScenarioInput = z.input<typeof scenarioInputSchema>;
+
+/** POST /api/tenders/:id/recommendation */
+export const recommendationInputSchema = z.object({
+  runId: z.uuid({ error: 'Choose a run.' }),
+  justification: text('Justification', 4000),
+});
+/** POST /api/tenders/:id/recommendation/approve and …/return */
+export const decisionInputSchema = z.object({
+  comment: z.string({ error: 'Comment must be text.' }).trim().max(4000, { error: 'Comment must be at most 4000 characters.' }).default(''),
+});
+export const returnInputSchema = z.object({ comment: text('Comment', 4000) });
+
+/** GET /api/tenders/:id/compare?runs=a,b,c */
+export const compareQuerySchema = z.object({
+  runs: z
+    .string({ error: 'List the runs to compare.' })
+    .transform((s) => s.split(',').map((x) => x.trim()).filter(Boolean))
+    .pipe(z.array(z.uuid({ error: 'Each run must be a valid id.' })).min(2, { error: 'Compare at least two runs.' }).max(8, { error: 'Compare at most eight runs.' })),
+});
+
+export interface ScenarioView {
+  id: string;
+  tenderId: string;
+  name: string;
+  rules: AwardRules;
+  timeLimitSeconds: number;
+  /** The two ready-made scenarios every closed tender starts with. */
+  builtIn: 'split' | 'sole' | null;
+  createdAt: string;
+  latestRun: RunSummary | null;
+}
+
+export interface RunSummary {
+  id: string;
+  scenarioId: string;
+  scenarioName: string;
+  status: RunStatus;
+  queuedAt: string;
+  startedAt: string | null;
+  finishedAt: string | null;
+  timeLimitSeconds: number;
+  objective: number | null;
+  /** When a vendor was taken out for a resilience check: its id. */
+  droppedVendor: string | null;
+}
+
+/** GET /api/runs/:id */
+export interface RunView extends RunSummary {
+  tenderId: string;
+  currency: string;
+  unit: string;
+  /** SHA-256 of the exact problem solved (bids and rules). */
+  inputDigest: string;
+  result: AwardResult | null;
+  /** Names for the ids in `result`. */
+  vendors: Record<string, { name: string; sme: boolean }>;
+  regions: Record<string, { name: string; forecast: number }>;
+}
+
+/** One column of the compare screen. */
+export interface ComparedRun {
+  runId: string;
+  scenarioName: string;
+  status: RunStatus;
+  objective: number | null;
+  fixedCost: number | null;
+  variableCost: number | null;
+  vendorsAwarded: number;
+  largestShare: number | null;
+  /** Regions supplied by more than one vendor. */
+  regionsSplit: number;
+  /** objective − the split baseline's objective (null without a feasible baseline). */
+  priceOverSplit: number | null;
+  priceOverSplitPercent: number | null;
+}
+
+/** GET /api/tenders/:id/compare */
+export interface Comparison {
+  currency: string;
+  runs: ComparedRun[];
+  /** The plain all-split run used as the baseline (the tender's built-in split scenario, latest finished run). */
+  baseline: { runId: string; objective: number } | null;
+  /** Cost of sole award: built-in sole − built-in split (never negative). */
+  costOfSoleAward: { amount: number; percent: number } | null;
+}
+
+/** GET /api/runs/:id/resilience: the award re-solved without each awarded vendor in turn. */
+export interface ResilienceView {
+  runId: string;
+  objective: number | null;
+  rows: {
+    vendor: string;
+    vendorName: string;
+    status: RunStatus;
+    objective: number | null;
+    /** objective without the vendor − the run's objective. */
+    increase: number | null;
+    increasePercent: number | null;
+    diagnosis: string[];
+    worst: boolean;
+  }[];
+}
+
+export interface RecommendationView {
+  id: string;
+  tenderId: string;
+  runId: string;
+  status: RecommendationStatus;
+  justification: string;
+  recommendedBy: { id: string; name: string };
+  recommendedAt: string;
+  decidedBy: { id: string; name: string } | null;
+  decidedAt: string | null;
+  comment: string | null;
+}
+
+export interface AuditEntryView {
+  seq: number;
+  at: string;
+  actor: { id: string; name: string; role: string } | null;
+  action: string;
+  subject: string;
+  detail: Record<string, unknown>;
+  beforeDigest: string | null;
+  afterDigest: string | null;
+  hash: string;
+}
+
+/** GET /api/tenders/:id/audit/verify */
+export interface AuditVerification {
+  ok: boolean;
+  entries: number;
+  /** The first entry whose hash does not match, if any. */
+  brokenAt: number | null;
+  message: string;
+}

@@ -1,0 +1,53 @@
+import { closeSolverPool, solveAward } from '../../server/award/index';
+import { baseProblem, largeSoleProblem } from './support/problems';
+
+// The solve runs in worker threads: the main event loop must keep turning, and a solve can be cancelled.
+jest.setTimeout(120_000);
+afterAll(() => closeSolverPool());
+
+describe('solving off the main thread', () => {
+  test('timers keep firing while a long solve runs', async () => {
+    const problem = largeSoleProblem(30, 150, 7);
+    let ticks = 0;
+    const timer = setInterval(() => { ticks++; }, 10);
+    const started = performance.now();
+    const result = await solveAward(problem, { timeLimitSeconds: 3 });
+    const elapsed = performance.now() - started;
+    clearInterval(timer);
+    expect(['optimal', 'feasible']).toContain(result.status);
+    // A blocked event loop would fire about once over the whole solve; a free one about every 10 ms.
+    // Only the ratio is checked, never how long the solve took.
+    expect(ticks).toBeGreaterThan(Math.max(5, elapsed / 10 / 5));
+  });
+
+  test('a cancelled solve rejects with the abort reason, and the engine keeps working afterwards', async () => {
+    const controller = new AbortController();
+    const pending = solveAward(largeSoleProblem(30, 150, 11), { timeLimitSeconds: 60, signal: controller.signal });
+    setTimeout(() => controller.abort(new Error('cancelled by the buyer')), 300);
+    await expect(pending).rejects.toThrow('cancelled by the buyer');
+    const after = await solveAward(baseProblem());
+    expect(after).toMatchObject({ status: 'optimal', objective: 300 });
+  });
+
+  test('an already aborted signal solves nothing', async () => {
+    const controller = new AbortController();
+    controller.abort(new Error('stop'));
+    await expect(solveAward(baseProblem(), { signal: controller.signal })).rejects.toThrow('stop');
+  });
+
+  test('at the time limit the best award comes back as feasible with an honest bound and gap', async () => {
+    const r = await solveAward(largeSoleProblem(30, 150, 7), { timeLimitSeconds: 3, engine: 'glpk' });
+    // glpk.js reports no MIP bound: whatever the machine's speed, the bound must be the LP's.
+    if (r.status === 'feasible') {
+      expect(r.bound!).toBeLessThanOrEqual(r.objective!);
+      expect(r.gap!).toBeCloseTo((r.objective! - r.bound!) / r.objective!, 9);
+      expect(r.boundSource).toMatch(/LP relaxation/);
+    } else if (r.status === 'failed') {
+      expect(r.diagnosis).toEqual(['No award was found within the time limit of 3 s; allow more time.']);
+      expect(r.awards).toEqual([]);
+      expect(r.boundSource).toMatch(/LP relaxation/);
+    } else {
+      expect(r.status).toBe('optimal');
+    }
+  });
+});

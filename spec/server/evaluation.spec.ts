@@ -1,0 +1,186 @@
+import type { RunView, ScenarioView } from '@shared/evaluation';
+import { AuditEntry, Bid, Tender, User } from '../../server/entities';
+import { seed } from '../../server/ops/seed';
+import { DEMO_PASSWORD } from '../../seeds/demo-people';
+import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
+import { waitForRun } from '../support/evaluation';
+
+/** The buyer → compliance flow on the demo salt tender, through the API with the real engine. */
+jest.setTimeout(120_000);
+let t: TestApp;
+let buyer: Browser;
+let compliance: Browser;
+let tenderId: string;
+let scenarios: ScenarioView[];
+const runs: Record<string, RunView> = {};
+
+async function demo(email: string): Promise<Browser> {
+  const b = await new Browser(t.app).init();
+  const res = await b.signIn(email, DEMO_PASSWORD);
+  if (res.status !== 200) throw new Error(`sign-in ${email}: ${res.status}`);
+  return b;
+}
+
+async function run(scenarioId: string): Promise<RunView> {
+  const res = await buyer.post(`/api/scenarios/${scenarioId}/runs`);
+  expect(res.status).toBe(202);
+  expect(res.body.status).toBe('queued');
+  return waitForRun(buyer, res.body.id);
+}
+
+beforeAll(async () => {
+  t = await startTestApp();
+  await seed(t.em(), 'demo');
+  buyer = await demo('buyer@demo.tendara.test');
+  compliance = await demo('compliance@demo.tendara.test');
+  tenderId = (await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' })).id;
+});
+afterAll(() => t.close());
+
+test('a closed tender starts with two ready scenarios: all regions split, and all regions sole', async () => {
+  const res = await compliance.get(`/api/tenders/${tenderId}/scenarios`);
+  expect(res.status).toBe(200);
+  scenarios = res.body;
+  expect(scenarios.map((s) => [s.builtIn, s.rules.sourcing])).toEqual([['split', 'split'], ['sole', 'sole']]);
+});
+
+test('scenarios cannot be built on an open tender: the bids are still sealed', async () => {
+  const open = await t.em().findOneOrFail(Tender, { reference: 'NHP-2027-002' });
+  const res = await buyer.get(`/api/tenders/${open.id}/scenarios`);
+  expect(res.status).toBe(409);
+});
+
+test('split and sole runs finish optimal; each objective is recomputed from the stored bids', async () => {
+  for (const s of scenarios) runs[s.builtIn!] = await run(s.id);
+  const bids = await t.em().find(Bid, { tender: tenderId }, { populate: ['lines.region', 'vendorOrganisation'] });
+  const tender = await t.em().findOneOrFail(Tender, { id: tenderId }, { populate: ['regions'] });
+  for (const kind of ['split', 'sole']) {
+    const r = runs[kind]!;
+    expect(r.status).toBe('optimal');
+    let total = 0;
+    const supplied = new Map<string, number>();
+    for (const a of r.result!.awards) {
+      const bid = bids.find((b) => b.vendorOrganisation.id === a.vendor)!;
+      total += bid.fixedFee;
+      for (const l of a.lines) {
+        const price = bid.lines.getItems().find((x) => x.region.code === l.region)!.unitPrice;
+        expect(l.unitPrice).toBe(price);
+        total += price * l.quantity;
+        supplied.set(l.region, (supplied.get(l.region) ?? 0) + l.quantity);
+      }
+    }
+    expect(r.result!.objective).toBeCloseTo(total, 4);
+    for (const region of tender.regions) expect(supplied.get(region.code)).toBeCloseTo(region.forecast, 6);
+    if (kind === 'sole') for (const region of tender.regions) {
+      expect(r.result!.awards.filter((a) => a.lines.some((l) => l.region === region.code && l.quantity > 0))).toHaveLength(1);
+    }
+  }
+});
+
+test('the demo figures make split and sole differ, and the cost of sole award is never negative', async () => {
+  const res = await compliance.get(`/api/tenders/${tenderId}/compare`).query({ runs: `${runs['split']!.id},${runs['sole']!.id}` });
+  expect(res.status).toBe(200);
+  const { costOfSoleAward, runs: cols, baseline } = res.body;
+  expect(baseline.runId).toBe(runs['split']!.id);
+  expect(costOfSoleAward.amount).toBeGreaterThan(0);
+  expect(costOfSoleAward.amount).toBeCloseTo(runs['sole']!.result!.objective! - runs['split']!.result!.objective!, 4);
+  expect(cols[0].priceOverSplit).toBe(0);
+  expect(cols[1].regionsSplit).toBe(0);
+});
+
+test('a rule never lowers the optimum: at most two vendors costs at least the plain split', async () => {
+  const created = await buyer.post(`/api/tenders/${tenderId}/scenarios`, { name: 'Two vendors at most', rules: { sourcing: 'split', maxVendors: 2 } });
+  expect(created.status).toBe(201);
+  const r = await run(created.body.id);
+  expect(['optimal', 'infeasible']).toContain(r.status);
+  if (r.status === 'optimal') {
+    expect(r.result!.awards.length).toBeLessThanOrEqual(2);
+    expect(r.result!.objective!).toBeGreaterThanOrEqual(runs['split']!.result!.objective! - 1e-6);
+  }
+});
+
+test('bad rules are refused naming the field', async () => {
+  const res = await buyer.post(`/api/tenders/${tenderId}/scenarios`, { name: 'Bad', rules: { sourcing: 'sole', maxVendorShare: 1.5, soleRegions: ['NOPE'] } });
+  expect(res.status).toBe(400);
+  expect(res.body.errors.map((e: { field: string }) => e.field)).toContain('rules.maxVendorShare');
+  const unknown = await buyer.post(`/api/tenders/${tenderId}/scenarios`, { name: 'Bad 2', rules: { soleRegions: ['NOPE'] } });
+  expect(unknown.status).toBe(400);
+  expect(unknown.body.errors).toEqual([{ field: 'rules.soleRegions[0]', message: 'Region NOPE is not part of this tender.' }]);
+});
+
+test('resilience: the award re-solved without each awarded vendor, the worst case marked', async () => {
+  const split = runs['split']!;
+  const res = await compliance.post(`/api/runs/${split.id}/resilience`);
+  expect(res.status).toBe(202);
+  expect(res.body.queued).toBe(split.result!.awards.length);
+  let view;
+  for (let i = 0; i < 240; i++) {
+    view = (await compliance.get(`/api/runs/${split.id}/resilience`)).body;
+    if (view.rows.every((r: { status: string }) => !['queued', 'solving'].includes(r.status))) break;
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  expect(view.rows).toHaveLength(split.result!.awards.length);
+  for (const row of view.rows) {
+    if (row.status === 'optimal') expect(row.increase).toBeGreaterThanOrEqual(-1e-6);
+  }
+  expect(view.rows.filter((r: { worst: boolean }) => r.worst)).toHaveLength(1);
+});
+
+test('four-eyes: the person who recommended can never approve, even with the compliance role', async () => {
+  const rec = await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: runs['split']!.id, justification: 'Least total cost; every depot covered by at most two vendors.' });
+  expect(rec.status).toBe(201);
+  expect(rec.body.status).toBe('recommended');
+  // Someone recommends, then is made a compliance officer: still not allowed to approve their own.
+  const em = t.em();
+  const buyerUser = await em.findOneOrFail(User, { email: 'buyer@demo.tendara.test' });
+  await em.nativeUpdate(User, { id: buyerUser.id }, { role: 'compliance' });
+  try {
+    const self = await buyer.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: 'ok' });
+    expect(self.status).toBe(403);
+    expect(self.body.detail).toMatch(/four-eyes/);
+  } finally {
+    await em.nativeUpdate(User, { id: buyerUser.id }, { role: 'buyer' });
+  }
+  const ret = await compliance.post(`/api/tenders/${tenderId}/recommendation/return`, {});
+  expect(ret.status).toBe(400);
+  expect(ret.body.errors[0].field).toBe('comment');
+});
+
+test('approval by compliance awards the tender and freezes its scenarios', async () => {
+  const res = await compliance.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: 'Checked against the rules.' });
+  expect(res.status).toBe(200);
+  expect(res.body).toMatchObject({ status: 'approved', decidedBy: { name: 'Priya Castell' } });
+  expect((await buyer.get(`/api/tenders/${tenderId}`)).body.status).toBe('awarded');
+  expect((await buyer.post(`/api/scenarios/${scenarios[0]!.id}/runs`)).status).toBe(409);
+  expect((await buyer.post(`/api/tenders/${tenderId}/scenarios`, { name: 'Late', rules: {} })).status).toBe(409);
+});
+
+test('the audit trail records every decision, verifies, refuses changes, and shows tampering', async () => {
+  const trail = (await compliance.get(`/api/tenders/${tenderId}/audit`)).body;
+  const actions = trail.map((e: { action: string }) => e.action);
+  expect(actions).toEqual(expect.arrayContaining(['run.queued', 'run.finished', 'scenario.created', 'recommendation.made', 'recommendation.approved']));
+  expect((await compliance.get(`/api/tenders/${tenderId}/audit/verify`)).body).toMatchObject({ ok: true, brokenAt: null });
+  const conn = t.em().getConnection();
+  await expect(conn.execute(`update audit_entry set action = 'x' where tender_id = ?`, [tenderId])).rejects.toThrow(/append-only/);
+  // Someone with the database owner's rights switches the guard off and rewrites history:
+  const victim = trail[2].seq;
+  await conn.execute(`alter table audit_entry disable trigger audit_entry_no_change`);
+  await conn.execute(`update audit_entry set detail = '{"comment":"changed"}'::jsonb where seq = ?`, [victim]);
+  await conn.execute(`alter table audit_entry enable trigger audit_entry_no_change`);
+  expect((await compliance.get(`/api/tenders/${tenderId}/audit/verify`)).body).toMatchObject({ ok: false, brokenAt: victim });
+  expect(await t.em().count(AuditEntry, { tender: tenderId })).toBe(trail.length);
+});
+
+test('the audit CSV is safe against spreadsheet formula injection', async () => {
+  const other = await makeUser(t, 'buyer', { name: '=HYPERLINK("http://evil.test","x")' });
+  const b = await signedIn(t, other);
+  const open = await t.em().findOneOrFail(Tender, { reference: 'NHP-2027-002' });
+  await t.em().nativeUpdate(Tender, { id: open.id }, { closesAt: new Date(Date.now() - 1000) });
+  await b.get(`/api/tenders/${open.id}`);
+  const s = await b.post(`/api/tenders/${open.id}/scenarios`, { name: '+cmd|calc', rules: {} });
+  expect(s.status).toBe(201);
+  const csv = await compliance.get(`/api/tenders/${open.id}/audit.csv`);
+  expect(csv.status).toBe(200);
+  expect(csv.text).toContain(`"'=HYPERLINK(""http://evil.test"",""x"")"`);
+  expect(csv.text).not.toMatch(/(^|,)"[=+\-@]/m);
+});

@@ -1,0 +1,142 @@
+import { simpleParser } from 'mailparser';
+import type { RunView } from '@shared/evaluation';
+import { MailMessage, Notice, Tender } from '../../server/entities';
+import { startMailCatcher } from '../../server/mail/catcher';
+import { seed } from '../../server/ops/seed';
+import { DEMO_PASSWORD } from '../../seeds/demo-people';
+import { Browser, startTestApp, type TestApp } from '../support/app';
+import { waitForRun } from '../support/evaluation';
+
+/** Award notices on the demo salt tender, after the buyer → compliance approval. */
+jest.setTimeout(120_000);
+process.env['NOTICE_RETRY_SECONDS'] = '1';
+
+async function demo(t: TestApp, who: string): Promise<Browser> {
+  const b = await new Browser(t.app).init();
+  expect((await b.signIn(`${who}@demo.tendara.test`, DEMO_PASSWORD)).status).toBe(200);
+  return b;
+}
+
+/** Runs the all-split scenario and has it recommended and approved; returns the approved run. */
+async function approvedAward(t: TestApp): Promise<{ tenderId: string; run: RunView; buyer: Browser }> {
+  await seed(t.em(), 'demo');
+  const buyer = await demo(t, 'buyer');
+  const compliance = await demo(t, 'compliance');
+  const tenderId = (await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' })).id;
+  const split = (await buyer.get(`/api/tenders/${tenderId}/scenarios`)).body.find((s: { builtIn: string }) => s.builtIn === 'split');
+  const queued = await buyer.post(`/api/scenarios/${split.id}/runs`);
+  const run = await waitForRun(buyer, queued.body.id);
+  expect((await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: run.id, justification: 'Least cost.' })).status).toBe(201);
+  expect((await compliance.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: '' })).status).toBe(200);
+  return { tenderId, run, buyer };
+}
+
+async function waitForStatus(t: TestApp, tenderId: string, status: string, ms = 60_000): Promise<void> {
+  const deadline = Date.now() + ms;
+  while ((await t.em().findOneOrFail(Tender, { id: tenderId })).status !== status) {
+    if (Date.now() > deadline) throw new Error(`tender not ${status} after ${ms} ms`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+}
+
+describe('with the mail server up', () => {
+  let t: TestApp;
+  let tenderId: string;
+  let run: RunView;
+  let buyer: Browser;
+  beforeAll(async () => {
+    t = await startTestApp();
+    ({ tenderId, run, buyer } = await approvedAward(t));
+  });
+  afterAll(() => t.close());
+
+  test('the preview has an award letter per awarded vendor and a regret letter per other bidder; the figures match the approved run', async () => {
+    const res = await buyer.get(`/api/tenders/${tenderId}/notices/preview`);
+    expect(res.status).toBe(200);
+    const letters = res.body as { vendor: { id: string }; kind: string; html: string; text: string }[];
+    expect(letters).toHaveLength(7);
+    const awards = run.result!.awards;
+    expect(letters.filter((l) => l.kind === 'award').map((l) => l.vendor.id).sort()).toEqual(awards.map((a) => a.vendor).sort());
+    const eur = new Intl.NumberFormat('en-GB', { style: 'currency', currency: 'EUR' });
+    for (const a of awards) {
+      const letter = letters.find((l) => l.vendor.id === a.vendor)!;
+      // The lines add up to the contract value (fee + Σ quantity × unit price), which the letter states.
+      const sum = a.fixedFee + a.lines.reduce((s, l) => s + l.quantity * l.unitPrice, 0);
+      expect(sum).toBeCloseTo(a.value, 6);
+      expect(letter.text).toContain(`Contract value: ${eur.format(a.value)}`);
+      for (const l of a.lines) expect(letter.text).toContain(`= ${eur.format(l.cost)}`);
+    }
+    // A regret letter names its own rank and the awarded total, never another vendor's prices.
+    const allPrices = awards.flatMap((a) => a.lines.map((l) => new Intl.NumberFormat('en-GB', { style: 'currency', currency: 'EUR', maximumFractionDigits: 4 }).format(l.unitPrice)));
+    for (const regret of letters.filter((l) => l.kind === 'regret')) {
+      expect(regret.text).toMatch(/ranked \d+(st|nd|rd|th) of 7/);
+      expect(regret.text).toContain(eur.format(run.result!.objective!));
+      for (const p of allPrices) expect(regret.text).not.toContain(`at ${p}`);
+    }
+    expect(await t.em().count(Notice, {})).toBe(0);
+  });
+
+  test('sending queues one notice per bidder, the mail really arrives, and sending twice never duplicates', async () => {
+    const first = await buyer.post(`/api/tenders/${tenderId}/notices`);
+    expect(first.status).toBe(202);
+    expect(first.body).toEqual({ queued: 7 });
+    expect((await buyer.post(`/api/tenders/${tenderId}/notices`)).body).toEqual({ queued: 0 });
+    await waitForStatus(t, tenderId, 'notified');
+    const notices = await t.em().find(Notice, { tender: tenderId });
+    expect(notices.map((n) => n.status)).toEqual(Array(7).fill('sent'));
+    const mails = await t.em().find(MailMessage, { subject: { $like: '%NHP-2026-014%' } }, { populate: ['raw'] });
+    expect(mails).toHaveLength(7);
+    const parsed = await simpleParser(mails.find((m) => m.subject.startsWith('Notice of award'))!.raw);
+    expect(parsed.text).toContain('Standstill period');
+    expect(parsed.html).toContain('Contract value');
+  });
+
+  test('a vendor reads only its own notice', async () => {
+    const vendor = await demo(t, 'vendor1');
+    const list = await vendor.get('/api/notices');
+    expect(list.status).toBe(200);
+    expect(list.body).toHaveLength(1);
+    const one = await vendor.get(`/api/notices/${list.body[0].id}`);
+    expect(one.body.html).toContain('NHP-2026-014');
+    const others = await t.em().find(Notice, { vendorOrganisation: { $ne: list.body[0].vendor.id } });
+    expect((await vendor.get(`/api/notices/${others[0]!.id}`)).status).toBe(404);
+    const buyerList = await buyer.get('/api/notices').query({ tenderId });
+    expect(buyerList.body).toHaveLength(7);
+  });
+
+  test('the award schedule of the approved run downloads as a workbook', async () => {
+    const res = await buyer.get(`/api/tenders/${tenderId}/award-schedule.xlsx`);
+    expect(res.status).toBe(200);
+    expect(res.headers['content-disposition']).toMatch(/award-schedule\.xlsx/);
+  });
+});
+
+test('with the mail server down, notices stay queued and go out when it returns', async () => {
+  const t = await startTestApp();
+  try {
+    const { tenderId, buyer } = await approvedAward(t);
+    const port = t.catcher.port;
+    await t.catcher.close();
+    expect((await buyer.post(`/api/tenders/${tenderId}/notices`)).body).toEqual({ queued: 7 });
+    // Wait until every notice has failed at least once.
+    for (let i = 0; i < 120; i++) {
+      const notices = await t.em().find(Notice, { tender: tenderId });
+      if (notices.every((n) => n.attempts > 0)) break;
+      await new Promise((r) => setTimeout(r, 250));
+    }
+    const waiting = await t.em().find(Notice, { tender: tenderId });
+    expect(waiting.map((n) => n.status)).toEqual(Array(7).fill('queued'));
+    expect(waiting.every((n) => n.attempts > 0 && n.lastError)).toBe(true);
+    expect((await t.em().findOneOrFail(Tender, { id: tenderId })).status).toBe('awarded');
+    const back = await startMailCatcher(t.orm, port);
+    try {
+      await waitForStatus(t, tenderId, 'notified');
+      expect(await t.em().count(MailMessage, {})).toBeGreaterThanOrEqual(7);
+    } finally {
+      await back.close();
+    }
+  } finally {
+    t.catcher.close = async () => undefined; // already closed above
+    await t.close();
+  }
+});
