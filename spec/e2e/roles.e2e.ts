@@ -2,10 +2,10 @@ import { baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './s
 
 /** A new user's first minutes: sign in as each role, see that role's navigation, sign out. */
 const ROLES = [
-  { email: 'admin@demo.tendara.test', role: 'Administrator', nav: ['Overview', 'People', 'Outbox'] },
-  { email: 'buyer@demo.tendara.test', role: 'Buyer', nav: ['Overview'] },
-  { email: 'compliance@demo.tendara.test', role: 'Compliance officer', nav: ['Overview'] },
-  { email: 'vendor1@demo.tendara.test', role: 'Vendor', nav: ['Overview'] },
+  { email: 'admin@demo.tendara.test', role: 'Administrator', nav: ['Overview', 'Tenders', 'Notices', 'People', 'Outbox'] },
+  { email: 'buyer@demo.tendara.test', role: 'Buyer', nav: ['Overview', 'Tenders', 'Notices'] },
+  { email: 'compliance@demo.tendara.test', role: 'Compliance officer', nav: ['Overview', 'Tenders', 'Notices'] },
+  { email: 'vendor1@demo.tendara.test', role: 'Vendor', nav: ['Overview', 'My tenders', 'Notices'] },
 ];
 
 let b: Awaited<ReturnType<typeof openBrowser>>;

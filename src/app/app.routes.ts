@@ -32,6 +32,27 @@ export const routes: Routes = [
         canActivate: [roleGuard(['admin'])],
         loadChildren: () => import('./people/people.routes').then((m) => m.PEOPLE_ROUTES),
       },
+      // Deeper tender pages owned by other areas come before 'tenders', which would match them first.
+      {
+        path: 'tenders/:id/evaluation',
+        canActivate: [roleGuard(['buyer', 'compliance'])],
+        loadChildren: () => import('./awards/awards.routes').then((m) => m.AWARD_ROUTES),
+      },
+      {
+        path: 'tenders/:id/notices',
+        canActivate: [roleGuard(['buyer'])],
+        loadChildren: () => import('./notices/notices.routes').then((m) => m.NOTICE_SENDER_ROUTES),
+      },
+      {
+        path: 'tenders',
+        canActivate: [roleGuard(['admin', 'buyer', 'compliance', 'vendor'])],
+        loadChildren: () => import('./tenders/tenders.routes').then((m) => m.TENDERS_ROUTES),
+      },
+      {
+        path: 'notices',
+        canActivate: [roleGuard(['admin', 'buyer', 'compliance', 'vendor'])],
+        loadChildren: () => import('./notices/notices.routes').then((m) => m.NOTICE_ROUTES),
+      },
       {
         path: 'outbox',
         canActivate: [roleGuard(['admin'])],

@@ -17,6 +17,10 @@ export interface NavItem {
  */
 export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Overview', icon: 'space_dashboard', link: '/', roles: ROLES, exact: true },
+  { label: 'Tenders', icon: 'request_quote', link: '/tenders', roles: ['admin', 'buyer', 'compliance'] },
+  // Vendors see only the tenders they are invited to, so the label says whose they are.
+  { label: 'My tenders', icon: 'request_quote', link: '/tenders', roles: ['vendor'] },
+  { label: 'Notices', icon: 'mark_email_unread', link: '/notices', roles: ['admin', 'buyer', 'compliance', 'vendor'] },
   { label: 'People', icon: 'group', link: '/people', roles: ['admin'] },
   { label: 'Outbox', icon: 'outbox', link: '/outbox', roles: ['admin'] },
 ];

@@ -1,0 +1,80 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatTableModule } from '@angular/material/table';
+import { MatTooltipModule } from '@angular/material/tooltip';
+import { RouterLink } from '@angular/router';
+import type { AuditVerification } from '@shared/evaluation';
+import { ROLE_LABELS, type Role } from '@shared/roles';
+import { ApiError } from '../../core/http/api-error';
+import { AwardApi } from '../award-api';
+import { localDateTime, shortDigest } from '../award-format';
+
+/** tenders/:id/evaluation/audit — every state change and decision, hash-chained, with a check of the chain. */
+@Component({
+  selector: 'app-audit-trail',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [RouterLink, MatTableModule, MatButtonModule, MatIconModule, MatProgressBarModule, MatTooltipModule],
+  templateUrl: './audit-trail.html',
+  styleUrl: './audit-trail.scss',
+})
+export class AuditTrail {
+  private readonly api = inject(AwardApi);
+  private readonly destroyRef = inject(DestroyRef);
+
+  readonly id = input.required<string>();
+
+  protected readonly entries = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.audit(params) });
+  protected readonly loadError = computed(() => {
+    const error = this.entries.error();
+    if (!error) return null;
+    const cause = error instanceof ApiError ? error : (error as { cause?: unknown }).cause;
+    return cause instanceof ApiError ? cause.userMessage : 'The audit trail could not be loaded.';
+  });
+  protected readonly columns = ['seq', 'at', 'actor', 'action', 'subject', 'digests'];
+  protected readonly verification = signal<AuditVerification | null>(null);
+  protected readonly verifyError = signal<string | null>(null);
+  protected readonly verifying = signal(false);
+  /** What the live region says; set once per check so it is announced once. */
+  protected readonly announcement = computed(() => {
+    if (this.verifying()) return 'Checking the chain…';
+    const error = this.verifyError();
+    if (error) return error;
+    const v = this.verification();
+    if (!v) return '';
+    return v.ok
+      ? `Chain intact: all ${v.entries} entries check out. ${v.message}`
+      : `Chain broken${v.brokenAt !== null ? ` at entry ${v.brokenAt}` : ''}. ${v.message}`;
+  });
+  protected readonly when = localDateTime;
+  protected readonly short = shortDigest;
+
+  protected csvUrl(): string {
+    return this.api.auditCsvUrl(this.id());
+  }
+
+  protected roleLabel(role: string): string {
+    return ROLE_LABELS[role as Role] ?? role;
+  }
+
+  protected verify(): void {
+    this.verifying.set(true);
+    this.verifyError.set(null);
+    this.verification.set(null);
+    this.api
+      .verifyAudit(this.id())
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (result) => {
+          this.verification.set(result);
+          this.verifying.set(false);
+        },
+        error: (error: unknown) => {
+          this.verifyError.set(error instanceof ApiError ? error.userMessage : 'The chain could not be checked.');
+          this.verifying.set(false);
+        },
+      });
+  }
+}

@@ -1,0 +1,116 @@
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { provideRouter } from '@angular/router';
+import type { RecommendationView } from '@shared/evaluation';
+import { provideApi } from '../../core/http/provide-api';
+import { AWARD_CAUTION } from '../award-caution';
+import { RUN_ID, TENDER_ID, answerWhenAsked, runView, signInAs } from '../testing/award-fixtures';
+import { RecommendationPanel } from './recommendation-panel';
+
+const base = `/api/tenders/${TENDER_ID}/recommendation`;
+
+const recommended: RecommendationView = {
+  id: 'e1e1e1e1-0000-4000-8000-000000000001',
+  tenderId: TENDER_ID,
+  runId: RUN_ID,
+  status: 'recommended',
+  justification: 'Least cost with two depots sole-awarded, as the winter plan asks.',
+  recommendedBy: { id: 'user-buyer', name: 'Mira Okonjo' },
+  recommendedAt: '2026-12-01T10:00:00Z',
+  decidedBy: null,
+  decidedAt: null,
+  comment: null,
+};
+
+describe('RecommendationPanel', () => {
+  let http: HttpTestingController;
+  let fixture: ComponentFixture<RecommendationPanel>;
+
+  async function open(role: 'buyer' | 'compliance', recommendation: RecommendationView | null): Promise<HTMLElement> {
+    TestBed.configureTestingModule({
+      imports: [RecommendationPanel],
+      providers: [provideApi(), provideHttpClientTesting(), provideRouter([])],
+    });
+    http = TestBed.inject(HttpTestingController);
+    await signInAs(role);
+    fixture = TestBed.createComponent(RecommendationPanel);
+    fixture.componentRef.setInput('id', TENDER_ID);
+    fixture.detectChanges();
+    http.expectOne(base).flush({ recommendation });
+    if (recommendation) await answerWhenAsked(`/api/runs/${recommendation.runId}`, runView(), () => fixture.detectChanges());
+    await fixture.whenStable();
+    return fixture.nativeElement as HTMLElement;
+  }
+
+  function button(page: HTMLElement, text: string): HTMLButtonElement {
+    return [...page.querySelectorAll('button')].find((b) => b.textContent!.includes(text))!;
+  }
+
+  function typeComment(page: HTMLElement, text: string): void {
+    const area = page.querySelector('textarea')!;
+    area.value = text;
+    area.dispatchEvent(new Event('input'));
+  }
+
+  afterEach(() => http.verify());
+
+  it('shows the recommendation, its state and the caution', async () => {
+    const page = await open('buyer', recommended);
+    expect(page.querySelector('h2')!.textContent).toContain('All regions split');
+    expect(page.querySelector('h2')!.textContent).toContain('Awaiting compliance decision');
+    expect(page.textContent).toContain(recommended.justification);
+    expect(page.textContent).toContain(AWARD_CAUTION);
+    // Buyers cannot decide.
+    expect(button(page, 'Approve award')).toBeUndefined();
+  });
+
+  it('shows the four-eyes refusal when the approver is the person who recommended', async () => {
+    const page = await open('compliance', recommended);
+    button(page, 'Approve award').click();
+    http.expectOne({ method: 'POST', url: `${base}/approve` }).flush(
+      {
+        type: 'https://tendara.test/problems/forbidden',
+        title: 'Forbidden',
+        status: 403,
+        detail: 'You recommended this award, so someone else must approve it.',
+      },
+      { status: 403, statusText: 'Forbidden' },
+    );
+    await fixture.whenStable();
+
+    const alert = page.querySelector('.form-error[role=alert]')!;
+    expect(alert.textContent).toContain('You recommended this award, so someone else must approve it.');
+    expect(page.querySelector('h2')!.textContent).toContain('Awaiting compliance decision');
+  });
+
+  it('will not return a recommendation without a comment, then returns it with one', async () => {
+    const page = await open('compliance', recommended);
+    button(page, 'Return to buyer').click();
+    await fixture.whenStable();
+    http.expectNone(`${base}/return`);
+    expect(page.textContent).toContain('Comment is required.');
+
+    typeComment(page, 'Please add the resilience check to the justification.');
+    button(page, 'Return to buyer').click();
+    const request = http.expectOne({ method: 'POST', url: `${base}/return` });
+    expect(request.request.body).toEqual({ comment: 'Please add the resilience check to the justification.' });
+    request.flush({
+      ...recommended,
+      status: 'returned',
+      decidedBy: { id: 'user-compliance', name: 'Alba Quennell' },
+      decidedAt: '2026-12-01T11:00:00Z',
+      comment: 'Please add the resilience check to the justification.',
+    });
+    await fixture.whenStable();
+
+    expect(page.querySelector('h2')!.textContent).toContain('Returned to the buyer');
+    expect(page.textContent).toContain('Returned by');
+    expect(page.querySelector('[role=status]')!.textContent).toContain('Returned to the buyer with your comment.');
+    expect(button(page, 'Approve award')).toBeUndefined();
+  });
+
+  it('says how a recommendation is made when there is none', async () => {
+    const page = await open('compliance', null);
+    expect(page.textContent).toContain('No award has been recommended yet.');
+  });
+});

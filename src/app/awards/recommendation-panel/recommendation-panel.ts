@@ -1,0 +1,120 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { FormControl, ReactiveFormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import { decisionInputSchema, returnInputSchema, type RecommendationView } from '@shared/evaluation';
+import { of } from 'rxjs';
+import { Auth } from '../../core/auth/auth';
+import { ApiError } from '../../core/http/api-error';
+import { AwardApi } from '../award-api';
+import { AwardCaution } from '../award-caution';
+import { localDateTime, money } from '../award-format';
+import { RECOMMENDATION_STATUS_LABELS } from '../run-status';
+
+function message(error: unknown, fallback: string): string {
+  const cause = error instanceof ApiError ? error : (error as { cause?: unknown } | undefined)?.cause;
+  return cause instanceof ApiError ? cause.userMessage : fallback;
+}
+
+/** tenders/:id/evaluation/recommendation — the recommended award and the compliance decision on it. */
+@Component({
+  selector: 'app-recommendation-panel',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    RouterLink,
+    ReactiveFormsModule,
+    MatButtonModule,
+    MatFormFieldModule,
+    MatIconModule,
+    MatInputModule,
+    MatProgressBarModule,
+    AwardCaution,
+  ],
+  templateUrl: './recommendation-panel.html',
+  styleUrl: './recommendation-panel.scss',
+})
+export class RecommendationPanel {
+  private readonly api = inject(AwardApi);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly auth = inject(Auth);
+
+  readonly id = input.required<string>();
+
+  private readonly loaded = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.recommendation(params) });
+  /** Replaced by the answer of a decision, so the page shows the new state without a reload. */
+  protected readonly recommendation = computed<RecommendationView | null>(
+    () => this.decided() ?? this.loaded.value() ?? null,
+  );
+  private readonly decided = signal<RecommendationView | null>(null);
+  protected readonly loading = this.loaded.isLoading;
+  protected readonly loadError = computed(() =>
+    this.loaded.error() ? message(this.loaded.error(), 'The recommendation could not be loaded.') : null,
+  );
+  /** A computed of its own: a resource reloads whenever its params function re-runs, equal value or not. */
+  private readonly runId = computed(() => this.recommendation()?.runId);
+  protected readonly run = rxResource({
+    params: () => this.runId(),
+    stream: ({ params }) => (params ? this.api.run(params) : of(null)),
+  });
+  protected readonly total = computed(() => {
+    const run = this.run.value();
+    return run?.objective != null ? money(run.objective, run.currency) : null;
+  });
+
+  protected readonly isCompliance = computed(() => this.auth.user()?.role === 'compliance');
+  protected readonly canDecide = computed(() => this.isCompliance() && this.recommendation()?.status === 'recommended');
+  protected readonly comment = new FormControl('', { nonNullable: true });
+  protected readonly commentError = signal<string | null>(null);
+  protected readonly failure = signal<string | null>(null);
+  protected readonly done = signal('');
+  protected readonly busy = signal(false);
+  protected readonly statusLabel = RECOMMENDATION_STATUS_LABELS;
+  protected readonly when = localDateTime;
+
+  protected approve(): void {
+    const parsed = decisionInputSchema.safeParse({ comment: this.comment.value });
+    if (!parsed.success) {
+      this.commentError.set(parsed.error.issues[0]?.message ?? 'Not valid.');
+      return;
+    }
+    this.decide('approve', parsed.data.comment);
+  }
+
+  protected sendBack(): void {
+    const parsed = returnInputSchema.safeParse({ comment: this.comment.value });
+    if (!parsed.success) {
+      this.commentError.set(parsed.error.issues[0]?.message ?? 'Not valid.');
+      return;
+    }
+    this.decide('return', parsed.data.comment);
+  }
+
+  private decide(action: 'approve' | 'return', comment: string): void {
+    if (this.busy()) return;
+    this.busy.set(true);
+    this.commentError.set(null);
+    this.failure.set(null);
+    const call = action === 'approve' ? this.api.approve(this.id(), comment) : this.api.returnRecommendation(this.id(), comment);
+    call.pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
+      next: (updated) => {
+        this.busy.set(false);
+        this.decided.set(updated);
+        this.comment.reset();
+        this.done.set(action === 'approve' ? 'Approved: the tender is now awarded.' : 'Returned to the buyer with your comment.');
+      },
+      error: (error: unknown) => {
+        this.busy.set(false);
+        if (error instanceof ApiError) {
+          const field = error.fieldErrors.find((e) => e.field === 'comment');
+          if (field) this.commentError.set(field.message);
+        }
+        this.failure.set(message(error, 'The decision could not be recorded.'));
+      },
+    });
+  }
+}

@@ -1,0 +1,85 @@
+import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import type { ComparedRun, Comparison } from '@shared/evaluation';
+import { of } from 'rxjs';
+import { ApiError } from '../../core/http/api-error';
+import { AwardApi } from '../award-api';
+import { AwardCaution } from '../award-caution';
+import { fractionPercent, money, percent } from '../award-format';
+import { RUN_STATUS_LABELS } from '../run-status';
+
+/** One line of the side-by-side table: a measure, written for each run. */
+interface Measure {
+  label: string;
+  cell: (run: ComparedRun, comparison: Comparison) => string;
+}
+
+function signedMoney(value: number, currency: string): string {
+  return `${value > 0 ? '+' : ''}${money(value, currency)}`;
+}
+
+const MEASURES: readonly Measure[] = [
+  { label: 'Status', cell: (run) => RUN_STATUS_LABELS[run.status] },
+  { label: 'Total cost', cell: (run, c) => (run.objective === null ? '—' : money(run.objective, c.currency)) },
+  { label: 'Fixed fees', cell: (run, c) => (run.fixedCost === null ? '—' : money(run.fixedCost, c.currency)) },
+  { label: 'Unit prices × quantities', cell: (run, c) => (run.variableCost === null ? '—' : money(run.variableCost, c.currency)) },
+  { label: 'Vendors awarded', cell: (run) => String(run.vendorsAwarded) },
+  { label: 'Largest vendor share', cell: (run) => (run.largestShare === null ? '—' : fractionPercent(run.largestShare)) },
+  { label: 'Regions split', cell: (run) => String(run.regionsSplit) },
+  {
+    label: 'Price over the split baseline',
+    cell: (run, c) => {
+      if (c.baseline?.runId === run.runId) return 'Baseline';
+      if (run.priceOverSplit === null) return '—';
+      const pct = run.priceOverSplitPercent === null ? '' : ` (${run.priceOverSplitPercent > 0 ? '+' : ''}${percent(run.priceOverSplitPercent)})`;
+      return `${signedMoney(run.priceOverSplit, c.currency)}${pct}`;
+    },
+  },
+];
+
+/** tenders/:id/evaluation/compare?runs=a,b — runs side by side, and what sole award costs. */
+@Component({
+  selector: 'app-run-compare',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, AwardCaution],
+  templateUrl: './run-compare.html',
+  styleUrl: './run-compare.scss',
+})
+export class RunCompare {
+  private readonly api = inject(AwardApi);
+
+  /** The tender id (route) and the compared run ids (query `runs`, comma-separated). */
+  readonly id = input.required<string>();
+  readonly runs = input<string | undefined>(undefined);
+
+  private readonly runIds = computed(() =>
+    (this.runs() ?? '')
+      .split(',')
+      .map((s) => s.trim())
+      .filter(Boolean),
+  );
+  protected readonly comparison = rxResource({
+    params: () => ({ tenderId: this.id(), runIds: this.runIds() }),
+    stream: ({ params }) => (params.runIds.length < 2 ? of(null) : this.api.compare(params.tenderId, params.runIds)),
+  });
+  protected readonly tooFew = computed(() => this.runIds().length < 2);
+  protected readonly error = computed(() => {
+    const error = this.comparison.error();
+    if (!error) return null;
+    const cause = (error as { cause?: unknown }).cause ?? error;
+    return cause instanceof ApiError ? cause.userMessage : 'The comparison could not be loaded.';
+  });
+  protected readonly measures = MEASURES;
+  protected readonly soleCost = computed(() => {
+    const c = this.comparison.value();
+    if (!c?.costOfSoleAward) return null;
+    return {
+      amount: money(c.costOfSoleAward.amount, c.currency),
+      percent: percent(c.costOfSoleAward.percent),
+    };
+  });
+}

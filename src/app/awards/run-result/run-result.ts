@@ -1,0 +1,212 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
+import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatTableModule } from '@angular/material/table';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
+import type { RecommendationView, RunView } from '@shared/evaluation';
+import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
+import { Auth } from '../../core/auth/auth';
+import { ApiError } from '../../core/http/api-error';
+import { AllocationMatrix, type MatrixRegion } from '../allocation-matrix/allocation-matrix';
+import { AwardApi } from '../award-api';
+import { AwardCaution } from '../award-caution';
+import { fractionPercent, money, quantity } from '../award-format';
+import { RecommendDialog, type RecommendDialogData } from '../recommend-dialog/recommend-dialog';
+import { RUN_STATUS_LABELS, hasAward, isFinished } from '../run-status';
+import { ShareChart, type ChartItem } from '../share-chart/share-chart';
+
+/** How often an unfinished run is asked for again. */
+export const RUN_POLL_MS = 1000;
+
+/** tenders/:id/evaluation/runs/:runId — a run's live state, then its award. */
+@Component({
+  selector: 'app-run-result',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    RouterLink,
+    MatButtonModule,
+    MatIconModule,
+    MatProgressBarModule,
+    MatTableModule,
+    AllocationMatrix,
+    AwardCaution,
+    ShareChart,
+  ],
+  templateUrl: './run-result.html',
+  styleUrl: './run-result.scss',
+})
+export class RunResult {
+  private readonly api = inject(AwardApi);
+  private readonly dialog = inject(MatDialog);
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
+  private readonly destroyRef = inject(DestroyRef);
+  private readonly auth = inject(Auth);
+
+  /** Tender and run ids, from the route. */
+  readonly id = input.required<string>();
+  readonly runId = input.required<string>();
+
+  protected readonly run = signal<RunView | null>(null);
+  /** The clock of the last answer, so the progress bar moves with each poll. */
+  private readonly now = signal(Date.now());
+  protected readonly loadError = signal<string | null>(null);
+  protected readonly actionMessage = signal('');
+  protected readonly cancelling = signal(false);
+  private readonly attempt = signal(0);
+
+  protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
+  protected readonly finished = computed(() => {
+    const run = this.run();
+    return run !== null && isFinished(run.status);
+  });
+  protected readonly result = computed(() => this.run()?.result ?? null);
+  protected readonly awarded = computed(() => {
+    const run = this.run();
+    return run !== null && hasAward(run.status) && run.result !== null;
+  });
+  /** Announced when it changes (aria-live); the elapsed seconds are not, or they would chatter. */
+  protected readonly statusText = computed(() => {
+    const run = this.run();
+    return run ? RUN_STATUS_LABELS[run.status] : 'Loading the run…';
+  });
+  protected readonly elapsedSeconds = computed(() => {
+    const run = this.run();
+    if (!run?.startedAt) return 0;
+    const end = run.finishedAt ? Date.parse(run.finishedAt) : this.now();
+    return Math.max(0, Math.round((end - Date.parse(run.startedAt)) / 1000));
+  });
+  protected readonly progress = computed(() => {
+    const run = this.run();
+    if (!run || run.timeLimitSeconds <= 0) return 0;
+    return Math.min(100, (this.elapsedSeconds() / run.timeLimitSeconds) * 100);
+  });
+
+  protected readonly regions = computed<MatrixRegion[]>(() =>
+    Object.entries(this.run()?.regions ?? {}).map(([code, r]) => ({ code, name: r.name, forecast: r.forecast })),
+  );
+  protected readonly vendorRows = computed(() => {
+    const run = this.run();
+    const result = run?.result;
+    if (!run || !result) return [];
+    return result.awards.map((award) => ({
+      vendor: run.vendors[award.vendor]?.name ?? award.vendor,
+      sme: run.vendors[award.vendor]?.sme ?? false,
+      regions: award.lines.filter((l) => l.quantity > 0).map((l) => run.regions[l.region]?.name ?? l.region),
+      quantity: `${quantity(award.quantity)} ${run.unit}`,
+      fixedFee: this.money(award.fixedFee),
+      value: this.money(award.value),
+      share: fractionPercent(award.share),
+    }));
+  });
+  protected readonly vendorColumns = ['vendor', 'regions', 'quantity', 'fixedFee', 'value', 'share'];
+  protected readonly costItems = computed<ChartItem[]>(() => {
+    const result = this.result();
+    if (!result || result.fixedCost === null || result.variableCost === null) return [];
+    return [
+      { label: 'Fixed fees', value: result.fixedCost, text: this.money(result.fixedCost) },
+      { label: 'Unit prices × quantities', value: result.variableCost, text: this.money(result.variableCost) },
+    ];
+  });
+  protected readonly shareItems = computed<ChartItem[]>(() => {
+    const run = this.run();
+    return (run?.result?.awards ?? []).map((award) => ({
+      label: run?.vendors[award.vendor]?.name ?? award.vendor,
+      value: Math.round(award.share * 1000) / 10,
+      text: fractionPercent(award.share),
+    }));
+  });
+  protected readonly droppedVendorName = computed(() => {
+    const run = this.run();
+    return run?.droppedVendor ? (run.vendors[run.droppedVendor]?.name ?? run.droppedVendor) : null;
+  });
+
+  constructor() {
+    // Ask at once, then every second until the run has finished; a new run id or "Try again"
+    // starts over, and leaving the page ends it.
+    toObservable(computed(() => ({ runId: this.runId(), attempt: this.attempt() })))
+      .pipe(
+        switchMap(({ runId }) =>
+          timer(0, RUN_POLL_MS).pipe(
+            // exhaustMap: a slow answer is waited for rather than cancelled by the next tick.
+            exhaustMap(() => this.api.run(runId)),
+            takeWhile((run) => !isFinished(run.status), true),
+            catchError((error: unknown) => {
+              this.loadError.set(error instanceof ApiError ? error.userMessage : 'The run could not be loaded.');
+              return of(null);
+            }),
+          ),
+        ),
+        takeUntilDestroyed(),
+      )
+      .subscribe((run) => {
+        if (!run) return;
+        this.now.set(Date.now());
+        this.run.set(run);
+      });
+  }
+
+  protected money(value: number | null): string {
+    return value === null ? '—' : money(value, this.run()?.currency ?? 'EUR');
+  }
+
+  protected exportUrl(): string {
+    return this.api.exportUrl(this.runId());
+  }
+
+  protected percentOf(fraction: number | null): string {
+    return fraction === null ? '—' : fractionPercent(fraction, 2);
+  }
+
+  protected retry(): void {
+    this.loadError.set(null);
+    this.attempt.update((n) => n + 1);
+  }
+
+  protected cancel(): void {
+    this.cancelling.set(true);
+    this.api
+      .cancelRun(this.runId())
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (summary) => {
+          this.cancelling.set(false);
+          this.run.update((run) => (run ? { ...run, ...summary } : run));
+        },
+        error: (error: unknown) => {
+          this.cancelling.set(false);
+          this.actionMessage.set(error instanceof ApiError ? error.userMessage : 'The run could not be cancelled.');
+        },
+      });
+  }
+
+  protected checkResilience(): void {
+    this.api
+      .checkResilience(this.runId())
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: () => void this.router.navigate(['resilience'], { relativeTo: this.route }),
+        error: (error: unknown) =>
+          this.actionMessage.set(error instanceof ApiError ? error.userMessage : 'The resilience check could not be started.'),
+      });
+  }
+
+  protected recommend(): void {
+    const run = this.run();
+    if (!run) return;
+    this.dialog
+      .open<RecommendDialog, RecommendDialogData, RecommendationView>(RecommendDialog, {
+        data: { tenderId: this.id(), runId: run.id, scenarioName: run.scenarioName, total: this.money(run.objective) },
+        width: '640px',
+        maxWidth: '95vw',
+      })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((recommendation) => {
+        if (recommendation) void this.router.navigate(['../../recommendation'], { relativeTo: this.route });
+      });
+  }
+}

@@ -1,0 +1,113 @@
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { HarnessLoader } from '@angular/cdk/testing';
+import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
+import { MatButtonHarness } from '@angular/material/button/testing';
+import { MatInputHarness } from '@angular/material/input/testing';
+import { MATERIAL_ANIMATIONS } from '@angular/material/core';
+import type { BidView, TenderView } from '@shared/tenders';
+import { provideApi } from '../../core/http/provide-api';
+import { totalAtForecast } from '../bid-total';
+import { BidForm } from './bid-form';
+
+const tender: TenderView = {
+  id: '0d6f4b9e-93a1-4d1f-8a55-1c2f7b3e9a10',
+  reference: 'WCX-2027-001',
+  title: 'Brine for the coastal depots',
+  commodity: 'Brine, 23 %',
+  unit: 'm3',
+  currency: 'EUR',
+  status: 'open',
+  closesAt: new Date(Date.now() + 5 * 86_400_000).toISOString(),
+  regionCount: 2,
+  totalForecast: 700,
+  description: '',
+  standstillDays: 10,
+  publishedAt: '2026-11-01T09:00:00Z',
+  closedAt: null,
+  regions: [
+    { code: 'HVN', name: 'Harrowven depot', forecast: 400 },
+    { code: 'QSL', name: 'Quillstead depot', forecast: 300 },
+  ],
+};
+
+const draft: BidView = {
+  id: 'b1', status: 'draft', fixedFee: 500, capacity: null, prices: { HVN: 12.5 }, revision: 0, version: 3,
+  submittedAt: null, digest: null, updatedAt: '2026-11-02T10:00:00Z', document: null,
+};
+
+describe('totalAtForecast', () => {
+  it('adds the fixed fee to price × forecast over the offered regions only', () => {
+    expect(totalAtForecast(500, { HVN: 12.5, QSL: null }, tender.regions)).toEqual({ total: 500 + 12.5 * 400, offered: 1, quantity: 400 });
+  });
+});
+
+describe('BidForm', () => {
+  let http: HttpTestingController;
+  let loader: HarnessLoader;
+  let fixture: ComponentFixture<BidForm>;
+
+  beforeEach(async () => {
+    TestBed.configureTestingModule({
+      imports: [BidForm],
+      providers: [provideApi(), provideHttpClientTesting(), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
+    });
+    http = TestBed.inject(HttpTestingController);
+    fixture = TestBed.createComponent(BidForm);
+    fixture.componentRef.setInput('tender', tender);
+    loader = TestbedHarnessEnvironment.loader(fixture);
+    fixture.detectChanges();
+    http.expectOne({ method: 'GET', url: `/api/tenders/${tender.id}/bid` }).flush({ bid: draft });
+    await fixture.whenStable();
+  });
+
+  afterEach(() => http.verify());
+
+  function text(): string {
+    return (fixture.nativeElement as HTMLElement).textContent ?? '';
+  }
+
+  it('labels each unit price with its region and keeps the total at the forecast live', async () => {
+    const quill = await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Quillstead depot"]' }));
+    expect(await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Harrowven depot"]' }))).getValue()).toBe('12.5');
+    expect(text()).toContain('€5,500.00');
+    await quill.setValue('10');
+    expect(text()).toContain('€8,500.00');
+    expect(text()).toContain('2 of 2 regions');
+  });
+
+  it('sends the loaded version with the figures, and blank prices are left out', async () => {
+    await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Harrowven depot"]' }))).setValue('');
+    await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Quillstead depot"]' }))).setValue('11.25');
+    await (await loader.getHarness(MatButtonHarness.with({ text: 'Save draft' }))).click();
+    const request = http.expectOne({ method: 'PUT', url: `/api/tenders/${tender.id}/bid` });
+    expect(request.request.body).toEqual({ fixedFee: 500, capacity: null, prices: { QSL: 11.25 }, submit: false, version: 3, documentId: null });
+    request.flush({ ...draft, prices: { QSL: 11.25 }, version: 4 });
+    await fixture.whenStable();
+    expect(fixture.nativeElement.querySelector('[role=status]').textContent).toContain('Draft saved');
+  });
+
+  it('on a 409 says the bid changed elsewhere and offers to reload', async () => {
+    await (await loader.getHarness(MatButtonHarness.with({ text: /Submit bid/ }))).click();
+    http.expectOne({ method: 'PUT', url: `/api/tenders/${tender.id}/bid` }).flush(
+      { type: 'about:blank', title: 'Conflict', status: 409, detail: 'This bid was changed elsewhere (another tab or a colleague) since you loaded it. Reload it to see the current figures; nothing was saved.' },
+      { status: 409, statusText: 'Conflict' },
+    );
+    await fixture.whenStable();
+    expect(text()).toContain('Changed elsewhere — reload');
+    const reloaded = (await loader.getHarness(MatButtonHarness.with({ text: /Reload/ }))).click();
+    for (let i = 0; i < 100 && !http.match({ url: `/api/tenders/${tender.id}/bid` }).some((r) => (r.flush({ bid: { ...draft, version: 5, fixedFee: 750 } }), true)); i++) {
+      await new Promise((resolve) => setTimeout(resolve, 5));
+    }
+    await reloaded;
+    expect(text()).not.toContain('Changed elsewhere');
+    expect(await (await loader.getHarness(MatInputHarness.with({ selector: '[formControlName=fixedFee]' }))).getValue()).toBe('750');
+  });
+
+  it('refuses an invalid price with the shared schema message and sends nothing', async () => {
+    await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Quillstead depot"]' }))).setValue('-3');
+    await (await loader.getHarness(MatButtonHarness.with({ text: /Submit bid/ }))).click();
+    http.expectNone({ method: 'PUT' });
+    expect(text()).toContain('Unit price must be a positive number.');
+  });
+});

@@ -1,0 +1,270 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
+import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { AbstractControl, ReactiveFormsModule } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatCheckboxModule } from '@angular/material/checkbox';
+import { MatDialog } from '@angular/material/dialog';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { bidSaveSchema, type BidView, type TenderView } from '@shared/tenders';
+import { startWith } from 'rxjs';
+import { ApiError, type FieldProblem } from '../../core/http/api-error';
+import { hasClosed, localClosingTime, minuteClock } from '../../tenders/closing-time';
+import { BID_STATUS_LABELS, money, quantity } from '../../tenders/tender-status';
+import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { fieldMessage } from '../../ui/zod-validator';
+import { BidApi } from '../bid-api';
+import { totalAtForecast } from '../bid-total';
+import { bidFigures, bidFormGroup, controlFor, fillBid, syncCap, type BidFormGroup } from './bid-fields';
+
+/** The vendor's bid on one tender: by form or by workbook, saved, submitted, revised or withdrawn. */
+@Component({
+  selector: 'app-bid-form',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule],
+  templateUrl: './bid-form.html',
+  styleUrl: './bid-form.scss',
+})
+export class BidForm {
+  private readonly api = inject(BidApi);
+  private readonly dialog = inject(MatDialog);
+  private readonly destroyRef = inject(DestroyRef);
+
+  readonly tender = input.required<TenderView>();
+  /** The server said bidding has closed: the page reloads the tender. */
+  readonly closed = output<void>();
+
+  protected form: BidFormGroup = bidFormGroup([]);
+  private readonly formValue = signal(0);
+  protected readonly bid = signal<BidView | null>(null);
+  protected readonly loaded = signal(false);
+  protected readonly busy = signal(false);
+  protected readonly status = signal('');
+  protected readonly failure = signal<string | null>(null);
+  protected readonly conflict = signal<string | null>(null);
+  protected readonly uploadErrors = signal<FieldProblem[]>([]);
+  protected readonly uploading = signal(false);
+  /** The workbook the figures on screen came from; sent with the next save, then forgotten. */
+  protected readonly documentId = signal<string | null>(null);
+  protected readonly uploadedName = signal<string | null>(null);
+  private readonly now = minuteClock();
+
+  protected readonly isClosed = computed(() => {
+    const t = this.tender();
+    return t.status !== 'open' || hasClosed(t.closesAt, this.now());
+  });
+  protected readonly live = computed(() => ['submitted', 'revised'].includes(this.bid()?.status ?? ''));
+  protected readonly statusText = computed(() => {
+    const bid = this.bid();
+    return bid ? BID_STATUS_LABELS[bid.status] : 'Not started';
+  });
+  protected readonly submitLabel = computed(() => ((this.bid()?.revision ?? 0) > 0 ? 'Submit revision' : 'Submit bid'));
+  protected readonly total = computed(() => {
+    this.formValue();
+    const t = this.tender();
+    const v = this.form.getRawValue();
+    const sum = totalAtForecast(v.fixedFee, v.prices, t.regions);
+    return { ...sum, text: money(sum.total, t.currency), quantityText: quantity(sum.quantity) };
+  });
+  protected readonly workbookUrl = computed(() => this.api.workbookUrl(this.tender().id));
+  protected readonly closingTime = localClosingTime;
+  protected readonly fieldMessage = fieldMessage;
+  protected readonly quantity = quantity;
+
+  constructor() {
+    // A new tender (or its regions) means a new form; the bid is then loaded into it.
+    effect(() => {
+      const tender = this.tender();
+      untracked(() => this.build(tender));
+    });
+    effect(() => {
+      const closed = this.isClosed();
+      untracked(() => {
+        if (closed) this.form.disable({ emitEvent: false });
+        else if (this.form.disabled) {
+          this.form.enable({ emitEvent: false });
+          syncCap(this.form);
+        }
+      });
+    });
+  }
+
+  private build(tender: TenderView): void {
+    const codes = Object.keys(this.form.controls.prices.controls).join('|');
+    if (this.loaded() && codes === tender.regions.map((r) => r.code).join('|')) {
+      if (this.isClosed()) this.form.disable({ emitEvent: false });
+      return;
+    }
+    this.form = bidFormGroup(tender.regions);
+    this.form.valueChanges.pipe(startWith(null), takeUntilDestroyed(this.destroyRef)).subscribe(() => this.formValue.update((n) => n + 1));
+    this.form.controls.noCap.valueChanges.pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => syncCap(this.form));
+    if (this.isClosed()) this.form.disable({ emitEvent: false });
+    this.reload();
+  }
+
+  protected reload(): void {
+    this.conflict.set(null);
+    this.failure.set(null);
+    this.api
+      .get(this.tender().id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (bid) => {
+          this.bid.set(bid);
+          this.documentId.set(null);
+          this.uploadedName.set(null);
+          if (bid) fillBid(this.form, bid);
+          this.form.markAsPristine();
+          this.loaded.set(true);
+          this.formValue.update((n) => n + 1);
+        },
+        error: (error: unknown) => this.failure.set(error instanceof ApiError ? error.userMessage : 'Your bid could not be loaded.'),
+      });
+  }
+
+  protected priceControl(code: string): AbstractControl {
+    return this.form.controls.prices.controls[code]!;
+  }
+
+  protected lineValue(code: string, forecast: number): string {
+    this.formValue();
+    const price = this.priceControl(code).value;
+    return typeof price === 'number' && price > 0 ? money(price * forecast, this.tender().currency) : '—';
+  }
+
+  protected save(submit: boolean): void {
+    if (this.busy() || this.isClosed()) return;
+    this.failure.set(null);
+    this.conflict.set(null);
+    const body = { ...bidFigures(this.form), submit, version: this.bid()?.version ?? null, documentId: this.documentId() };
+    const parsed = bidSaveSchema.safeParse(body);
+    if (this.form.invalid || !parsed.success) {
+      this.form.markAllAsTouched();
+      const issues = parsed.success ? [] : parsed.error.issues.map((i) => ({ field: i.path.map(String).join('.'), message: i.message }));
+      const unplaced = this.place(issues);
+      this.failure.set(['Nothing was saved: some figures need attention; each is marked below.', ...unplaced].join(' '));
+      this.status.set('Nothing was saved: some figures need attention.');
+      return;
+    }
+    this.busy.set(true);
+    this.api
+      .save(this.tender().id, parsed.data)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (bid) => {
+          this.busy.set(false);
+          this.bid.set(bid);
+          this.documentId.set(null);
+          this.uploadedName.set(null);
+          this.form.markAsPristine();
+          this.status.set(
+            submit
+              ? `Bid submitted: revision ${bid.revision}. Your receipt digest is ${bid.digest}. A receipt e-mail is on its way.`
+              : 'Draft saved. It is not submitted: buyers will not count it until you submit it.',
+          );
+        },
+        error: (error: unknown) => this.refused(error),
+      });
+  }
+
+  protected withdraw(): void {
+    const bid = this.bid();
+    if (!bid || this.busy()) return;
+    this.dialog
+      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, {
+        maxWidth: '95vw',
+        data: {
+          title: 'Withdraw your bid?',
+          message: `Your bid on ${this.tender().reference} will no longer be considered. You can submit a new one until the closing time (${localClosingTime(this.tender().closesAt)}).`,
+          confirm: 'Withdraw bid',
+          destructive: true,
+        },
+      })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((confirmed) => {
+        if (!confirmed) return;
+        this.busy.set(true);
+        this.api
+          .withdraw(this.tender().id, bid.version)
+          .pipe(takeUntilDestroyed(this.destroyRef))
+          .subscribe({
+            next: (withdrawn) => {
+              this.busy.set(false);
+              this.bid.set(withdrawn);
+              this.status.set('Your bid is withdrawn. A receipt e-mail is on its way.');
+            },
+            error: (error: unknown) => this.refused(error),
+          });
+      });
+  }
+
+  protected upload(event: Event): void {
+    const input = event.target as HTMLInputElement;
+    const file = input.files?.[0];
+    input.value = '';
+    if (!file || this.isClosed()) return;
+    this.uploading.set(true);
+    this.uploadErrors.set([]);
+    this.failure.set(null);
+    this.api
+      .upload(this.tender().id, file)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: ({ documentId, bid }) => {
+          this.uploading.set(false);
+          fillBid(this.form, bid);
+          this.form.markAllAsTouched();
+          this.form.markAsDirty();
+          this.documentId.set(documentId);
+          this.uploadedName.set(file.name);
+          this.formValue.update((n) => n + 1);
+          this.status.set(`The figures of ${file.name} are in the form for your review. Nothing is saved or submitted yet.`);
+        },
+        error: (error: unknown) => {
+          this.uploading.set(false);
+          const problem = error instanceof ApiError ? error : null;
+          this.uploadErrors.set(
+            problem?.fieldErrors.length ? [...problem.fieldErrors] : [{ field: 'file', message: problem?.userMessage ?? 'The workbook could not be read.' }],
+          );
+          this.status.set(`${file.name} was not read: the problems are listed.`);
+        },
+      });
+  }
+
+  private refused(error: unknown): void {
+    this.busy.set(false);
+    if (!(error instanceof ApiError)) throw error;
+    if (error.status === 409) {
+      this.conflict.set(error.userMessage);
+      this.status.set(error.userMessage);
+      if (/closed/i.test(error.userMessage)) this.closed.emit();
+      return;
+    }
+    const unplaced = this.place(error.fieldErrors);
+    this.failure.set([error.userMessage, ...unplaced].join(' '));
+    this.status.set(`Not saved: ${error.userMessage}`);
+  }
+
+  /** Marks each problem on its input; returns those with no input of their own. */
+  private place(problems: readonly FieldProblem[]): string[] {
+    const unplaced: string[] = [];
+    for (const problem of problems) {
+      const control = controlFor(this.form, problem.field);
+      if (control) {
+        control.setErrors({ ...control.errors, server: problem.message });
+        control.markAsTouched();
+      } else {
+        unplaced.push(problem.message);
+      }
+    }
+    return unplaced;
+  }
+
+  protected submittedAt(iso: string): string {
+    return new Intl.DateTimeFormat(undefined, {
+      day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', second: '2-digit', timeZoneName: 'short',
+    }).format(new Date(iso));
+  }
+}

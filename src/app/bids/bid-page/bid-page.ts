@@ -1,0 +1,53 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { Title } from '@angular/platform-browser';
+import { RouterLink } from '@angular/router';
+import { ApiError } from '../../core/http/api-error';
+import { PRODUCT_NAME } from '../../core/page-title';
+import { localClosingTime, minuteClock, timeLeft } from '../../tenders/closing-time';
+import { RegionTable } from '../../tenders/region-table/region-table';
+import { TenderApi } from '../../tenders/tender-api';
+import { TENDER_STATUS_LABELS } from '../../tenders/tender-status';
+import { BidForm } from '../bid-form/bid-form';
+
+/** /tenders/:id for a vendor: the tender it is invited to, and its own bid. */
+@Component({
+  selector: 'app-bid-page',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm],
+  templateUrl: './bid-page.html',
+  styleUrl: './bid-page.scss',
+})
+export class BidPage {
+  private readonly api = inject(TenderApi);
+  private readonly title = inject(Title);
+
+  readonly id = input.required<string>();
+
+  protected readonly tender = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.get(params) });
+  protected readonly loadError = computed(() => {
+    const error = this.tender.error();
+    if (!error) return null;
+    return error instanceof ApiError ? error.userMessage : 'The tender could not be loaded.';
+  });
+  protected readonly now = minuteClock();
+  protected readonly timeLeft = computed(() => {
+    const t = this.tender.value();
+    return t ? timeLeft(t.closesAt, this.now()) : '';
+  });
+  protected readonly statusLabel = TENDER_STATUS_LABELS;
+  protected readonly closingTime = localClosingTime;
+
+  constructor() {
+    effect(() => {
+      const t = this.tender.value();
+      if (t) this.title.setTitle(`Your bid on ${t.reference} · ${PRODUCT_NAME}`);
+    });
+  }
+
+  protected reloadTender(): void {
+    this.tender.reload();
+  }
+}

@@ -1,0 +1,51 @@
+import { DOCUMENT, DatePipe } from '@angular/common';
+import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { RouterLink } from '@angular/router';
+import { Auth } from '../../core/auth/auth';
+import { ApiError } from '../../core/http/api-error';
+import { LetterFrame } from '../letter-frame/letter-frame';
+import { LetterPrint } from '../letter-print/letter-print';
+import { NoticeApi } from '../notice-api';
+import { NOTICE_KIND_LABELS } from '../notice-labels';
+import { NoticeStatusBadge } from '../notice-status-badge';
+
+/**
+ * /notices/:noticeId — one letter. On screen it sits in a sandboxed frame; on paper LetterPrint
+ * gives a sanitised copy of it and hides everything else (see there why not the frame).
+ */
+@Component({
+  selector: 'app-notice-reader',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [DatePipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, LetterFrame, LetterPrint, NoticeStatusBadge],
+  templateUrl: './notice-reader.html',
+  styleUrl: './notice-reader.scss',
+})
+export class NoticeReader {
+  private readonly api = inject(NoticeApi);
+  private readonly auth = inject(Auth);
+  private readonly window = inject(DOCUMENT).defaultView;
+
+  /** Route parameter. */
+  readonly noticeId = input.required<string>();
+
+  protected readonly notice = rxResource({
+    params: () => this.noticeId(),
+    stream: ({ params }) => this.api.get(params),
+  });
+  protected readonly isVendor = computed(() => this.auth.user()?.role === 'vendor');
+  protected readonly kindLabel = NOTICE_KIND_LABELS;
+
+  protected print(): void {
+    this.window?.print();
+  }
+
+  protected problem(): string {
+    const error = this.notice.error();
+    if (error instanceof ApiError && error.status === 404) return 'There is no such notice, or it is not addressed to you.';
+    return error instanceof ApiError ? error.userMessage : 'The notice could not be loaded.';
+  }
+}

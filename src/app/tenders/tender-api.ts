@@ -1,0 +1,75 @@
+import { HttpClient, HttpParams } from '@angular/common/http';
+import { Injectable, inject } from '@angular/core';
+import type { RegionInput } from '@shared/bids';
+import type { VendorOrganisationView } from '@shared/people';
+import type { BidsAnswer, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
+import { Observable } from 'rxjs';
+import { API_BASE_URL } from '../core/http/api-base-url';
+
+/** Buyer, compliance and admin calls about tenders, their invitations and (after closing) their bids. */
+@Injectable({ providedIn: 'root' })
+export class TenderApi {
+  private readonly http = inject(HttpClient);
+  private readonly base = inject(API_BASE_URL);
+
+  list(filter: { status?: TenderStatus | null; q?: string }): Observable<TenderSummary[]> {
+    let params = new HttpParams();
+    if (filter.status) params = params.set('status', filter.status);
+    const q = filter.q?.trim();
+    if (q) params = params.set('q', q);
+    return this.http.get<TenderSummary[]>(`${this.base}/tenders`, { params });
+  }
+
+  get(id: string): Observable<TenderView> {
+    return this.http.get<TenderView>(this.tenderUrl(id));
+  }
+
+  create(tender: TenderInput): Observable<TenderView> {
+    return this.http.post<TenderView>(`${this.base}/tenders`, tender);
+  }
+
+  update(id: string, tender: TenderInput): Observable<TenderView> {
+    return this.http.put<TenderView>(this.tenderUrl(id), tender);
+  }
+
+  /** Reads regions from an .xlsx or .csv; the server stores nothing. */
+  importRegions(file: File): Observable<{ regions: RegionInput[] }> {
+    const body = new FormData();
+    body.append('file', file, file.name);
+    return this.http.post<{ regions: RegionInput[] }>(`${this.base}/tenders/regions/import`, body);
+  }
+
+  organisations(): Observable<VendorOrganisationView[]> {
+    return this.http.get<VendorOrganisationView[]>(`${this.base}/vendor-organisations`);
+  }
+
+  invite(id: string, invitation: InvitationInput): Observable<TenderView> {
+    return this.http.post<TenderView>(`${this.tenderUrl(id)}/invitations`, invitation);
+  }
+
+  removeInvitation(id: string, organisationId: string): Observable<TenderView> {
+    return this.http.delete<TenderView>(`${this.tenderUrl(id)}/invitations/${encodeURIComponent(organisationId)}`);
+  }
+
+  publish(id: string): Observable<TenderView> {
+    return this.http.post<TenderView>(`${this.tenderUrl(id)}/publish`, {});
+  }
+
+  /** Before closing only the count; after closing the bid tabulation. */
+  bids(id: string): Observable<BidsAnswer> {
+    return this.http.get<BidsAnswer>(`${this.tenderUrl(id)}/bids`);
+  }
+
+  /** Plain links (the browser downloads them with the session cookie). */
+  tabulationUrl(id: string): string {
+    return `${this.tenderUrl(id)}/tabulation.xlsx`;
+  }
+
+  documentUrl(id: string, documentId: string): string {
+    return `${this.tenderUrl(id)}/documents/${encodeURIComponent(documentId)}`;
+  }
+
+  private tenderUrl(id: string): string {
+    return `${this.base}/tenders/${encodeURIComponent(id)}`;
+  }
+}

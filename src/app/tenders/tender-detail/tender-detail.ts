@@ -1,0 +1,133 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatDialog } from '@angular/material/dialog';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { Title } from '@angular/platform-browser';
+import { RouterLink } from '@angular/router';
+import type { TenderView } from '@shared/tenders';
+import { Auth } from '../../core/auth/auth';
+import { ApiError, type FieldProblem } from '../../core/http/api-error';
+import { PRODUCT_NAME } from '../../core/page-title';
+import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { BidTabulation } from '../bid-tabulation/bid-tabulation';
+import { hasClosed, localClosingTime, minuteClock, timeLeft } from '../closing-time';
+import { InvitationsPanel } from '../invitations-panel/invitations-panel';
+import { RegionTable } from '../region-table/region-table';
+import { TenderApi } from '../tender-api';
+import { TENDER_STATUS_LABELS } from '../tender-status';
+
+/** /tenders/:id for buyer, compliance and admin: facts, regions, invitations, publishing and bids. */
+@Component({
+  selector: 'app-tender-detail',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation],
+  templateUrl: './tender-detail.html',
+  styleUrl: './tender-detail.scss',
+})
+export class TenderDetail {
+  private readonly api = inject(TenderApi);
+  private readonly dialog = inject(MatDialog);
+  private readonly title = inject(Title);
+  private readonly destroyRef = inject(DestroyRef);
+
+  readonly id = input.required<string>();
+
+  protected readonly tender = signal<TenderView | null>(null);
+  protected readonly loadError = signal<string | null>(null);
+  protected readonly publishProblems = signal<FieldProblem[]>([]);
+  protected readonly publishing = signal(false);
+  protected readonly status = signal('');
+  protected readonly now = minuteClock();
+  private readonly auth = inject(Auth);
+  protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
+  protected readonly statusLabel = TENDER_STATUS_LABELS;
+  protected readonly closingTime = localClosingTime;
+  protected readonly isDraft = computed(() => this.tender()?.status === 'draft');
+  /** Scenarios, runs and the award decision: buyer and compliance, once the bids are unsealed. */
+  protected readonly canEvaluate = computed(() => {
+    const role = this.auth.user()?.role;
+    const status = this.tender()?.status;
+    return (role === 'buyer' || role === 'compliance') && !!status && status !== 'draft' && status !== 'open';
+  });
+  /** Sealed while draft or open (the server decides; a passed closing time is closed at the next load). */
+  protected readonly sealed = computed(() => {
+    const t = this.tender();
+    return !t || t.status === 'draft' || t.status === 'open';
+  });
+  protected readonly timeLeft = computed(() => {
+    const t = this.tender();
+    return t ? timeLeft(t.closesAt, this.now()) : '';
+  });
+  protected readonly pastClosing = computed(() => {
+    const t = this.tender();
+    return !!t && t.status === 'open' && hasClosed(t.closesAt, this.now());
+  });
+
+  constructor() {
+    effect(() => this.load(this.id()));
+  }
+
+  protected load(id: string = this.id()): void {
+    this.loadError.set(null);
+    this.api
+      .get(id)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (tender) => this.show(tender),
+        error: (error: unknown) =>
+          this.loadError.set(error instanceof ApiError ? error.userMessage : 'The tender could not be loaded.'),
+      });
+  }
+
+  protected show(tender: TenderView): void {
+    this.tender.set(tender);
+    this.title.setTitle(`${tender.reference} · ${PRODUCT_NAME}`);
+  }
+
+  protected publish(): void {
+    const tender = this.tender();
+    if (!tender || this.publishing()) return;
+    const invited = tender.invitations?.length ?? 0;
+    this.dialog
+      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, {
+        maxWidth: '95vw',
+        data: {
+          title: `Publish ${tender.reference}?`,
+          message:
+            `Bidding opens at once and ${invited} invited ${invited === 1 ? 'organisation is' : 'organisations are'} e-mailed. ` +
+            `The regions and closing time (${localClosingTime(tender.closesAt)}) can no longer be changed. ` +
+            `Check them against the tender documents and your procurement rules before you publish.`,
+          confirm: 'Publish',
+        },
+      })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((confirmed) => {
+        if (!confirmed) return;
+        this.publishing.set(true);
+        this.publishProblems.set([]);
+        this.api
+          .publish(tender.id)
+          .pipe(takeUntilDestroyed(this.destroyRef))
+          .subscribe({
+            next: (published) => {
+              this.publishing.set(false);
+              this.show(published);
+              this.status.set(`${published.reference} is published; invited vendors are being e-mailed.`);
+            },
+            error: (error: unknown) => {
+              this.publishing.set(false);
+              const problem = error instanceof ApiError ? error : null;
+              this.publishProblems.set(
+                problem?.fieldErrors.length
+                  ? [...problem.fieldErrors]
+                  : [{ field: '', message: problem?.userMessage ?? 'The tender could not be published.' }],
+              );
+              this.status.set('The tender was not published.');
+            },
+          });
+      });
+  }
+}

@@ -1,0 +1,120 @@
+import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, viewChild } from '@angular/core';
+import { rxResource, toObservable, toSignal } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatChipsModule } from '@angular/material/chips';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import { MatSort, MatSortModule } from '@angular/material/sort';
+import { MatTableDataSource, MatTableModule } from '@angular/material/table';
+import { RouterLink } from '@angular/router';
+import { TENDER_STATUSES, type TenderStatus, type TenderSummary } from '@shared/tenders';
+import { debounceTime } from 'rxjs';
+import { Auth } from '../../core/auth/auth';
+import { ApiError } from '../../core/http/api-error';
+import { localClosingTime, minuteClock, timeLeft } from '../closing-time';
+import { TenderApi } from '../tender-api';
+import { BID_STATUS_LABELS, TENDER_STATUS_LABELS, quantity } from '../tender-status';
+
+/** /tenders — every tender the person may see, filtered by status and searched on the server. */
+@Component({
+  selector: 'app-tender-list',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [
+    RouterLink,
+    MatTableModule,
+    MatSortModule,
+    MatChipsModule,
+    MatFormFieldModule,
+    MatInputModule,
+    MatButtonModule,
+    MatIconModule,
+    MatProgressBarModule,
+  ],
+  templateUrl: './tender-list.html',
+  styleUrl: './tender-list.scss',
+})
+export class TenderList {
+  private readonly api = inject(TenderApi);
+  private readonly auth = inject(Auth);
+  private readonly sort = viewChild.required(MatSort);
+
+  protected readonly isVendor = computed(() => this.auth.user()?.role === 'vendor');
+  protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
+  protected readonly heading = computed(() => (this.isVendor() ? 'My tenders' : 'Tenders'));
+  /** Vendors never see drafts, so they are not offered as a filter. */
+  protected readonly statuses = computed(() =>
+    TENDER_STATUSES.filter((s) => !this.isVendor() || s !== 'draft').map((value) => ({ value, label: TENDER_STATUS_LABELS[value] })),
+  );
+  protected readonly status = signal<TenderStatus | null>(null);
+  protected readonly search = signal('');
+  private readonly searchSettled = toSignal(toObservable(this.search).pipe(debounceTime(300)), { initialValue: '' });
+
+  private readonly tenders = rxResource({
+    params: () => ({ status: this.status(), q: this.searchSettled() }),
+    stream: ({ params }) => this.api.list(params),
+  });
+  protected readonly loading = this.tenders.isLoading;
+  protected readonly loadError = computed(() => {
+    const error = this.tenders.error();
+    if (!error) return null;
+    return error instanceof ApiError ? error.userMessage : 'Tenders could not be loaded.';
+  });
+  protected readonly rows = new MatTableDataSource<TenderSummary>([]);
+  protected readonly count = computed(() => this.tenders.value()?.length ?? 0);
+  protected readonly columns = computed(() => [
+    'reference', 'title', 'status', 'closesAt', 'regionCount', 'totalForecast', ...(this.isVendor() ? ['myBidStatus'] : []),
+  ]);
+  protected readonly now = minuteClock();
+  protected readonly quantity = quantity;
+  protected readonly closingTime = localClosingTime;
+
+  constructor() {
+    this.rows.sortingDataAccessor = (t, column) => {
+      switch (column) {
+        case 'closesAt':
+          return new Date(t.closesAt).getTime();
+        case 'regionCount':
+          return t.regionCount;
+        case 'totalForecast':
+          return t.totalForecast;
+        case 'status':
+          return TENDER_STATUSES.indexOf(t.status);
+        default:
+          return String(t[column as 'reference' | 'title'] ?? '').toLocaleLowerCase();
+      }
+    };
+    effect(() => {
+      this.rows.sort = this.sort();
+    });
+    effect(() => {
+      this.rows.data = this.tenders.value() ?? [];
+    });
+  }
+
+  protected timeLeft(t: TenderSummary): string {
+    return timeLeft(t.closesAt, this.now());
+  }
+
+  protected statusText(t: TenderSummary): string {
+    return TENDER_STATUS_LABELS[t.status];
+  }
+
+  protected bidText(t: TenderSummary): string {
+    return t.myBidStatus ? BID_STATUS_LABELS[t.myBidStatus] : 'No bid yet';
+  }
+
+  /** "All" (or unselecting the current chip) clears the filter. */
+  protected filterBy(value: TenderStatus | 'all' | undefined): void {
+    this.status.set(!value || value === 'all' ? null : value);
+  }
+
+  protected onSearch(event: Event): void {
+    this.search.set((event.target as HTMLInputElement).value);
+  }
+
+  protected reload(): void {
+    this.tenders.reload();
+  }
+}
