@@ -56,6 +56,8 @@ export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): An
 /** Builds the Express app; `server/main.ts` starts it, tests drive it with supertest. */
 export function createApp(deps: AppDeps): Express {
   const { config, orm } = deps;
+  if (!config.sessionSecret) throw new Error('SESSION_SECRET must be set (at least 32 characters) to serve the app.');
+  const sessionSecret = config.sessionSecret;
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy ? 1 : false);
@@ -106,7 +108,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(
     session({
       name: SESSION_COOKIE,
-      secret: config.sessionSecret,
+      secret: sessionSecret,
       store: new PgStore({ pool: deps.sessionPool, tableName: 'http_session', createTableIfMissing: false, pruneSessionInterval: 15 * 60 }),
       resave: false,
       saveUninitialized: false,

@@ -14,7 +14,8 @@ const envSchema = z.object({
   /** When set, this process also runs the SMTP catcher on that port (npm start and tests). */
   MAIL_CATCHER_PORT: z.coerce.number().int().min(0).max(65535).optional(),
   MAIL_FROM: z.string().default('Tendara <no-reply@tendara.test>'),
-  SESSION_SECRET: z.string().min(32, { error: 'SESSION_SECRET must be at least 32 characters' }),
+  /** Signs session cookies; the web server needs it, a jobs-only worker does not. */
+  SESSION_SECRET: z.string().min(32, { error: 'SESSION_SECRET must be at least 32 characters' }).optional(),
   /** The address people use to reach the app; used in e-mailed links. */
   PUBLIC_URL: z.url().optional(),
   /** Set to 1 behind a TLS-terminating proxy: cookies become Secure and the proxy's address is trusted. */
@@ -36,7 +37,7 @@ export type Config = {
   smtpUrl: string;
   mailCatcherPort: number | undefined;
   mailFrom: string;
-  sessionSecret: string;
+  sessionSecret: string | undefined;
   publicUrl: string;
   trustProxy: boolean;
   logLevel: string;
