@@ -18,6 +18,7 @@ module.exports = {
       rootDir: __dirname,
       testEnvironment: 'node',
       testMatch: ['<rootDir>/spec/award/**/*.spec.ts'],
+      testTimeout: 120_000,
       transform: serverTransform,
       moduleNameMapper: sharedAlias,
     },
@@ -29,6 +30,8 @@ module.exports = {
       transform: serverTransform,
       moduleNameMapper: sharedAlias,
       setupFiles: ['<rootDir>/spec/support/env.ts'],
+      // Real PostgreSQL, mail and solver workers on a shared 2-core machine: generous limits, no timing asserted.
+      testTimeout: 60_000,
     },
     {
       displayName: 'components',

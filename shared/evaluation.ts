@@ -98,6 +98,7 @@ export interface ComparedRun {
   regionsSplit: number;
   /** objective − the split baseline's objective (null without a feasible baseline). */
   priceOverSplit: number | null;
+  /** A fraction: 0.05 means 5 %. */
   priceOverSplitPercent: number | null;
 }
 
@@ -108,6 +109,7 @@ export interface Comparison {
   /** The plain all-split run used as the baseline (the tender's built-in split scenario, latest finished run). */
   baseline: { runId: string; objective: number } | null;
   /** Cost of sole award: built-in sole − built-in split (never negative). */
+  /** `percent` is a fraction of the split baseline: 0.05 means 5 %. */
   costOfSoleAward: { amount: number; percent: number } | null;
 }
 
@@ -122,6 +124,7 @@ export interface ResilienceView {
     objective: number | null;
     /** objective without the vendor − the run's objective. */
     increase: number | null;
+    /** A fraction of the run's objective: 0.05 means 5 %. */
     increasePercent: number | null;
     diagnosis: string[];
     worst: boolean;

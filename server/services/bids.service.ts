@@ -10,6 +10,7 @@ import { renderMail } from '../mail/templates';
 import { buildBidWorkbook, parseBidWorkbook } from '../workbooks/bid-workbook';
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
+import { audit } from './audit.service';
 import { findVisibleTender } from './tender-access';
 
 export interface BidDeps {
@@ -118,6 +119,11 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       bid.status = 'draft';
       bid.digest = null;
     }
+    await tx.flush();
+    // Sealed: the trail records that a bid changed state and its digest, never its figures or its vendor.
+    if (input.submit) {
+      await audit(tx, { tenderId, actor: null, action: bid.revision > 1 ? 'bid.revised' : 'bid.submitted', subject: `bid ${bid.id}`, detail: { revision: bid.revision, digest: bid.digest } });
+    }
     return bid;
   });
   if (input.submit) await sendReceipt(deps, user, visible, saved, 'submitted');
@@ -136,6 +142,8 @@ export async function withdrawBid(deps: BidDeps, user: User, tenderId: string, v
     if (b.status === 'withdrawn') throw new ConflictError('This bid is already withdrawn.');
     b.status = 'withdrawn';
     b.digest = null;
+    await tx.flush();
+    await audit(tx, { tenderId, actor: null, action: 'bid.withdrawn', subject: `bid ${b.id}`, detail: { revision: b.revision } });
     return b;
   });
   await sendReceipt(deps, user, visible, bid, 'withdrawn');

@@ -8,6 +8,7 @@ import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { createOrganisation, invitePerson } from './people.service';
+import { audit } from './audit.service';
 import { closeIfDue, findVisibleTender } from './tender-access';
 
 export interface TenderDeps {
@@ -110,6 +111,8 @@ export async function createTender(em: EntityManager, user: User, input: TenderI
     const { regions, ...fields } = input;
     const tender = tx.create(Tender, { ...fields, closesAt, createdBy: user });
     writeRegions(tx, tender, regions);
+    await tx.flush();
+    await audit(tx, { tenderId: tender.id, actor: user, action: 'tender.created', subject: 'tender', after: input });
     return tender.id;
   });
   return tenderView(em.fork(), user, id);
@@ -126,9 +129,12 @@ export async function updateTender(em: EntityManager, user: User, id: string, in
       throw new ConflictError('A tender with this reference exists.', [{ field: 'reference', message: 'This reference is already used.' }]);
     }
     const { regions, ...fields } = input;
+    const before = { reference: tender.reference, title: tender.title, closesAt: tender.closesAt.toISOString() };
     tx.assign(tender, { ...fields, closesAt });
     await tx.nativeDelete(Region, { tender });
     writeRegions(tx, tender, regions);
+    await tx.flush();
+    await audit(tx, { tenderId: tender.id, actor: user, action: 'tender.updated', subject: 'tender', before, after: input });
   });
   return tenderView(em.fork(), user, id);
 }
@@ -153,7 +159,12 @@ export async function inviteVendors(deps: TenderDeps, user: User, id: string, in
     }
     const existing = await tx.find(Invitation, { tender: tender.id, vendorOrganisation: { $in: orgIds } });
     const fresh = orgs.filter((o) => !existing.some((e) => e.vendorOrganisation.id === o.id));
-    return fresh.map((o) => tx.create(Invitation, { tender: tender.id, vendorOrganisation: o, invitedBy: user }));
+    const created = fresh.map((o) => tx.create(Invitation, { tender: tender.id, vendorOrganisation: o, invitedBy: user }));
+    await tx.flush();
+    if (fresh.length) {
+      await audit(tx, { tenderId: tender.id, actor: user, action: 'invitations.added', subject: 'invitations', detail: { vendors: fresh.map((o) => o.name) } });
+    }
+    return created;
   });
   if (tender.status === 'open') await notifyInvited(deps, tender, added.map((i) => i.id));
   return tenderView(em.fork(), user, id);
@@ -162,8 +173,11 @@ export async function inviteVendors(deps: TenderDeps, user: User, id: string, in
 export async function removeInvitation(em: EntityManager, user: User, id: string, orgId: string): Promise<TenderView> {
   const tender = await findVisibleTender(em, user, id);
   if (tender.status !== 'draft') throw new ConflictError('Invitations can be withdrawn only while the tender is a draft.');
-  const removed = await em.nativeDelete(Invitation, { tender, vendorOrganisation: orgId });
-  if (!removed) throw new NotFoundError('The invitation');
+  await em.transactional(async (tx) => {
+    const removed = await tx.nativeDelete(Invitation, { tender: tender.id, vendorOrganisation: orgId });
+    if (!removed) throw new NotFoundError('The invitation');
+    await audit(tx, { tenderId: tender.id, actor: user, action: 'invitation.withdrawn', subject: 'invitations', detail: { vendorOrganisation: orgId } });
+  });
   return tenderView(em.fork(), user, id);
 }
 
@@ -182,6 +196,8 @@ export async function publishTender(deps: TenderDeps, user: User, id: string): P
     if (problems.length) throw new ValidationError(problems, 'The tender is not ready to publish.');
     t.status = 'open';
     t.publishedAt = new Date();
+    await tx.flush();
+    await audit(tx, { tenderId: t.id, actor: user, action: 'tender.published', subject: 'tender', before: { status: 'draft' }, after: { status: 'open', closesAt: t.closesAt.toISOString() } });
     return t;
   });
   await deps.boss.send(QUEUES.tenderClose, { tenderId: tender.id }, { startAfter: tender.closesAt, singletonKey: `close-${tender.id}` });

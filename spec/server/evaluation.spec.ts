@@ -4,6 +4,7 @@ import { seed } from '../../server/ops/seed';
 import { DEMO_PASSWORD } from '../../seeds/demo-people';
 import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
+import { openTender } from '../support/tenders';
 
 /** The buyer → compliance flow on the demo salt tender, through the API with the real engine. */
 jest.setTimeout(120_000);
@@ -183,4 +184,17 @@ test('the audit CSV is safe against spreadsheet formula injection', async () => 
   expect(csv.status).toBe(200);
   expect(csv.text).toContain(`"'=HYPERLINK(""http://evil.test"",""x"")"`);
   expect(csv.text).not.toMatch(/(^|,)"[=+\-@]/m);
+});
+
+test('a bid appears in the trail only by its digest: no figures, no vendor', async () => {
+  const firm = await makeUser(t, 'vendor');
+  const vendor = await signedIn(t, firm);
+  const open = { id: await openTender(buyer, [firm.vendorOrganisation!.id]) };
+  const bid = await vendor.send('put', `/api/tenders/${open.id}/bid`, { fixedFee: 123.45, capacity: null, prices: { R01: 81.5 }, submit: true, version: null });
+  expect(bid.status).toBe(200);
+  const openTrail = (await buyer.get(`/api/tenders/${open.id}/audit`)).body as { action: string; detail: Record<string, unknown>; actor: unknown }[];
+  const entry = openTrail.find((e) => e.action === 'bid.submitted')!;
+  expect(entry.detail).toEqual({ revision: 1, digest: bid.body.digest });
+  expect(entry.actor).toBeNull();
+  expect(JSON.stringify(openTrail)).not.toContain('81.5');
 });

@@ -18,6 +18,8 @@ export const AWARD_CAUTION =
   styles: `
     :host { display: block; margin: 0 0 24px; }
     p { margin: 0; max-width: 80ch; }
+    /* In a narrow flex row the icon would otherwise be squeezed to a sliver beside the text. */
+    mat-icon { flex-shrink: 0; }
   `,
 })
 export class AwardCaution {

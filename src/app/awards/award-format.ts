@@ -22,9 +22,13 @@ export function fractionPercent(value: number, maximumFractionDigits = 1): strin
   return new Intl.NumberFormat(undefined, { style: 'percent', maximumFractionDigits }).format(value);
 }
 
-/** A number that is already a percentage (12.5 → "12.5%"), as the compare and resilience answers give it. */
+/**
+ * The compare and resilience answers' ratios (cost of sole award, price over the split baseline,
+ * increase without a vendor) are fractions too (0.0425 → "4.25%"); two decimals, because these
+ * differences are often well under one per cent of a large total.
+ */
 export function percent(value: number, maximumFractionDigits = 2): string {
-  return fractionPercent(value / 100, maximumFractionDigits);
+  return fractionPercent(value, maximumFractionDigits);
 }
 
 export const DATE_TIME: Intl.DateTimeFormatOptions = {

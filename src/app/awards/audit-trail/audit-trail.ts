@@ -44,8 +44,9 @@ export class AuditTrail {
     if (error) return error;
     const v = this.verification();
     if (!v) return '';
+    // The server's message already counts the entries; the prefix gives the verdict first.
     return v.ok
-      ? `Chain intact: all ${v.entries} entries check out. ${v.message}`
+      ? `Chain intact. ${v.message}`
       : `Chain broken${v.brokenAt !== null ? ` at entry ${v.brokenAt}` : ''}. ${v.message}`;
   });
   protected readonly when = localDateTime;

@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, inject, signal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
-import { FormControl, ReactiveFormsModule } from '@angular/forms';
+import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -26,7 +26,7 @@ export interface RecommendDialogData {
   imports: [ReactiveFormsModule, MatDialogModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, AwardCaution],
   template: `
     <h2 mat-dialog-title>Recommend this award</h2>
-    <form (ngSubmit)="submit()" novalidate>
+    <form [formGroup]="form" (ngSubmit)="submit()" novalidate>
       <mat-dialog-content>
         <p>
           Scenario <strong>{{ data.scenarioName }}</strong>, total {{ data.total }}. Compliance will approve it
@@ -64,6 +64,11 @@ export class RecommendDialog {
     nonNullable: true,
     validators: zodValidator(recommendationInputSchema.shape.justification),
   });
+  /**
+   * The group is there for its directive: without [formGroup] nothing turns the form's submit into
+   * ngSubmit, and the browser would post the page itself (a reload that closes the dialog unsaved).
+   */
+  protected readonly form = new FormGroup({ justification: this.justification });
   protected readonly busy = signal(false);
   protected readonly failure = signal<string | null>(null);
   protected readonly fieldMessage = fieldMessage;

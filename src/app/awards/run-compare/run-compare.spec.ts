@@ -29,14 +29,14 @@ const comparison: Comparison = {
   currency: 'EUR',
   runs: [
     compared({ runId: SPLIT, scenarioName: 'All regions split' }),
-    compared({ runId: SOLE, scenarioName: 'All regions sole', objective: 1042500, regionsSplit: 0, priceOverSplit: 42500, priceOverSplitPercent: 4.25 }),
+    compared({ runId: SOLE, scenarioName: 'All regions sole', objective: 1042500, regionsSplit: 0, priceOverSplit: 42500, priceOverSplitPercent: 0.0425 }),
   ],
   baseline: { runId: SPLIT, objective: 1000000 },
-  costOfSoleAward: { amount: 42500, percent: 4.25 },
+  costOfSoleAward: { amount: 42500, percent: 0.0425 },
 };
 
 const eur = (value: number) => new Intl.NumberFormat(undefined, { style: 'currency', currency: 'EUR', maximumFractionDigits: 2 }).format(value);
-const pct = (value: number) => new Intl.NumberFormat(undefined, { style: 'percent', maximumFractionDigits: 2 }).format(value / 100);
+const pct = (value: number) => new Intl.NumberFormat(undefined, { style: 'percent', maximumFractionDigits: 2 }).format(value);
 
 describe('RunCompare', () => {
   let http: HttpTestingController;
@@ -67,7 +67,7 @@ describe('RunCompare', () => {
 
     expect(sole.querySelector('h2')!.textContent).toBe('Cost of sole award');
     expect(sole.textContent).toContain(eur(42500));
-    expect(sole.textContent).toContain(pct(4.25));
+    expect(sole.textContent).toContain(pct(0.0425));
     expect(page.textContent).toContain(AWARD_CAUTION);
   });
 
@@ -85,7 +85,7 @@ describe('RunCompare', () => {
     expect([...row('Total cost')].map((td) => td.textContent)).toEqual([eur(1000000), eur(1042500)]);
     expect([...row('Regions split')].map((td) => td.textContent)).toEqual(['2', '0']);
     expect(row('Price over the split baseline')[0].textContent).toBe('Baseline');
-    expect(row('Price over the split baseline')[1].textContent).toBe(`+${eur(42500)} (+${pct(4.25)})`);
+    expect(row('Price over the split baseline')[1].textContent).toBe(`+${eur(42500)} (+${pct(0.0425)})`);
   });
 
   it('says what to run when the ready-made scenarios have no award yet', async () => {
