@@ -179,21 +179,32 @@ export async function bidsOf(em: EntityManager, user: User, tenderId: string): P
   return { submitted, bids: await tabulate(em, tender) };
 }
 
+/**
+ * One query, prices gathered per bid by PostgreSQL: hydrating 30 bids × 200 lines × their regions
+ * as entities took over a second per request (bench:api, phase c).
+ */
 async function tabulate(em: EntityManager, tender: Tender): Promise<TabulatedBid[]> {
-  const bids = await em.find(Bid, { tender, status: { $in: LIVE } }, { populate: ['lines.region', 'vendorOrganisation'], orderBy: { vendorOrganisation: { name: 'asc' } } });
-  return bids.map((b) => {
-    const prices: Record<string, number> = {};
-    for (const l of b.lines.getItems()) prices[l.region.code] = l.unitPrice;
-    return {
-      vendor: { id: b.vendorOrganisation.id, name: b.vendorOrganisation.name, sme: b.vendorOrganisation.sme },
-      fixedFee: b.fixedFee,
-      capacity: b.capacity ?? null,
-      prices,
-      submittedAt: b.submittedAt!.toISOString(),
-      digest: b.digest!,
-      documentId: b.document?.id ?? null,
-    };
-  });
+  const rows = await em.execute<{
+    vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
+    submitted_at: Date | string; digest: string; document_id: string | null; prices: Record<string, number | string> | null;
+  }[]>(
+    `select o.id as vendor_id, o.name as vendor_name, o.sme, b.fixed_fee, b.capacity, b.submitted_at, b.digest, b.document_id,
+            (select json_object_agg(r.code, l.unit_price order by r.position)
+               from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices
+       from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
+      where b.tender_id = ? and b.status in ('submitted', 'revised')
+      order by o.name asc, o.id asc`,
+    [tender.id],
+  );
+  return rows.map((b) => ({
+    vendor: { id: b.vendor_id, name: b.vendor_name, sme: b.sme },
+    fixedFee: Number(b.fixed_fee),
+    capacity: b.capacity === null ? null : Number(b.capacity),
+    prices: Object.fromEntries(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)])),
+    submittedAt: new Date(b.submitted_at).toISOString(),
+    digest: b.digest,
+    documentId: b.document_id,
+  }));
 }
 
 function assertUnsealed(tender: Tender): void {

@@ -20,6 +20,10 @@ export interface TenderDeps {
 const LIVE_BID: BidStatus[] = ['submitted', 'revised'];
 
 export function tenderSummary(t: Tender, regions: Region[]): TenderSummary {
+  return summaryWithStats(t, regions.length, regions.reduce((s, r) => s + r.forecast, 0));
+}
+
+function summaryWithStats(t: Tender, regionCount: number, totalForecast: number): TenderSummary {
   return {
     id: t.id,
     reference: t.reference,
@@ -29,8 +33,8 @@ export function tenderSummary(t: Tender, regions: Region[]): TenderSummary {
     currency: t.currency,
     status: t.status,
     closesAt: t.closesAt.toISOString(),
-    regionCount: regions.length,
-    totalForecast: regions.reduce((s, r) => s + r.forecast, 0),
+    regionCount,
+    totalForecast,
   };
 }
 
@@ -57,9 +61,19 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
     const bids = await em.find(Bid, { vendorOrganisation: user.vendorOrganisation! });
     myBids = new Map(bids.map((b) => [b.tender.id, b]));
   }
-  const tenders = await em.find(Tender, where, { populate: ['regions'], orderBy: { closesAt: 'desc' } });
+  const tenders = await em.find(Tender, where, { orderBy: { closesAt: 'desc' } });
+  // Count and total from PostgreSQL: populating every region of every listed tender made the list
+  // the slowest vendor request (bench:api, phase a).
+  const stats = new Map<string, { n: number; total: number }>();
+  if (tenders.length) {
+    const rows = await em.execute<{ tender_id: string; n: number; total: string }[]>(
+      `select tender_id, count(*)::int as n, coalesce(sum(forecast), 0) as total from region where tender_id in (${tenders.map(() => '?').join(', ')}) group by tender_id`,
+      tenders.map((t) => t.id),
+    );
+    for (const r of rows) stats.set(r.tender_id, { n: r.n, total: Number(r.total) });
+  }
   return tenders.map((t) => ({
-    ...tenderSummary(t, t.regions.getItems()),
+    ...summaryWithStats(t, stats.get(t.id)?.n ?? 0, stats.get(t.id)?.total ?? 0),
     ...(user.role === 'vendor' ? { myBidStatus: myBids.get(t.id)?.status ?? null } : {}),
   }));
 }

@@ -1,0 +1,112 @@
+import { performance } from 'node:perf_hooks';
+import autocannon from 'autocannon';
+
+/**
+ * One measured phase. Latencies are collected from autocannon's `response` events rather than its
+ * own histogram, so that phases driven by many autocannon instances at once (one per vendor) are
+ * summed up the same way as phases driven by one instance.
+ */
+export interface Phase {
+  label: string;
+  seconds: number;
+  latencies: number[];
+  /** Answers other than the expected status, plus connection errors and timeouts. */
+  errors: number;
+  statuses: Map<number, number>;
+}
+
+export interface DriveOptions {
+  url: string;
+  connections: number;
+  /** Requests in all (bounded in count)… */
+  amount?: number;
+  /** …and in time, whichever comes first. */
+  maxSeconds: number;
+  /** A fixed request rate instead of as fast as possible (for measuring a server while it works). */
+  overallRate?: number;
+  method?: string;
+  headers?: Record<string, string>;
+  body?: string;
+  requests?: autocannon.AutocannonRequest[];
+  expectStatus?: number;
+}
+
+function empty(label: string): Phase {
+  return { label, seconds: 0, latencies: [], errors: 0, statuses: new Map() };
+}
+
+async function one(opts: DriveOptions, into: Phase): Promise<void> {
+  const given = { amount: opts.amount, overallRate: opts.overallRate, method: opts.method, headers: opts.headers, body: opts.body, requests: opts.requests };
+  // autocannon takes an explicit `undefined` as a value (e.g. "undefined HTTP method"): pass only what is set.
+  const optional = Object.fromEntries(Object.entries(given).filter(([, v]) => v !== undefined));
+  const instance = autocannon({ url: opts.url, connections: opts.connections, pipelining: 1, duration: opts.maxSeconds, timeout: 30, ...optional });
+  const expected = opts.expectStatus ?? 200;
+  instance.on('response', (_client: unknown, status: number, _bytes: number, ms: number) => {
+    into.latencies.push(ms);
+    into.statuses.set(status, (into.statuses.get(status) ?? 0) + 1);
+    if (status !== expected) into.errors += 1;
+  });
+  // With `amount` autocannon ignores `duration`: the time bound is kept here.
+  const cap = setTimeout(() => instance.stop(), opts.maxSeconds * 1000);
+  const result = await instance;
+  clearTimeout(cap);
+  into.errors += result.errors + result.timeouts;
+}
+
+/** Drives one endpoint with one autocannon instance. */
+export async function drive(label: string, opts: DriveOptions): Promise<Phase> {
+  return driveMany(label, [opts]);
+}
+
+/** Drives several autocannon instances at once (e.g. one per signed-in vendor) as one phase. */
+export async function driveMany(label: string, all: DriveOptions[]): Promise<Phase> {
+  const phase = empty(label);
+  const t0 = performance.now();
+  await Promise.all(all.map((o) => one(o, phase)));
+  phase.seconds = (performance.now() - t0) / 1000;
+  return phase;
+}
+
+/** Nearest-rank percentile of a list of milliseconds. */
+export function percentile(values: number[], p: number): number {
+  if (!values.length) return NaN;
+  const sorted = [...values].sort((a, b) => a - b);
+  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))]!;
+}
+
+export interface Summary {
+  label: string;
+  requests: number;
+  rps: number;
+  p50: number;
+  p95: number;
+  p99: number;
+  errors: number;
+}
+
+export function summarise(p: Phase): Summary {
+  return {
+    label: p.label,
+    requests: p.latencies.length,
+    rps: p.latencies.length / (p.seconds || 1),
+    p50: percentile(p.latencies, 50),
+    p95: percentile(p.latencies, 95),
+    p99: percentile(p.latencies, 99),
+    errors: p.errors,
+  };
+}
+
+/** A fixed-width table; numbers right-aligned. */
+export function table(headers: string[], rows: (string | number)[][]): string {
+  const cells = rows.map((r) => r.map((c) => (typeof c === 'number' ? (Number.isInteger(c) ? String(c) : c.toFixed(1)) : c)));
+  const widths = headers.map((h, k) => Math.max(h.length, ...cells.map((r) => r[k]!.length)));
+  const line = (r: string[]) => r.map((c, k) => (k === 0 ? c.padEnd(widths[k]!) : c.padStart(widths[k]!))).join('  ');
+  return [line(headers), widths.map((w) => '-'.repeat(w)).join('  '), ...cells.map(line)].join('\n') + '\n';
+}
+
+export function summaryTable(rows: Summary[]): string {
+  return table(
+    ['phase', 'requests', 'req/s', 'p50 ms', 'p95 ms', 'p99 ms', 'errors'],
+    rows.map((s) => [s.label, s.requests, s.rps, s.p50, s.p95, s.p99, s.errors]),
+  );
+}

@@ -1,0 +1,111 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import { randomBytes } from 'node:crypto';
+import fs from 'node:fs';
+import net from 'node:net';
+import path from 'node:path';
+
+/** The server and worker processes a benchmark measures, each a real `node dist/server/…` process. */
+export interface Proc {
+  name: string;
+  child: ChildProcess;
+  stop(): Promise<void>;
+}
+
+const running = new Set<Proc>();
+const DIST = path.resolve(__dirname, '..', '..');
+
+export function benchEnv(): { databaseUrl: string; dir: string } {
+  const databaseUrl = process.env['DATABASE_URL'];
+  const dir = process.env['BENCH_DIR'];
+  if (!databaseUrl || !dir) throw new Error('DATABASE_URL and BENCH_DIR are not set: run the benchmark through npm run bench:api or bench:queue.');
+  return { databaseUrl, dir };
+}
+
+export function freePort(): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const s = net.createServer();
+    s.once('error', reject);
+    s.listen(0, '127.0.0.1', () => {
+      const port = (s.address() as net.AddressInfo).port;
+      s.close(() => resolve(port));
+    });
+  });
+}
+
+/** A session secret of this run only. */
+export const SESSION_SECRET = randomBytes(32).toString('hex');
+
+function launch(name: string, script: string, env: Record<string, string>): Proc {
+  const { databaseUrl, dir } = benchEnv();
+  // The JSON log lines go to a file in the throwaway folder: logging stays on, as in production.
+  const log = fs.openSync(path.join(dir, `${name}.log`), 'a');
+  const child = spawn(process.execPath, [path.join(DIST, script)], {
+    env: { ...process.env, NODE_ENV: 'production', LOG_LEVEL: 'info', DATABASE_URL: databaseUrl, SESSION_SECRET, ...env },
+    stdio: ['ignore', log, log],
+  });
+  fs.closeSync(log);
+  const proc: Proc = {
+    name,
+    child,
+    stop: () =>
+      new Promise<void>((resolve) => {
+        running.delete(proc);
+        if (child.exitCode !== null || child.signalCode !== null) return resolve();
+        const force = setTimeout(() => child.kill('SIGKILL'), 15_000);
+        child.once('exit', () => {
+          clearTimeout(force);
+          resolve();
+        });
+        child.kill('SIGTERM');
+      }),
+  };
+  running.add(proc);
+  child.once('exit', (code, signal) => {
+    if (running.has(proc)) {
+      running.delete(proc);
+      process.stderr.write(`[bench] ${name} exited unexpectedly (${signal ?? code}); its log: ${path.join(dir, `${name}.log`)}\n`);
+    }
+  });
+  return proc;
+}
+
+/** Starts `node dist/server/main.js` on a free port and waits until it answers. */
+export async function startServer(env: Record<string, string> = {}): Promise<{ proc: Proc; url: string }> {
+  const port = await freePort();
+  const mailPort = await freePort();
+  const proc = launch('server', 'main.js', {
+    HOST: '127.0.0.1', PORT: String(port), MAIL_CATCHER_PORT: String(mailPort), SMTP_URL: `smtp://127.0.0.1:${mailPort}`, ...env,
+  });
+  const url = `http://127.0.0.1:${port}`;
+  const deadline = Date.now() + 60_000;
+  for (;;) {
+    if (proc.child.exitCode !== null) throw new Error(`the server did not start; see ${benchEnv().dir}/server.log`);
+    try {
+      const res = await fetch(`${url}/api/session`);
+      if (res.status === 401) return { proc, url };
+    } catch {
+      // not listening yet
+    }
+    if (Date.now() > deadline) throw new Error('the server did not answer within 60 s');
+    await new Promise((r) => setTimeout(r, 250));
+  }
+}
+
+/** Starts `node dist/server/worker.js` (jobs only). */
+export function startWorker(n: number, env: Record<string, string> = {}): Proc {
+  return launch(`worker-${n}`, 'worker.js', { SOLVE_CONCURRENCY: '1', ...env });
+}
+
+export async function stopAll(): Promise<void> {
+  await Promise.all([...running].map((p) => p.stop()));
+}
+
+// Never leave a server or worker behind: Ctrl-C, kill or a crash of the benchmark stops them.
+process.once('exit', () => {
+  for (const p of running) p.child.kill('SIGKILL');
+});
+for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+  process.once(signal, () => {
+    void stopAll().finally(() => process.exit(130));
+  });
+}
