@@ -104,6 +104,7 @@ declare module 'xlsx-populate' {
   const XlsxPopulate: {
     fromBlankAsync(): Promise<XlsxPopulate.Workbook>;
     fromDataAsync(data: Buffer | ArrayBuffer | Uint8Array, opts?: { password?: string }): Promise<XlsxPopulate.Workbook>;
+    fromFileAsync(path: string, opts?: { password?: string }): Promise<XlsxPopulate.Workbook>;
   };
   export = XlsxPopulate;
 }
