@@ -98,6 +98,7 @@ declare module 'xlsx-populate' {
       moveSheet(sheet: string | number | Sheet, indexOrBeforeSheet?: number | string | Sheet): Workbook;
       property(name: string, value: string): Workbook;
       outputAsync(): Promise<Buffer>;
+      toFileAsync(path: string): Promise<void>;
     }
   }
 
