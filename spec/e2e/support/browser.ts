@@ -39,6 +39,9 @@ export async function openBrowser(viewport = { width: 1280, height: 800 }): Prom
 
 /** Signs in from a clean slate (any earlier session's cookies dropped). */
 export async function signIn(page: Page, email: string, password = 'demo-pass-2026'): Promise<void> {
+  // Leave the page first: a poll still in flight would answer with the old session's cookie
+  // (sessions roll on every answer) after the cookies were cleared.
+  await page.goto('about:blank');
   await page.context().clearCookies();
   await page.goto(`${baseUrl()}/sign-in`);
   await page.getByLabel('E-mail').fill(email);
