@@ -78,7 +78,25 @@ export function buildModel(inst: AwardInstance): { model: MipModel; map: ModelMa
   }
   // Aggregate capacity row Σ_i K_i y_i ≥ Σ_j d_j: implied by the capacity rows, but written out
   // it lets both solvers derive knapsack cover cuts on the y_i (classic for capacitated location).
-  b.addRow('total_capacity', openCols, inst.vendors.map((_, i) => caps[i]).filter((_, i) => open[i] >= 0), inst.totalDemand, INF);
+  const openCaps = inst.vendors.map((_, i) => caps[i]).filter((_, i) => open[i] >= 0);
+  b.addRow('total_capacity', openCols, openCaps, inst.totalDemand, INF);
+  // Its rounded consequence Σ_i y_i ≥ p, p the fewest vendors whose largest capacities together
+  // reach the forecast: every award opens at least p vendors. The LP, left to itself, opens a few
+  // large vendors fractionally; this row closes much of that gap on tight-capacity tenders.
+  const fewest = fewestVendorsToCover(openCaps, inst.totalDemand);
+  if (fewest > 1 && fewest > (rules.minVendors ?? 0)) b.addRow('fewest_vendors', openCols, openCols.map(() => 1), fewest, INF);
 
   return { model: b.build(), map: { open, supply, soleColumn } };
+}
+
+/** The fewest capacities (largest first) that together reach `total`; more than all of them when they cannot. */
+export function fewestVendorsToCover(caps: number[], total: number): number {
+  const sorted = [...caps].sort((a, b) => b - a);
+  let sum = 0;
+  for (let k = 0; k < sorted.length; k++) {
+    sum += sorted[k];
+    // The same relative tolerance as the capacity checks: a forecast met to rounding counts as met.
+    if (sum + 1e-9 * Math.max(1, total) >= total) return k + 1;
+  }
+  return sorted.length + 1;
 }

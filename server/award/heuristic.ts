@@ -7,9 +7,10 @@ import type { MipModel, ModelMap } from './model';
  * with a greedy assignment and shift/swap moves for the regions. Rule-agnostic on purpose: the
  * result is checked against every row of the model and dropped when it breaks any.
  */
-export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map: ModelMap, budgetMs = 1000): Promise<Float64Array | null> {
+export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map: ModelMap, budgetMs = 1000, signal?: AbortSignal): Promise<Float64Array | null> {
   // It runs on the caller's thread: it yields to the event loop after every round of moves (a few
-  // milliseconds each) and stops at a time budget, keeping the best award so far.
+  // milliseconds each) and stops at a time budget, keeping the best award so far, or at once
+  // (returning nothing) when the solve no longer needs it.
   const stopAt = performance.now() + budgetMs;
   const m = inst.vendors.length;
   const n = inst.regions.length;
@@ -100,6 +101,7 @@ export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map:
   // Close (then open) vendors one at a time while the total cost falls.
   for (let round = 0, improved = true; improved && round < 3 * m && performance.now() < stopAt; round++) {
     await new Promise((resolve) => setImmediate(resolve));
+    if (signal?.aborted) return null;
     improved = false;
     let bestMove: { open: boolean[]; result: { q: number[][]; cost: number } } | null = null;
     for (let i = 0; i < m && performance.now() < stopAt; i++) {
@@ -112,6 +114,7 @@ export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map:
     if (bestMove) { open = bestMove.open; best = bestMove.result; improved = true; }
   }
   await new Promise((resolve) => setImmediate(resolve));
+  if (signal?.aborted) return null;
   const final = (performance.now() < stopAt ? assign(open.slice(), true) : null) ?? best;
 
   const x = new Float64Array(model.numCols);

@@ -21,8 +21,8 @@ export interface EngineRequest {
   signal?: AbortSignal;
   /** A feasible column vector to seed the search (engines that cannot use it ignore it). */
   incumbent?: Float64Array;
-  /** Computes a seed on demand; the combined engine calls it only when glpk.js has not finished at once. */
-  seed?: () => Promise<Float64Array | null>;
+  /** Computes a seed on demand (the combined engine calls it only when no run has an award yet); stops when `signal` aborts. */
+  seed?: (signal?: AbortSignal) => Promise<Float64Array | null>;
 }
 
 /** A MIP engine behind one interface, so the pipeline never depends on a given solver. */
@@ -54,7 +54,7 @@ export async function runInWorker<T extends EngineOutcome>(file: string, payload
   const started = performance.now();
   try {
     signal?.throwIfAborted();
-    return (await solverPool().run(payload, { filename: workerFile(file), signal: controller.signal })) as T;
+    return (await solverPool(file).run(payload, { filename: workerFile(file), signal: controller.signal })) as T;
   } catch (err) {
     if (signal?.aborted) throw signal.reason ?? err;
     const message = err instanceof Error ? err.message : String(err);

@@ -7,7 +7,7 @@ import Piscina from 'piscina';
  * thread they would freeze the server for the whole solve, so every solve goes to a worker, and
  * cancellation terminates the worker (the only way to stop a synchronous solve).
  */
-let pool: Piscina | undefined;
+const pools = new Map<string, Piscina>();
 
 /** Finds a worker file: beside this module (source), else the source folder from a build in dist/. */
 export function workerFile(name: string): string {
@@ -23,19 +23,28 @@ export function workerFile(name: string): string {
   throw new Error(`Award solver worker ${name} not found near ${__dirname}.`);
 }
 
-export function solverPool(): Piscina {
-  pool ??= new Piscina({
-    // Two solvers race per solve; more threads than that only compete for the same cores.
-    maxThreads: Math.max(2, Number(process.env.AWARD_SOLVER_THREADS) || 2),
-    minThreads: 0,
-    idleTimeout: 10_000,
-  });
+/**
+ * The pool for one worker file. glpk.js has its own pool because its worker lowers its threads'
+ * scheduling priority (workers/glpk-worker.mjs), and such a thread must never run HiGHS later.
+ */
+export function solverPool(file = 'highs-worker.mjs'): Piscina {
+  let pool = pools.get(file);
+  if (!pool) {
+    pool = new Piscina({
+      // Two runs of one solver at most per solve (HiGHS A and B); more threads than that only
+      // compete for the same cores.
+      maxThreads: Math.max(2, Number(process.env.AWARD_SOLVER_THREADS) || 2),
+      minThreads: 0,
+      idleTimeout: 10_000,
+    });
+    pools.set(file, pool);
+  }
   return pool;
 }
 
-/** Stops the pool's threads (tests and the CLI call this so the process can exit at once). */
+/** Stops the pools' threads (tests and the CLI call this so the process can exit at once). */
 export async function closeSolverPool(): Promise<void> {
-  const p = pool;
-  pool = undefined;
-  if (p) await p.close({ force: true });
+  const all = [...pools.values()];
+  pools.clear();
+  await Promise.all(all.map((p) => p.close({ force: true })));
 }

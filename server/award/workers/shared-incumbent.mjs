@@ -2,7 +2,7 @@
 // publishes its improving awards and picks up a cheaper one found by the other run at its next
 // user-solution checkpoint. Layout: Int32 [lock, version], then Float64 [objective, x_0 … x_n-1].
 // A short spin lock guards both reads and writes (copies of a few thousand numbers). The board is
-// created and first filled by portfolio.ts (twoHighsRuns).
+// created and filled from the calling thread by award-board.ts.
 
 function views(buffer) {
   return { ints: new Int32Array(buffer, 0, 2), nums: new Float64Array(buffer, 8) };
