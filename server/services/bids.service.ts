@@ -119,14 +119,12 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       bid.status = 'draft';
       bid.digest = null;
     }
-    await tx.flush();
-    // Sealed: the trail records that a bid changed state and its digest, never its figures or its vendor.
-    if (input.submit) {
-      await audit(tx, { tenderId, actor: null, action: bid.revision > 1 ? 'bid.revised' : 'bid.submitted', subject: `bid ${bid.id}`, detail: { revision: bid.revision, digest: bid.digest } });
-    }
     return bid;
   });
-  if (input.submit) await sendReceipt(deps, user, visible, saved, 'submitted');
+  if (input.submit) {
+    await auditBid(deps.em, tenderId, saved.revision > 1 ? 'bid.revised' : 'bid.submitted', saved, { revision: saved.revision, digest: saved.digest });
+    await sendReceipt(deps, user, visible, saved, 'submitted');
+  }
   const fresh = await deps.em.fork().findOneOrFail(Bid, { id: saved.id }, { populate: ['lines.region', 'document'] });
   return bidView(fresh);
 }
@@ -142,13 +140,22 @@ export async function withdrawBid(deps: BidDeps, user: User, tenderId: string, v
     if (b.status === 'withdrawn') throw new ConflictError('This bid is already withdrawn.');
     b.status = 'withdrawn';
     b.digest = null;
-    await tx.flush();
-    await audit(tx, { tenderId, actor: null, action: 'bid.withdrawn', subject: `bid ${b.id}`, detail: { revision: b.revision } });
     return b;
   });
+  await auditBid(deps.em, tenderId, 'bid.withdrawn', bid, { revision: bid.revision });
   await sendReceipt(deps, user, visible, bid, 'withdrawn');
   const fresh = await deps.em.fork().findOneOrFail(Bid, { id: bid.id }, { populate: ['lines.region', 'document'] });
   return bidView(fresh);
+}
+
+/**
+ * The trail records that a bid changed state and its digest, never its figures or its vendor.
+ * Written just after the bid's own transaction rather than inside it: the chain's per-tender lock
+ * would otherwise make every vendor's save wait for the others' — near the deadline, long enough
+ * to be refused. The digest is on the bid and in the receipt either way.
+ */
+async function auditBid(em: EntityManager, tenderId: string, action: string, bid: Bid, detail: Record<string, unknown>): Promise<void> {
+  await em.fork().transactional((tx) => audit(tx, { tenderId, actor: null, action, subject: `bid ${bid.id}`, detail }));
 }
 
 /** The receipt never carries figures: the admin can read the outbox before closing. */
