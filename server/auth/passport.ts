@@ -2,6 +2,7 @@ import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { User as UserEntity } from '../entities';
+import { escapeLike } from '../services/like';
 import { DUMMY_HASH, verifyPassword } from './password';
 
 declare global {
@@ -46,7 +47,3 @@ export function configurePassport(orm: MikroORM): passport.PassportStatic {
   return instance as unknown as passport.PassportStatic;
 }
 
-/** `$ilike` with the e-mail taken literally (no `%` or `_` wildcards). */
-function escapeLike(value: string): string {
-  return value.replace(/[\\%_]/g, (c) => `\\${c}`);
-}

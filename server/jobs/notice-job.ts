@@ -4,16 +4,7 @@ import { Notice } from '../entities';
 import { logger } from '../logger';
 import type { Mailer } from '../mail/mailer';
 import { notifiedIfAllSent } from '../services/notices/notices.service';
-import { QUEUES } from './queue';
-
-/** Seconds between tries while the mail server is unreachable, and how many tries in all. */
-export const noticeRetrySeconds = () => Number(process.env['NOTICE_RETRY_SECONDS'] ?? 30);
-export const noticeRetryLimit = () => Number(process.env['NOTICE_RETRY_LIMIT'] ?? 240);
-
-/** Queues the sending of one notice, now or after `delaySeconds`. */
-export async function queueNotice(boss: PgBoss, noticeId: string, delaySeconds = 0): Promise<void> {
-  await boss.send(QUEUES.notice, { noticeId }, { startAfter: delaySeconds, retryLimit: 3, retryDelay: noticeRetrySeconds(), expireInSeconds: 120 });
-}
+import { noticeRetryLimit, noticeRetrySeconds, queueNotice, QUEUES } from './queue';
 
 /**
  * Sends one notice. A sent notice is never sent again. While the mail server is unreachable the

@@ -67,3 +67,12 @@ export async function startTenderCloseWorker(boss: PgBoss, close: (tenderId: str
   await boss.schedule(QUEUES.tenderClose, '* * * * *', { tenderId: null });
   await close(null);
 }
+
+/** Seconds between tries while the mail server is unreachable, and how many tries in all. */
+export const noticeRetrySeconds = () => Number(process.env['NOTICE_RETRY_SECONDS'] ?? 30);
+export const noticeRetryLimit = () => Number(process.env['NOTICE_RETRY_LIMIT'] ?? 240);
+
+/** Queues the sending of one notice (server/jobs/notice-job.ts), now or after `delaySeconds`. */
+export async function queueNotice(boss: PgBoss, noticeId: string, delaySeconds = 0): Promise<void> {
+  await boss.send(QUEUES.notice, { noticeId }, { startAfter: delaySeconds, retryLimit: 3, retryDelay: noticeRetrySeconds(), expireInSeconds: 120 });
+}

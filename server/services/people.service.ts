@@ -8,6 +8,7 @@ import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { hashPassword } from '../auth/password';
+import { escapeLike } from './like';
 
 /** A set-password link is valid this long. */
 export const ACCOUNT_LINK_HOURS = 72;
@@ -53,7 +54,7 @@ async function findUser(em: EntityManager, id: string): Promise<User> {
 export async function invitePerson(deps: PeopleDeps, input: InviteUser, invitedBy: User): Promise<PersonView> {
   const { em } = deps;
   const token = await em.transactional(async (tx) => {
-    const taken = await tx.count(User, { email: { $ilike: input.email.replace(/[\\%_]/g, (c) => `\\${c}`) } });
+    const taken = await tx.count(User, { email: { $ilike: escapeLike(input.email) } });
     if (taken) throw new ConflictError('Someone with this e-mail already has an account.', [{ field: 'email', message: 'This e-mail already has an account.' }]);
     let organisation: VendorOrganisation | null = null;
     if (input.vendorOrganisationId) {

@@ -9,7 +9,8 @@ import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { createOrganisation, invitePerson } from './people.service';
 import { audit } from './audit.service';
-import { closeIfDue, findVisibleTender } from './tender-access';
+import { escapeLike } from './like';
+import { closeAllDue, closeIfDue, findVisibleTender } from './tender-access';
 
 export interface TenderDeps {
   em: EntityManager;
@@ -43,14 +44,12 @@ export function regionInputs(tender: Tender): RegionInput[] {
 }
 
 export async function listTenders(em: EntityManager, user: User, query: z.infer<typeof tenderListQuerySchema>): Promise<TenderSummary[]> {
-  // Close what is due first, so lists never show an open tender past its closing time.
-  await em.execute(
-    `update tender set status = 'closed', closed_at = closes_at, updated_at = now() where status = 'open' and closes_at <= clock_timestamp()`,
-  );
+  // Close what is due first (with its audit entries), so lists never show an open tender past its closing time.
+  await closeAllDue(em);
   const where: Record<string, unknown> = {};
   if (query.status) where['status'] = query.status;
   if (query.q) {
-    const like = `%${query.q.replace(/[\\%_]/g, (c) => `\\${c}`)}%`;
+    const like = `%${escapeLike(query.q)}%`;
     where['$or'] = [{ reference: { $ilike: like } }, { title: { $ilike: like } }, { commodity: { $ilike: like } }];
   }
   let myBids = new Map<string, Bid>();

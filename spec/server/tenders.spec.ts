@@ -136,3 +136,13 @@ test('the scheduled close job closes a tender at its closing time without anyone
   }
   expect(status).toBe('closed');
 });
+
+test('a tender closed by reading the list is recorded in its audit trail', async () => {
+  const id = await openTender(buyer, [orgA]);
+  await t.em().nativeUpdate(Tender, { id }, { closesAt: new Date(Date.now() - 1000) });
+  const list = await buyer.get('/api/tenders');
+  expect(list.body.find((x: { id: string }) => x.id === id).status).toBe('closed');
+  const trail = await buyer.get(`/api/tenders/${id}/audit`);
+  expect(trail.body.map((e: { action: string }) => e.action)).toEqual(['tender.created', 'invitations.added', 'tender.published', 'tender.closed']);
+  expect((await buyer.get(`/api/tenders/${id}/audit/verify`)).body.ok).toBe(true);
+});

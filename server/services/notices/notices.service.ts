@@ -3,7 +3,7 @@ import type PgBoss from 'pg-boss';
 import type { NoticePreview, NoticeStatus, NoticeSummary, NoticeView } from '@shared/notices';
 import { Notice, Tender, type User } from '../../entities';
 import { ConflictError, NotFoundError } from '../../http/errors';
-import { queueNotice } from '../../jobs/notice-job';
+import { queueNotice } from '../../jobs/queue';
 import { audit } from '../audit.service';
 import { findVisibleTender } from '../tender-access';
 import { approvedRun, composeLetters } from './letters';
