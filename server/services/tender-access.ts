@@ -3,6 +3,8 @@ import { Invitation, Tender, type User } from '../entities';
 import { NotFoundError } from '../http/errors';
 import { audit } from './audit.service';
 
+const CLOCK_MARGIN_MS = 60_000;
+
 /**
  * Closes the tender if its closing time has passed (server clock, in the database). Atomic and
  * idempotent: the scheduled close job and any read may race it, only one changes the row.
@@ -18,6 +20,12 @@ export async function closeAllDue(em: EntityManager): Promise<number> {
 
 /** Closes the due tenders matching `condition`, each with its audit entry, in one transaction. */
 async function closeWhere(em: EntityManager, condition: string, params: unknown[]): Promise<number> {
+  // Lists and reads call this on every request: a plain look first (one round trip), the
+  // transaction (three at least) only when a tender is due.
+  const [due] = await em.execute<{ due: boolean }[]>(
+    `select exists (select 1 from tender where ${condition} and status = 'open' and closes_at <= clock_timestamp()) as due`, params,
+  );
+  if (!due?.due) return 0;
   return em.transactional(async (tx) => {
     const rows = await tx.execute<{ id: string; bids: string }[]>(
       `update tender set status = 'closed', closed_at = closes_at, updated_at = now()
@@ -40,8 +48,13 @@ async function closeWhere(em: EntityManager, condition: string, params: unknown[
  * invited to; anything else is "not found", so that vendors cannot learn which tenders exist.
  */
 export async function findVisibleTender(em: EntityManager, user: User, id: string): Promise<Tender> {
-  if (await closeIfDue(em, id)) em.clear();
-  const tender = await em.findOne(Tender, { id }, { populate: ['regions'] });
+  let tender = await em.findOne(Tender, { id }, { populate: ['regions'] });
+  // Only a tender near its closing time by this server's clock is checked by the database's
+  // (the clock that counts): the margin covers any difference between the two.
+  if (tender?.status === 'open' && tender.closesAt.getTime() - Date.now() < CLOCK_MARGIN_MS && (await closeIfDue(em, id))) {
+    em.clear();
+    tender = await em.findOne(Tender, { id }, { populate: ['regions'] });
+  }
   if (!tender) throw new NotFoundError('The tender');
   if (user.role === 'vendor') {
     const invited = tender.status !== 'draft' && user.vendorOrganisation

@@ -2,7 +2,7 @@ import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { z } from 'zod';
 import type { RegionInput } from '@shared/bids';
-import type { BidStatus, InvitationInput, TenderInput, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
+import type { BidStatus, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
 import { Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
@@ -21,10 +21,6 @@ export interface TenderDeps {
 const LIVE_BID: BidStatus[] = ['submitted', 'revised'];
 
 export function tenderSummary(t: Tender, regions: Region[]): TenderSummary {
-  return summaryWithStats(t, regions.length, regions.reduce((s, r) => s + r.forecast, 0));
-}
-
-function summaryWithStats(t: Tender, regionCount: number, totalForecast: number): TenderSummary {
   return {
     id: t.id,
     reference: t.reference,
@@ -34,8 +30,8 @@ function summaryWithStats(t: Tender, regionCount: number, totalForecast: number)
     currency: t.currency,
     status: t.status,
     closesAt: t.closesAt.toISOString(),
-    regionCount,
-    totalForecast,
+    regionCount: regions.length,
+    totalForecast: regions.reduce((sum, r) => sum + r.forecast, 0),
   };
 }
 
@@ -46,34 +42,42 @@ export function regionInputs(tender: Tender): RegionInput[] {
 export async function listTenders(em: EntityManager, user: User, query: z.infer<typeof tenderListQuerySchema>): Promise<TenderSummary[]> {
   // Close what is due first (with its audit entries), so lists never show an open tender past its closing time.
   await closeAllDue(em);
-  const where: Record<string, unknown> = {};
-  if (query.status) where['status'] = query.status;
+  // One query, counts and totals by PostgreSQL: a vendor's list was the slowest vendor request
+  // (bench:api, phase a) while it hydrated tenders, invitations and bids as entities.
+  const where: string[] = [];
+  const params: unknown[] = [];
+  const vendor = user.role === 'vendor' ? user.vendorOrganisation!.id : null;
+  if (vendor) {
+    where.push(`t.status <> 'draft'`, 'exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?)');
+    params.push(vendor);
+  }
+  if (query.status) {
+    where.push('t.status = ?');
+    params.push(query.status);
+  }
   if (query.q) {
+    where.push(`(t.reference ilike ? or t.title ilike ? or t.commodity ilike ?)`);
     const like = `%${escapeLike(query.q)}%`;
-    where['$or'] = [{ reference: { $ilike: like } }, { title: { $ilike: like } }, { commodity: { $ilike: like } }];
+    params.push(like, like, like);
   }
-  let myBids = new Map<string, Bid>();
-  if (user.role === 'vendor') {
-    const invitations = await em.find(Invitation, { vendorOrganisation: user.vendorOrganisation! }, { fields: ['tender'] });
-    where['id'] = { $in: invitations.map((i) => i.tender.id) };
-    where['status'] = query.status && query.status !== 'draft' ? query.status : { $ne: 'draft' };
-    const bids = await em.find(Bid, { vendorOrganisation: user.vendorOrganisation! });
-    myBids = new Map(bids.map((b) => [b.tender.id, b]));
-  }
-  const tenders = await em.find(Tender, where, { orderBy: { closesAt: 'desc' } });
-  // Count and total from PostgreSQL: populating every region of every listed tender made the list
-  // the slowest vendor request (bench:api, phase a).
-  const stats = new Map<string, { n: number; total: number }>();
-  if (tenders.length) {
-    const rows = await em.execute<{ tender_id: string; n: number; total: string }[]>(
-      `select tender_id, count(*)::int as n, coalesce(sum(forecast), 0) as total from region where tender_id in (${tenders.map(() => '?').join(', ')}) group by tender_id`,
-      tenders.map((t) => t.id),
-    );
-    for (const r of rows) stats.set(r.tender_id, { n: r.n, total: Number(r.total) });
-  }
-  return tenders.map((t) => ({
-    ...summaryWithStats(t, stats.get(t.id)?.n ?? 0, stats.get(t.id)?.total ?? 0),
-    ...(user.role === 'vendor' ? { myBidStatus: myBids.get(t.id)?.status ?? null } : {}),
+  const rows = await em.execute<{
+    id: string; reference: string; title: string; commodity: string; unit: string; currency: string;
+    status: TenderStatus; closes_at: Date | string; region_count: number; total_forecast: string; my_bid_status: BidStatus | null;
+  }[]>(
+    `select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, t.status, t.closes_at,
+            coalesce(r.n, 0)::int as region_count, coalesce(r.total, 0) as total_forecast,
+            ${vendor ? '(select b.status from bid b where b.tender_id = t.id and b.vendor_organisation_id = ?)' : 'null'} as my_bid_status
+       from tender t
+       left join lateral (select count(*) as n, sum(forecast) as total from region where region.tender_id = t.id) r on true
+      ${where.length ? `where ${where.join(' and ')}` : ''}
+      order by t.closes_at desc, t.id`,
+    vendor ? [vendor, ...params] : params,
+  );
+  return rows.map((t) => ({
+    id: t.id, reference: t.reference, title: t.title, commodity: t.commodity, unit: t.unit, currency: t.currency,
+    status: t.status, closesAt: new Date(t.closes_at).toISOString(),
+    regionCount: t.region_count, totalForecast: Number(t.total_forecast),
+    ...(vendor ? { myBidStatus: t.my_bid_status } : {}),
   }));
 }
 

@@ -156,6 +156,22 @@ test('two tabs of one vendor: the second save over a stale version gets 409 and 
   expect((await put(v!.b, id, { ...figures, submit: false, version: null })).status).toBe(409);
 });
 
+test("a save that changes only prices is a new version: the other tab's save over the old one gets 409", async () => {
+  const [v] = vendors;
+  const id = await openTender(buyer, [v!.org]);
+  const first = await put(v!.b, id, { ...figures, submit: false, version: null });
+  const code = Object.keys(figures.prices)[0]!;
+  const tabA = await put(v!.b, id, { ...figures, prices: { ...figures.prices, [code]: 12.3456 }, submit: false, version: first.body.version });
+  expect(tabA.status).toBe(200);
+  expect(tabA.body.version).toBeGreaterThan(first.body.version);
+  expect(tabA.body.prices[code]).toBe(12.3456);
+  const tabB = await put(v!.b, id, { ...figures, submit: false, version: first.body.version });
+  expect(tabB.status).toBe(409);
+  const stored = (await v!.b.get(`/api/tenders/${id}/bid`)).body.bid;
+  expect(stored.prices).toEqual(tabA.body.prices);
+  expect(stored.version).toBe(tabA.body.version);
+});
+
 test('many vendors saving at the same instant are all stored', async () => {
   const many = await Promise.all(Array.from({ length: 8 }, () => makeUser(t, 'vendor')));
   const browsers = await Promise.all(many.map((u) => signedIn(t, u)));

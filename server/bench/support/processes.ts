@@ -39,7 +39,10 @@ function launch(name: string, script: string, env: Record<string, string>): Proc
   const { databaseUrl, dir } = benchEnv();
   // The JSON log lines go to a file in the throwaway folder: logging stays on, as in production.
   const log = fs.openSync(path.join(dir, `${name}.log`), 'a');
-  const child = spawn(process.execPath, [path.join(DIST, script)], {
+  // BENCH_NODE_ARGS passes flags to the measured processes, e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof"
+  // to see where their time goes (NODE_OPTIONS refuses --cpu-prof).
+  const nodeArgs = (process.env['BENCH_NODE_ARGS'] ?? '').split(' ').filter(Boolean);
+  const child = spawn(process.execPath, [...nodeArgs, path.join(DIST, script)], {
     env: { ...process.env, NODE_ENV: 'production', LOG_LEVEL: 'info', DATABASE_URL: databaseUrl, SESSION_SECRET, ...env },
     stdio: ['ignore', log, log],
   });
