@@ -1,26 +1,10 @@
 /**
  * How the award screens write numbers, times and digests: always in the viewer's locale and
- * time zone, amounts in the tender's currency.
+ * time zone, amounts in the tender's currency (numbers: ui/number-format.ts).
  */
 
-/** An amount in the tender's currency, e.g. €1,234,567.50; "1,234.50 XYZ" for a code Intl does not know. */
-export function money(value: number, currency: string, maximumFractionDigits = 2): string {
-  try {
-    return new Intl.NumberFormat(undefined, { style: 'currency', currency, maximumFractionDigits }).format(value);
-  } catch {
-    return `${new Intl.NumberFormat(undefined, { maximumFractionDigits }).format(value)} ${currency}`;
-  }
-}
-
-/** A quantity with digit grouping, e.g. 44,500. */
-export function quantity(value: number): string {
-  return new Intl.NumberFormat(undefined, { maximumFractionDigits: 3 }).format(value);
-}
-
-/** A fraction as a percentage: 0.2345 → "23.5%". */
-export function fractionPercent(value: number, maximumFractionDigits = 1): string {
-  return new Intl.NumberFormat(undefined, { style: 'percent', maximumFractionDigits }).format(value);
-}
+export { fractionPercent, money, quantity } from '../ui/number-format';
+import { fractionPercent } from '../ui/number-format';
 
 /**
  * The compare and resilience answers' ratios (cost of sole award, price over the split baseline,

@@ -1,5 +1,6 @@
-import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
 import type { VendorAward } from '@shared/award';
+import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
 import { quantity } from '../award-format';
 
 export interface MatrixRegion {
@@ -10,20 +11,23 @@ export interface MatrixRegion {
 
 /**
  * Who supplies how much of each region: one row per awarded vendor, one column per region. With
- * many regions the table scrolls sideways inside its own focusable box (so keyboard users can
- * scroll it too) while the vendor column stays in place.
+ * many regions the columns come a page at a time (25 by default), and the table scrolls sideways
+ * inside its own focusable box (so keyboard users can scroll it too) while the vendor column
+ * stays in place.
  */
 @Component({
   selector: 'app-allocation-matrix',
   changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [RegionPager],
   template: `
+    <app-region-pager [total]="regions().length" [(pageIndex)]="pageIndex" [(pageSize)]="pageSize" [label]="'Pages of regions: ' + caption()" />
     <div class="scroll" tabindex="0" role="region" [attr.aria-label]="caption() + ' (scrolls sideways)'">
       <table>
         <caption class="visually-hidden">{{ caption() }}</caption>
         <thead>
           <tr>
             <th scope="col" class="sticky">Vendor</th>
-            @for (region of regions(); track region.code) {
+            @for (region of shown(); track region.code) {
               <th scope="col" class="number" [attr.title]="region.name">{{ region.code }}<span class="region-name">{{ region.name }}</span></th>
             }
           </tr>
@@ -41,7 +45,7 @@ export interface MatrixRegion {
         <tfoot>
           <tr>
             <th scope="row" class="sticky">Forecast ({{ unit() }})</th>
-            @for (region of regions(); track region.code) {
+            @for (region of shown(); track region.code) {
               <td class="number">{{ format(region.forecast) }}</td>
             }
           </tr>
@@ -70,6 +74,10 @@ export class AllocationMatrix {
   readonly caption = input('Quantity awarded by vendor and region');
 
   protected readonly format = quantity;
+  protected readonly pageIndex = signal(0);
+  protected readonly pageSize = signal(REGIONS_PER_PAGE);
+  /** The regions on the current page only (see ui/region-pages.ts). */
+  protected readonly shown = regionPage(this.regions, this.pageIndex, this.pageSize);
   protected readonly rows = computed(() => {
     const names = this.vendorNames();
     return this.awards().map((award) => {
@@ -77,7 +85,7 @@ export class AllocationMatrix {
       return {
         vendor: award.vendor,
         name: names[award.vendor]?.name ?? award.vendor,
-        cells: this.regions().map((region) => {
+        cells: this.shown().map((region) => {
           const q = byRegion.get(region.code);
           return q === undefined || q === 0 ? null : quantity(q);
         }),

@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, viewChild } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, viewChild } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
@@ -7,6 +7,7 @@ import { MatSort, MatSortModule } from '@angular/material/sort';
 import { MatTableDataSource, MatTableModule } from '@angular/material/table';
 import type { TabulatedBid, TenderView } from '@shared/tenders';
 import { ApiError } from '../../core/http/api-error';
+import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
 import { TenderApi } from '../tender-api';
 import { money, quantity } from '../tender-status';
 
@@ -27,7 +28,7 @@ const REGION_COLUMN = 'region:';
 @Component({
   selector: 'app-bid-tabulation',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatButtonModule, MatIconModule, MatProgressBarModule],
+  imports: [MatTableModule, MatSortModule, MatButtonModule, MatIconModule, MatProgressBarModule, RegionPager],
   templateUrl: './bid-tabulation.html',
   styleUrl: './bid-tabulation.scss',
 })
@@ -50,10 +51,16 @@ export class BidTabulation {
   });
   protected readonly lowest = computed(() => lowestPrices(this.bids()));
   protected readonly rows = new MatTableDataSource<TabulatedBid>([]);
-  protected readonly regionColumns = computed(() =>
-    this.tender().regions.map((r) => ({ ...r, column: REGION_COLUMN + r.code })),
-  );
-  protected readonly columns = computed(() => ['vendor', 'sme', 'fixedFee', 'capacity', ...this.regionColumns().map((r) => r.column)]);
+  protected readonly regionPageIndex = signal(0);
+  protected readonly regionPageSize = signal(REGIONS_PER_PAGE);
+  /**
+   * Every region has its column definition (cheap: nothing is drawn for it); only the regions on
+   * the current page are displayed (see ui/region-pages.ts). Paging then changes the displayed
+   * columns only, instead of destroying and creating 25 column definitions.
+   */
+  protected readonly regionColumns = computed(() => this.tender().regions.map((r) => ({ ...r, column: REGION_COLUMN + r.code })));
+  protected readonly shownRegions = regionPage(this.regionColumns, this.regionPageIndex, this.regionPageSize);
+  protected readonly columns = computed(() => ['vendor', 'sme', 'fixedFee', 'capacity', ...this.shownRegions().map((r) => r.column)]);
   protected readonly exportUrl = computed(() => this.api.tabulationUrl(this.tender().id));
   protected readonly quantity = quantity;
 
