@@ -27,6 +27,12 @@ const envSchema = z.object({
   RUN_WORKERS: z.enum(['0', '1']).default('1'),
   /** Award solves one process runs at once (each uses worker threads of its own). */
   SOLVE_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(1),
+  /**
+   * Niceness of a jobs-only process (`npm run worker`), 0 to 9: solves are CPU-bound for seconds
+   * and should not take the CPU from the requests people wait for. Below 10, the niceness the
+   * solver's helper threads set themselves, so they still give way to the main run.
+   */
+  WORKER_NICE: z.coerce.number().int().min(0).max(9).default(5),
 });
 
 export type Config = {
@@ -44,6 +50,7 @@ export type Config = {
   clientDist: string | undefined;
   runWorkers: boolean;
   solveConcurrency: number;
+  workerNice: number;
 };
 
 /** Reads the environment; throws one error listing every bad variable. */
@@ -69,5 +76,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     clientDist: e.CLIENT_DIST,
     runWorkers: e.RUN_WORKERS === '1',
     solveConcurrency: e.SOLVE_CONCURRENCY,
+    workerNice: e.WORKER_NICE,
   };
 }

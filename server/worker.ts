@@ -1,4 +1,6 @@
 import 'reflect-metadata';
+import { readdirSync } from 'node:fs';
+import { getPriority, setPriority } from 'node:os';
 import { MikroORM } from '@mikro-orm/postgresql';
 import { closeSolverPool } from './award';
 import { loadConfig } from './config';
@@ -11,11 +13,33 @@ import { ormConfig } from './mikro-orm.config';
 import { closeAllDue, closeIfDue } from './services/tender-access';
 
 /**
+ * Lowers every thread of this process to `niceness` (Linux keeps a niceness per thread); threads
+ * started later (the solver pool's) inherit it from the main thread. Elsewhere, the process. Never
+ * raises a priority: a worker started with `nice -n 15` stays there.
+ */
+function lowerPriority(niceness: number): void {
+  let tids: number[];
+  try {
+    tids = readdirSync('/proc/self/task').map(Number);
+  } catch {
+    tids = [0];
+  }
+  for (const tid of tids) {
+    try {
+      if (getPriority(tid) < niceness) setPriority(tid, niceness);
+    } catch {
+      // The thread ended meanwhile: nothing to lower.
+    }
+  }
+}
+
+/**
  * `npm run worker`: a process that only takes jobs (solves, mail, closings) from the PostgreSQL
  * queue. Start as many as you like, on any machine that reaches the database (DATABASE_URL).
  */
 async function main(): Promise<void> {
   const config = loadConfig();
+  lowerPriority(config.workerNice);
   const orm = await MikroORM.init(ormConfig(config.databaseUrl));
   const boss = createBoss(config.databaseUrl);
   await boss.start();
@@ -28,7 +52,7 @@ async function main(): Promise<void> {
   });
   await startSolveWorker(boss, orm, config.solveConcurrency);
   await startNoticeWorker(boss, orm, mailer);
-  logger.info({ pid: process.pid, solveConcurrency: config.solveConcurrency }, 'worker ready');
+  logger.info({ pid: process.pid, solveConcurrency: config.solveConcurrency, niceness: config.workerNice }, 'worker ready');
   const stop = async (signal: string) => {
     logger.info({ signal }, 'worker stopping');
     await boss.stop({ graceful: true, wait: true, timeout: 10_000 });

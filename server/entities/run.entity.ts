@@ -34,7 +34,11 @@ export class Run extends BaseEntity {
   @Property({ type: 'integer' })
   timeLimitSeconds!: number;
 
-  @Property({ type: 'json' })
+  /**
+   * Lazy: 30 vendors × 200 regions is ~80 kB of JSON that run lists and status polls do not need
+   * (bench:queue); load it with `populate: ['problem']`.
+   */
+  @Property({ type: 'json', lazy: true })
   problem!: AwardProblem;
 
   @Property({ type: 'string', length: 64 })

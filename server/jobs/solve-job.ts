@@ -21,7 +21,7 @@ export async function solveRun(orm: MikroORM, runId: string): Promise<void> {
        where id = ? and status in ('queued', 'solving') returning id`, [runId],
   );
   if (!claimed.length) return;
-  const run = await em.findOneOrFail(Run, { id: runId });
+  const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
 
   const controller = new AbortController();
   const watch = setInterval(() => {

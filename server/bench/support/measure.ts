@@ -29,6 +29,15 @@ export interface DriveOptions {
   body?: string;
   requests?: autocannon.AutocannonRequest[];
   expectStatus?: number;
+  /** Stops the phase early when this settles (e.g. a steady load until some work is done). */
+  stopWhen?: Promise<unknown>;
+}
+
+const active = new Set<autocannon.Instance>();
+
+/** Stops every load still running (on Ctrl-C: a server waits for its open connections to close). */
+export function stopLoads(): void {
+  for (const instance of active) instance.stop();
 }
 
 function empty(label: string): Phase {
@@ -48,8 +57,16 @@ async function one(opts: DriveOptions, into: Phase): Promise<void> {
   });
   // With `amount` autocannon ignores `duration`: the time bound is kept here.
   const cap = setTimeout(() => instance.stop(), opts.maxSeconds * 1000);
-  const result = await instance;
-  clearTimeout(cap);
+  const stop = () => instance.stop();
+  opts.stopWhen?.then(stop, stop);
+  active.add(instance);
+  let result: autocannon.Result;
+  try {
+    result = await instance;
+  } finally {
+    active.delete(instance);
+    clearTimeout(cap);
+  }
   into.errors += result.errors + result.timeouts;
 }
 

@@ -8,6 +8,9 @@ import path from 'node:path';
 export interface Proc {
   name: string;
   child: ChildProcess;
+  /** Its log file, and the size the file had when this process started (logs of a name append). */
+  logFile: string;
+  logStart: number;
   stop(): Promise<void>;
 }
 
@@ -38,7 +41,9 @@ export const SESSION_SECRET = randomBytes(32).toString('hex');
 function launch(name: string, script: string, env: Record<string, string>): Proc {
   const { databaseUrl, dir } = benchEnv();
   // The JSON log lines go to a file in the throwaway folder: logging stays on, as in production.
-  const log = fs.openSync(path.join(dir, `${name}.log`), 'a');
+  const logFile = path.join(dir, `${name}.log`);
+  const log = fs.openSync(logFile, 'a');
+  const logStart = fs.fstatSync(log).size;
   // BENCH_NODE_ARGS passes flags to the measured processes, e.g. "--cpu-prof --cpu-prof-dir=/tmp/prof"
   // to see where their time goes (NODE_OPTIONS refuses --cpu-prof).
   const nodeArgs = (process.env['BENCH_NODE_ARGS'] ?? '').split(' ').filter(Boolean);
@@ -50,6 +55,8 @@ function launch(name: string, script: string, env: Record<string, string>): Proc
   const proc: Proc = {
     name,
     child,
+    logFile,
+    logStart,
     stop: () =>
       new Promise<void>((resolve) => {
         running.delete(proc);
@@ -97,6 +104,19 @@ export async function startServer(env: Record<string, string> = {}): Promise<{ p
 /** Starts `node dist/server/worker.js` (jobs only). */
 export function startWorker(n: number, env: Record<string, string> = {}): Proc {
   return launch(`worker-${n}`, 'worker.js', { SOLVE_CONCURRENCY: '1', ...env });
+}
+
+/** Waits until the process has logged `message` (e.g. 'worker ready'); fails if it exits or takes too long. */
+export async function waitForLog(proc: Proc, message: string, timeoutMs = 60_000): Promise<void> {
+  const needle = `"msg":${JSON.stringify(message)}`;
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const text = fs.readFileSync(proc.logFile).subarray(proc.logStart).toString('utf8');
+    if (text.includes(needle)) return;
+    if (proc.child.exitCode !== null) throw new Error(`${proc.name} exited before logging "${message}"; see ${proc.logFile}`);
+    if (Date.now() > deadline) throw new Error(`${proc.name} did not log "${message}" within ${timeoutMs / 1000} s; see ${proc.logFile}`);
+    await new Promise((r) => setTimeout(r, 200));
+  }
 }
 
 export async function stopAll(): Promise<void> {

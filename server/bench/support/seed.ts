@@ -146,3 +146,29 @@ export async function seedBenchData(databaseUrl: string, vendorCount = 200): Pro
     await db.end();
   }
 }
+
+/**
+ * Closed 200-region tenders with identical submitted bids from the given vendors (each priced with
+ * the same generator seed): the queue benchmark solves the same problems on a tender of its own in
+ * each set-up, so one set-up's runs never show in the next one's run list.
+ */
+export async function seedClosedTwins(databaseUrl: string, buyerEmail: string, orgIds: string[], count: number): Promise<SeededTender[]> {
+  const db = new Client({ connectionString: databaseUrl });
+  await db.connect();
+  try {
+    const buyer = await db.query<{ id: string }>(`select id from app_user where email = $1`, [buyerEmail]);
+    if (!buyer.rows[0]) throw new Error(`no buyer ${buyerEmail}: seed the benchmark data first`);
+    const out: SeededTender[] = [];
+    for (let k = 1; k <= count; k++) {
+      const t = await createTender(db, buyer.rows[0].id, {
+        reference: `BENCH-TWIN${k}`, title: `Road salt, whole network (copy ${k})`, status: 'closed', closesInMinutes: -60, regions: 200, invite: orgIds,
+      });
+      await submitBids(db, t, orgIds, prng(11));
+      out.push(t);
+    }
+    await db.query('analyze');
+    return out;
+  } finally {
+    await db.end();
+  }
+}

@@ -6,7 +6,7 @@ import { ConflictError, NotFoundError, ValidationError } from '../../http/errors
 import { evaluableTender, queueRun, runSummary, type EvaluationDeps } from './scenarios.service';
 
 export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
-  const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender'] });
+  const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender', 'problem'] });
   if (!run) throw new NotFoundError('The run');
   await evaluableTender(em, user, run.tender.id);
   return run;
