@@ -6,15 +6,33 @@ import { ConflictError, NotFoundError, ValidationError } from '../../http/errors
 import { evaluableTender, queueRun, runSummary, type EvaluationDeps } from './scenarios.service';
 
 export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
-  const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender', 'problem'] });
+  const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender'] });
   if (!run) throw new NotFoundError('The run');
   await evaluableTender(em, user, run.tender.id);
   return run;
 }
 
+/**
+ * The names of the vendors and regions a run solved for, read out of its stored problem by
+ * PostgreSQL: the run screen polls every second, and parsing the whole problem (every price) for
+ * each poll took the web server's CPU from everyone else while runs solved (bench:queue).
+ */
+async function namesOf(em: EntityManager, runId: string): Promise<Pick<RunView, 'vendors' | 'regions'>> {
+  const [row] = await em.execute<{ vendors: RunView['vendors'] | null; regions: Record<string, { name: string; forecast: number | string }> | null }[]>(
+    `select (select json_object_agg(v->>'id', json_build_object('name', coalesce(v->>'name', v->>'id'), 'sme', coalesce((v->>'sme')::boolean, false)) order by n)
+               from jsonb_array_elements(problem->'vendors') with ordinality as e(v, n)) as vendors,
+            (select json_object_agg(r->>'id', json_build_object('name', coalesce(r->>'name', r->>'id'), 'forecast', (r->>'demand')::numeric) order by n)
+               from jsonb_array_elements(problem->'regions') with ordinality as e(r, n)) as regions
+       from run where id = ?`,
+    [runId],
+  );
+  const regions = Object.fromEntries(Object.entries(row?.regions ?? {}).map(([id, r]) => [id, { name: r.name, forecast: Number(r.forecast) }]));
+  return { vendors: row?.vendors ?? {}, regions };
+}
+
 export async function runView(em: EntityManager, user: User, runId: string): Promise<RunView> {
   const run = await findRun(em, user, runId);
-  const p = run.problem;
+  const names = await namesOf(em, runId);
   return {
     ...runSummary(run),
     tenderId: run.tender.id,
@@ -22,8 +40,7 @@ export async function runView(em: EntityManager, user: User, runId: string): Pro
     unit: run.tender.unit,
     inputDigest: run.inputDigest,
     result: run.result ?? null,
-    vendors: Object.fromEntries(p.vendors.map((v) => [v.id, { name: v.name ?? v.id, sme: v.sme ?? false }])),
-    regions: Object.fromEntries(p.regions.map((r) => [r.id, { name: r.name ?? r.id, forecast: r.demand }])),
+    ...names,
   };
 }
 
@@ -101,7 +118,7 @@ export async function resilienceOf(em: EntityManager, user: User, runId: string)
   const run = await findRun(em, user, runId);
   const children = await em.find(Run, { parent: run }, { orderBy: { createdAt: 'asc' } });
   const base = run.result?.objective ?? null;
-  const names = new Map(run.problem.vendors.map((v) => [v.id, v.name ?? v.id]));
+  const names = new Map(Object.entries((await namesOf(em, run.id)).vendors).map(([id, v]) => [id, v.name]));
   const rows = children.map((c) => {
     const obj = usable(c.result) ? c.result!.objective! : null;
     const increase = obj !== null && base !== null ? obj - base : null;
