@@ -36,6 +36,10 @@ export function solverPool(file = 'highs-worker.mjs'): Piscina {
       maxThreads: Math.max(2, Number(process.env.AWARD_SOLVER_THREADS) || 2),
       minThreads: 0,
       idleTimeout: 10_000,
+      // Node 20.19+ lets require() load an ES module, and piscina tries require() first; that path
+      // once aborted a whole test run (an assertion in Node's require(esm) facade). Without it,
+      // require() refuses the .mjs worker and piscina falls back to import(), the plain way.
+      execArgv: [...process.execArgv, '--no-experimental-require-module'],
     });
     pools.set(file, pool);
   }

@@ -9,7 +9,7 @@ for (const file of process.argv.slice(2)) {
   try {
     report = JSON.parse(fs.readFileSync(file, 'utf8'));
   } catch {
-    console.error(`[tendara] no readable test report in ${file}`);
+    console.error(`[tendara] no readable test report in ${file}: that test run ended abnormally (see its output above)`);
     failed += 1;
     continue;
   }
