@@ -240,10 +240,11 @@ export async function bidsOf(em: EntityManager, user: User, tenderId: string): P
 }
 
 /**
- * One query, prices gathered per bid by PostgreSQL: hydrating 30 bids × 200 lines × their regions
- * as entities took over a second per request (bench:api, phase c).
+ * Every live (submitted or revised) bid of the tender, by vendor name: the tabulation, and the
+ * award problem of a run. One query, prices gathered per bid by PostgreSQL: hydrating 30 bids ×
+ * 200 lines × their regions as entities took over a second per request (bench:api, phase c).
  */
-async function tabulate(em: EntityManager, tender: Tender): Promise<TabulatedBid[]> {
+export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): Promise<TabulatedBid[]> {
   const rows = await em.execute<{
     vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
     submitted_at: Date | string; digest: string; document_id: string | null; prices: Record<string, number | string> | null;
