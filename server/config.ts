@@ -33,6 +33,12 @@ const envSchema = z.object({
    * solver's helper threads set themselves, so they still give way to the main run.
    */
   WORKER_NICE: z.coerce.number().int().min(0).max(9).default(5),
+  /**
+   * Scheduling class of a jobs-only process on Linux. `idle` (default): SCHED_IDLE, set with
+   * `chrt --idle` on every thread, so the solves only take CPU nothing else wants and the web
+   * server and PostgreSQL are never kept waiting by them; `normal`: the usual class at WORKER_NICE.
+   */
+  WORKER_SCHED: z.enum(['idle', 'normal']).default('idle'),
 });
 
 export type Config = {
@@ -51,6 +57,7 @@ export type Config = {
   runWorkers: boolean;
   solveConcurrency: number;
   workerNice: number;
+  workerSched: 'idle' | 'normal';
 };
 
 /** Reads the environment; throws one error listing every bad variable. */
@@ -77,5 +84,6 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     runWorkers: e.RUN_WORKERS === '1',
     solveConcurrency: e.SOLVE_CONCURRENCY,
     workerNice: e.WORKER_NICE,
+    workerSched: e.WORKER_SCHED,
   };
 }

@@ -8,9 +8,9 @@ import { BENCH_PASSWORD, seedBenchData, seedClosedTwins } from './support/seed';
 
 /**
  * `npm run bench:queue [-- --workers 1,2] [--runs 20] [--time-limit 20] [--poll-seconds 1]
- * [--worker-nice 5,5] [--timeout-minutes 30]`: the solve queue under load, on a throwaway cluster
- * (support/with-cluster.sh). `--workers 2,2 --worker-nice 0,5` compares the workers' priorities
- * side by side.
+ * [--worker-nice 5,5] [--worker-sched idle,normal] [--timeout-minutes 30]`: the solve queue under
+ * load, on a throwaway cluster (support/with-cluster.sh). `--workers 2,2 --worker-sched normal,idle`
+ * (or `--worker-nice 0,5`) compares the workers' scheduling side by side.
  *
  * The web server runs with RUN_WORKERS=0 (it only answers HTTP); solves are taken by one, then two,
  * jobs-only processes (`node dist/server/worker.js`, SOLVE_CONCURRENCY=1 each). Each set-up has a
@@ -31,6 +31,8 @@ const TIME_LIMIT = Number(arg('time-limit', '20'));
 const TIMEOUT_MINUTES = Number(arg('timeout-minutes', '30'));
 /** The workers' niceness per set-up (worker.ts, WORKER_NICE), e.g. `--workers 2,2 --worker-nice 0,5`; else their default. */
 const NICE = process.argv.includes('--worker-nice') ? arg('worker-nice', '').split(',') : [];
+/** The workers' scheduling class per set-up (worker.ts, WORKER_SCHED: idle or normal); else their default. */
+const SCHED = process.argv.includes('--worker-sched') ? arg('worker-sched', '').split(',') : [];
 /** The steady load on GET /api/session: a few connections at a fixed rate, light for the server. */
 const LOAD = { connections: 2, overallRate: 20 };
 const IDLE_SECONDS = 20;
@@ -39,7 +41,8 @@ const POLL_MS = Number(arg('poll-seconds', '1')) * 1000;
 
 interface SetupResult {
   workers: number;
-  nice: string | null;
+  /** The workers' environment beyond the defaults (WORKER_NICE, WORKER_SCHED). */
+  env: Record<string, string>;
   runs: RunView[];
   queueSeconds: number;
   idle: Summary;
@@ -60,18 +63,19 @@ function secondsLeft(until: number, what: string): number {
   return left;
 }
 
-const setupName = (w: number, nice: string | null) => `${w} worker${w > 1 ? 's' : ''}${nice === null ? '' : `, nice ${nice}`}`;
+const setupName = (w: number, env: Record<string, string>) => `${w} worker${w > 1 ? 's' : ''}${env.WORKER_NICE === undefined ? '' : `, nice ${env.WORKER_NICE}`}${env.WORKER_SCHED === undefined ? '' : `, ${env.WORKER_SCHED}`}`;
+const workerEnv = (k: number): Record<string, string> => ({ ...(NICE[k] ? { WORKER_NICE: NICE[k] } : {}), ...(SCHED[k] ? { WORKER_SCHED: SCHED[k] } : {}) });
 const log = (line: string) => process.stdout.write(`[bench] ${line}\n`);
 
 function sessionLoad(url: string, buyer: Session, label: string, maxSeconds: number, stopWhen?: Promise<unknown>) {
   return drive(label, { url: `${url}/api/session`, ...LOAD, maxSeconds, headers: headersOf(buyer), ...(stopWhen ? { stopWhen } : {}) });
 }
 
-async function runSetup(databaseUrl: string, url: string, buyer: Session, tenderId: string, scenarioIds: string[], workers: number, nice: string | null, deadline: number): Promise<SetupResult> {
+async function runSetup(databaseUrl: string, url: string, buyer: Session, tenderId: string, scenarioIds: string[], workers: number, env: Record<string, string>, deadline: number): Promise<SetupResult> {
   const procs: Proc[] = [];
-  for (let k = 1; k <= workers; k++) procs.push(startWorker(k, nice === null ? {} : { WORKER_NICE: nice }));
+  for (let k = 1; k <= workers; k++) procs.push(startWorker(k, env));
   await Promise.all(procs.map((p) => waitForLog(p, 'worker ready')));
-  const name = setupName(workers, nice);
+  const name = setupName(workers, env);
   secondsLeft(deadline - IDLE_SECONDS * 1000, `before ${name}`);
   log(`${name} ready; ${IDLE_SECONDS} s of GET /api/session with the queue idle`);
   const idle = summarise(await sessionLoad(url, buyer, `${name}: idle`, IDLE_SECONDS));
@@ -103,7 +107,7 @@ async function runSetup(databaseUrl: string, url: string, buyer: Session, tender
     listMs.push(performance.now() - s);
   }
   const jobLag = await jobLagSeconds(databaseUrl, runIds);
-  return { workers, nice, runs, queueSeconds, idle, queueing, solving, pollMs, listMs: percentile(listMs, 50), jobLag };
+  return { workers, env, runs, queueSeconds, idle, queueing, solving, pollMs, listMs: percentile(listMs, 50), jobLag };
 }
 
 const fmt = (n: number | null, digits = 1) => (n === null || Number.isNaN(n) ? '-' : n.toFixed(digits));
@@ -132,28 +136,28 @@ function report(results: SetupResult[]): void {
     ['set-up', 'runs', 'total min', 'runs/min', 'longest wait s', 'median solve s', 'session p95 idle ms', 'p95 solving ms', 'ratio'],
     results.map((r) => {
       const f = figures(r);
-      return [setupName(r.workers, r.nice), r.runs.length, fmt(f.minutes, 2), fmt(f.perMinute, 2), fmt(f.longestWait), fmt(f.medianSolve), fmt(r.idle.p95), fmt(r.solving.p95), fmt(r.solving.p95 / r.idle.p95, 2)];
+      return [setupName(r.workers, r.env), r.runs.length, fmt(f.minutes, 2), fmt(f.perMinute, 2), fmt(f.longestWait), fmt(f.medianSolve), fmt(r.idle.p95), fmt(r.solving.p95), fmt(r.solving.p95 / r.idle.p95, 2)];
     }),
   ));
   out.push('GET /api/session: idle; while the 20 POSTs are answered (runs already solving); after that, until all have finished');
   out.push(summaryTable(results.flatMap((r) => [r.idle, r.queueing, r.solving])));
   for (const r of results) {
     const ok = r.solving.p95 <= 2 * r.idle.p95;
-    out.push(`target: session p95 during solves <= 2 x idle (${setupName(r.workers, r.nice)}) ... ${ok ? 'met' : 'MISSED'} (${fmt(r.solving.p95)} vs ${fmt(2 * r.idle.p95)} ms)`);
+    out.push(`target: session p95 during solves <= 2 x idle (${setupName(r.workers, r.env)}) ... ${ok ? 'met' : 'MISSED'} (${fmt(r.solving.p95)} vs ${fmt(2 * r.idle.p95)} ms)`);
   }
   for (const r of results) {
     const awarded = r.runs.every((x) => x.status === 'optimal' || x.status === 'feasible');
-    out.push(`runs, ${setupName(r.workers, r.nice)}: ${statusCounts(r)} ... ${awarded ? 'all finished with an award' : 'NOT ALL AWARDED'}`);
+    out.push(`runs, ${setupName(r.workers, r.env)}: ${statusCounts(r)} ... ${awarded ? 'all finished with an award' : 'NOT ALL AWARDED'}`);
   }
   out.push('');
   out.push(table(
     ['set-up', 'queueing s', 'session p95 queueing ms', 'row -> job median s', 'row -> job max s', 'GET run p50 ms', 'GET run max ms', 'GET run list ms'],
     results.map((r) => [
-      setupName(r.workers, r.nice), fmt(r.queueSeconds), fmt(r.queueing.p95), fmt(percentile(r.jobLag, 50)), fmt(Math.max(...r.jobLag)),
+      setupName(r.workers, r.env), fmt(r.queueSeconds), fmt(r.queueing.p95), fmt(percentile(r.jobLag, 50)), fmt(Math.max(...r.jobLag)),
       fmt(percentile(r.pollMs, 50)), fmt(Math.max(...r.pollMs)), fmt(r.listMs),
     ]),
   ));
-  out.push(`Per scenario (${results.map((r, k) => `#${k + 1} = ${setupName(r.workers, r.nice)}`).join(', ')}): status, wait (queued -> started), solve (started -> finished) and the engine's own seconds`);
+  out.push(`Per scenario (${results.map((r, k) => `#${k + 1} = ${setupName(r.workers, r.env)}`).join(', ')}): status, wait (queued -> started), solve (started -> finished) and the engine's own seconds`);
   const byScenario = (r: SetupResult, scenario: string) => {
     const x = r.runs.find((y) => y.scenarioName === scenario);
     if (!x) return ['-', '-', '-', '-'];
@@ -170,6 +174,7 @@ function report(results: SetupResult[]): void {
 async function main(): Promise<void> {
   if (!SETUPS.length || !SETUPS.every((n) => Number.isInteger(n) && n >= 1 && n <= 4)) throw new Error('--workers: a list of worker counts from 1 to 4, e.g. 1,2');
   if (NICE.length && (NICE.length !== SETUPS.length || NICE.some((n) => !/^\d$/.test(n)))) throw new Error('--worker-nice: one niceness from 0 to 9 per set-up, e.g. --workers 2,2 --worker-nice 0,5');
+  if (SCHED.length && (SCHED.length !== SETUPS.length || SCHED.some((c) => c !== 'idle' && c !== 'normal'))) throw new Error('--worker-sched: idle or normal per set-up, e.g. --workers 2,2 --worker-sched normal,idle');
   if (!(Number.isInteger(RUNS) && RUNS >= 1 && RUNS <= 20)) throw new Error('--runs: a whole number from 1 to 20');
   if (!(POLL_MS >= 200 && POLL_MS <= 60_000)) throw new Error('--poll-seconds: 0.2 to 60');
   if (!(TIMEOUT_MINUTES >= 1 && TIMEOUT_MINUTES <= 120)) throw new Error('--timeout-minutes: 1 to 120');
@@ -191,7 +196,7 @@ async function main(): Promise<void> {
   await sessionLoad(url, buyer, 'warm-up', 5);
 
   const results: SetupResult[] = [];
-  for (const [k, workers] of SETUPS.entries()) results.push(await runSetup(databaseUrl, url, buyer, tenders[k]!.id, scenarioIds[k]!, workers, NICE[k] ?? null, deadline));
+  for (const [k, workers] of SETUPS.entries()) results.push(await runSetup(databaseUrl, url, buyer, tenders[k]!.id, scenarioIds[k]!, workers, workerEnv(k), deadline));
   report(results);
 }
 

@@ -1,4 +1,5 @@
 import { spawn, type ChildProcess } from 'node:child_process';
+import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { Bid, BidLine, Invitation, Region, Run, Scenario, Tender, VendorOrganisation } from '../../server/entities';
 import { makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
@@ -21,6 +22,21 @@ function startWorker(): ChildProcess {
   });
   workers.push(child);
   return child;
+}
+
+/** Linux's number for SCHED_IDLE (sched.h), as /proc/PID/task/TID/stat reports it. */
+const SCHED_IDLE = 5;
+
+/** The scheduling policy of every thread of a process (field 41 of /proc/PID/task/TID/stat). */
+function schedulingPolicies(pid: number): Set<number> {
+  const policies = new Set<number>();
+  for (const tid of readdirSync(`/proc/${pid}/task`)) {
+    const stat = readFileSync(`/proc/${pid}/task/${tid}/stat`, 'utf8');
+    // Fields after the command name, which is in parentheses and may hold spaces: field 3 onwards.
+    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
+    policies.add(Number(fields[41 - 3]));
+  }
+  return policies;
 }
 
 beforeAll(async () => {
@@ -69,6 +85,9 @@ test('a worker killed mid-run: the run is retried by another worker and complete
     if (run.status === 'solving') break;
     await new Promise((r) => setTimeout(r, 50));
   }
+  // Meanwhile every thread of the worker, its solver threads included, is in Linux's SCHED_IDLE
+  // class (WORKER_SCHED=idle, the default), so the solve only takes CPU nothing else wants.
+  if (process.platform === 'linux') expect(schedulingPolicies(first.pid!)).toEqual(new Set([SCHED_IDLE]));
   first.kill('SIGKILL');
   await new Promise((r) => first.once('exit', r));
   expect((await t.em().findOneOrFail(Run, { id: runId })).status).toBe('solving');
