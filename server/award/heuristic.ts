@@ -131,8 +131,12 @@ export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map:
   return satisfiesRows(model, x) ? x : null;
 }
 
-/** True when x meets every bound and row of the model (tolerance 1e-7, relative to the row). */
-function satisfiesRows(model: MipModel, x: Float64Array): boolean {
+/**
+ * True when x meets every bound and row of the model (tolerance 1e-7, relative to the row). The
+ * neighbourhood-search worker has its own copy (workers/neighbourhoods.mjs: plain ESM cannot import
+ * this file); the tests hold its awards to this one.
+ */
+export function satisfiesRows(model: MipModel, x: Float64Array): boolean {
   for (let c = 0; c < model.numCols; c++) {
     if (x[c] < model.colLower[c] - 1e-9 || x[c] > model.colUpper[c] + 1e-7 * Math.max(1, model.colUpper[c])) return false;
   }

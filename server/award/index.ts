@@ -18,8 +18,9 @@ export interface SolveAwardOptions {
   /** Overrides the problem's `options.timeLimitSeconds`. */
   timeLimitSeconds?: number;
   /**
-   * `tendara` (default): glpk.js and HiGHS started together, sharing awards, and with cores to
-   * spare a second HiGHS run on a model reduced with the best award so far (portfolio.ts); or one
+   * `tendara` (default): glpk.js and HiGHS started together, sharing awards, then on larger
+   * models a large neighbourhood search improving the best award, and with cores to spare a
+   * second HiGHS run on a model reduced with the best award so far (portfolio.ts); or one
    * engine alone, unseeded (`glpk`, `highs`), as the benchmark's baselines.
    */
   engine?: EngineId;
@@ -47,7 +48,7 @@ export async function solveAward(input: unknown, options: SolveAwardOptions = {}
   const engineId = options.engine ?? 'tendara';
   const engine: SolverEngine = engineId === 'tendara' ? portfolioEngine : plainEngines[engineId];
   const outcome = await engine.solve({
-    model, timeLimitSeconds: timeLimit, relativeGap: inst.relativeGap, signal: options.signal,
+    model, map, timeLimitSeconds: timeLimit, relativeGap: inst.relativeGap, signal: options.signal,
     // Only the combined engine is seeded, so `glpk` and `highs` stay the plain solvers the benchmark compares against.
     seed: engineId === 'tendara' ? (signal) => greedyIncumbent(inst, model, map, 1000, signal) : undefined,
   });

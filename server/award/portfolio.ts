@@ -1,7 +1,7 @@
 import { availableParallelism } from 'node:os';
 import { bestAward, newBoard, publishAward } from './award-board';
 import { asFullModel, costOf, fixByReducedCost } from './reduced-model';
-import { GLPK_WORKER, HIGHS_WORKER, runInWorker, type EngineOutcome, type EngineRequest, type RelaxationOutcome, type SolverEngine } from './solve';
+import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome, type EngineRequest, type RelaxationOutcome, type SolverEngine } from './solve';
 
 /**
  * The Tendara engine (see MODEL.md, "Solving"). The runs share every award they find through a
@@ -10,6 +10,9 @@ import { GLPK_WORKER, HIGHS_WORKER, runInWorker, type EngineOutcome, type Engine
  *    here), for a short share of the limit, at a lower thread priority;
  *  - HiGHS A on the model as built, started at the same moment: nothing waits in front of it, so
  *    on problems HiGHS proves in well under a second the engine is as fast as HiGHS alone;
+ *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
+ *    (workers/lns-worker.mjs) on the core glpk.js leaves free, at the lowest thread priority: it
+ *    improves the best award on the board and publishes what it finds, so HiGHS A prunes with it;
  *  - HiGHS B, when cores are to spare, once glpk.js stops: LP relaxation (proven bound, reduced
  *    costs), the best award so far (glpk.js, HiGHS A, or else a greedy award), reduced-cost
  *    fixing with its cost, then HiGHS with another seed on that smaller, seeded model.
@@ -26,6 +29,9 @@ const FIXING = 'HiGHS on the model reduced by LP reduced-cost fixing';
 // 23 s for HiGHS alone), and stopping A to restart on the reduced, seeded model lost more than
 // it won (p59, p62, p66: 5–6 s slower each). So on two cores HiGHS A goes on alone.
 const SPARE_CORES = availableParallelism() > 2;
+// The neighbourhood search starts only on models of this many columns or more: smaller ones are
+// proven by glpk.js or HiGHS A within a second or two, before it could help.
+const LNS_MIN_COLUMNS = 1000;
 
 const decisive = (o: EngineOutcome) => o.status === 'optimal' || o.status === 'infeasible';
 
@@ -61,13 +67,31 @@ async function reducedRun(request: EngineRequest, board: SharedArrayBuffer, dead
   return asFullModel(o, incumbent, upper, lower, `${FIXING}, seeded with ${source === 'greedy' ? 'the greedy award' : 'the best award so far'}`);
 }
 
+/**
+ * The large neighbourhood search (workers/lns-worker.mjs) over the board's best award, to the
+ * deadline. It starts from the greedy award when that is cheaper than what the board holds (often
+ * glpk.js's award at this point, far from optimal: neighbourhoods of a poor award are slow to
+ * solve and gain little each). The greedy award is built on this thread (it yields to the event
+ * loop after every round and stops after a second) while the core is free.
+ */
+async function neighbourhoodRun(request: EngineRequest, board: SharedArrayBuffer, deadline: number, signal: AbortSignal): Promise<EngineOutcome> {
+  const { model, map } = request;
+  if (!map || model.numCols < LNS_MIN_COLUMNS) throw new Error('no neighbourhood search on a small model');
+  signal.throwIfAborted();
+  const greedy = await request.seed?.(signal).catch(() => null);
+  if (greedy) publishAward(board, costOf(model, greedy), greedy);
+  signal.throwIfAborted();
+  const seconds = Math.max(0.5, (deadline - performance.now()) / 1000);
+  return runInWorker(LNS_WORKER, { model, structure: { open: map.open, supply: map.supply }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000, randomSeed: 20_260 }, signal);
+}
+
 export const portfolioEngine: SolverEngine = {
   id: 'tendara',
   async solve(request) {
     const { model, relativeGap, timeLimitSeconds } = request;
     const started = performance.now();
     const deadline = started + timeLimitSeconds * 1000;
-    const stops = [new AbortController(), new AbortController(), new AbortController()];
+    const stops = [new AbortController(), new AbortController(), new AbortController(), new AbortController()];
     const cancel = () => stops.forEach((c) => c.abort(request.signal?.reason));
     request.signal?.addEventListener('abort', cancel, { once: true });
     const board = newBoard(model);
@@ -79,20 +103,22 @@ export const portfolioEngine: SolverEngine = {
       // busy machine it does not slow HiGHS A down.
       const highsA = runInWorker(HIGHS_WORKER, { model, timeLimitSeconds, relativeGap, board, randomSeed: 0, incumbent: request.incumbent }, stops[1].signal);
       const glpk = runInWorker(GLPK_WORKER, { model, timeLimitSeconds: glpkLimit, relativeGap }, stops[0].signal);
-      const highsB = (async () => {
-        // B starts when glpk.js stops, so three runs never compete for two cores at once.
-        const g = await glpk.catch(() => null);
+      // Runs that start when glpk.js stops, so that glpk.js and they never compete for a core.
+      const afterGlpk = glpk.catch(() => null).then((g) => {
         if (g && decisive(g)) throw new Error('glpk.js finished first');
         if (g?.values && g.objective !== null) publishAward(board, g.objective, g.values);
+      });
+      const highsB = afterGlpk.then(() => {
         if (!SPARE_CORES) throw new Error('no core to spare for a second HiGHS run');
         stops[2].signal.throwIfAborted();
         return reducedRun(request, board, deadline, stops[2].signal);
-      })();
-      const tagged = [glpk, highsA, highsB].map((p, k) => p.then((o) => ({ k, o }), (error: unknown) => {
+      });
+      const lns = afterGlpk.then(() => neighbourhoodRun(request, board, deadline, stops[3].signal));
+      const tagged = [glpk, highsA, highsB, lns].map((p, k) => p.then((o) => ({ k, o }), (error: unknown) => {
         if (request.signal?.aborted) throw error;
         return { k, o: null as EngineOutcome | null };
       }));
-      const pending = new Set([0, 1, 2]);
+      const pending = new Set([0, 1, 2, 3]);
       const done: EngineOutcome[] = [];
       while (pending.size > 0) {
         const { k, o } = await Promise.race(tagged.filter((_, i) => pending.has(i)));

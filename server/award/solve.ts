@@ -1,4 +1,4 @@
-import type { MipModel } from './model';
+import type { MipModel, ModelMap } from './model';
 import { solverPool, workerFile } from './workers';
 
 /** What one engine run reports back; `values` is the full column vector of the model. */
@@ -21,6 +21,8 @@ export interface EngineRequest {
   signal?: AbortSignal;
   /** A feasible column vector to seed the search (engines that cannot use it ignore it). */
   incumbent?: Float64Array;
+  /** Where the vendors' and regions' columns are (the combined engine's neighbourhood search needs it). */
+  map?: ModelMap;
   /** Computes a seed on demand (the combined engine calls it only when no run has an award yet); stops when `signal` aborts. */
   seed?: (signal?: AbortSignal) => Promise<Float64Array | null>;
 }
@@ -58,7 +60,7 @@ export async function runInWorker<T extends EngineOutcome>(file: string, payload
   } catch (err) {
     if (signal?.aborted) throw signal.reason ?? err;
     const message = err instanceof Error ? err.message : String(err);
-    return { status: 'failed', values: null, objective: null, bound: null, boundSource: null, seconds: (performance.now() - started) / 1000, engine: file.startsWith('glpk') ? 'glpk.js' : 'HiGHS', message } as T;
+    return { status: 'failed', values: null, objective: null, bound: null, boundSource: null, seconds: (performance.now() - started) / 1000, engine: file === GLPK_WORKER ? 'glpk.js' : 'HiGHS', message } as T;
   } finally {
     clearTimeout(watchdog);
     signal?.removeEventListener('abort', onAbort);
@@ -67,6 +69,7 @@ export async function runInWorker<T extends EngineOutcome>(file: string, payload
 
 export const GLPK_WORKER = 'glpk-worker.mjs';
 export const HIGHS_WORKER = 'highs-worker.mjs';
+export const LNS_WORKER = 'lns-worker.mjs';
 
 /** glpk.js alone on the model as built (the default engine's first solver, and a baseline). */
 export const glpkEngine: SolverEngine = {

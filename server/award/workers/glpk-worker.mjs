@@ -1,25 +1,17 @@
 // Solver worker for glpk.js. Plain ESM on purpose: glpk.js is an ES module that jest 30 on
 // Node 20 cannot import, and piscina loads this file by absolute path from source or build alike.
 import GLPK from 'glpk.js/node';
-import { readFileSync, readlinkSync } from 'node:fs';
+import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
-import { setPriority } from 'node:os';
 import { dirname, join } from 'node:path';
+import { setThreadPriority } from './low-priority.mjs';
 
 let glpkPromise;
 let label;
 
-// glpk.js races HiGHS in the Tendara engine; on a busy machine both share one CPU allowance, and
-// on the large problems HiGHS proves first, glpk.js would halve its speed. So this thread runs at a
-// lower priority: on a free core glpk.js goes at full speed, on a contended one it yields. Linux
-// applies setpriority to the one thread whose id is given; elsewhere this is skipped. The thread
-// belongs to the glpk.js pool only (workers.ts), so no HiGHS run ever inherits the priority.
-try {
-  const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
-  if (tid > 0) setPriority(tid, 10);
-} catch {
-  // No per-thread priority here: glpk.js simply runs at the normal one.
-}
+// glpk.js races HiGHS in the Tendara engine; on the large problems HiGHS proves first, a glpk.js
+// at normal priority would halve HiGHS's speed on a busy machine (see low-priority.mjs).
+setThreadPriority(10);
 
 function engineLabel(glpk) {
   if (!label) {

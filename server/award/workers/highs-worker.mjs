@@ -1,23 +1,7 @@
 // Solver worker for HiGHS (the `highs` package, HiGHS compiled to WebAssembly). Plain ESM so it
 // is loaded the same way as the glpk.js worker; each worker thread keeps one loaded runtime.
-import loadHighs from 'highs';
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
-import { dirname, join } from 'node:path';
+import { createHighsModel, engineLabel, highsRuntime } from './highs-model.mjs';
 import { boardObjective, publish, read } from './shared-incumbent.mjs';
-
-let highsPromise;
-let label;
-
-function engineLabel(highs) {
-  if (!label) {
-    const require = createRequire(import.meta.url);
-    const pkgDir = dirname(dirname(require.resolve('highs')));
-    const version = JSON.parse(readFileSync(join(pkgDir, 'package.json'), 'utf8')).version;
-    label = `HiGHS ${highs.version.string} via highs ${version}`;
-  }
-  return label;
-}
 
 /** Callbacks that publish this run's improving awards and take in cheaper ones from the board. */
 function sharingCallbacks(highs, board, numCols) {
@@ -43,22 +27,11 @@ function sharingCallbacks(highs, board, numCols) {
  * `relax: true` it solves the LP relaxation instead and also returns the reduced costs.
  */
 export default async function solveWithHighs({ model, timeLimitSeconds, relativeGap, incumbent, relax, board, randomSeed, heuristicEffort, deadlineEpochMs }) {
-  highsPromise ??= loadHighs();
-  const highs = await highsPromise;
+  const highs = await highsRuntime();
   const started = performance.now();
   const engine = engineLabel(highs);
   const isMip = !relax && model.integer.some(Boolean);
-  const m = highs.createModel({
-    numCols: model.numCols,
-    numRows: model.rowNames.length,
-    colCost: model.colCost,
-    colLower: model.colLower,
-    colUpper: model.colUpper,
-    rowLower: model.rowLower.map((v) => (Number.isFinite(v) ? v : -highs.infinity)),
-    rowUpper: model.rowUpper.map((v) => (Number.isFinite(v) ? v : highs.infinity)),
-    matrix: { format: 'csr', numRows: model.rowNames.length, numCols: model.numCols, starts: model.rowStarts, indices: model.rowIndex, values: model.rowValue },
-    ...(isMip ? { integrality: model.integer.map((b) => (b ? 1 : 0)) } : {}),
-  });
+  const m = createHighsModel(highs, model, isMip);
   try {
     m.options.set({ output_flag: false, time_limit: Math.max(0.5, deadlineEpochMs ? Math.min(timeLimitSeconds, (deadlineEpochMs - Date.now()) / 1000) : timeLimitSeconds), mip_rel_gap: relativeGap, mip_abs_gap: 1e-6 });
     if (randomSeed !== undefined) m.options.set('random_seed', randomSeed);

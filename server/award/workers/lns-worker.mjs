@@ -1,0 +1,170 @@
+// Large neighbourhood search over the best award on the shared board (a primal heuristic: it
+// finds cheaper awards, it proves nothing). Each round frees a neighbourhood of the current award
+// (workers/neighbourhoods.mjs), fixes every other integer column at the award's value and solves
+// that sub-problem with HiGHS under a short time limit, seeded with the award itself. A cheaper
+// award that meets every row of the model is published to the board, where the full HiGHS run
+// takes it in at its next user-solution checkpoint and prunes with it. The neighbourhood grows
+// while its sub-problems are solved quickly and shrinks when they hit their limit.
+// The portfolio stops this worker by terminating its thread; on its own it stops at its deadline.
+import { createHighsModel, engineLabel, highsRuntime } from './highs-model.mjs';
+import { setThreadPriority } from './low-priority.mjs';
+import { neighbourhood, prepare, randomSource, readAward, satisfiesRows } from './neighbourhoods.mjs';
+import { publish, read } from './shared-incumbent.mjs';
+
+// A round's sub-problem may use this share of the time limit (between 0.5 and 5 s).
+const ROUND_SHARE = 0.05;
+// Neighbourhood kinds (workers/neighbourhoods.mjs), drawn in these proportions.
+const KINDS = ['vendors', 'vendors', 'vendors', 'regions', 'regions', 'random'];
+// Stalling. While the search finds awards cheaper than any other run has, it runs at a reduced
+// priority (low-priority.mjs: GAINING_STEPS of niceness above its process's). After
+// PATIENCE_ROUNDS rounds and PATIENCE_SECONDS seconds without such a gain it is stalled: lowest
+// priority (niceness 19), and after each round it rests REST_RATIO times as long as the round
+// took, until it gains again. Measured on this two-core machine: one busy thread beside HiGHS A
+// slowed A by 25-75 % on a busy machine, and by 5-10 % on a quiet one (niceness cannot help
+// there: the cores share caches and memory). Always at normal priority the search cost A 7-10 s
+// on instances A proves in 20-45 s (p30, p56); at the lowest priority without resting, 1-3 s on
+// a quiet machine (p32, p62, p66: +2.8, +2.1, +2.6 s); resting as long as it works, 0-1.7 s
+// (same instances, -0.4 to +1.7 s), while it still reached p57's and p58's optima (at 10 s and
+// 31 s instead of 12 s and 21 s).
+const GAINING_STEPS = 5;
+const STALLED_STEPS = 19;
+const PATIENCE_ROUNDS = 8;
+const PATIENCE_SECONDS = 3;
+const REST_RATIO = 1;
+
+function costOf(model, x) {
+  let s = 0;
+  for (let c = 0; c < model.numCols; c++) s += model.colCost[c] * x[c];
+  return s;
+}
+
+/** x with integer columns rounded and every column inside its bounds. */
+function cleaned(model, x) {
+  const y = new Float64Array(model.numCols);
+  for (let c = 0; c < model.numCols; c++) {
+    const v = model.integer[c] ? Math.round(x[c]) : x[c];
+    y[c] = Math.min(model.colUpper[c], Math.max(model.colLower[c], v));
+  }
+  return y;
+}
+
+const sleeper = new Int32Array(new SharedArrayBuffer(4));
+const sleep = (ms) => Atomics.wait(sleeper, 0, 0, ms);
+
+/** Sleeps `seconds` (never past the deadline), in short steps so that a terminate is never kept waiting long. */
+function rest(seconds, deadline) {
+  const until = Math.min(Date.now() + seconds * 1000, deadline - 200);
+  for (let left = until - Date.now(); left > 0; left = until - Date.now()) sleep(Math.min(200, left));
+}
+
+/**
+ * Runs until the deadline, or `maxRounds` sub-problems, or until the thread is terminated.
+ * `structure` is the model's map of vendor and region columns; `board` the shared award board.
+ * Returns the best award it holds.
+ */
+export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity }) {
+  // A thread of this pool may have ended its last search at the lowest priority.
+  setThreadPriority(GAINING_STEPS);
+  const highs = await highsRuntime();
+  const started = performance.now();
+  const engine = `${engineLabel(highs)}, large neighbourhood search`;
+  const deadline = Math.min(deadlineEpochMs ?? Infinity, Date.now() + timeLimitSeconds * 1000);
+  const eps = (v) => 1e-6 * Math.max(1, Math.abs(v));
+  const roundLimit = Math.min(5, Math.max(0.5, ROUND_SHARE * timeLimitSeconds));
+  const ctx = prepare(model, structure);
+  const random = randomSource(randomSeed);
+  const stats = { rounds: 0, improvements: 0 };
+
+  let best = null;
+  let mine = false;
+  const adoptBoard = () => {
+    const b = read(board, model.numCols);
+    if (!b || (best && !(b.objective < best.objective - eps(best.objective)))) return false;
+    const x = cleaned(model, b.x);
+    // An award taken from the board is only a base to fix columns at; it must meet the rows
+    // once rounded to be usable as the sub-problems' starting award.
+    if (!satisfiesRows(model, x)) return false;
+    best = { x, objective: costOf(model, x) };
+    mine = false;
+    return true;
+  };
+  while (!best && Date.now() < deadline - 200) {
+    adoptBoard();
+    if (!best) sleep(50);
+  }
+  const outcome = () => ({
+    status: best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: null, boundSource: null,
+    seconds: (performance.now() - started) / 1000, engine, message: `${stats.rounds} neighbourhoods, ${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}`,
+  });
+  if (!best) return outcome();
+
+  const m = createHighsModel(highs, model, true);
+  try {
+    m.options.set({ output_flag: false, mip_rel_gap: 0, mip_abs_gap: 1e-6 });
+    const lower = new Float64Array(model.numCols);
+    const upper = new Float64Array(model.numCols);
+    const all = { kind: 'range', from: 0, to: model.numCols - 1 };
+    // Each kind's size (vendors, or regions for 'regions') grows while its sub-problems are
+    // solved well within the limit and shrinks when they are not: the search stays where HiGHS
+    // still proves the sub-problem quickly.
+    const vendorCount = ctx.vendors.length;
+    const limits = { vendors: [2, vendorCount], random: [2, vendorCount], regions: [Math.min(ctx.n, 5), ctx.n] };
+    const sizes = { vendors: Math.min(vendorCount, 4), random: Math.min(vendorCount, 4), regions: Math.max(limits.regions[0], Math.round(ctx.n / 10)) };
+    let idleRounds = 0;
+    let lastGain = performance.now();
+    let stalled = false;
+    for (;;) {
+      const remaining = (deadline - Date.now()) / 1000;
+      if (remaining < 0.2 || stats.rounds >= maxRounds) break;
+      if (!stalled && idleRounds >= PATIENCE_ROUNDS && performance.now() - lastGain > PATIENCE_SECONDS * 1000) {
+        stalled = true;
+        setThreadPriority(STALLED_STEPS);
+      }
+      adoptBoard();
+      const award = readAward(ctx, best.x);
+      const kind = KINDS[Math.floor(random() * KINDS.length)];
+      const { free } = neighbourhood(ctx, award, kind, sizes[kind], random);
+      for (let c = 0; c < model.numCols; c++) {
+        // Continuous quantities stay free: with the award decisions fixed they form an LP.
+        const open = free[c] === 1 || !model.integer[c];
+        lower[c] = open ? model.colLower[c] : best.x[c];
+        upper[c] = open ? model.colUpper[c] : best.x[c];
+      }
+      m.changeColsBounds(all, lower, upper);
+      const limit = Math.min(roundLimit, remaining);
+      m.options.set({ time_limit: limit, random_seed: stats.rounds % 2_000_000 });
+      m.setSolution({ colValue: best.x });
+      const t0 = performance.now();
+      m.run();
+      const took = (performance.now() - t0) / 1000;
+      stats.rounds++;
+      idleRounds++;
+      const solved = m.getModelStatus() === highs.constants.modelStatus.optimal;
+      if (Number(m.info.get('primal_solution_status')) === 2) {
+        const x = cleaned(model, m.getSolution().colValue);
+        const objective = costOf(model, x);
+        if (objective < best.objective - eps(best.objective) && satisfiesRows(model, x)) {
+          best = { x, objective };
+          mine = true;
+          stats.improvements++;
+          // A gain only when no other run had found as cheap an award: keeping up is none.
+          if (publish(board, objective, x)) {
+            idleRounds = 0;
+            lastGain = performance.now();
+            if (stalled) {
+              stalled = false;
+              setThreadPriority(GAINING_STEPS);
+            }
+          }
+        }
+      }
+      const [low, high] = limits[kind];
+      if (solved && took < limit / 3) sizes[kind] = Math.min(high, Math.max(sizes[kind] + 1, Math.round(sizes[kind] * 1.2)));
+      else if (!solved) sizes[kind] = Math.max(low, Math.min(sizes[kind] - 1, Math.round(sizes[kind] * 0.8)));
+      if (stalled) rest(took * REST_RATIO, deadline);
+    }
+  } finally {
+    m.dispose();
+  }
+  return outcome();
+}
