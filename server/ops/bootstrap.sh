@@ -112,12 +112,17 @@ if [ "$mode" = start ]; then
   port_free "$MAIL_CATCHER_PORT" || die "Port $MAIL_CATCHER_PORT (mail catcher) is taken. Start with MAIL_CATCHER_PORT=2526 npm start"
   node dist/server/ops/migrate.js
   node dist/server/ops/seed.js demo
-  # Ctrl-C reaches the server too (same process group); wait for it, then stop the cluster.
-  node dist/server/main.js --banner &
+  # The web server answers HTTP only; solves, mail, notices and closings run in a jobs-only process
+  # (server/worker.ts) whose threads only take CPU the web server and PostgreSQL leave.
+  # Ctrl-C reaches both (same process group); when either stops, stop the other, then the cluster.
+  RUN_WORKERS=0 node dist/server/main.js --banner &
   server=$!
-  trap 'kill -TERM $server 2>/dev/null || true' INT TERM
-  wait $server || true
-  wait $server 2>/dev/null || true
+  node dist/server/worker.js &
+  worker=$!
+  trap 'kill -TERM $server $worker 2>/dev/null || true' INT TERM
+  wait -n $server $worker || true
+  kill -TERM $server $worker 2>/dev/null || true
+  wait $server $worker 2>/dev/null || true
   say "Stopped. The database is kept in $pgdir."
 else
   create_db "$pgbase/postgres" tendara_template
