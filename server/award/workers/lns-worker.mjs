@@ -18,19 +18,22 @@ const KINDS = ['vendors', 'vendors', 'vendors', 'regions', 'regions', 'random'];
 // Stalling. While the search finds awards cheaper than any other run has, it runs at a reduced
 // priority (low-priority.mjs: GAINING_STEPS of niceness above its process's). After
 // PATIENCE_ROUNDS rounds and PATIENCE_SECONDS seconds without such a gain it is stalled: lowest
-// priority (niceness 19), and after each round it rests REST_RATIO times as long as the round
-// took, until it gains again. Measured on this two-core machine: one busy thread beside HiGHS A
+// priority (niceness 19), and after each round it rests a multiple of the round's time, from 1
+// and growing by 1 every REST_GROWTH_ROUNDS rounds up to MAX_REST_RATIO, until it gains again.
+// Measured on this two-core machine: one busy thread beside HiGHS A
 // slowed A by 25-75 % on a busy machine, and by 5-10 % on a quiet one (niceness cannot help
 // there: the cores share caches and memory). Always at normal priority the search cost A 7-10 s
 // on instances A proves in 20-45 s (p30, p56); at the lowest priority without resting, 1-3 s on
 // a quiet machine (p32, p62, p66: +2.8, +2.1, +2.6 s); resting as long as it works, 0-1.7 s
 // (same instances, -0.4 to +1.7 s), while it still reached p57's and p58's optima (at 10 s and
-// 31 s instead of 12 s and 21 s).
+// 31 s instead of 12 s and 21 s). With the growing rests, the full Holmberg set took 430.7 s
+// against 440.1 s for HiGHS alone in the same run (server/award/MODEL.md).
 const GAINING_STEPS = 5;
 const STALLED_STEPS = 19;
 const PATIENCE_ROUNDS = 8;
 const PATIENCE_SECONDS = 3;
-const REST_RATIO = 1;
+const REST_GROWTH_ROUNDS = 8;
+const MAX_REST_RATIO = 4;
 
 function costOf(model, x) {
   let s = 0;
@@ -113,11 +116,13 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     let idleRounds = 0;
     let lastGain = performance.now();
     let stalled = false;
+    let stalledRounds = 0;
     for (;;) {
       const remaining = (deadline - Date.now()) / 1000;
       if (remaining < 0.2 || stats.rounds >= maxRounds) break;
       if (!stalled && idleRounds >= PATIENCE_ROUNDS && performance.now() - lastGain > PATIENCE_SECONDS * 1000) {
         stalled = true;
+        stalledRounds = 0;
         setThreadPriority(STALLED_STEPS);
       }
       adoptBoard();
@@ -161,7 +166,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
       const [low, high] = limits[kind];
       if (solved && took < limit / 3) sizes[kind] = Math.min(high, Math.max(sizes[kind] + 1, Math.round(sizes[kind] * 1.2)));
       else if (!solved) sizes[kind] = Math.max(low, Math.min(sizes[kind] - 1, Math.round(sizes[kind] * 0.8)));
-      if (stalled) rest(took * REST_RATIO, deadline);
+      if (stalled) rest(took * Math.min(MAX_REST_RATIO, 1 + stalledRounds++ / REST_GROWTH_ROUNDS), deadline);
     }
   } finally {
     m.dispose();
