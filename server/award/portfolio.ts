@@ -11,8 +11,9 @@ import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome,
  *  - HiGHS A on the model as built, started at the same moment: nothing waits in front of it, so
  *    on problems HiGHS proves in well under a second the engine is as fast as HiGHS alone;
  *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
- *    (workers/lns-worker.mjs) on the core glpk.js leaves free, at the lowest thread priority: it
- *    improves the best award on the board and publishes what it finds, so HiGHS A prunes with it;
+ *    (workers/lns-worker.mjs) on the core glpk.js leaves free, at a lower thread priority and
+ *    resting when it stops gaining: it improves the best award on the board and publishes what
+ *    it finds, so HiGHS A prunes with it;
  *  - HiGHS B, when cores are to spare, once glpk.js stops: LP relaxation (proven bound, reduced
  *    costs), the best award so far (glpk.js, HiGHS A, or else a greedy award), reduced-cost
  *    fixing with its cost, then HiGHS with another seed on that smaller, seeded model.
