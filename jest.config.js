@@ -12,13 +12,16 @@ const serverTransform = {
 const sharedAlias = { '^@shared/(.*)$': '<rootDir>/shared/$1' };
 
 module.exports = {
+  // A global option: jest ignores testTimeout inside a project, which left hooks at 5 s.
+  // Real PostgreSQL, mail and solver workers on a shared 2-core machine: generous limits, no
+  // timing asserted (engine specs that need longer set it with jest.setTimeout).
+  testTimeout: 60_000,
   projects: [
     {
       displayName: 'award',
       rootDir: __dirname,
       testEnvironment: 'node',
       testMatch: ['<rootDir>/spec/award/**/*.spec.ts'],
-      testTimeout: 120_000,
       transform: serverTransform,
       moduleNameMapper: sharedAlias,
     },
@@ -30,8 +33,6 @@ module.exports = {
       transform: serverTransform,
       moduleNameMapper: sharedAlias,
       setupFiles: ['<rootDir>/spec/support/env.ts'],
-      // Real PostgreSQL, mail and solver workers on a shared 2-core machine: generous limits, no timing asserted.
-      testTimeout: 60_000,
     },
     {
       displayName: 'components',
