@@ -121,9 +121,10 @@ export function table(headers: string[], rows: (string | number)[][]): string {
   return [line(headers), widths.map((w) => '-'.repeat(w)).join('  '), ...cells.map(line)].join('\n') + '\n';
 }
 
-export function summaryTable(rows: Summary[]): string {
+/** The phases' figures; with `baseRps`, each phase's requests/s also as a percentage of it. */
+export function summaryTable(rows: Summary[], baseRps?: number): string {
   return table(
-    ['phase', 'requests', 'req/s', 'p50 ms', 'p95 ms', 'p99 ms', 'errors'],
-    rows.map((s) => [s.label, s.requests, s.rps, s.p50, s.p95, s.p99, s.errors]),
+    ['phase', 'requests', 'req/s', ...(baseRps ? ['% of bare'] : []), 'p50 ms', 'p95 ms', 'p99 ms', 'errors'],
+    rows.map((s) => [s.label, s.requests, s.rps, ...(baseRps ? [(100 * s.rps) / baseRps] : []), s.p50, s.p95, s.p99, s.errors]),
   );
 }
