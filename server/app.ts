@@ -2,7 +2,6 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { randomUUID } from 'node:crypto';
 import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
-import connectPgSimple from 'connect-pg-simple';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
@@ -12,12 +11,14 @@ import type { Pool } from 'pg';
 import type PgBoss from 'pg-boss';
 import { pinoHttp } from 'pino-http';
 import { configurePassport } from './auth/passport';
+import { createSessionStore } from './auth/session-store';
 import type { Config } from './config';
 import { AppError } from './http/errors';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
 import { mountRoutes, route, type AnyRoute } from './http/route';
 import { xsrf } from './http/xsrf';
+import { PgRateLimitStore } from './http/rate-limit-store';
 import { logger } from './logger';
 import { outboxRoutes } from './routes/outbox.routes';
 import { peopleRoutes } from './routes/people.routes';
@@ -104,12 +105,12 @@ export function createApp(deps: AppDeps): Express {
   api.use(xsrf());
   api.use(express.json({ limit: '1mb' }));
   api.use((_req, _res, next) => RequestContext.create(orm.em, next));
-  const PgStore = connectPgSimple(session);
   api.use(
     session({
       name: SESSION_COOKIE,
       secret: sessionSecret,
-      store: new PgStore({ pool: deps.sessionPool, tableName: 'http_session', createTableIfMissing: false, pruneSessionInterval: 15 * 60 }),
+      // Reads the person with the session; writes the expiry back at most once a minute.
+      store: createSessionStore(deps.sessionPool),
       resave: false,
       saveUninitialized: false,
       rolling: true,
@@ -127,6 +128,8 @@ export function createApp(deps: AppDeps): Express {
       windowMs: 15 * 60_000,
       limit: 10,
       skipSuccessfulRequests: true,
+      // Counted in PostgreSQL, so that every web process sees the same failures.
+      store: new PgRateLimitStore(deps.sessionPool),
       standardHeaders: 'draft-8',
       legacyHeaders: false,
       keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`,

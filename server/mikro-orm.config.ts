@@ -33,7 +33,7 @@ export function ormConfig(databaseUrl: string, options: { debug?: boolean } = {}
     },
     pool: { min: 0, max: 10 },
     // Tables made by hand in migrations, outside the entities: not MikroORM's to diff or drop.
-    schemaGenerator: { skipTables: ['http_session', 'seed_history'] },
+    schemaGenerator: { skipTables: ['http_session', 'seed_history', 'rate_limit_hit'] },
   });
 }
 

@@ -1,9 +1,12 @@
 import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
+import type { Request } from 'express';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { User as UserEntity } from '../entities';
 import { escapeLike } from '../services/like';
 import { DUMMY_HASH, verifyPassword } from './password';
+import { loadedSessionUser } from './session-store';
+import { signedInUser } from './session-user';
 
 declare global {
   // eslint-disable-next-line @typescript-eslint/no-namespace -- Express's own augmentation point
@@ -37,7 +40,10 @@ export function configurePassport(orm: MikroORM): passport.PassportStatic {
     }),
   );
   instance.serializeUser((user, done) => done(null, user.id));
-  instance.deserializeUser((id: string, done) => {
+  instance.deserializeUser<string, Request>((req, id, done) => {
+    // Usually read with the session itself, in the same query (session-store.ts).
+    const row = loadedSessionUser(req.session, id);
+    if (row !== undefined) return done(null, row ? signedInUser(em(), row) : false);
     em()
       .findOne(UserEntity, { id, active: true }, { populate: ['vendorOrganisation'] })
       // false = no longer signed in (deactivated or removed): passport drops the session's user.

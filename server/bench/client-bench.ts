@@ -140,7 +140,7 @@ async function main(): Promise<void> {
   if (!fs.existsSync(path.join(BROWSER, 'index.html'))) throw new Error(`no client build in ${BROWSER}: run npm run build:client`);
   const build = buildFigures();
   const { databaseUrl } = benchEnv();
-  const seeded = await seedBenchData(databaseUrl, 30);
+  const seeded = await seedBenchData(databaseUrl, { vendors: 30 });
   const { url } = await startServer({ CLIENT_DIST: BROWSER });
   const buyer = await signIn(url, seeded.buyerEmail, BENCH_PASSWORD);
   const tenderId = seeded.big.id;

@@ -181,7 +181,7 @@ async function main(): Promise<void> {
   if (!(Number.isInteger(TIME_LIMIT) && TIME_LIMIT >= 1 && TIME_LIMIT <= 600)) throw new Error('--time-limit: whole seconds from 1 to 600');
   const deadline = Date.now() + TIMEOUT_MINUTES * 60_000;
   const { databaseUrl } = benchEnv();
-  const seeded = await seedBenchData(databaseUrl, 30);
+  const seeded = await seedBenchData(databaseUrl, { vendors: 30 });
   const orgIds = seeded.vendors.slice(0, 30).map((v) => v.orgId);
   const tenders = await seedClosedTwins(databaseUrl, seeded.buyerEmail, orgIds, SETUPS.length);
   const { proc, url } = await startServer({ RUN_WORKERS: '0' });

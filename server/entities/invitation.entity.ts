@@ -1,4 +1,4 @@
-import { Entity, ManyToOne, Property, Unique } from '@mikro-orm/core';
+import { Entity, Index, ManyToOne, Property, Unique } from '@mikro-orm/core';
 import { BaseEntity } from './base.entity';
 import { Tender } from './tender.entity';
 import { User } from './user.entity';
@@ -7,6 +7,8 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 /** A vendor organisation asked to bid on a tender. Only invited vendors see the tender. */
 @Entity({ tableName: 'invitation' })
 @Unique({ properties: ['tender', 'vendorOrganisation'] })
+// A vendor's tender list starts from its invitations.
+@Index({ name: 'invitation_vendor_organisation_id_index', properties: ['vendorOrganisation'] })
 export class Invitation extends BaseEntity {
   @ManyToOne({ entity: () => Tender, deleteRule: 'cascade' })
   tender!: Tender;

@@ -6,6 +6,12 @@ import { audit } from './audit.service';
 const CLOCK_MARGIN_MS = 60_000;
 
 /**
+ * A tender's status as of now, in SQL over `tender t`: an open tender whose closing time has
+ * passed is closed, whether or not the close job has written it yet. For reads that must not write.
+ */
+export const CURRENT_STATUS = `(case when t.status = 'open' and t.closes_at <= now() then 'closed'::tender_status else t.status end)`;
+
+/**
  * Closes the tender if its closing time has passed (server clock, in the database). Atomic and
  * idempotent: the scheduled close job and any read may race it, only one changes the row.
  */

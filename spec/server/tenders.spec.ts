@@ -1,4 +1,4 @@
-import { MailMessage, Region, Tender } from '../../server/entities';
+import { AuditEntry, MailMessage, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
 import { openTender, tenderBody } from '../support/tenders';
@@ -137,11 +137,23 @@ test('the scheduled close job closes a tender at its closing time without anyone
   expect(status).toBe('closed');
 });
 
-test('a tender closed by reading the list is recorded in its audit trail', async () => {
+test('a tender past its closing time is listed as closed before the close job runs, without the list writing; the job records the closing in the audit trail', async () => {
   const id = await openTender(buyer, [orgA]);
   await t.em().nativeUpdate(Tender, { id }, { closesAt: new Date(Date.now() - 1000) });
   const list = await buyer.get('/api/tenders');
   expect(list.body.find((x: { id: string }) => x.id === id).status).toBe('closed');
+  expect((await buyer.get('/api/tenders?status=closed')).body.map((x: { id: string }) => x.id)).toContain(id);
+  expect((await buyer.get('/api/tenders?status=open')).body.map((x: { id: string }) => x.id)).not.toContain(id);
+  // Reading the list wrote nothing: the row is still open and no closing is in the trail yet.
+  expect((await t.em().findOneOrFail(Tender, { id })).status).toBe('open');
+  expect(await t.em().count(AuditEntry, { tender: id, action: 'tender.closed' })).toBe(0);
+  await t.boss.send(QUEUES.tenderClose, { tenderId: id });
+  let status = 'open';
+  for (let i = 0; i < 50 && status !== 'closed'; i++) {
+    await new Promise((r) => setTimeout(r, 200));
+    status = (await t.em().findOneOrFail(Tender, { id })).status;
+  }
+  expect(status).toBe('closed');
   const trail = await buyer.get(`/api/tenders/${id}/audit`);
   expect(trail.body.map((e: { action: string }) => e.action)).toEqual(['tender.created', 'invitations.added', 'tender.published', 'tender.closed']);
   expect((await buyer.get(`/api/tenders/${id}/audit/verify`)).body.ok).toBe(true);

@@ -29,9 +29,12 @@ export async function signIn(baseUrl: string, email: string, password: string): 
     body: JSON.stringify({ email, password }),
   });
   if (res.status !== 200) throw new Error(`sign-in of ${email}: ${res.status} ${await res.text()}`);
-  const sid = cookiesOf(res).get('tendara.sid');
+  const set = cookiesOf(res);
+  const sid = set.get('tendara.sid');
   if (!sid) throw new Error(`sign-in of ${email} set no session cookie`);
-  return { email, xsrf, cookie: `XSRF-TOKEN=${xsrf}; tendara.sid=${sid}` };
+  // A fresh XSRF token given with the sign-in replaces the one before it.
+  const token = set.get('XSRF-TOKEN') || xsrf;
+  return { email, xsrf: token, cookie: `XSRF-TOKEN=${token}; tendara.sid=${sid}` };
 }
 
 /** Signs in many people, a few at a time (each sign-in is a deliberate scrypt on the server). */

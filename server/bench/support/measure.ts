@@ -84,6 +84,18 @@ export async function driveMany(label: string, all: DriveOptions[]): Promise<Pha
   return phase;
 }
 
+/** Several measured slices of one phase as one (their requests, time, errors and statuses summed). */
+export function joinPhases(label: string, parts: Phase[]): Phase {
+  const out = empty(label);
+  for (const p of parts) {
+    out.seconds += p.seconds;
+    for (const ms of p.latencies) out.latencies.push(ms);
+    out.errors += p.errors;
+    for (const [status, n] of p.statuses) out.statuses.set(status, (out.statuses.get(status) ?? 0) + n);
+  }
+  return out;
+}
+
 /** Nearest-rank percentile of a list of milliseconds. */
 export function percentile(values: number[], p: number): number {
   if (!values.length) return NaN;
@@ -93,6 +105,8 @@ export function percentile(values: number[], p: number): number {
 
 export interface Summary {
   label: string;
+  /** The requests/s this row is a percentage of, when not the table's own base. */
+  baseRps?: number;
   requests: number;
   rps: number;
   p50: number;
@@ -121,9 +135,10 @@ export function table(headers: string[], rows: (string | number)[][]): string {
   return [line(headers), widths.map((w) => '-'.repeat(w)).join('  '), ...cells.map(line)].join('\n') + '\n';
 }
 
-export function summaryTable(rows: Summary[]): string {
+/** The phases' figures; with `baseRps`, each phase's requests/s also as a percentage of it. */
+export function summaryTable(rows: Summary[], baseRps?: number): string {
   return table(
-    ['phase', 'requests', 'req/s', 'p50 ms', 'p95 ms', 'p99 ms', 'errors'],
-    rows.map((s) => [s.label, s.requests, s.rps, s.p50, s.p95, s.p99, s.errors]),
+    ['phase', 'requests', 'req/s', ...(baseRps ? ['% of bare'] : []), 'p50 ms', 'p95 ms', 'p99 ms', 'errors'],
+    rows.map((s) => [s.label, s.requests, s.rps, ...(baseRps ? [(100 * s.rps) / (s.baseRps ?? baseRps)] : []), s.p50, s.p95, s.p99, s.errors]),
   );
 }

@@ -101,6 +101,18 @@ export async function startServer(env: Record<string, string> = {}): Promise<{ p
   }
 }
 
+/**
+ * Starts the bare Express 5 yardstick (`node dist/server/bench/bare-server.js`: one route, no
+ * middleware) on a free port, the same way as the server, and waits until it answers.
+ */
+export async function startBare(): Promise<{ proc: Proc; url: string }> {
+  const port = await freePort();
+  const proc = launch('bare-express', 'bench/bare-server.js', { HOST: '127.0.0.1', PORT: String(port) });
+  const url = `http://127.0.0.1:${port}`;
+  await waitForLog(proc, 'bare express listening');
+  return { proc, url };
+}
+
 /** Starts `node dist/server/worker.js` (jobs only). */
 export function startWorker(n: number, env: Record<string, string> = {}): Proc {
   return launch(`worker-${n}`, 'worker.js', { SOLVE_CONCURRENCY: '1', ...env });

@@ -21,8 +21,20 @@ export interface Seeded {
   big: SeededTender;
   /** Open for a day, 40 regions, the first 50 vendors invited: saving bids. */
   open: SeededTender;
-  /** Open, 20 regions, every vendor invited: the deadline rush (its closing time is set by the rush). */
+  /** Open, every vendor invited: the deadline rush (its closing time is set by the rush). */
   rush: SeededTender;
+  /** Open, 40 regions each, one per vendor of the first 50 (vendor k alone invited to tender k). */
+  own: SeededTender[];
+  /** How many tenders the buyer's list holds in all (the lots above plus the bulk of small ones). */
+  buyerTenders: number;
+}
+
+export interface SeedOptions {
+  vendors?: number;
+  /** Regions of the rush tender. */
+  rushRegions?: number;
+  /** Small tenders of the buyer (drafts, open and closed), beside the ones above. */
+  buyerBulk?: number;
 }
 
 /** A small deterministic generator, so two runs of a benchmark price the same bids. */
@@ -91,7 +103,8 @@ async function submitBids(db: Client, tender: SeededTender, orgIds: string[], ra
   }
 }
 
-export async function seedBenchData(databaseUrl: string, vendorCount = 200): Promise<Seeded> {
+export async function seedBenchData(databaseUrl: string, options: SeedOptions = {}): Promise<Seeded> {
+  const { vendors: vendorCount = 200, rushRegions = 20, buyerBulk = 0 } = options;
   const db = new Client({ connectionString: databaseUrl });
   await db.connect();
   try {
@@ -138,13 +151,45 @@ export async function seedBenchData(databaseUrl: string, vendorCount = 200): Pro
       reference: 'BENCH-OPEN', title: 'Grit for footpaths', status: 'open', closesInMinutes: 60 * 24, regions: 40, invite: all.slice(0, 50),
     });
     const rush = await createTender(db, buyerId, {
-      reference: 'BENCH-RUSH', title: 'Brine for the bridges', status: 'open', closesInMinutes: 60, regions: 20, invite: all,
+      reference: 'BENCH-RUSH', title: 'Brine for the bridges', status: 'open', closesInMinutes: 60, regions: rushRegions, invite: all,
     });
-    await db.query('analyze');
-    return { buyerEmail, vendors, big, open, rush };
+    const own: SeededTender[] = [];
+    for (let k = 0; k < Math.min(50, all.length); k++) {
+      own.push(await createTender(db, buyerId, {
+        reference: `BENCH-OWN${pad(k + 1, 2)}`, title: `Grit for depot ${k + 1}`, status: 'open', closesInMinutes: 60 * 24, regions: 40, invite: [all[k]!],
+      }));
+    }
+    await seedBuyerBulk(db, buyerId, buyerBulk);
+    // As autovacuum leaves a database at rest: statistics and the visibility map (index-only scans).
+    await db.query('vacuum analyze');
+    const { rows: counted } = await db.query<{ n: number }>(`select count(*)::int as n from tender where created_by_id = $1`, [buyerId]);
+    return { buyerEmail, vendors, big, open, rush, own, buyerTenders: counted[0]!.n };
   } finally {
     await db.end();
   }
+}
+
+/**
+ * A buyer's back catalogue: `count` small tenders (10 regions each; a seventh drafts, a third closed,
+ * the rest open), none with vendors invited, written in three statements.
+ */
+async function seedBuyerBulk(db: Client, buyerId: string, count: number): Promise<void> {
+  if (!count) return;
+  await db.query(
+    `insert into tender (id, reference, title, commodity, unit, currency, closes_at, status, created_by_id, published_at, closed_at)
+     select gen_random_uuid(), 'BENCH-B' || lpad(i::text, 4, '0'), 'Salt for district ' || i, 'Road salt', 't', 'EUR',
+            now() + make_interval(days => case when i % 3 = 0 then -(i % 300) - 1 else (i % 300) + 1 end), s.status::tender_status, $1,
+            case when s.status = 'draft' then null else now() - interval '400 days' end,
+            case when s.status = 'closed' then now() - make_interval(days => (i % 300) + 1) end
+       from generate_series(1, $2::int) i,
+            lateral (select case when i % 3 = 0 then 'closed' when i % 7 = 0 then 'draft' else 'open' end as status) s`,
+    [buyerId, count],
+  );
+  await db.query(
+    `insert into region (id, tender_id, code, name, forecast, position)
+     select gen_random_uuid(), t.id, 'R' || lpad(i::text, 3, '0'), 'Depot ' || i, 300 + (i * 53) % 700, i - 1
+       from tender t, generate_series(1, 10) i where t.reference ~ '^BENCH-B[0-9]{4}$'`,
+  );
 }
 
 /**

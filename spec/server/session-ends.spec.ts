@@ -1,0 +1,96 @@
+import { SESSION_COOKIE } from '../../server/app';
+import { TOUCH_EVERY_MS } from '../../server/auth/session-store';
+import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
+
+/**
+ * A signed-in request reads its session and its person in one query and writes the session back
+ * at most once a minute. None of that may keep a session alive that was ended, nor a person's
+ * old role or status: every change below takes effect on the very next request.
+ */
+let t: TestApp;
+beforeAll(async () => {
+  t = await startTestApp({ workers: false });
+});
+afterAll(() => t.close());
+
+const sql = <T = Record<string, unknown>>(query: string, params: unknown[] = []) => t.em().getConnection().execute<T[]>(query, params);
+const sessionsOf = async (userId: string) =>
+  (await sql<{ sid: string; expire_ms: string }>(`select sid, extract(epoch from expire) * 1000 as expire_ms from http_session where sess #>> '{passport,user}' = ?`, [userId]))
+    .map((r) => ({ sid: r.sid, expireMs: Number(r.expire_ms) }));
+
+/** The session cookie as the browser holds it (sent again with every answer). */
+async function sessionCookie(b: Browser): Promise<string> {
+  const res = await b.get('/api/session');
+  const cookie = ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith(`${SESSION_COOKIE}=`));
+  if (!cookie) throw new Error('no session cookie in the answer');
+  return cookie.split(';')[0]!;
+}
+
+test('after sign-out the very next request is 401, also when the old session cookie is sent again', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await signedIn(t, user);
+  const old = await sessionCookie(b);
+  expect((await b.send('delete', '/api/session')).status).toBe(204);
+  expect((await b.get('/api/session')).status).toBe(401);
+  expect((await new Browser(t.app).agent.get('/api/session').set('Cookie', old)).status).toBe(401);
+});
+
+test('after deactivation the very next request is 401, even if the session row were left behind', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await signedIn(t, user);
+  expect((await b.get('/api/tenders')).status).toBe(200);
+  // Behind the API's back: the person is inactive but their session row is still there.
+  await sql(`update app_user set active = false where id = ?`, [user.id]);
+  expect(await sessionsOf(user.id)).toHaveLength(1);
+  expect((await b.get('/api/tenders')).status).toBe(401);
+  expect((await b.get('/api/session')).status).toBe(401);
+});
+
+test('a session deleted from the store (as a password reset does to every other session) ends on its very next request', async () => {
+  const user = await makeUser(t, 'vendor');
+  const first = await signedIn(t, user);
+  const second = await signedIn(t, user);
+  // Both sessions were just used, so neither is due to be touched: nothing is cached past the store.
+  expect((await first.get('/api/session')).status).toBe(200);
+  expect((await second.get('/api/session')).status).toBe(200);
+  const sid = (await sessionsOf(user.id)).map((s) => s.sid);
+  expect(sid).toHaveLength(2);
+  await sql(`delete from http_session where sid = ?`, [sid[0]]);
+  const answers = [(await first.get('/api/session')).status, (await second.get('/api/session')).status].sort();
+  expect(answers).toEqual([200, 401]);
+  // And the ended one stays ended: a later request does not bring its row back.
+  expect(await sessionsOf(user.id)).toHaveLength(1);
+});
+
+test('a role change takes effect on the very next request: no stale role is kept with the session', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await signedIn(t, user);
+  expect((await b.get('/api/session')).body.user.role).toBe('buyer');
+  await sql(`update app_user set role = 'compliance' where id = ?`, [user.id]);
+  expect((await b.get('/api/session')).body.user.role).toBe('compliance');
+  // A buyer-only route now refuses.
+  const res = await b.post('/api/tenders', {});
+  expect(res.status).toBe(403);
+});
+
+test('a session past its expiry in the store is 401', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await signedIn(t, user);
+  await sql(`update http_session set expire = now() - interval '1 second' where sess #>> '{passport,user}' = ?`, [user.id]);
+  expect((await b.get('/api/session')).status).toBe(401);
+});
+
+test('a signed-in request writes the session back at most once a minute, and moves its expiry when that is due', async () => {
+  const user = await makeUser(t, 'buyer');
+  const b = await signedIn(t, user);
+  const [signedInRow] = await sessionsOf(user.id);
+  for (let k = 0; k < 3; k++) expect((await b.get('/api/session')).status).toBe(200);
+  const [unchanged] = await sessionsOf(user.id);
+  expect(unchanged!.expireMs).toBe(signedInRow!.expireMs);
+  // As if the last write was longer ago than the throttle: the next request moves the expiry on.
+  await sql(`update http_session set expire = expire - make_interval(secs => ?) where sid = ?`, [(2 * TOUCH_EVERY_MS) / 1000, signedInRow!.sid]);
+  const [aged] = await sessionsOf(user.id);
+  expect((await b.get('/api/session')).status).toBe(200);
+  const [touched] = await sessionsOf(user.id);
+  expect(touched!.expireMs).toBeGreaterThanOrEqual(aged!.expireMs + TOUCH_EVERY_MS);
+});
