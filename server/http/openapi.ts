@@ -42,7 +42,11 @@ export function openApiDocument(routes: readonly AnyRoute[], version: string): o
       responses[403] = { description: 'Role not allowed, or missing XSRF token', content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } } };
     }
     for (const [code, description] of Object.entries(r.responses ?? {})) {
-      if (Number(code) !== status) responses[code] = { description, content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } } };
+      if (Number(code) === status) continue;
+      // Another success (e.g. 200 beside 202 for an idempotent request) carries the route's own body.
+      responses[code] = Number(code) < 400
+        ? { description, content: { [r.produces ?? 'application/json']: {} } }
+        : { description, content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } } };
     }
     paths[path] ??= {};
     paths[path][r.method] = {

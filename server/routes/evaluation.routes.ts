@@ -34,10 +34,11 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'post', path: '/scenarios/:id/runs', tag: 'Evaluation', access: ['buyer'], params: id, status: 202,
-      summary: 'Queue a solve of the scenario over the submitted bids; poll GET /api/runs/:id.',
-      handler: async ({ em, user, params }) => {
-        const run = await queueRun(ctx(em), user, params.id);
-        return { id: run.id, status: run.status };
+      summary: 'Queue a solve of the scenario over the submitted bids; poll GET /api/runs/:id. Idempotent: while a run of the same scenario over the same input (bids, rules, time limit) is queued, solving or solved, that run is answered with 200 instead of a new one.',
+      responses: { 200: 'The run of the same input that already exists', 202: 'A new run, queued', 409: 'The tender is awarded (or not yet closed)' },
+      handler: async ({ em, user, params, res }) => {
+        const { run, created } = await queueRun(ctx(em), user, params.id);
+        res.status(created ? 202 : 200).json({ id: run.id, status: run.status });
       },
     }),
     route({
@@ -71,8 +72,12 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'post', path: '/runs/:id/resilience', tag: 'Evaluation', access: EVALUATORS, params: id, status: 202,
-      summary: 'Re-solve the award without each awarded vendor in turn (queued runs).',
-      handler: ({ em, user, params }) => startResilience(ctx(em), user, params.id),
+      summary: 'Re-solve the award without each awarded vendor in turn (queued runs). Idempotent: a vendor whose re-solve is queued, solving or solved gets none again; when none is new the answer is 200 {queued: 0}.',
+      responses: { 200: 'Every re-solve already exists: nothing queued', 202: 'The missing re-solves, queued', 409: 'The tender is awarded, or the run has no award' },
+      handler: async ({ em, user, params, res }) => {
+        const answer = await startResilience(ctx(em), user, params.id);
+        res.status(answer.queued ? 202 : 200).json(answer);
+      },
     }),
     route({
       method: 'get', path: '/runs/:id/resilience', tag: 'Evaluation', access: EVALUATORS, params: id,

@@ -20,7 +20,8 @@ export function noticeRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'post', path: '/tenders/:id/notices', tag: 'Notices', access: ['buyer'], params: tenderIdParamSchema, status: 202,
-      summary: 'Queue one notice per bidder of an awarded tender; sending again never duplicates one.',
+      summary: 'Queue one notice per bidder of an awarded tender. A notice is never duplicated: sending again (or two sends at once) gets 409 for the second.',
+      responses: { 409: 'Not awarded yet, or the notices are already queued' },
       handler: ({ em, user, params }) => sendNotices({ em, boss: deps.boss }, user, params.id),
     }),
     route({

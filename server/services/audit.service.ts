@@ -46,13 +46,19 @@ export interface AuditInput {
 }
 
 /**
+ * The key of the transaction-scoped advisory lock that keeps a tender's chain linear (hashed with
+ * PostgreSQL's `hashtext`). Every decision takes it last, just before it commits: the race tests hold
+ * it from their own connection so that two racing decisions are both inside their transactions.
+ */
+export const auditLockKey = (tenderId: string | null) => `audit:${tenderId ?? 'global'}`;
+
+/**
  * Appends an entry to the tender's chain, inside the caller's transaction (so the change and its
  * record commit together). A transaction-scoped advisory lock per tender keeps the chain linear
  * when two changes race.
  */
 export async function audit(em: EntityManager, input: AuditInput): Promise<void> {
-  const chain = input.tenderId ?? 'global';
-  await em.execute(`select pg_advisory_xact_lock(hashtext(?))`, [`audit:${chain}`]);
+  await em.execute(`select pg_advisory_xact_lock(hashtext(?))`, [auditLockKey(input.tenderId)]);
   const last = await em.execute<{ hash: string }[]>(
     input.tenderId
       ? `select hash from audit_entry where tender_id = ? order by seq desc limit 1`

@@ -1,6 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
+import type { TenderStatus } from '@shared/tenders';
 import { Invitation, Tender, type User } from '../entities';
-import { NotFoundError } from '../http/errors';
+import { ConflictError, NotFoundError } from '../http/errors';
 import { audit } from './audit.service';
 
 const CLOCK_MARGIN_MS = 60_000;
@@ -50,11 +51,33 @@ async function closeWhere(em: EntityManager, condition: string, params: unknown[
 }
 
 /**
+ * Who may see which tender, the one rule every service applies:
+ * - a buyer sees, edits and evaluates only the tenders it created (`tender.createdBy`);
+ * - compliance and admin oversee every tender;
+ * - a vendor sees only published tenders its organisation was invited to.
+ * Anything else is "not found" (404, never 403), so that nobody learns which tenders exist.
+ *
+ * For lists: the buyer whose tenders `user` may see (its own id), or null when the role is not
+ * limited to its own tenders (vendors are limited by invitation instead).
+ */
+export function tenderOwnerScope(user: User): string | null {
+  return user.role === 'buyer' ? user.id : null;
+}
+
+/** Whether `user` may see a tender created by `createdById`, leaving aside the vendor rule. */
+function ownsOrOversees(user: User, createdById: string): boolean {
+  const owner = tenderOwnerScope(user);
+  return owner === null || owner === createdById;
+}
+
+/**
  * The tender as `user` may see it, closed first if due. A vendor sees only published tenders it was
- * invited to; anything else is "not found", so that vendors cannot learn which tenders exist.
+ * invited to; a buyer only its own (see `tenderOwnerScope`); anything else is "not found", so that
+ * nobody learns which tenders exist.
  */
 export async function findVisibleTender(em: EntityManager, user: User, id: string): Promise<Tender> {
   let tender = await em.findOne(Tender, { id }, { populate: ['regions'] });
+  if (tender && !ownsOrOversees(user, tender.createdBy.id)) tender = null;
   // Only a tender near its closing time by this server's clock is checked by the database's
   // (the clock that counts): the margin covers any difference between the two.
   if (tender?.status === 'open' && tender.closesAt.getTime() - Date.now() < CLOCK_MARGIN_MS && (await closeIfDue(em, id))) {
@@ -69,4 +92,27 @@ export async function findVisibleTender(em: EntityManager, user: User, id: strin
     if (!invited) throw new NotFoundError('The tender');
   }
   return tender;
+}
+
+/**
+ * The guard of every decision on a tender, first statement of the decision's transaction: locks the
+ * tender row, checks that `user` may act on it (the same rule as `findVisibleTender`: 404 otherwise)
+ * and that its status is one of `allowed` (409 with `conflict` otherwise). Two decisions on one
+ * tender therefore run one after the other, and the second sees what the first committed: it gets
+ * 409 instead of contradicting it.
+ *
+ * `FOR NO KEY UPDATE`, not `FOR UPDATE`: rows that only reference the tender (runs, audit entries)
+ * take a key-share lock on it, which `FOR UPDATE` would block — a finishing solve holding the audit
+ * chain's lock would then deadlock with a decision holding the tender.
+ */
+export async function lockTender(
+  tx: EntityManager, user: User, tenderId: string, allowed: readonly TenderStatus[], conflict: string,
+): Promise<{ id: string; status: TenderStatus }> {
+  const [row] = await tx.execute<{ status: TenderStatus; created_by_id: string }[]>(
+    'select status, created_by_id from tender where id = ? for no key update', [tenderId],
+  );
+  // Vendors decide nothing on a tender (their bids take a lock of their own, in bids.service).
+  if (!row || user.role === 'vendor' || !ownsOrOversees(user, row.created_by_id)) throw new NotFoundError('The tender');
+  if (!allowed.includes(row.status)) throw new ConflictError(conflict);
+  return { id: tenderId, status: row.status };
 }

@@ -1,4 +1,4 @@
-import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
+import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { z } from 'zod';
 import type { RegionInput } from '@shared/bids';
@@ -10,7 +10,7 @@ import { renderMail } from '../mail/templates';
 import { createOrganisation, invitePerson } from './people.service';
 import { audit } from './audit.service';
 import { escapeLike } from './like';
-import { closeIfDue, CURRENT_STATUS, findVisibleTender } from './tender-access';
+import { closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
 
 export interface TenderDeps {
   em: EntityManager;
@@ -50,6 +50,11 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
   if (vendor) {
     where.push(`t.status <> 'draft'`, 'exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?)');
     params.push(vendor);
+  }
+  const owner = tenderOwnerScope(user);
+  if (owner) {
+    where.push('t.created_by_id = ?');
+    params.push(owner);
   }
   if (query.status) {
     where.push(`${CURRENT_STATUS} = ?`);
@@ -139,9 +144,8 @@ export async function createTender(em: EntityManager, user: User, input: TenderI
 export async function updateTender(em: EntityManager, user: User, id: string, input: TenderInput): Promise<TenderView> {
   const closesAt = checkClosingTime(input);
   await em.transactional(async (tx) => {
-    const tender = await tx.findOne(Tender, { id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
-    if (!tender) throw new NotFoundError('The tender');
-    if (tender.status !== 'draft') throw new ConflictError('Only a draft tender can be edited; this one is published.');
+    await lockTender(tx, user, id, ['draft'], 'Only a draft tender can be edited; this one is published.');
+    const tender = await tx.findOneOrFail(Tender, { id });
     if (input.reference !== tender.reference && (await tx.count(Tender, { reference: input.reference }))) {
       throw new ConflictError('A tender with this reference exists.', [{ field: 'reference', message: 'This reference is already used.' }]);
     }
@@ -169,6 +173,7 @@ export async function inviteVendors(deps: TenderDeps, user: User, id: string, in
     orgIds.push(org.id);
   }
   const added = await em.transactional(async (tx) => {
+    await lockTender(tx, user, tender.id, ['draft', 'open'], 'Vendors can be invited only before closing.');
     const orgs = await tx.find(VendorOrganisation, { id: { $in: orgIds } });
     if (orgs.length !== orgIds.length) {
       const missing = orgIds.findIndex((oid) => !orgs.some((o) => o.id === oid));
@@ -191,6 +196,7 @@ export async function removeInvitation(em: EntityManager, user: User, id: string
   const tender = await findVisibleTender(em, user, id);
   if (tender.status !== 'draft') throw new ConflictError('Invitations can be withdrawn only while the tender is a draft.');
   await em.transactional(async (tx) => {
+    await lockTender(tx, user, tender.id, ['draft'], 'Invitations can be withdrawn only while the tender is a draft.');
     const removed = await tx.nativeDelete(Invitation, { tender: tender.id, vendorOrganisation: orgId });
     if (!removed) throw new NotFoundError('The invitation');
     await audit(tx, { tenderId: tender.id, actor: user, action: 'invitation.withdrawn', subject: 'invitations', detail: { vendorOrganisation: orgId } });
@@ -202,10 +208,8 @@ export async function removeInvitation(em: EntityManager, user: User, id: string
 export async function publishTender(deps: TenderDeps, user: User, id: string): Promise<TenderView> {
   const { em } = deps;
   const tender = await em.transactional(async (tx) => {
-    const t = await tx.findOne(Tender, { id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
-    if (!t) throw new NotFoundError('The tender');
-    await tx.populate(t, ['regions']);
-    if (t.status !== 'draft') throw new ConflictError('This tender is already published.');
+    await lockTender(tx, user, id, ['draft'], 'This tender is already published.');
+    const t = await tx.findOneOrFail(Tender, { id }, { populate: ['regions'] });
     const problems = [];
     if (t.closesAt.getTime() <= Date.now() + 60_000) problems.push({ field: 'closesAt', message: 'Closing time has passed; set a new one before publishing.' });
     if (t.regions.length === 0) problems.push({ field: 'regions', message: 'Add at least one region.' });

@@ -176,7 +176,8 @@ test('the audit CSV is safe against spreadsheet formula injection', async () => 
   const other = await makeUser(t, 'buyer', { name: '=HYPERLINK("http://evil.test","x")' });
   const b = await signedIn(t, other);
   const open = await t.em().findOneOrFail(Tender, { reference: 'NHP-2027-002' });
-  await t.em().nativeUpdate(Tender, { id: open.id }, { closesAt: new Date(Date.now() - 1000) });
+  // Handed to that buyer (a buyer evaluates only its own tenders), and its closing time passed.
+  await t.em().nativeUpdate(Tender, { id: open.id }, { closesAt: new Date(Date.now() - 1000), createdBy: other.id });
   await b.get(`/api/tenders/${open.id}`);
   const s = await b.post(`/api/tenders/${open.id}/scenarios`, { name: '+cmd|calc', rules: {} });
   expect(s.status).toBe(201);

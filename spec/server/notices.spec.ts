@@ -76,11 +76,13 @@ describe('with the mail server up', () => {
     expect(await t.em().count(Notice, {})).toBe(0);
   });
 
-  test('sending queues one notice per bidder, the mail really arrives, and sending twice never duplicates', async () => {
+  test('sending queues one notice per bidder, the mail really arrives, and sending twice is refused without duplicating', async () => {
     const first = await buyer.post(`/api/tenders/${tenderId}/notices`);
     expect(first.status).toBe(202);
     expect(first.body).toEqual({ queued: 7 });
-    expect((await buyer.post(`/api/tenders/${tenderId}/notices`)).body).toEqual({ queued: 0 });
+    const again = await buyer.post(`/api/tenders/${tenderId}/notices`);
+    expect(again.status).toBe(409);
+    expect(again.body.detail).toMatch(/already been queued/);
     await waitForStatus(t, tenderId, 'notified');
     const notices = await t.em().find(Notice, { tender: tenderId });
     expect(notices.map((n) => n.status)).toEqual(Array(7).fill('sent'));

@@ -3,7 +3,11 @@ import type { RecommendationView } from '@shared/evaluation';
 import { Recommendation, Run, Tender, type User } from '../../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { audit } from '../audit.service';
-import { evaluableTender } from './scenarios.service';
+import { lockTender } from '../tender-access';
+import { transition } from '../transition';
+import { evaluableTender, FROZEN } from './scenarios.service';
+
+const AWAITING = 'A recommendation is awaiting compliance; it must be approved or returned first.';
 
 function view(r: Recommendation): RecommendationView {
   return {
@@ -31,9 +35,10 @@ export async function recommend(em: EntityManager, user: User, tenderId: string,
   if (!run) throw new ValidationError([{ field: 'runId', message: 'This run does not belong to the tender.' }]);
   if (run.parent) throw new ValidationError([{ field: 'runId', message: 'A resilience re-solve cannot be recommended.' }]);
   if (run.status !== 'optimal' && run.status !== 'feasible') throw new ValidationError([{ field: 'runId', message: 'Only a run with an award can be recommended.' }]);
-  const live = await current(em, tenderId);
-  if (live && live.status === 'recommended') throw new ConflictError('A recommendation is awaiting compliance; it must be approved or returned first.');
   const id = await em.transactional(async (tx) => {
+    // Under the tender's lock: of two recommendations racing, the second sees the first (409).
+    await lockTender(tx, user, tenderId, ['closed'], FROZEN);
+    if (await tx.count(Recommendation, { tender: tenderId, status: 'recommended' })) throw new ConflictError(AWAITING);
     const r = tx.create(Recommendation, { tender, run, justification: input.justification, recommendedBy: user });
     await tx.flush();
     await audit(tx, {
@@ -52,20 +57,21 @@ export async function recommend(em: EntityManager, user: User, tenderId: string,
 export async function decide(em: EntityManager, user: User, tenderId: string, decision: 'approved' | 'returned', comment: string): Promise<RecommendationView> {
   await evaluableTender(em, user, tenderId, true);
   const id = await em.transactional(async (tx) => {
-    const r = await tx.findOne(Recommendation, { tender: tenderId, status: 'recommended' }, { populate: ['recommendedBy'] });
+    // Under the tender's lock: approve and return (or two approvals) racing run one after the other;
+    // the second finds the recommendation decided, or the tender awarded, and gets 409.
+    await lockTender(tx, user, tenderId, ['closed'], 'This tender is awarded: its recommendation was approved and can no longer be decided.');
+    const r = await tx.findOne(Recommendation, { tender: tenderId }, { populate: ['recommendedBy', 'decidedBy'], orderBy: { createdAt: 'desc' } });
     if (!r) throw new NotFoundError('A recommendation awaiting a decision');
+    if (r.status !== 'recommended') {
+      throw new ConflictError(`No recommendation is awaiting a decision: the latest was ${r.status} by ${r.decidedBy?.name ?? 'someone'} at ${r.decidedAt?.toISOString() ?? 'an earlier time'}.`);
+    }
     if (r.recommendedBy.id === user.id) {
       throw new AppError(403, 'Not allowed', 'You made this recommendation: someone else must approve or return it (four-eyes rule).');
     }
-    r.status = decision;
-    r.decidedBy = user;
-    r.decidedAt = new Date();
-    r.comment = comment || null;
+    await transition(tx, Recommendation, r.id, ['recommended'], { status: decision, decidedBy: user.id, decidedAt: new Date(), comment: comment || null }, 'This recommendation has already been decided.');
     if (decision === 'approved') {
-      const changed = await tx.nativeUpdate(Tender, { id: tenderId, status: 'closed' }, { status: 'awarded' });
-      if (changed !== 1) throw new ConflictError('The tender is no longer open to an award decision.');
+      await transition(tx, Tender, tenderId, ['closed'], { status: 'awarded' }, 'The tender is no longer open to an award decision.');
     }
-    await tx.flush();
     await audit(tx, {
       tenderId, actor: user, action: `recommendation.${decision}`, subject: `recommendation ${r.id}`,
       detail: { comment }, before: { status: 'recommended' }, after: { status: decision },

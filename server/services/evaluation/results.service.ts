@@ -3,7 +3,8 @@ import type { AwardResult } from '@shared/award';
 import type { Comparison, ComparedRun, ResilienceView, RunView } from '@shared/evaluation';
 import { Run, Scenario, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
-import { evaluableTender, queueRun, runSummary, type EvaluationDeps } from './scenarios.service';
+import { lockTender } from '../tender-access';
+import { evaluableTender, findOrCreateRun, FROZEN, runInput, runSummary, sendToSolver, type EvaluationDeps, type RunInput } from './scenarios.service';
 
 export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
   const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender'] });
@@ -99,24 +100,36 @@ export async function compareRuns(em: EntityManager, user: User, tenderId: strin
   };
 }
 
-/** Re-solves the run without each awarded vendor in turn (one queued run each). */
+/**
+ * Re-solves the run without each awarded vendor in turn: one queued run per vendor, all created in
+ * one transaction under the tender's lock. Idempotent: a vendor whose re-solve is already queued,
+ * solving or solved (same input) gets no second one; `queued` counts the new runs (0: answered 200).
+ */
 export async function startResilience(deps: EvaluationDeps, user: User, runId: string): Promise<{ queued: number }> {
   const run = await findRun(deps.em, user, runId);
   if (run.parent) throw new ConflictError('This is already a resilience re-solve.');
   if (!usable(run.result)) throw new ConflictError('Only a run with an award can be checked for resilience.');
-  const existing = await deps.em.find(Run, { parent: run });
-  let queued = 0;
-  for (const award of run.result!.awards) {
-    if (existing.some((e) => e.droppedVendor === award.vendor)) continue;
-    await queueRun(deps, user, run.scenario.id, { parent: run, vendor: award.vendor });
-    queued += 1;
-  }
-  return { queued };
+  const tender = await evaluableTender(deps.em, user, run.tender.id, true);
+  const inputs: RunInput[] = [];
+  for (const award of run.result!.awards) inputs.push(await runInput(deps.em, tender, run.scenario, { parent: run, vendor: award.vendor }));
+  const created = await deps.em.transactional(async (tx) => {
+    await lockTender(tx, user, tender.id, ['closed'], FROZEN);
+    const fresh: Run[] = [];
+    for (const input of inputs) {
+      const child = await findOrCreateRun(tx, user, tender.id, input);
+      if (child.created) fresh.push(child.run);
+    }
+    return fresh;
+  });
+  for (const child of created) await sendToSolver(deps.boss, child);
+  return { queued: created.length };
 }
 
 export async function resilienceOf(em: EntityManager, user: User, runId: string): Promise<ResilienceView> {
   const run = await findRun(em, user, runId);
-  const children = await em.find(Run, { parent: run }, { orderBy: { createdAt: 'asc' } });
+  // The latest re-solve per vendor (a failed or cancelled one may have been followed by another).
+  const all = await em.find(Run, { parent: run }, { orderBy: { createdAt: 'asc' } });
+  const children = [...new Map(all.map((c) => [c.droppedVendor, c])).values()];
   const base = run.result?.objective ?? null;
   const names = new Map(Object.entries((await namesOf(em, run.id)).vendors).map(([id, v]) => [id, v.name]));
   const rows = children.map((c) => {

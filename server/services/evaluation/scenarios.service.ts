@@ -1,12 +1,14 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { awardRulesSchema } from '@shared/award';
-import type { RunSummary, ScenarioInput, ScenarioView } from '@shared/evaluation';
+import type { AwardProblem } from '@shared/award';
+import type { RunStatus, RunSummary, ScenarioInput, ScenarioView } from '@shared/evaluation';
 import { Run, Scenario, type Tender, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { QUEUES } from '../../jobs/queue';
 import { audit } from '../audit.service';
-import { findVisibleTender } from '../tender-access';
+import { findVisibleTender, lockTender } from '../tender-access';
+import { transition } from '../transition';
 import { buildProblem, plainRules } from './problem';
 
 export interface EvaluationDeps {
@@ -29,6 +31,9 @@ export function runSummary(run: Run): RunSummary {
   };
 }
 
+/** Why a change to an awarded tender's evaluation is refused (409). */
+export const FROZEN = 'This tender is awarded: its scenarios and bids are frozen.';
+
 /** Evaluation happens on closed tenders; once awarded, scenarios and runs are frozen. */
 export async function evaluableTender(em: EntityManager, user: User, tenderId: string, forChange = false): Promise<Tender> {
   const tender = await findVisibleTender(em, user, tenderId);
@@ -36,7 +41,7 @@ export async function evaluableTender(em: EntityManager, user: User, tenderId: s
     throw new ConflictError('Award scenarios can be built only after the closing time, when the bids are unsealed.');
   }
   if (forChange && tender.status !== 'closed') {
-    throw new ConflictError('This tender is awarded: its scenarios and bids are frozen.');
+    throw new ConflictError(FROZEN);
   }
   await ensureBuiltInScenarios(em, tender);
   return tender;
@@ -87,10 +92,11 @@ export async function createScenario(deps: EvaluationDeps, user: User, tenderId:
   const { em } = deps;
   const tender = await evaluableTender(em, user, tenderId, true);
   await checkRules(em, tender, input);
-  if (await em.count(Scenario, { tender, name: input.name })) {
-    throw new ConflictError('A scenario with this name exists.', [{ field: 'name', message: 'Choose another name.' }]);
-  }
   const scenario = await em.transactional(async (tx) => {
+    await lockTender(tx, user, tender.id, ['closed'], FROZEN);
+    if (await tx.count(Scenario, { tender: tender.id, name: input.name })) {
+      throw new ConflictError('A scenario with this name exists.', [{ field: 'name', message: 'Choose another name.' }]);
+    }
     const s = tx.create(Scenario, { tender: tender.id, name: input.name, rules: awardRulesSchema.parse(input.rules), timeLimitSeconds: input.timeLimitSeconds, createdBy: user });
     await tx.flush();
     await audit(tx, { tenderId: tender.id, actor: user, action: 'scenario.created', subject: `scenario ${s.name}`, detail: { rules: s.rules }, after: s.rules });
@@ -108,6 +114,7 @@ export async function updateScenario(deps: EvaluationDeps, user: User, scenarioI
   await checkRules(em, tender, input);
   const before = scenario.rules;
   await em.transactional(async (tx) => {
+    await lockTender(tx, user, tender.id, ['closed'], FROZEN);
     const s = await tx.findOneOrFail(Scenario, { id: scenarioId });
     tx.assign(s, { name: input.name, rules: awardRulesSchema.parse(input.rules), timeLimitSeconds: input.timeLimitSeconds });
     await tx.flush();
@@ -116,33 +123,75 @@ export async function updateScenario(deps: EvaluationDeps, user: User, scenarioI
   return scenarioView(await em.fork().findOneOrFail(Scenario, { id: scenarioId }), undefined);
 }
 
-/** Queues a solve of the scenario (202): a pg-boss job any worker process may take. */
-export async function queueRun(deps: EvaluationDeps, user: User, scenarioId: string, dropVendor?: { parent: Run; vendor: string }): Promise<Run> {
+/** Run states that make a second solve of the same input pointless: it is waiting, solving, or solved. */
+const REUSABLE_RUN: RunStatus[] = ['queued', 'solving', 'optimal', 'feasible', 'infeasible'];
+
+/** What one run will solve: the scenario's rules (less a dropped vendor) over the live bids, and its digest. */
+export interface RunInput {
+  scenario: Scenario;
+  problem: AwardProblem;
+  digest: string;
+  dropVendor?: { parent: Run; vendor: string };
+}
+
+export async function runInput(em: EntityManager, tender: Tender, scenario: Scenario, dropVendor?: { parent: Run; vendor: string }): Promise<RunInput> {
+  const rules = awardRulesSchema.parse(scenario.rules);
+  if (dropVendor) rules.exclude = [...new Set([...rules.exclude, dropVendor.vendor])];
+  const { problem, digest } = await buildProblem(em, tender, rules, scenario.timeLimitSeconds);
+  return { scenario, problem, digest, dropVendor };
+}
+
+/**
+ * Inside the caller's transaction, which holds the tender's lock (`lockTender`): the run of the same
+ * scenario (and dropped vendor) over the same input digest that is queued, solving or solved, or else
+ * a new queued run with its audit entry. `created` says which; queue the new one's job after commit.
+ */
+export async function findOrCreateRun(tx: EntityManager, user: User, tenderId: string, input: RunInput): Promise<{ run: Run; created: boolean }> {
+  const { scenario, problem, digest, dropVendor } = input;
+  const existing = await tx.findOne(Run, {
+    scenario: scenario.id, inputDigest: digest, status: { $in: REUSABLE_RUN },
+    parent: dropVendor?.parent.id ?? null, droppedVendor: dropVendor?.vendor ?? null,
+  }, { populate: ['scenario'], orderBy: { createdAt: 'desc' } });
+  if (existing) return { run: existing, created: false };
+  const r = tx.create(Run, {
+    tender: tenderId, scenario: scenario.id, requestedBy: user, timeLimitSeconds: scenario.timeLimitSeconds, problem, inputDigest: digest,
+    parent: dropVendor?.parent.id ?? null, droppedVendor: dropVendor?.vendor ?? null,
+  });
+  await tx.flush();
+  await audit(tx, {
+    tenderId, actor: user, action: dropVendor ? 'run.resilience-queued' : 'run.queued', subject: `run ${r.id}`,
+    detail: { scenario: scenario.name, ...(dropVendor ? { droppedVendor: dropVendor.vendor } : {}) }, after: { inputDigest: digest },
+  });
+  return { run: r, created: true };
+}
+
+/** Hands a new run to the solve queue: a pg-boss job any worker process may take. */
+export async function sendToSolver(boss: PgBoss, run: Run): Promise<void> {
+  await boss.send(QUEUES.solve, { runId: run.id }, {
+    retryLimit: 3, retryDelay: 1,
+    // A worker that dies mid-solve lets the job expire; pg-boss then gives it to another worker.
+    expireInSeconds: run.timeLimitSeconds + 30,
+  });
+}
+
+/**
+ * Queues a solve of the scenario (`created`: answered 202). Idempotent: when a run of the same
+ * scenario over the same input (same digest: bids, rules, time limit) is queued, solving or solved,
+ * that run is returned instead (answered 200) — repeated or concurrent requests never make twins.
+ * A failed or cancelled run does not count: the scenario can be run again.
+ */
+export async function queueRun(deps: EvaluationDeps, user: User, scenarioId: string): Promise<{ run: Run; created: boolean }> {
   const { em } = deps;
   const scenario = await em.findOne(Scenario, { id: scenarioId });
   if (!scenario) throw new NotFoundError('The scenario');
   const tender = await evaluableTender(em, user, scenario.tender.id, true);
-  const rules = awardRulesSchema.parse(scenario.rules);
-  if (dropVendor) rules.exclude = [...new Set([...rules.exclude, dropVendor.vendor])];
-  const { problem, digest } = await buildProblem(em, tender, rules, scenario.timeLimitSeconds);
-  const run = await em.transactional(async (tx) => {
-    const r = tx.create(Run, {
-      tender: tender.id, scenario, requestedBy: user, timeLimitSeconds: scenario.timeLimitSeconds, problem, inputDigest: digest,
-      parent: dropVendor?.parent ?? null, droppedVendor: dropVendor?.vendor ?? null,
-    });
-    await tx.flush();
-    await audit(tx, {
-      tenderId: tender.id, actor: user, action: dropVendor ? 'run.resilience-queued' : 'run.queued', subject: `run ${r.id}`,
-      detail: { scenario: scenario.name, ...(dropVendor ? { droppedVendor: dropVendor.vendor } : {}) }, after: { inputDigest: digest },
-    });
-    return r;
+  const input = await runInput(em, tender, scenario);
+  const result = await em.transactional(async (tx) => {
+    await lockTender(tx, user, tender.id, ['closed'], FROZEN);
+    return findOrCreateRun(tx, user, tender.id, input);
   });
-  await deps.boss.send(QUEUES.solve, { runId: run.id }, {
-    retryLimit: 3, retryDelay: 1,
-    // A worker that dies mid-solve lets the job expire; pg-boss then gives it to another worker.
-    expireInSeconds: scenario.timeLimitSeconds + 30,
-  });
-  return run;
+  if (result.created) await sendToSolver(deps.boss, result.run);
+  return result;
 }
 
 export async function listRuns(em: EntityManager, user: User, tenderId: string): Promise<RunSummary[]> {
@@ -156,10 +205,7 @@ export async function cancelRun(em: EntityManager, user: User, runId: string): P
   if (!run) throw new NotFoundError('The run');
   await findVisibleTender(em, user, run.tender.id);
   await em.transactional(async (tx) => {
-    const changed = await tx.execute<{ id: string }[]>(
-      `update run set status = 'cancelled', finished_at = now(), updated_at = now() where id = ? and status in ('queued', 'solving') returning id`, [runId],
-    );
-    if (!changed.length) throw new ConflictError('This run has already finished.');
+    await transition(tx, Run, runId, ['queued', 'solving'], { status: 'cancelled', finishedAt: new Date() }, 'This run has already finished.');
     await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.cancelled', subject: `run ${run.id}` });
   });
   em.clear();

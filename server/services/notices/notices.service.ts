@@ -5,8 +5,10 @@ import { Notice, Tender, type User } from '../../entities';
 import { ConflictError, NotFoundError } from '../../http/errors';
 import { queueNotice } from '../../jobs/queue';
 import { audit } from '../audit.service';
-import { findVisibleTender } from '../tender-access';
+import { findVisibleTender, lockTender, tenderOwnerScope } from '../tender-access';
 import { approvedRun, composeLetters } from './letters';
+
+const NOT_AWARDED = 'Notices go out once compliance has approved an award for this tender.';
 
 export interface NoticeDeps {
   em: EntityManager;
@@ -29,26 +31,26 @@ export async function previewNotices(em: EntityManager, user: User, tenderId: st
 }
 
 /**
- * Queues one notice per bidder that has none yet: sending twice never duplicates a notice
- * (a unique row per tender and vendor, created in one transaction).
+ * Queues one notice per bidder of the approved award, in one transaction under the tender's lock:
+ * a notice is never duplicated (also a unique row per tender and vendor). Sending again, or two sends
+ * racing, gets 409 for the second: its notices are already queued.
  */
 export async function sendNotices(deps: NoticeDeps, user: User, tenderId: string): Promise<{ queued: number }> {
   const { em } = deps;
   const tender = await findVisibleTender(em, user, tenderId);
-  if (tender.status !== 'awarded' && tender.status !== 'notified') throw new ConflictError('Notices go out once compliance has approved an award for this tender.');
+  if (tender.status !== 'awarded' && tender.status !== 'notified') throw new ConflictError(NOT_AWARDED);
   const run = await approvedRun(em, tender);
   const letters = await composeLetters(em, tender);
   const created = await em.transactional(async (tx) => {
-    await tx.execute(`select id from tender where id = ? for update`, [tenderId]);
+    await lockTender(tx, user, tenderId, ['awarded', 'notified'], NOT_AWARDED);
     const existing = new Set((await tx.find(Notice, { tender: tenderId })).map((n) => n.vendorOrganisation.id));
     const fresh = letters.filter((l) => !existing.has(l.vendor.id)).map((l) => tx.create(Notice, {
       tender: tenderId, run, vendorOrganisation: l.vendor.id, kind: l.kind, toAddresses: l.to, subject: l.subject,
       html: l.html, text: l.text, standstillEndsAt: l.standstillEndsAt,
     }));
+    if (!fresh.length) throw new ConflictError('The notices of this award have already been queued; each bidder receives its notice once.');
     await tx.flush();
-    if (fresh.length) {
-      await audit(tx, { tenderId, actor: user, action: 'notices.queued', subject: `${fresh.length} notices`, detail: { award: fresh.filter((n) => n.kind === 'award').length, regret: fresh.filter((n) => n.kind === 'regret').length } });
-    }
+    await audit(tx, { tenderId, actor: user, action: 'notices.queued', subject: `${fresh.length} notices`, detail: { award: fresh.filter((n) => n.kind === 'award').length, regret: fresh.filter((n) => n.kind === 'regret').length } });
     return fresh.map((n) => n.id);
   });
   for (const id of created) await queueNotice(deps.boss, id);
@@ -63,8 +65,8 @@ export async function listNotices(em: EntityManager, user: User, query: { tender
     where.vendorOrganisation = user.vendorOrganisation!.id;
     // A vendor reads its letter once it has been sent.
     where.status = 'sent';
-  } else if (user.role === 'buyer') {
-    where.tender = { ...(query.tenderId ? { id: query.tenderId } : {}), createdBy: user.id };
+  } else if (tenderOwnerScope(user)) {
+    where.tender = { ...(query.tenderId ? { id: query.tenderId } : {}), createdBy: tenderOwnerScope(user) };
   }
   const notices = await em.find(Notice, where, { populate: ['tender', 'vendorOrganisation'], orderBy: { createdAt: 'desc', vendorOrganisation: { name: 'asc' } } });
   return notices.map(summary);
@@ -74,7 +76,7 @@ export async function readNotice(em: EntityManager, user: User, id: string): Pro
   const n = await em.findOne(Notice, { id }, { populate: ['tender', 'vendorOrganisation'] });
   const visible = n && (user.role === 'vendor'
     ? n.vendorOrganisation.id === user.vendorOrganisation?.id && n.status === 'sent'
-    : user.role === 'buyer' ? n.tender.createdBy.id === user.id : true);
+    : (tenderOwnerScope(user) ?? n.tender.createdBy.id) === n.tender.createdBy.id);
   if (!n || !visible) throw new NotFoundError('The notice');
   return { ...summary(n), html: n.html, text: n.text };
 }
