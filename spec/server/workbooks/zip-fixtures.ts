@@ -105,3 +105,29 @@ export function cellFormat(sheetXml: string, stylesXml: string, address: string)
   const formats = cellXfs.match(/<xf\b[^>]*?(?:\/>|>[\s\S]*?<\/xf>)/g) ?? [];
   return formats[index] ?? '';
 }
+
+/** Every part of a zip package, by name (read with yauzl). */
+export async function unzipAll(zip: Buffer): Promise<Map<string, Buffer>> {
+  const yauzl = (await import('yauzl')).default;
+  return new Promise((resolve, reject) => {
+    yauzl.fromBuffer(zip, { lazyEntries: true }, (error, file) => {
+      if (error || !file) return reject(error);
+      const parts = new Map<string, Buffer>();
+      file.on('error', reject);
+      file.on('end', () => resolve(parts));
+      file.on('entry', (entry: import('yauzl').Entry) => {
+        file.openReadStream(entry, (streamError, stream) => {
+          if (streamError || !stream) return reject(streamError);
+          const chunks: Buffer[] = [];
+          stream.on('data', (c: Buffer) => chunks.push(c));
+          stream.on('error', reject);
+          stream.on('end', () => {
+            parts.set(entry.fileName, Buffer.concat(chunks));
+            file.readEntry();
+          });
+        });
+      });
+      file.readEntry();
+    });
+  });
+}
