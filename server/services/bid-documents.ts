@@ -5,7 +5,7 @@ import { AppError, ValidationError, type FieldError } from '../http/errors';
 import { BID_LAYOUT, cellRef } from '../workbooks/bid-layout';
 import { cleanWorkbookCopyOffThread } from '../workbooks/workbook-pool';
 
-const shown = (value: number | null | undefined) => (value === null || value === undefined ? 'blank' : String(value));
+const shown = (value: number | null | undefined) => (value === null || value === undefined ? 'no figure' : String(value));
 
 /**
  * A bid saved with an uploaded workbook attached must carry the workbook's figures, so the
@@ -29,7 +29,7 @@ export function assertBidMatchesDocument(doc: BidDocument, bid: BidFigures): voi
     const inBid = byCode(bid.prices, code);
     if (inDocument === inBid) continue;
     const cell = byCode(figures.priceCells, code) ?? `the row of region ${code}`;
-    errors.push({ field: `prices.${code}`, message: `The uploaded workbook has ${shown(inDocument)} in ${cell}, but the bid's unit price for region ${code} is ${shown(inBid)}. ${advice}` });
+    errors.push({ field: `prices.${code}`, message: `The uploaded workbook has ${shown(inDocument)} in ${cell}, but the bid's unit price for region ${code} is ${inBid === undefined ? 'not given' : inBid}. ${advice}` });
   }
   if (errors.length > 0) throw new ValidationError(errors, 'The bid does not match the uploaded workbook attached to it; nothing was saved.');
 }

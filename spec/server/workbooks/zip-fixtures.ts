@@ -1,5 +1,6 @@
 import { crc32, deflateRawSync, inflateRawSync } from 'node:zlib';
 import XlsxPopulate from 'xlsx-populate';
+import yauzl from 'yauzl';
 
 /**
  * Test helpers that write and read zip packages byte by byte, so hostile packages (zip bombs,
@@ -108,14 +109,13 @@ export function cellFormat(sheetXml: string, stylesXml: string, address: string)
 
 /** Every part of a zip package, by name (read with yauzl). */
 export async function unzipAll(zip: Buffer): Promise<Map<string, Buffer>> {
-  const yauzl = (await import('yauzl')).default;
   return new Promise((resolve, reject) => {
     yauzl.fromBuffer(zip, { lazyEntries: true }, (error, file) => {
       if (error || !file) return reject(error);
       const parts = new Map<string, Buffer>();
       file.on('error', reject);
       file.on('end', () => resolve(parts));
-      file.on('entry', (entry: import('yauzl').Entry) => {
+      file.on('entry', (entry: yauzl.Entry) => {
         file.openReadStream(entry, (streamError, stream) => {
           if (streamError || !stream) return reject(streamError);
           const chunks: Buffer[] = [];
