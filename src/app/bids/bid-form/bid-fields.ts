@@ -20,8 +20,10 @@ const capacityValidator: ValidatorFn = (control: AbstractControl): ValidationErr
 };
 
 export function bidFormGroup(regions: readonly RegionView[]) {
-  const prices = recordByCode<FormControl<number | null>>();
-  for (const region of regions) prices[region.code] = new FormControl<number | null>(null, optionalPrice);
+  // Angular's FormGroup needs an ordinary object; fromEntries keeps every code an own key.
+  const prices: Record<string, FormControl<number | null>> = Object.fromEntries(
+    regions.map((region) => [region.code, new FormControl<number | null>(null, optionalPrice)]),
+  );
   return new FormGroup({
     fixedFee: new FormControl<number | null>(null, zodValidator(fixedFeeSchema)),
     noCap: new FormControl(false, { nonNullable: true }),
