@@ -10,7 +10,7 @@ import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { buildBidWorkbook } from '../workbooks/bid-workbook';
 import { parseBidWorkbookOffThread } from '../workbooks/workbook-pool';
-import { assertBidMatchesDocument } from './bid-documents';
+import { assertBidMatchesDocument, keepDocumentIfMatching } from './bid-documents';
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
 import { audit } from './audit.service';
@@ -149,7 +149,7 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       if (!doc) throw new ValidationError([{ field: 'documentId', message: 'This uploaded workbook is not yours or does not exist.' }]);
       assertBidMatchesDocument(doc, input);
       bid.document = doc;
-    }
+    } else await keepDocumentIfMatching(tx, bid, input);
     if (input.submit) {
       bid.status = bid.revision > 0 ? 'revised' : 'submitted';
       bid.revision += 1;

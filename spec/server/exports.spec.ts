@@ -130,6 +130,16 @@ describe('exports', () => {
     expect((await vendorA.get(`/api/tenders/${tenderId}/bid`)).body).toEqual({ bid: null });
     const ok = await vendorA.send('put', `/api/tenders/${tenderId}/bid`, { ...up.body.bid, submit: true, version: null, documentId: up.body.documentId });
     expect(ok.status).toBe(200);
+    expect(ok.body.document).toMatchObject({ id: up.body.documentId });
+    // A revision typed into the form with other figures detaches the workbook; the same figures keep it.
+    const typed = await vendorA.send('put', `/api/tenders/${tenderId}/bid`, { ...up.body.bid, fixedFee: 17000, submit: true, version: ok.body.version });
+    expect(typed.status).toBe(200);
+    expect(typed.body.document).toBeNull();
+    const again = await vendorA.send('put', `/api/tenders/${tenderId}/bid`, { ...up.body.bid, submit: true, version: typed.body.version, documentId: up.body.documentId });
+    expect(again.body.document).toMatchObject({ id: up.body.documentId });
+    const same = await vendorA.send('put', `/api/tenders/${tenderId}/bid`, { ...up.body.bid, submit: true, version: again.body.version });
+    expect(same.status).toBe(200);
+    expect(same.body.document).toMatchObject({ id: up.body.documentId });
     const form = await vendorB.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 100, capacity: 5000, prices: { R01: 60, R02: 65, R03: 66 }, submit: true, version: null });
     expect(form.status).toBe(200);
     await passClosingTime(t, tenderId);
