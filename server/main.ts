@@ -5,6 +5,7 @@ import { Pool } from 'pg';
 import { createApp } from './app';
 import { loadConfig, type Config } from './config';
 import { closeSolverPool } from './award';
+import { closeWorkbookPool } from './workbooks/workbook-pool';
 import { createBoss, startMailWorker, startTenderCloseWorker } from './jobs/queue';
 import { startSolveWorker } from './jobs/solve-job';
 import { startNoticeWorker } from './jobs/notice-job';
@@ -64,6 +65,7 @@ export async function start(config: Config): Promise<Running> {
         await new Promise<void>((resolve) => server.close(() => resolve()));
         await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
         await closeSolverPool();
+        await closeWorkbookPool();
         await catcher?.close();
         mailer.close();
         await sessionPool.end();

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 
 import { ROLES } from './roles';
+import { plainText } from './text';
 
 export { ROLES, ROLE_LABELS, type Role, type SessionUser } from './roles';
 
@@ -22,7 +23,7 @@ export const emailSchema = z
 
 /** POST /api/session. The password is not length-checked here: a wrong one gets the same 401. */
 export const signInSchema = z.object({
-  email: z.string({ error: 'E-mail is required.' }).trim().min(1, { error: 'E-mail is required.' }).max(254, { error: 'E-mail must be at most 254 characters.' }),
+  email: plainText(z.string({ error: 'E-mail is required.' }).trim().min(1, { error: 'E-mail is required.' }).max(254, { error: 'E-mail must be at most 254 characters.' }), 'E-mail'),
   password: z.string({ error: 'Password is required.' }).min(1, { error: 'Password is required.' }).max(200, { error: 'Password must be at most 200 characters.' }),
 });
 export type SignIn = z.infer<typeof signInSchema>;

@@ -1,4 +1,6 @@
 import { z } from 'zod';
+import { codeRecordSchema } from './bids';
+import { plainText } from './text';
 
 /**
  * The award problem file (version 1) and the award result, as described in DESIGN.md
@@ -6,11 +8,11 @@ import { z } from 'zod';
  * engine validates with `awardProblemSchema` before it builds any model.
  */
 
-const idSchema = z
+const idSchema = plainText(z
   .string({ error: 'Must be a text id.' })
   .trim()
   .min(1, { error: 'Must not be empty.' })
-  .max(64, { error: 'Must be at most 64 characters.' });
+  .max(64, { error: 'Must be at most 64 characters.' }), 'An id');
 
 const fraction = (what: string) =>
   z
@@ -24,10 +26,15 @@ const nonNegative = (what: string) =>
     .refine(Number.isFinite, { error: `${what} must be a finite number.` })
     .refine((v) => v >= 0, { error: `${what} must not be negative.` });
 
+const unitPrice = nonNegative('Unit price');
+
+/** Region id → unit price, without a prototype, so an id such as `__proto__` or `toString` is an id like any other. */
+const pricesByRegion = codeRecordSchema(z.string(), unitPrice, 'Prices must be an object of region id → unit price.');
+
 /** A delivery region and its forecast quantity (strictly positive). */
 export const awardRegionSchema = z.object({
   id: idSchema,
-  name: z.string({ error: 'Name must be text.' }).max(200, { error: 'Name must be at most 200 characters.' }).optional(),
+  name: plainText(z.string({ error: 'Name must be text.' }).max(200, { error: 'Name must be at most 200 characters.' }), 'Name').optional(),
   demand: z
     .number({ error: 'Forecast quantity must be a number.' })
     .refine(Number.isFinite, { error: 'Forecast quantity must be a finite number.' })
@@ -37,7 +44,7 @@ export const awardRegionSchema = z.object({
 /** A vendor's bid: fixed fee, capacity cap (null = no cap) and unit prices by region id. */
 export const awardVendorSchema = z.object({
   id: idSchema,
-  name: z.string({ error: 'Name must be text.' }).max(200, { error: 'Name must be at most 200 characters.' }).optional(),
+  name: plainText(z.string({ error: 'Name must be text.' }).max(200, { error: 'Name must be at most 200 characters.' }), 'Name').optional(),
   fixedFee: nonNegative('Fixed fee').default(0),
   capacity: z
     .number({ error: 'Capacity cap must be a number, or null for no cap.' })
@@ -46,7 +53,7 @@ export const awardVendorSchema = z.object({
     .nullable()
     .default(null),
   sme: z.boolean({ error: 'SME must be true or false.' }).default(false),
-  prices: z.record(z.string(), nonNegative('Unit price'), { error: 'Prices must be an object of region id → unit price.' }),
+  prices: pricesByRegion,
 });
 
 /** The tender's award rules; every rule is optional. Shares are fractions (0.6 = 60 %). */

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { plainText } from './text';
 
 /** Most regions one tender may have; the bid workbook and the tabulation are sized for it. */
 export const MAX_REGIONS = 500;
@@ -18,25 +19,83 @@ export function hasAtMostDecimals(value: number, places: number): boolean {
 /** Region codes as they appear in workbooks, e-mails and the award engine's problem file. */
 export const REGION_CODE_PATTERN = /^[A-Za-z0-9._-]{1,20}$/;
 
+/**
+ * Names every JavaScript object already answers to (`__proto__`, `constructor`, `toString`…).
+ * Region codes key prices and quantities in objects all the way to the spreadsheet and the award
+ * engine; such a code would read a built-in instead of a price, so it is refused (in any case).
+ */
+const RESERVED_CODES = new Set([
+  '__proto__', 'constructor', 'tostring', 'tolocalestring', 'valueof', 'hasownproperty', 'isprototypeof',
+  'propertyisenumerable', '__definegetter__', '__definesetter__', '__lookupgetter__', '__lookupsetter__',
+]);
+
+/** True when `code` is one of the reserved words a region code must not be. */
+export function isReservedCode(code: string): boolean {
+  return RESERVED_CODES.has(code.trim().toLowerCase());
+}
+
 export const regionCodeSchema = z
   .string({ error: 'Region code is required.' })
   .trim()
   .min(1, { error: 'Region code is required.', abort: true })
   .max(20, { error: 'Region code must be at most 20 characters.' })
-  .regex(REGION_CODE_PATTERN, { error: 'Region code may only contain letters, digits, ".", "_" and "-".' });
+  .regex(REGION_CODE_PATTERN, { error: 'Region code may only contain letters, digits, ".", "_" and "-".' })
+  .refine((code) => !isReservedCode(code), {
+    error: (issue) => `Region code "${String(issue.input)}" is a reserved word; region codes are letters, digits, ".", "_" and "-", and not a word such as __proto__, constructor or toString.`,
+  });
+
+/**
+ * An object keyed by region code (or any other user-chosen id) that has no prototype, so that no
+ * key can reach a built-in: `prices.toString` is undefined unless a price was given for it, and a
+ * `__proto__` key is stored as a key. Build every code-keyed record with this.
+ */
+export function recordByCode<T>(entries: Iterable<readonly [string, T]> = []): Record<string, T> {
+  const record = Object.create(null) as Record<string, T>;
+  for (const [key, value] of entries) record[key] = value;
+  return record;
+}
+
+/**
+ * A record keyed by region code (or another user-chosen id), read key by key into a record
+ * without a prototype (see {@link recordByCode}). `z.record` skips a `__proto__` key without a
+ * word and writes into a plain object; here every key is checked by `key`, every value by
+ * `value`, and each issue carries the key as its path (`prices.R07`).
+ */
+export function codeRecordSchema<V>(key: z.ZodType<string>, value: z.ZodType<V>, error: string) {
+  return z
+    .custom<Record<string, unknown>>((v) => typeof v === 'object' && v !== null && !Array.isArray(v), { error })
+    .transform((record, ctx) => {
+      const out = recordByCode<V>();
+      for (const [rawKey, rawValue] of Object.entries(record)) {
+        const k = key.safeParse(rawKey);
+        const v = value.safeParse(rawValue);
+        if (!k.success) ctx.addIssue({ code: 'custom', path: [rawKey], message: k.error.issues[0]?.message ?? 'This key is not valid.', input: rawKey });
+        if (!v.success) ctx.addIssue({ code: 'custom', path: [rawKey], message: v.error.issues[0]?.message ?? 'This value is not valid.', input: rawValue });
+        if (k.success && v.success) out[k.data] = v.data;
+      }
+      return out;
+    });
+}
+
+/** The value of `key` in a code-keyed record, only when it is the record's own. */
+export function byCode<T>(record: Readonly<Record<string, T>> | undefined, key: string): T | undefined {
+  return record !== undefined && Object.prototype.hasOwnProperty.call(record, key) ? record[key] : undefined;
+}
 
 /** A tender's region row as the buyer enters or imports it. */
 export const regionInputSchema = z.object({
   code: regionCodeSchema,
-  name: z
+  name: plainText(z
     .string({ error: 'Region name is required.' })
     .trim()
     .min(1, { error: 'Region name is required.' })
-    .max(120, { error: 'Region name must be at most 120 characters.' }),
+    .max(120, { error: 'Region name must be at most 120 characters.' }), 'Region name'),
   forecast: z
     .number({ error: 'Forecast must be a number above 0.' })
     .gt(0, { error: 'Forecast must be a number above 0.' })
-    .lt(MAX_AMOUNT, { error: `Forecast must be below ${MAX_AMOUNT.toExponential()}.` }),
+    .lt(MAX_AMOUNT, { error: `Forecast must be below ${MAX_AMOUNT.toExponential()}.` })
+    // Stored as numeric(16,4): a fifth decimal would be rounded away, and 1e-7 would become 0.
+    .refine((v) => hasAtMostDecimals(v, 4), { error: 'Forecast may have at most 4 decimals (and must not round to 0).' }),
 });
 export type RegionInput = z.infer<typeof regionInputSchema>;
 
@@ -86,6 +145,8 @@ export const capacitySchema = z
   .number({ error: 'Capacity cap must be a number above 0, or empty for no cap.' })
   .gt(0, { error: 'Capacity cap must be a positive number (leave it empty for no cap).' })
   .lt(MAX_AMOUNT, { error: `Capacity cap must be below ${MAX_AMOUNT.toExponential()}.` })
+  // Stored as numeric(16,4), like the forecast.
+  .refine((v) => hasAtMostDecimals(v, 4), { error: 'Capacity cap may have at most 4 decimals (and must not round to 0).' })
   .nullable();
 
 /** A delivered unit price for one region: above 0, at most 4 decimals. */
@@ -104,7 +165,7 @@ export const bidInputSchema = z
   .object({
     fixedFee: fixedFeeSchema,
     capacity: capacitySchema,
-    prices: z.record(regionCodeSchema, unitPriceSchema, { error: 'Prices must map region codes to unit prices.' }),
+    prices: codeRecordSchema(regionCodeSchema, unitPriceSchema, 'Prices must map region codes to unit prices.'),
     submit: z.boolean({ error: 'Submit must be true or false.' }),
   })
   .superRefine((bid, ctx) => {

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { awardRulesSchema, type AwardResult, type AwardRules } from './award';
+import { plainText } from './text';
 
 /**
  * Evaluation of a closed tender: scenarios (named sets of award rules), runs of the award engine,
@@ -14,8 +15,8 @@ export const FINISHED_RUN_STATUSES: readonly RunStatus[] = ['optimal', 'feasible
 export const RECOMMENDATION_STATUSES = ['recommended', 'approved', 'returned'] as const;
 export type RecommendationStatus = (typeof RECOMMENDATION_STATUSES)[number];
 
-const text = (label: string, max: number) =>
-  z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` });
+const text = (label: string, max: number, multiline = false) =>
+  plainText(z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` }), label, multiline);
 
 /** POST /api/tenders/:id/scenarios and PUT /api/scenarios/:id */
 export const scenarioInputSchema = z.object({
@@ -29,13 +30,13 @@ export type ScenarioInput = z.input<typeof scenarioInputSchema>;
 /** POST /api/tenders/:id/recommendation */
 export const recommendationInputSchema = z.object({
   runId: z.uuid({ error: 'Choose a run.' }),
-  justification: text('Justification', 4000),
+  justification: text('Justification', 4000, true),
 });
 /** POST /api/tenders/:id/recommendation/approve and …/return */
 export const decisionInputSchema = z.object({
-  comment: z.string({ error: 'Comment must be text.' }).trim().max(4000, { error: 'Comment must be at most 4000 characters.' }).default(''),
+  comment: plainText(z.string({ error: 'Comment must be text.' }).trim().max(4000, { error: 'Comment must be at most 4000 characters.' }), 'Comment', true).default(''),
 });
-export const returnInputSchema = z.object({ comment: text('Comment', 4000) });
+export const returnInputSchema = z.object({ comment: text('Comment', 4000, true) });
 
 /** GET /api/tenders/:id/compare?runs=a,b,c */
 export const compareQuerySchema = z.object({

@@ -1,12 +1,13 @@
 import { z } from 'zod';
 import { emailSchema, passwordSchema, roleSchema, type Role } from './auth';
+import { plainText } from './text';
 
 const uuid = z.uuid({ error: 'Must be a valid id.' });
 
 /** POST /api/users: invite a person. Vendors must name their organisation. */
 export const inviteUserSchema = z
   .object({
-    name: z.string({ error: 'Name is required.' }).trim().min(1, { error: 'Name is required.' }).max(120, { error: 'Name must be at most 120 characters.' }),
+    name: plainText(z.string({ error: 'Name is required.' }).trim().min(1, { error: 'Name is required.' }).max(120, { error: 'Name must be at most 120 characters.' }), 'Name'),
     email: emailSchema,
     role: roleSchema,
     vendorOrganisationId: uuid.nullish(),
@@ -23,8 +24,8 @@ export type InviteUser = z.infer<typeof inviteUserSchema>;
 
 /** POST /api/vendor-organisations */
 export const vendorOrganisationSchema = z.object({
-  name: z.string({ error: 'Name is required.' }).trim().min(1, { error: 'Name is required.' }).max(160, { error: 'Name must be at most 160 characters.' }),
-  registrationNumber: z.string({ error: 'Registration number is required.' }).trim().min(1, { error: 'Registration number is required.' }).max(40, { error: 'Registration number must be at most 40 characters.' }),
+  name: plainText(z.string({ error: 'Name is required.' }).trim().min(1, { error: 'Name is required.' }).max(160, { error: 'Name must be at most 160 characters.' }), 'Name'),
+  registrationNumber: plainText(z.string({ error: 'Registration number is required.' }).trim().min(1, { error: 'Registration number is required.' }).max(40, { error: 'Registration number must be at most 40 characters.' }), 'Registration number'),
   sme: z.boolean({ error: 'SME must be true or false.' }),
   contactEmail: emailSchema,
 });

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { bidInputSchema, regionListSchema } from './bids';
+import { plainText } from './text';
 
 /** A tender's life: draft → open (published) → closed (bids unsealed) → awarded → notified. */
 export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified'] as const;
@@ -10,7 +11,7 @@ export const BID_STATUSES = ['draft', 'submitted', 'revised', 'withdrawn'] as co
 export type BidStatus = (typeof BID_STATUSES)[number];
 
 const text = (label: string, max: number) =>
-  z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` });
+  plainText(z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` }), label);
 
 /** POST /api/tenders and PUT /api/tenders/:id (drafts only). */
 export const tenderInputSchema = z.object({
@@ -39,14 +40,14 @@ export const tenderInputSchema = z.object({
     .regex(/^[a-z]{2,3}(-[A-Z]{2})?$/, { error: 'Locale must look like en-GB or de-DE.' })
     .refine((l) => { try { return Intl.NumberFormat.supportedLocalesOf([l]).length === 1; } catch { return false; } }, { error: 'This locale is not supported.' })
     .default('en-GB'),
-  description: z.string({ error: 'Description must be text.' }).max(5000, { error: 'Description must be at most 5000 characters.' }).default(''),
+  description: plainText(z.string({ error: 'Description must be text.' }).max(5000, { error: 'Description must be at most 5000 characters.' }), 'Description', true).default(''),
   regions: regionListSchema,
 });
 export type TenderInput = z.infer<typeof tenderInputSchema>;
 
 export const tenderListQuerySchema = z.object({
   status: z.enum(TENDER_STATUSES, { error: 'Unknown status.' }).optional(),
-  q: z.string().max(100, { error: 'Search must be at most 100 characters.' }).optional(),
+  q: plainText(z.string().max(100, { error: 'Search must be at most 100 characters.' }), 'Search').optional(),
 });
 
 /** POST /api/tenders/:id/invitations: existing organisations and/or a new vendor contact. */

@@ -28,4 +28,20 @@ export class BidDocument extends BaseEntity {
 
   @Property({ type: 'blob', lazy: true })
   content!: Buffer;
+
+  /**
+   * The figures read from the workbook at upload, and the cell each price came from: a bid saved
+   * with this workbook attached must carry exactly these figures. Null for a workbook stored
+   * before figures were kept.
+   */
+  @Property({ type: 'json', nullable: true })
+  figures?: BidDocumentFigures | null;
+}
+
+export interface BidDocumentFigures {
+  fixedFee: number;
+  capacity: number | null;
+  prices: Record<string, number>;
+  /** Region code → cell, e.g. `Bid!E9`. */
+  priceCells: Record<string, string>;
 }

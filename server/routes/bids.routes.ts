@@ -4,6 +4,7 @@ import type { AppDeps } from '../app';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as bids from '../services/bids.service';
+import { cleanDocumentContent } from '../services/bid-documents';
 import { UPLOAD_MAX_BYTES } from './tenders.routes';
 
 const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
@@ -28,10 +29,10 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
     route({
       method: 'get', path: '/tenders/:id/documents/:documentId', tag: 'Bids', access: ['buyer', 'compliance'],
       params: z.object({ id: z.uuid({ error: 'Must be a valid id.' }), documentId: z.uuid({ error: 'Must be a valid id.' }) }), produces: XLSX,
-      summary: 'A workbook a vendor uploaded with its bid (after closing only).',
+      summary: 'A workbook a vendor uploaded with its bid (after closing only), as a values-only copy: no formulas, links, names or macros. The original is kept as the record.',
       handler: async ({ em, user, params, res }) => {
         const doc = await bids.bidDocument(em, user, params.id, params.documentId);
-        res.attachment(doc.filename).type(XLSX).send(doc.content);
+        res.attachment(doc.filename).type(XLSX).send(await cleanDocumentContent(doc));
       },
     }),
     route({

@@ -4,7 +4,7 @@ import type { AppDeps } from '../app';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as tenders from '../services/tenders.service';
-import { parseRegionFile } from '../workbooks/region-import';
+import { parseRegionFileOffThread } from '../workbooks/workbook-pool';
 
 export const UPLOAD_MAX_BYTES = 5 * 1024 * 1024;
 
@@ -38,7 +38,7 @@ export function tenderRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'Read regions from an .xlsx or .csv file (header row code, name, forecast) for the tender editor; nothing is stored.',
       handler: async ({ req }) => {
         if (!req.file) throw new ValidationError([{ field: 'file', message: 'Choose an .xlsx or .csv file.' }]);
-        const result = await parseRegionFile(req.file.buffer, { filename: req.file.originalname, mimeType: req.file.mimetype });
+        const result = await parseRegionFileOffThread(req.file.buffer, { filename: req.file.originalname, mimeType: req.file.mimetype });
         if (!result.ok) {
           throw new ValidationError(result.errors.map((e) => ({ field: e.row === null ? 'file' : `row ${e.row}`, message: e.message })), 'The file has problems.');
         }

@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
 import { AuditEntry, type User } from '../entities';
+import { csvCell } from '../workbooks/spreadsheet-text';
 
 /** The hash before the first entry of a tender's chain. */
 export const GENESIS = '0'.repeat(64);
@@ -117,13 +118,6 @@ export async function verifyTrail(em: EntityManager, tenderId: string): Promise<
     prev = r.hash;
   }
   return { ok: true, entries: rows.length, brokenAt: null, message: `All ${rows.length} entries verify: each hash matches its content and the entry before it.` };
-}
-
-/** A CSV cell that a spreadsheet cannot take for a formula. */
-export function csvCell(value: unknown): string {
-  let text = value === null || value === undefined ? '' : typeof value === 'string' ? value : JSON.stringify(value);
-  if (/^[=+\-@\t\r]/.test(text)) text = `'${text}`;
-  return `"${text.replace(/"/g, '""')}"`;
 }
 
 export async function auditCsv(em: EntityManager, tenderId: string): Promise<string> {

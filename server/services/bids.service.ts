@@ -1,14 +1,16 @@
 import { createHash } from 'node:crypto';
 import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
-import type { BidFigures } from '@shared/bids';
+import { recordByCode, type BidFigures } from '@shared/bids';
 import type { BidSave, BidStatus, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
 import { wrap } from '@mikro-orm/core';
 import { Bid, BidDocument, Tender, type User } from '../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
-import { buildBidWorkbook, parseBidWorkbook } from '../workbooks/bid-workbook';
+import { buildBidWorkbook } from '../workbooks/bid-workbook';
+import { parseBidWorkbookOffThread } from '../workbooks/workbook-pool';
+import { assertBidMatchesDocument, keepDocumentIfMatching } from './bid-documents';
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
 import { audit } from './audit.service';
@@ -51,9 +53,7 @@ function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), doc
 }
 
 function linePrices(bid: Bid): Record<string, number> {
-  const prices: Record<string, number> = {};
-  for (const line of bid.lines.getItems()) prices[line.region.code] = line.unitPrice;
-  return prices;
+  return recordByCode(bid.lines.getItems().map((line) => [line.region.code, line.unitPrice] as const));
 }
 
 function vendorOf(user: User) {
@@ -147,8 +147,9 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
     if (input.documentId) {
       const doc = await tx.findOne(BidDocument, { id: input.documentId, tender, vendorOrganisation: org });
       if (!doc) throw new ValidationError([{ field: 'documentId', message: 'This uploaded workbook is not yours or does not exist.' }]);
+      assertBidMatchesDocument(doc, input);
       bid.document = doc;
-    }
+    } else await keepDocumentIfMatching(tx, bid, input);
     if (input.submit) {
       bid.status = bid.revision > 0 ? 'revised' : 'submitted';
       bid.revision += 1;
@@ -261,7 +262,7 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
     vendor: { id: b.vendor_id, name: b.vendor_name, sme: b.sme },
     fixedFee: Number(b.fixed_fee),
     capacity: b.capacity === null ? null : Number(b.capacity),
-    prices: Object.fromEntries(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)])),
+    prices: recordByCode(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)] as const)),
     submittedAt: new Date(b.submitted_at).toISOString(),
     digest: b.digest,
     documentId: b.document_id,
@@ -312,7 +313,7 @@ export async function uploadWorkbook(
   const org = vendorOf(user);
   const tender = await findVisibleTender(em, user, tenderId);
   if (tender.status !== 'open') throw new ConflictError(`Bidding closed at ${utc(tender.closesAt)}.`);
-  const parsed = await parseBidWorkbook(file.buffer, regionInputs(tender), { reference: tender.reference });
+  const parsed = await parseBidWorkbookOffThread(file.buffer, regionInputs(tender), { reference: tender.reference });
   if (!parsed.ok) {
     throw new ValidationError(parsed.errors.map((e) => ({ field: e.cell || 'file', message: e.message })), 'The workbook has problems; nothing was saved.');
   }
@@ -322,6 +323,7 @@ export async function uploadWorkbook(
     size: file.size,
     digest: createHash('sha256').update(file.buffer).digest('hex'),
     content: file.buffer,
+    figures: { ...parsed.bid, priceCells: parsed.priceCells },
   });
   await em.flush();
   return { documentId: doc.id, bid: parsed.bid };

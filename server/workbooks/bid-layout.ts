@@ -71,7 +71,8 @@ export interface BidCellError {
 }
 
 export type BidWorkbookResult =
-  | { ok: true; bid: BidFigures }
+  /** `priceCells`: region code → the cell its unit price was read from (`Bid!E9`). */
+  | { ok: true; bid: BidFigures; priceCells: Record<string, string> }
   | { ok: false; errors: BidCellError[] };
 
 /** "2026-03-02 12:00 UTC" — one unambiguous form for a closing time in a file that travels. */

@@ -1,6 +1,6 @@
 import XlsxPopulate from 'xlsx-populate';
 import type { ZodType } from 'zod';
-import { capacitySchema, fixedFeeSchema, unitPriceSchema, type RegionInput } from '@shared/bids';
+import { capacitySchema, fixedFeeSchema, recordByCode, unitPriceSchema, type RegionInput } from '@shared/bids';
 import {
   BID_LAYOUT, EXTRA_ROWS_SCANNED, MAX_REPORTED_ERRORS, cellRef, type BidCellError, type BidWorkbookResult,
 } from './bid-layout';
@@ -66,10 +66,10 @@ function checkLabels(sheet: XlsxPopulate.Sheet, errors: CellErrors): boolean {
   return intact;
 }
 
-function readRegionRows(sheet: XlsxPopulate.Sheet, regions: RegionInput[], errors: CellErrors): Record<string, number> {
+function readRegionRows(sheet: XlsxPopulate.Sheet, regions: RegionInput[], errors: CellErrors, priceCells: Record<string, string>): Record<string, number> {
   const byCode = new Map(regions.map((r) => [r.code.toUpperCase(), r]));
   const seenAt = new Map<string, number>();
-  const prices: Record<string, number> = {};
+  const prices = recordByCode<number>();
   const first = BID_LAYOUT.firstRegionRow;
   const lastScanned = first + regions.length - 1 + EXTRA_ROWS_SCANNED;
 
@@ -103,7 +103,10 @@ function readRegionRows(sheet: XlsxPopulate.Sheet, regions: RegionInput[], error
     seenAt.set(region.code, rowNumber);
 
     const price = readNumber(sheet, priceAddress, 'unit price', unitPriceSchema, errors);
-    if (typeof price === 'number') prices[region.code] = price;
+    if (typeof price === 'number') {
+      prices[region.code] = price;
+      priceCells[region.code] = cellRef(priceAddress);
+    }
   });
 
   const missing = regions.filter((r) => !seenAt.has(r.code));
@@ -170,12 +173,13 @@ export async function parseBidWorkbook(
   const fixedFee = readNumber(sheet, BID_LAYOUT.fixedFee, 'fixed fee', fixedFeeSchema, errors);
   if (fixedFee === null) errors.add(BID_LAYOUT.fixedFee, 'the fixed fee is required; enter 0 if there is none.');
   const capacity = readNumber(sheet, BID_LAYOUT.capacity, 'capacity cap', capacitySchema, errors);
-  const prices = readRegionRows(sheet, regions, errors);
+  const priceCells = recordByCode<string>();
+  const prices = readRegionRows(sheet, regions, errors, priceCells);
 
   if (errors.list.length === 0 && Object.keys(prices).length === 0) {
     const last = BID_LAYOUT.firstRegionRow + regions.length - 1;
     errors.add(`${COL.price}${BID_LAYOUT.firstRegionRow}:${COL.price}${last}`, 'no unit price is entered; offer at least one region.');
   }
   if (errors.list.length > 0 || typeof fixedFee !== 'number' || capacity === undefined) return fail(errors.list);
-  return { ok: true, bid: { fixedFee, capacity, prices } };
+  return { ok: true, bid: { fixedFee, capacity, prices }, priceCells };
 }

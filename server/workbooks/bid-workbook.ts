@@ -1,5 +1,7 @@
 import XlsxPopulate from 'xlsx-populate';
+import { byCode } from '@shared/bids';
 import { BID_LAYOUT, type BidWorkbookView, formatUtc } from './bid-layout';
+import { outputSafeWorkbook } from './spreadsheet-text';
 import { addDecimalValidation, protectSheet, unlockCell } from './xlsx-internals';
 import {
   FORMATS, HEADER_STYLE, INPUT_STYLE, NOTE_STYLE, READ_ONLY_STYLE, TITLE_STYLE, quantityFormat, sizeColumns,
@@ -94,7 +96,7 @@ function writeRegionTable(sheet: XlsxPopulate.Sheet, view: BidWorkbookView): voi
     sheet.cell(`${COL.forecast}${row}`).value(region.forecast).style({ ...READ_ONLY_STYLE, numberFormat: quantityFormat(region.forecast) });
     sheet.cell(`${COL.unit}${row}`).value(view.unit).style(READ_ONLY_STYLE);
     const price = sheet.cell(`${COL.price}${row}`);
-    const offered = view.bid?.prices[region.code];
+    const offered = byCode(view.bid?.prices, region.code);
     if (offered !== undefined) price.value(offered);
     price.style({ ...INPUT_STYLE, numberFormat: FORMATS.price });
     unlockCell(price);
@@ -129,5 +131,5 @@ export async function buildBidWorkbook(view: BidWorkbookView): Promise<Buffer> {
   protectSheet(instructions);
 
   workbook.property('Title', `Bid workbook ${view.reference}`);
-  return workbook.outputAsync();
+  return outputSafeWorkbook(workbook);
 }

@@ -1,6 +1,6 @@
 import XlsxPopulate from 'xlsx-populate';
-import type { RegionInput } from '@shared/bids';
-import { markAsText } from './xlsx-internals';
+import { byCode, type RegionInput } from '@shared/bids';
+import { outputSafeWorkbook } from './spreadsheet-text';
 import {
   FORMATS, HEADER_STYLE, NOTE_STYLE, PALETTE, READ_ONLY_STYLE, TITLE_STYLE, columnLetter, quantityFormat, sizeColumns,
 } from './workbook-style';
@@ -37,25 +37,12 @@ export const TABULATION_LAYOUT = {
   firstVendorColumn: 4,
 } as const;
 
-/** Text starting with one of these could be taken for a formula by a spreadsheet application. */
-const FORMULA_LEADS = ['=', '+', '-', '@', '\t', '\r'];
-
-/**
- * Writes names that come from users (vendors, regions) as plain text. xlsx-populate stores strings
- * as text, never as formulas; the quote prefix also keeps them text when someone edits the cell.
- */
-function writeText(cell: XlsxPopulate.Cell, text: string): XlsxPopulate.Cell {
-  cell.value(text);
-  if (FORMULA_LEADS.some((lead) => text.startsWith(lead))) markAsText(cell);
-  return cell;
-}
-
 /** Lowest price per region code among the bids that priced it; absent when nobody did. */
 export function lowestPrices(regions: RegionInput[], bids: TabulatedBid[]): Map<string, number> {
   const lowest = new Map<string, number>();
   for (const region of regions) {
     for (const bid of bids) {
-      const price = bid.prices[region.code];
+      const price = byCode(bid.prices, region.code);
       if (price === undefined) continue;
       const best = lowest.get(region.code);
       if (best === undefined || price < best) lowest.set(region.code, price);
@@ -68,7 +55,7 @@ const LOWEST_STYLE: XlsxPopulate.StyleMap = { bold: true, fill: PALETTE.highligh
 
 function writeHeader(sheet: XlsxPopulate.Sheet, view: TabulationView): number {
   const L = TABULATION_LAYOUT;
-  writeText(sheet.cell(L.title), `Bid tabulation — ${view.reference}: ${view.title}`).style(TITLE_STYLE);
+  sheet.cell(L.title).value(`Bid tabulation — ${view.reference}: ${view.title}`).style(TITLE_STYLE);
   sheet.cell(L.units).value(`Unit prices in ${view.currency} per ${view.unit}; forecasts and capacity caps in ${view.unit}; fixed fees in ${view.currency}. A blank price means the region was not bid.`).style(NOTE_STYLE);
   sheet.cell(L.legend)
     .value('Legend: a bold figure on a shaded background, followed by "(lowest)", is the lowest unit price in its region; equal lowest prices are all marked.')
@@ -78,7 +65,7 @@ function writeHeader(sheet: XlsxPopulate.Sheet, view: TabulationView): number {
   sheet.cell(h, 1).value('Region code');
   sheet.cell(h, 2).value('Region');
   sheet.cell(h, 3).value(`Forecast (${view.unit})`);
-  view.bids.forEach((bid, i) => writeText(sheet.cell(h, L.firstVendorColumn + i), bid.vendor.name));
+  view.bids.forEach((bid, i) => sheet.cell(h, L.firstVendorColumn + i).value(bid.vendor.name));
   const after = L.firstVendorColumn + view.bids.length;
   sheet.cell(h, after).value(`Lowest unit price (${view.currency})`);
   sheet.cell(h, after + 1).value('Bids received');
@@ -107,12 +94,12 @@ export async function buildTabulationWorkbook(view: TabulationView): Promise<Buf
 
   view.regions.forEach((region, r) => {
     const row = L.firstRegionRow + r;
-    writeText(sheet.cell(row, 1), region.code).style(READ_ONLY_STYLE);
-    writeText(sheet.cell(row, 2), region.name).style(READ_ONLY_STYLE);
+    sheet.cell(row, 1).value(region.code).style(READ_ONLY_STYLE);
+    sheet.cell(row, 2).value(region.name).style(READ_ONLY_STYLE);
     sheet.cell(row, 3).value(region.forecast).style({ ...READ_ONLY_STYLE, numberFormat: quantityFormat(region.forecast) });
     let count = 0;
     view.bids.forEach((bid, i) => {
-      const price = bid.prices[region.code];
+      const price = byCode(bid.prices, region.code);
       if (price === undefined) return;
       count++;
       const cell = sheet.cell(row, L.firstVendorColumn + i).value(price);
@@ -134,11 +121,11 @@ export async function buildTabulationWorkbook(view: TabulationView): Promise<Buf
     const cap = sheet.cell(feeRow + 1, column);
     if (bid.capacity === null) cap.value('no cap').style(NOTE_STYLE);
     else cap.value(bid.capacity).style({ numberFormat: quantityFormat(bid.capacity) });
-    sheet.cell(feeRow + 2, column).value(view.regions.filter((region) => bid.prices[region.code] !== undefined).length);
+    sheet.cell(feeRow + 2, column).value(view.regions.filter((region) => byCode(bid.prices, region.code) !== undefined).length);
   });
 
   sizeColumns(sheet, [14, 30, 14, ...view.bids.map(() => 20), 20, 10]);
   sheet.row(L.headerRow).height(32);
   sheet.freezePanes(`${columnLetter(L.firstVendorColumn)}${L.firstRegionRow}`);
-  return workbook.outputAsync();
+  return outputSafeWorkbook(workbook);
 }

@@ -1,14 +1,16 @@
-import { inflateRaw } from 'node:zlib';
-import { promisify } from 'node:util';
+import yauzl from 'yauzl';
 
 /**
  * Checks an uploaded file is a real, harmless .xlsx package before any spreadsheet library sees it.
  *
  * An .xlsx is a zip package. Spreadsheet libraries unzip every part into memory, so a crafted file of
- * a few kilobytes could expand to gigabytes (a "zip bomb"). We therefore read the zip's central
- * directory ourselves, refuse absurd declared sizes, and then inflate each part with a hard output
- * limit, so a part that lies about its size is caught too. The file name and the browser's MIME type
- * are never consulted: a renamed .csv or .pdf fails on its content.
+ * a few kilobytes could expand to gigabytes (a "zip bomb"). The zip's central directory is read with
+ * yauzl (entry count, names, declared sizes), absurd declared sizes are refused, and then every part
+ * is inflated as a stream whose bytes are counted: a part that lies about its size is stopped as
+ * soon as it passes the size it declared, and the total actually inflated is capped too. The file
+ * name and the browser's MIME type are never consulted: a renamed .csv or .pdf fails on its content.
+ * Uploads are checked and parsed in a worker thread (see workbook-pool.ts), never on the thread
+ * that answers requests.
  */
 
 export interface XlsxLimits {
@@ -23,10 +25,16 @@ export interface XlsxLimits {
   ratioAppliesAbove: number;
 }
 
+/**
+ * A bid workbook of 500 regions is about 20 parts and well under 1 MB once inflated; a workbook
+ * saved by a spreadsheet application adds a few parts (theme, properties). The limits leave wide
+ * room above that while keeping what a worker must inflate and parse small: a package of many
+ * sub-megabyte parts inflating to 45 MB once kept the server busy for seconds.
+ */
 export const DEFAULT_XLSX_LIMITS: Readonly<XlsxLimits> = Object.freeze({
   maxBytes: 5 * 1024 * 1024,
-  maxEntries: 2000,
-  maxTotalUncompressed: 50 * 1024 * 1024,
+  maxEntries: 500,
+  maxTotalUncompressed: 20 * 1024 * 1024,
   maxRatio: 200,
   ratioAppliesAbove: 1024 * 1024,
 });
@@ -39,7 +47,6 @@ export interface ZipEntryInfo {
   method: number;
   compressedSize: number;
   uncompressedSize: number;
-  localHeaderOffset: number;
 }
 
 export type XlsxCheck =
@@ -55,16 +62,9 @@ export class UnsafeWorkbookError extends Error {
 }
 
 const SIG_LOCAL = 0x04034b50;
-const SIG_CENTRAL = 0x02014b50;
-const SIG_END = 0x06054b50;
 const END_RECORD_SIZE = 22;
-const MAX_COMMENT = 0xffff;
-const ZIP64_MARK_32 = 0xffffffff;
-const ZIP64_MARK_16 = 0xffff;
 const METHOD_STORED = 0;
 const METHOD_DEFLATE = 8;
-
-const inflateRawAsync = promisify(inflateRaw);
 
 /** Human-readable size for messages ("5 MB", "812 kB"). */
 export function formatBytes(bytes: number): string {
@@ -78,7 +78,7 @@ export function looksLikeZip(buffer: Buffer): boolean {
   return buffer.length >= 4 && buffer.readUInt32LE(0) === SIG_LOCAL;
 }
 
-function refuse(reason: XlsxRejection, message: string): XlsxCheck {
+function refuse(reason: XlsxRejection, message: string): XlsxCheck & { ok: false } {
   return { ok: false, reason, message };
 }
 
@@ -94,115 +94,100 @@ function describeNonZip(buffer: Buffer): string {
   return 'The file is not an .xlsx workbook (its content is not a zip package). Upload the .xlsx workbook itself, not a copy saved as CSV or another format.';
 }
 
-function findEndRecord(buffer: Buffer): number {
-  const lowest = Math.max(0, buffer.length - END_RECORD_SIZE - MAX_COMMENT);
-  for (let i = buffer.length - END_RECORD_SIZE; i >= lowest; i--) {
-    if (buffer.readUInt32LE(i) === SIG_END) return i;
+/** A refusal carried through yauzl's callbacks. */
+class Refused extends Error {
+  constructor(readonly check: XlsxCheck & { ok: false }) {
+    super(check.message);
   }
-  return -1;
+}
+
+function openZip(buffer: Buffer): Promise<yauzl.ZipFile> {
+  return new Promise((resolve, reject) => {
+    // autoClose off: the parts are inflated after the whole directory has been read.
+    yauzl.fromBuffer(buffer, { lazyEntries: true, autoClose: false, validateEntrySizes: true, decodeStrings: true, strictFileNames: false }, (error, zip) => {
+      if (error || !zip) {
+        const text = String(error?.message ?? '');
+        if (/multi-disk/i.test(text)) reject(new Refused(refuse('unsupported', 'The workbook is split across several files, which is not accepted.')));
+        else if (/end of central directory record signature not found/i.test(text)) reject(new Refused(refuse('corrupt', 'The workbook is damaged: its zip directory is missing. Save it again as .xlsx.')));
+        else reject(new Refused(refuse('corrupt', 'The workbook is damaged: its zip directory is unreadable.')));
+        return;
+      }
+      resolve(zip);
+    });
+  });
 }
 
 /** Reads the central directory; checks structure and declared sizes only (no inflating). */
-function readCentralDirectory(buffer: Buffer, limits: XlsxLimits): XlsxCheck {
-  const end = findEndRecord(buffer);
-  if (end < 0) return refuse('corrupt', 'The workbook is damaged: its zip directory is missing. Save it again as .xlsx.');
-
-  const diskNumber = buffer.readUInt16LE(end + 4);
-  const directoryDisk = buffer.readUInt16LE(end + 6);
-  const totalEntries = buffer.readUInt16LE(end + 10);
-  const directorySize = buffer.readUInt32LE(end + 12);
-  const directoryOffset = buffer.readUInt32LE(end + 16);
-  if (totalEntries === ZIP64_MARK_16 || directorySize === ZIP64_MARK_32 || directoryOffset === ZIP64_MARK_32) {
-    // A workbook under 5 MB never needs ZIP64; accepting it would mean trusting extra size fields.
-    return refuse('unsupported', 'The workbook uses ZIP64 packaging, which is not accepted. Save it again as a normal .xlsx.');
+function readEntries(zip: yauzl.ZipFile, limits: XlsxLimits): Promise<yauzl.Entry[]> {
+  if (zip.entryCount > limits.maxEntries) {
+    return Promise.reject(new Refused(refuse('too-many-entries', `The workbook has ${zip.entryCount} internal parts; at most ${limits.maxEntries} are accepted.`)));
   }
-  if (diskNumber !== 0 || directoryDisk !== 0) {
-    return refuse('unsupported', 'The workbook is split across several files, which is not accepted.');
-  }
-  if (totalEntries > limits.maxEntries) {
-    return refuse('too-many-entries', `The workbook has ${totalEntries} internal parts; at most ${limits.maxEntries} are accepted.`);
-  }
-  if (directoryOffset + directorySize > end) {
-    return refuse('corrupt', 'The workbook is damaged: its zip directory points outside the file.');
-  }
-
-  const entries: ZipEntryInfo[] = [];
-  const names = new Set<string>();
-  let total = 0;
-  let pos = directoryOffset;
-  for (let i = 0; i < totalEntries; i++) {
-    if (pos + 46 > end || buffer.readUInt32LE(pos) !== SIG_CENTRAL) {
-      return refuse('corrupt', 'The workbook is damaged: its zip directory is unreadable.');
-    }
-    const flags = buffer.readUInt16LE(pos + 8);
-    const method = buffer.readUInt16LE(pos + 10);
-    const compressedSize = buffer.readUInt32LE(pos + 20);
-    const uncompressedSize = buffer.readUInt32LE(pos + 24);
-    const nameLength = buffer.readUInt16LE(pos + 28);
-    const extraLength = buffer.readUInt16LE(pos + 30);
-    const commentLength = buffer.readUInt16LE(pos + 32);
-    const localHeaderOffset = buffer.readUInt32LE(pos + 42);
-    const name = buffer.toString('utf8', pos + 46, pos + 46 + nameLength);
-    pos += 46 + nameLength + extraLength + commentLength;
-
-    if (flags & 0x1) return refuse('encrypted', 'The workbook is encrypted. Remove the password and upload it again.');
-    if (compressedSize === ZIP64_MARK_32 || uncompressedSize === ZIP64_MARK_32 || localHeaderOffset === ZIP64_MARK_32) {
-      return refuse('unsupported', 'The workbook uses ZIP64 packaging, which is not accepted. Save it again as a normal .xlsx.');
-    }
-    if (method !== METHOD_STORED && method !== METHOD_DEFLATE) {
-      return refuse('unsupported', `The workbook part "${name}" uses an unusual compression (method ${method}). Save it again as .xlsx.`);
-    }
-    // Two parts with one name would let different readers see different content.
-    if (names.has(name)) return refuse('corrupt', `The workbook is damaged: the part "${name}" appears twice.`);
-    names.add(name);
-
-    total += uncompressedSize;
-    if (total > limits.maxTotalUncompressed) {
-      return refuse('zip-bomb', `The workbook would expand to more than ${formatBytes(limits.maxTotalUncompressed)}; it is refused as unsafe.`);
-    }
-    if (uncompressedSize > limits.ratioAppliesAbove && uncompressedSize > compressedSize * limits.maxRatio) {
-      return refuse('zip-bomb', `The workbook part "${name}" is compressed more than ${limits.maxRatio} to 1; it is refused as unsafe.`);
-    }
-    entries.push({ name, method, compressedSize, uncompressedSize, localHeaderOffset });
-  }
-  return { ok: true, entries };
-}
-
-/** Locates an entry's compressed bytes through its local header (whose lengths may differ from the directory's). */
-function entryData(buffer: Buffer, entry: ZipEntryInfo): Buffer | null {
-  const at = entry.localHeaderOffset;
-  if (at + 30 > buffer.length || buffer.readUInt32LE(at) !== SIG_LOCAL) return null;
-  const start = at + 30 + buffer.readUInt16LE(at + 26) + buffer.readUInt16LE(at + 28);
-  const stop = start + entry.compressedSize;
-  return stop > buffer.length ? null : buffer.subarray(start, stop);
+  return new Promise((resolve, reject) => {
+    const entries: yauzl.Entry[] = [];
+    const names = new Set<string>();
+    let total = 0;
+    const stop = (check: XlsxCheck & { ok: false }) => {
+      zip.removeAllListeners('entry');
+      reject(new Refused(check));
+    };
+    zip.on('error', () => stop(refuse('corrupt', 'The workbook is damaged: its zip directory is unreadable.')));
+    zip.on('end', () => resolve(entries));
+    zip.on('entry', (entry: yauzl.Entry) => {
+      const name = entry.fileName;
+      if (entry.isEncrypted()) return stop(refuse('encrypted', 'The workbook is encrypted. Remove the password and upload it again.'));
+      if (entry.compressionMethod !== METHOD_STORED && entry.compressionMethod !== METHOD_DEFLATE) {
+        return stop(refuse('unsupported', `The workbook part "${name}" uses an unusual compression (method ${entry.compressionMethod}). Save it again as .xlsx.`));
+      }
+      // Two parts with one name would let different readers see different content.
+      if (names.has(name)) return stop(refuse('corrupt', `The workbook is damaged: the part "${name}" appears twice.`));
+      names.add(name);
+      total += entry.uncompressedSize;
+      if (total > limits.maxTotalUncompressed) {
+        return stop(refuse('zip-bomb', `The workbook would expand to more than ${formatBytes(limits.maxTotalUncompressed)}; it is refused as unsafe.`));
+      }
+      if (entry.uncompressedSize > limits.ratioAppliesAbove && entry.uncompressedSize > entry.compressedSize * limits.maxRatio) {
+        return stop(refuse('zip-bomb', `The workbook part "${name}" is compressed more than ${limits.maxRatio} to 1; it is refused as unsafe.`));
+      }
+      entries.push(entry);
+      zip.readEntry();
+    });
+    zip.readEntry();
+  });
 }
 
 /**
- * Inflates every part with an output limit equal to its declared size, so a part that expands beyond
- * what the directory declares is stopped after at most that many bytes.
+ * Inflates one part as a stream, counting its bytes. yauzl stops the stream with an error as soon
+ * as it passes the declared size, so a lying part costs at most that many bytes; `budget` is what
+ * the whole package may still inflate to. Resolves with the bytes the part actually held.
  */
-async function verifyDeclaredSizes(buffer: Buffer, entries: ZipEntryInfo[]): Promise<XlsxCheck> {
-  for (const entry of entries) {
-    const data = entryData(buffer, entry);
-    if (!data) return refuse('corrupt', `The workbook is damaged: the part "${entry.name}" is cut short.`);
-    if (entry.method === METHOD_STORED) {
-      if (data.length !== entry.uncompressedSize) return refuse('corrupt', `The workbook is damaged: the part "${entry.name}" has the wrong size.`);
-      continue;
-    }
-    let inflated: Buffer;
-    try {
-      inflated = await inflateRawAsync(data, { maxOutputLength: Math.max(1, entry.uncompressedSize) });
-    } catch (error) {
-      if (error instanceof RangeError || (error as NodeJS.ErrnoException).code === 'ERR_BUFFER_TOO_LARGE') {
-        return refuse('zip-bomb', `The workbook part "${entry.name}" expands beyond its declared size; it is refused as unsafe.`);
+function inflateCounted(zip: yauzl.ZipFile, entry: yauzl.Entry, budget: number, limits: XlsxLimits): Promise<number> {
+  const name = entry.fileName;
+  return new Promise((resolve, reject) => {
+    zip.openReadStream(entry, (error, stream) => {
+      if (error || !stream) {
+        const text = String(error?.message ?? '');
+        reject(new Refused(/size mismatch/i.test(text)
+          ? refuse('corrupt', `The workbook is damaged: the part "${name}" has the wrong size.`)
+          : refuse('corrupt', `The workbook is damaged: the part "${name}" is cut short.`)));
+        return;
       }
-      return refuse('corrupt', `The workbook is damaged: the part "${entry.name}" cannot be decompressed.`);
-    }
-    if (inflated.length !== entry.uncompressedSize) {
-      return refuse('corrupt', `The workbook is damaged: the part "${entry.name}" has the wrong size.`);
-    }
-  }
-  return { ok: true, entries };
+      let count = 0;
+      stream.on('data', (chunk: Buffer) => {
+        count += chunk.length;
+        if (count > budget) {
+          stream.destroy(new Refused(refuse('zip-bomb', `The workbook would expand to more than ${formatBytes(limits.maxTotalUncompressed)}; it is refused as unsafe.`)));
+        }
+      });
+      stream.on('error', (streamError: Error) => {
+        if (streamError instanceof Refused) return reject(streamError);
+        const text = streamError.message;
+        if (/too many bytes/i.test(text)) reject(new Refused(refuse('zip-bomb', `The workbook part "${name}" expands beyond its declared size; it is refused as unsafe.`)));
+        else if (/not enough bytes/i.test(text)) reject(new Refused(refuse('corrupt', `The workbook is damaged: the part "${name}" has the wrong size.`)));
+        else reject(new Refused(refuse('corrupt', `The workbook is damaged: the part "${name}" cannot be decompressed.`)));
+      });
+      stream.on('end', () => resolve(count));
+    });
+  });
 }
 
 /**
@@ -217,14 +202,26 @@ export async function inspectXlsx(buffer: Buffer, limits: XlsxLimits = DEFAULT_X
   if (buffer.length === 0) return refuse('not-xlsx', 'The file is empty.');
   if (!looksLikeZip(buffer) || buffer.length < END_RECORD_SIZE) return refuse('not-xlsx', describeNonZip(buffer));
 
-  const directory = readCentralDirectory(buffer, limits);
-  if (!directory.ok) return directory;
-
-  const names = new Set(directory.entries.map((e) => e.name));
-  if (!names.has('[Content_Types].xml') || !names.has('xl/workbook.xml')) {
-    return refuse('not-xlsx', 'The file is a zip package but not an .xlsx workbook (it may be another kind of document). Upload the .xlsx workbook.');
+  let zip: yauzl.ZipFile | undefined;
+  try {
+    zip = await openZip(buffer);
+    const entries = await readEntries(zip, limits);
+    const names = new Set(entries.map((e) => e.fileName));
+    if (!names.has('[Content_Types].xml') || !names.has('xl/workbook.xml')) {
+      return refuse('not-xlsx', 'The file is a zip package but not an .xlsx workbook (it may be another kind of document). Upload the .xlsx workbook.');
+    }
+    let inflated = 0;
+    for (const entry of entries) inflated += await inflateCounted(zip, entry, limits.maxTotalUncompressed - inflated, limits);
+    return {
+      ok: true,
+      entries: entries.map((e) => ({ name: e.fileName, method: e.compressionMethod, compressedSize: e.compressedSize, uncompressedSize: e.uncompressedSize })),
+    };
+  } catch (error) {
+    if (error instanceof Refused) return error.check;
+    return refuse('corrupt', 'The workbook is damaged and cannot be read. Save it again as .xlsx.');
+  } finally {
+    zip?.close();
   }
-  return verifyDeclaredSizes(buffer, directory.entries);
 }
 
 /** Like {@link inspectXlsx}, but throws {@link UnsafeWorkbookError} for a refused file. */

@@ -16,6 +16,7 @@ import { startMailCatcher, type MailCatcher } from '../../server/mail/catcher';
 import { createMailer, type Mailer } from '../../server/mail/mailer';
 import { ormConfig } from '../../server/mikro-orm.config';
 import { hashPassword } from '../../server/auth/password';
+import { closeWorkbookPool } from '../../server/workbooks/workbook-pool';
 import { createTestDatabase, dropTestDatabase } from './db';
 
 export const TEST_PASSWORD = 'correct-horse-battery';
@@ -64,6 +65,7 @@ export async function startTestApp(options: { workers?: boolean; solver?: boolea
     async close() {
       await boss.stop({ graceful: false, wait: true });
       mailer?.close();
+      await closeWorkbookPool();
       await catcher.close();
       await sessionPool.end();
       await orm.close(true);

@@ -1,5 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AwardResult } from '@shared/award';
+import { recordByCode } from '@shared/bids';
 import type { Comparison, ComparedRun, ResilienceView, RunView } from '@shared/evaluation';
 import { Run, Scenario, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
@@ -27,7 +28,7 @@ async function namesOf(em: EntityManager, runId: string): Promise<Pick<RunView, 
        from run where id = ?`,
     [runId],
   );
-  const regions = Object.fromEntries(Object.entries(row?.regions ?? {}).map(([id, r]) => [id, { name: r.name, forecast: Number(r.forecast) }]));
+  const regions = recordByCode(Object.entries(row?.regions ?? {}).map(([id, r]) => [id, { name: r.name, forecast: Number(r.forecast) }] as const));
   return { vendors: row?.vendors ?? {}, regions };
 }
 

@@ -46,7 +46,9 @@ function errorsOf(result: BidWorkbookResult) {
 describe('bid workbook: download, fill in, upload', () => {
   it('gives back exactly the bid the vendor typed in (round trip)', async () => {
     const result = await parseBidWorkbook(await filled(fillGood), regions, { reference: view.reference });
-    expect(result).toEqual({ ok: true, bid: { fixedFee: 25000, capacity: 12000, prices: { 'NW-01': 61.5, 'NW-03': 58.1234 } } });
+    expect(result).toEqual({
+      ok: true, bid: { fixedFee: 25000, capacity: 12000, prices: { 'NW-01': 61.5, 'NW-03': 58.1234 } }, priceCells: { 'NW-01': 'Bid!E8', 'NW-03': 'Bid!E10' },
+    });
   });
 
   it('reads a blank capacity cap as no cap and a blank price as a region not offered', async () => {
@@ -54,13 +56,13 @@ describe('bid workbook: download, fill in, upload', () => {
       bid.cell('C4').value(0);
       bid.cell('E9').value(70);
     }), regions);
-    expect(result).toEqual({ ok: true, bid: { fixedFee: 0, capacity: null, prices: { 'NW-02': 70 } } });
+    expect(result).toEqual({ ok: true, bid: { fixedFee: 0, capacity: null, prices: { 'NW-02': 70 } }, priceCells: { 'NW-02': 'Bid!E9' } });
   });
 
   it('fills in a saved draft, which reads back unchanged', async () => {
     const draft = { fixedFee: 1234.56, capacity: 8000.5, prices: { 'NW-02': 63, 'NW-03': 0.0001 } };
     const result = await parseBidWorkbook(await buildBidWorkbook({ ...view, bid: draft }), regions);
-    expect(result).toEqual({ ok: true, bid: draft });
+    expect(result).toEqual({ ok: true, bid: draft, priceCells: { 'NW-02': 'Bid!E9', 'NW-03': 'Bid!E10' } });
   });
 
   it('has an instructions sheet with the closing time in UTC, the blank rule, the file rules and the caution', async () => {

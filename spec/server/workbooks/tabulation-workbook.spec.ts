@@ -73,4 +73,24 @@ describe('bid tabulation workbook', () => {
     }
     expect(cellFormat(xml, styles, 'D5')).not.toContain('quotePrefix');
   });
+
+  it('handles region codes that name built-in object properties: a region nobody bid stays blank', async () => {
+    const prices = JSON.parse('{ "__proto__": 5 }') as Record<string, number>;
+    const file = await buildTabulationWorkbook({
+      ...view,
+      regions: [
+        { code: '__proto__', name: 'A', forecast: 10 },
+        { code: 'constructor', name: 'B', forecast: 20 },
+        { code: 'toString', name: 'C', forecast: 30 },
+      ],
+      bids: [{ vendor: { id: 'v1', name: 'Brindle Haulage', sme: false }, fixedFee: 1, capacity: null, prices }],
+    });
+    const sheet = (await XlsxPopulate.fromDataAsync(file)).sheet(TABULATION_LAYOUT.sheet)!;
+    expect(sheet.range('A7:F9').value()).toEqual([
+      ['__proto__', 'A', 10, 5, 5, 1],
+      ['constructor', 'B', 20, undefined, 'no bid', 0],
+      ['toString', 'C', 30, undefined, 'no bid', 0],
+    ]);
+    expect(sheet.cell('D13').value()).toBe(1);
+  });
 });

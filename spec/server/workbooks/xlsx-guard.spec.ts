@@ -18,14 +18,14 @@ describe('xlsx guard: hostile packages are refused before any spreadsheet librar
     expect(entries.map((e) => e.name)).toEqual(expect.arrayContaining(['[Content_Types].xml', 'xl/workbook.xml']));
   });
 
-  it('refuses a package whose parts expand to more than 50 MB in total, even at a modest ratio', async () => {
+  it('refuses a package whose parts expand to more than 20 MB in total, even at a modest ratio', async () => {
     // About 40 to 1: under the ratio limit, so only the total can catch it.
     const part = Buffer.alloc(26 * MB);
     for (let i = 0; i < part.length; i += 1024) part.writeUInt32LE((i * 2654435761) >>> 0, i);
     const bomb = buildZip([...xlsxLikeParts(), { name: 'xl/a.bin', data: part }, { name: 'xl/b.bin', data: part }]);
     expect(bomb.length).toBeLessThan(5 * MB);
     expect(await inspectXlsx(bomb)).toEqual({
-      ok: false, reason: 'zip-bomb', message: 'The workbook would expand to more than 50 MB; it is refused as unsafe.',
+      ok: false, reason: 'zip-bomb', message: 'The workbook would expand to more than 20 MB; it is refused as unsafe.',
     });
   });
 
@@ -43,10 +43,10 @@ describe('xlsx guard: hostile packages are refused before any spreadsheet librar
     });
   });
 
-  it('refuses a package with more than 2000 parts', async () => {
+  it('refuses a package with more than 500 parts', async () => {
     const parts = Array.from({ length: 2001 }, (_, i) => ({ name: `xl/p${i}.xml`, data: Buffer.from('<x/>'), store: true }));
     const crowded = buildZip([...xlsxLikeParts(), ...parts]);
-    await expect(assertSafeXlsx(crowded)).rejects.toEqual(new UnsafeWorkbookError('too-many-entries', 'The workbook has 2003 internal parts; at most 2000 are accepted.'));
+    await expect(assertSafeXlsx(crowded)).rejects.toEqual(new UnsafeWorkbookError('too-many-entries', 'The workbook has 2003 internal parts; at most 500 are accepted.'));
   });
 
   it('refuses a zip that is not a workbook, such as a word-processing document', async () => {
@@ -74,13 +74,13 @@ describe('xlsx guard: hostile packages are refused before any spreadsheet librar
     const result = await parseBidWorkbook(bomb, regions);
     expect(result).toEqual({
       ok: false,
-      errors: [{ cell: '', message: 'The workbook would expand to more than 50 MB; it is refused as unsafe.' }],
+      errors: [{ cell: '', message: 'The workbook would expand to more than 20 MB; it is refused as unsafe.' }],
     });
   });
 
   it('reports too many parts through parseBidWorkbook', async () => {
     const parts = Array.from({ length: 2100 }, (_, i) => ({ name: `xl/q${i}.xml`, data: Buffer.from('<x/>'), store: true }));
     const result = await parseBidWorkbook(buildZip([...xlsxLikeParts(), ...parts]), regions);
-    expect(result).toEqual({ ok: false, errors: [{ cell: '', message: 'The workbook has 2102 internal parts; at most 2000 are accepted.' }] });
+    expect(result).toEqual({ ok: false, errors: [{ cell: '', message: 'The workbook has 2102 internal parts; at most 500 are accepted.' }] });
   });
 });

@@ -1,5 +1,6 @@
 import { crc32, deflateRawSync, inflateRawSync } from 'node:zlib';
 import XlsxPopulate from 'xlsx-populate';
+import yauzl from 'yauzl';
 
 /**
  * Test helpers that write and read zip packages byte by byte, so hostile packages (zip bombs,
@@ -104,4 +105,29 @@ export function cellFormat(sheetXml: string, stylesXml: string, address: string)
   const cellXfs = /<cellXfs[^>]*>([\s\S]*?)<\/cellXfs>/.exec(stylesXml)?.[1] ?? '';
   const formats = cellXfs.match(/<xf\b[^>]*?(?:\/>|>[\s\S]*?<\/xf>)/g) ?? [];
   return formats[index] ?? '';
+}
+
+/** Every part of a zip package, by name (read with yauzl). */
+export async function unzipAll(zip: Buffer): Promise<Map<string, Buffer>> {
+  return new Promise((resolve, reject) => {
+    yauzl.fromBuffer(zip, { lazyEntries: true }, (error, file) => {
+      if (error || !file) return reject(error);
+      const parts = new Map<string, Buffer>();
+      file.on('error', reject);
+      file.on('end', () => resolve(parts));
+      file.on('entry', (entry: yauzl.Entry) => {
+        file.openReadStream(entry, (streamError, stream) => {
+          if (streamError || !stream) return reject(streamError);
+          const chunks: Buffer[] = [];
+          stream.on('data', (c: Buffer) => chunks.push(c));
+          stream.on('error', reject);
+          stream.on('end', () => {
+            parts.set(entry.fileName, Buffer.concat(chunks));
+            file.readEntry();
+          });
+        });
+      });
+      file.readEntry();
+    });
+  });
 }

@@ -1,4 +1,5 @@
 import type { AwardRules } from '@shared/award';
+import { byCode } from '@shared/bids';
 import { fractionPercent, quantity } from './award-format';
 
 /** Names for the ids a rule mentions; an id without a name is shown as it is. */
@@ -9,8 +10,8 @@ export interface RuleNames {
 
 /** A scenario's rules as short phrases, for tables and the compare screen. */
 export function describeRules(rules: AwardRules, names: RuleNames): string[] {
-  const region = (code: string) => names.regions[code] ?? code;
-  const vendor = (id: string) => names.vendors[id] ?? id;
+  const region = (code: string) => byCode(names.regions, code) ?? code;
+  const vendor = (id: string) => byCode(names.vendors, id) ?? id;
   const phrases: string[] = [];
   if (rules.sourcing === 'sole') phrases.push('Sole award in every region');
   else if (rules.soleRegions.length > 0) phrases.push(`Sole award in ${rules.soleRegions.map(region).join(', ')}`);

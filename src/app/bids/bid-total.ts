@@ -1,3 +1,4 @@
+import { byCode } from '@shared/bids';
 import type { RegionView } from '@shared/tenders';
 
 /**
@@ -14,7 +15,7 @@ export function totalAtForecast(
   let offered = 0;
   let quantity = 0;
   for (const region of regions) {
-    const price = prices[region.code];
+    const price = byCode(prices, region.code);
     if (typeof price !== 'number' || !Number.isFinite(price)) continue;
     total += price * region.forecast;
     offered += 1;

@@ -1,5 +1,5 @@
 import { AbstractControl, FormControl, FormGroup, ValidationErrors, ValidatorFn } from '@angular/forms';
-import { capacitySchema, fixedFeeSchema, unitPriceSchema } from '@shared/bids';
+import { byCode, capacitySchema, fixedFeeSchema, recordByCode, unitPriceSchema } from '@shared/bids';
 import type { BidView, RegionView } from '@shared/tenders';
 import { zodValidator } from '../../ui/zod-validator';
 
@@ -20,8 +20,10 @@ const capacityValidator: ValidatorFn = (control: AbstractControl): ValidationErr
 };
 
 export function bidFormGroup(regions: readonly RegionView[]) {
-  const prices: Record<string, FormControl<number | null>> = {};
-  for (const region of regions) prices[region.code] = new FormControl<number | null>(null, optionalPrice);
+  // Angular's FormGroup needs an ordinary object; fromEntries keeps every code an own key.
+  const prices: Record<string, FormControl<number | null>> = Object.fromEntries(
+    regions.map((region) => [region.code, new FormControl<number | null>(null, optionalPrice)]),
+  );
   return new FormGroup({
     fixedFee: new FormControl<number | null>(null, zodValidator(fixedFeeSchema)),
     noCap: new FormControl(false, { nonNullable: true }),
@@ -33,8 +35,8 @@ export type BidFormGroup = ReturnType<typeof bidFormGroup>;
 
 /** Puts figures (a saved bid, or a workbook just read) into the form. */
 export function fillBid(form: BidFormGroup, figures: Pick<BidView, 'fixedFee' | 'capacity' | 'prices'>): void {
-  const prices: Record<string, number | null> = {};
-  for (const code of Object.keys(form.controls.prices.controls)) prices[code] = figures.prices[code] ?? null;
+  const prices = recordByCode<number | null>();
+  for (const code of Object.keys(form.controls.prices.controls)) prices[code] = byCode(figures.prices, code) ?? null;
   form.patchValue({ fixedFee: figures.fixedFee, noCap: figures.capacity === null, capacity: figures.capacity, prices });
   syncCap(form);
 }
@@ -53,7 +55,7 @@ export function syncCap(form: BidFormGroup): void {
 /** The figures as the server takes them: blank prices left out, no cap as null. */
 export function bidFigures(form: BidFormGroup): { fixedFee: number | null; capacity: number | null; prices: Record<string, number> } {
   const v = form.getRawValue();
-  const prices: Record<string, number> = {};
+  const prices = recordByCode<number>();
   for (const [code, price] of Object.entries(v.prices)) {
     if (typeof price === 'number' && !Number.isNaN(price)) prices[code] = price;
   }
@@ -62,7 +64,7 @@ export function bidFigures(form: BidFormGroup): { fixedFee: number | null; capac
 
 /** The control a server or schema field path names: fixedFee, capacity or prices.<code>. */
 export function controlFor(form: BidFormGroup, field: string): AbstractControl | null {
-  if (field.startsWith('prices.')) return form.controls.prices.controls[field.slice('prices.'.length)] ?? null;
+  if (field.startsWith('prices.')) return byCode(form.controls.prices.controls, field.slice('prices.'.length)) ?? null;
   if (field === 'fixedFee') return form.controls.fixedFee;
   if (field === 'capacity') return form.controls.capacity;
   return null;

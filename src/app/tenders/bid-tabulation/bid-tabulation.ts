@@ -5,6 +5,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSort, MatSortModule } from '@angular/material/sort';
 import { MatTableDataSource, MatTableModule } from '@angular/material/table';
+import { byCode, recordByCode } from '@shared/bids';
 import type { TabulatedBid, TenderView } from '@shared/tenders';
 import { ApiError } from '../../core/http/api-error';
 import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
@@ -13,10 +14,11 @@ import { money, quantity } from '../tender-status';
 
 /** The lowest unit price bid for each region (regions nobody bid are left out). */
 export function lowestPrices(bids: readonly TabulatedBid[]): Record<string, number> {
-  const lowest: Record<string, number> = {};
+  const lowest = recordByCode<number>();
   for (const bid of bids) {
     for (const [code, price] of Object.entries(bid.prices)) {
-      if (lowest[code] === undefined || price < lowest[code]) lowest[code] = price;
+      const best = byCode(lowest, code);
+      if (best === undefined || price < best) lowest[code] = price;
     }
   }
   return lowest;
@@ -68,7 +70,7 @@ export class BidTabulation {
     this.rows.sortingDataAccessor = (bid, column) => {
       if (column.startsWith(REGION_COLUMN)) {
         // Regions a vendor did not bid sort after every price, whichever the direction.
-        return bid.prices[column.slice(REGION_COLUMN.length)] ?? (this.rows.sort?.direction === 'desc' ? -1 : Number.MAX_VALUE);
+        return byCode(bid.prices, column.slice(REGION_COLUMN.length)) ?? (this.rows.sort?.direction === 'desc' ? -1 : Number.MAX_VALUE);
       }
       switch (column) {
         case 'sme':
@@ -98,7 +100,7 @@ export class BidTabulation {
   }
 
   protected isLowest(bid: TabulatedBid, code: string): boolean {
-    const price = bid.prices[code];
-    return price !== undefined && price === this.lowest()[code];
+    const price = byCode(bid.prices, code);
+    return price !== undefined && price === byCode(this.lowest(), code);
   }
 }
