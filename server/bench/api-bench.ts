@@ -96,7 +96,7 @@ async function main(): Promise<void> {
     const rush = await deadlineRush(url, databaseUrl, seeded.rush, vendors, { before: 3, after: 1 });
     process.stdout.write(`\nDeadline rush: ${rush.vendors} vendors submit over the last 3 s before closing and 1 s after\n`);
     process.stdout.write(rushTable(rush));
-    process.stdout.write(`rule: accepted bids complete, later ones refused, no other error ... ${rushHolds(rush) ? 'holds' : 'BROKEN'}\n`);
+    process.stdout.write(`rule: accepted bids complete and stamped before closing, later ones refused, no other error ... ${rushHolds(rush) ? 'holds' : 'BROKEN'}\n`);
   }
 }
 
