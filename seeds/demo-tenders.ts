@@ -1,6 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Bid, BidLine, Invitation, Region, Tender, type User, type VendorOrganisation } from '../server/entities';
-import { bidDigest } from '../server/services/bids.service';
+import { commitBid } from '../server/services/bid-commitment';
 
 /**
  * The demo's tenders — all invented: a highways partnership buying de-icing salt for twelve depots
@@ -64,7 +64,8 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
     const bid = em.create(Bid, {
       tender: salt, vendorOrganisation: org, status: 'submitted', fixedFee: offer.fee, capacity: offer.cap,
       revision: 1, submittedAt: new Date(now.getTime() - (5 + Number(key.slice(1))) * 3_600_000 - 3 * DAY),
-      digest: bidDigest(salt.reference, org.id, 1, { fixedFee: offer.fee, capacity: offer.cap, prices }),
+      // Each bid's receipt commitment with its own nonce, as a submission makes them.
+      ...commitBid({ tender: salt.reference, vendor: org.id, revision: 1, fixedFee: offer.fee, capacity: offer.cap, prices }),
     });
     for (const r of regions) if (prices[r.code] !== undefined) em.create(BidLine, { bid, region: r, unitPrice: prices[r.code]! });
   }
@@ -91,7 +92,7 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
     const prices = Object.fromEntries(sites.map((s, i) => [s.code, p[i]!]));
     const bid = em.create(Bid, {
       tender: bins, vendorOrganisation: org, status: 'submitted', fixedFee: fee, capacity: cap, revision: 1,
-      submittedAt: new Date(now.getTime() - DAY), digest: bidDigest(bins.reference, org.id, 1, { fixedFee: fee, capacity: cap, prices }),
+      submittedAt: new Date(now.getTime() - DAY), ...commitBid({ tender: bins.reference, vendor: org.id, revision: 1, fixedFee: fee, capacity: cap, prices }),
     });
     sites.forEach((s, i) => em.create(BidLine, { bid, region: s, unitPrice: p[i]! }));
   }

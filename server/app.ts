@@ -13,6 +13,7 @@ import { pinoHttp } from 'pino-http';
 import { configurePassport } from './auth/passport';
 import { createSessionStore } from './auth/session-store';
 import type { Config } from './config';
+import { stampArrival } from './http/arrival';
 import { AppError } from './http/errors';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
@@ -25,6 +26,7 @@ import { peopleRoutes } from './routes/people.routes';
 import { sessionRoutes } from './routes/session.routes';
 import { tenderRoutes } from './routes/tenders.routes';
 import { bidRoutes } from './routes/bids.routes';
+import type { BidHooks } from './services/bids.service';
 import { evaluationRoutes } from './routes/evaluation.routes';
 import { noticeRoutes } from './routes/notices.routes';
 
@@ -34,6 +36,8 @@ export interface AppDeps {
   boss: PgBoss;
   /** Pool for the session store. */
   sessionPool: Pool;
+  /** Test hooks around a bid's transaction (spec/server/bid-arrival.spec.ts); none in production. */
+  bidHooks?: BidHooks;
 }
 
 export const SESSION_COOKIE = 'tendara.sid';
@@ -63,6 +67,8 @@ export function createApp(deps: AppDeps): Express {
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy ? 1 : false);
   app.set('query parser', 'simple');
+  // First of all: when each request arrived in full is when a bid was received (http/arrival.ts).
+  app.use(stampArrival());
 
   app.use(
     helmet({

@@ -115,7 +115,10 @@ export interface BidView {
   revision: number;
   version: number;
   submittedAt: string | null;
+  /** The receipt: a commitment to the figures of the last submission (null for a draft or a withdrawn bid). */
   digest: string | null;
+  /** The commitment's key, shown to the vendor once the tender is closed (absent before). */
+  nonce?: string | null;
   updatedAt: string;
   document: { id: string; filename: string; size: number; digest: string } | null;
 }
@@ -125,8 +128,15 @@ export interface TabulatedBid {
   fixedFee: number;
   capacity: number | null;
   prices: Record<string, number>;
+  /** When the bid's request arrived in full, by the server's clock. */
   submittedAt: string;
+  revision: number;
+  /** The receipt's commitment: hex HMAC-SHA-256 of the bid's content keyed with `nonce` (DEVELOPERS.md, "Sealed bids"). */
   digest: string;
+  /** The 256-bit key of the commitment, hex; revealed at opening. */
+  nonce: string | null;
+  /** The server recomputed the commitment from the stored figures and `nonce`, and it equals `digest`. */
+  receiptVerified: boolean;
   documentId: string | null;
 }
 

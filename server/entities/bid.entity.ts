@@ -8,8 +8,9 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /**
  * A vendor organisation's one live bid on a tender. `version` guards against two tabs saving over
- * each other (optimistic locking); `revision` counts submissions; `digest` is the SHA-256 of the
- * canonical content at the last submission (the vendor's receipt carries it).
+ * each other (optimistic locking); `revision` counts submissions; `digest` is the commitment to the
+ * content at the last submission (the vendor's receipt carries it), keyed with `nonce`, 256 random
+ * bits drawn for that submission and never served before closing (services/bid-commitment.ts).
  */
 @Entity({ tableName: 'bid' })
 @Unique({ properties: ['tender', 'vendorOrganisation'] })
@@ -35,6 +36,10 @@ export class Bid extends BaseEntity {
 
   @Property({ type: 'string', length: 64, nullable: true })
   digest?: string | null;
+
+  /** The commitment's key, hex; secret until the tender closes. Null for drafts and withdrawn bids. */
+  @Property({ type: 'string', length: 64, nullable: true })
+  nonce?: string | null;
 
   @Property({ type: 'integer', default: 0 })
   revision: number & Opt = 0;

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { bidSaveSchema, tenderIdParamSchema } from '@shared/tenders';
 import type { AppDeps } from '../app';
+import { arrivedAt } from '../http/arrival';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as bids from '../services/bids.service';
@@ -10,11 +11,13 @@ import { UPLOAD_MAX_BYTES } from './tenders.routes';
 const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
 export function bidRoutes(deps: AppDeps): AnyRoute[] {
-  const ctx = (em: import('@mikro-orm/postgresql').EntityManager) => ({ em, boss: deps.boss, publicUrl: deps.config.publicUrl });
+  const ctx = (em: import('@mikro-orm/postgresql').EntityManager, req: import('express').Request): bids.BidDeps => ({
+    em, boss: deps.boss, publicUrl: deps.config.publicUrl, arrivedAt: arrivedAt(req), hooks: deps.bidHooks,
+  });
   return [
     route({
       method: 'get', path: '/tenders/:id/bids', tag: 'Bids', access: ['buyer', 'compliance'], params: tenderIdParamSchema,
-      summary: 'Before closing only {submitted: n}; after closing also every submitted bid (the bid tabulation).',
+      summary: 'Before closing only {submitted: n}; after closing also every submitted bid (the bid tabulation), each with its receipt commitment (digest), the nonce that keys it and receiptVerified.',
       handler: ({ em, user, params }) => bids.bidsOf(em, user, params.id),
     }),
     route({
@@ -42,15 +45,15 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'put', path: '/tenders/:id/bid', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, body: bidSaveSchema,
-      summary: 'Save a draft (submit: false) or submit/revise (submit: true) before closing. Send the version you loaded (null for a first save).',
+      summary: 'Save a draft (submit: false) or submit/revise (submit: true) before closing: a request whose body arrived in full before the closing time is accepted and stamped with that time. Send the version you loaded (null for a first save).',
       responses: { 409: 'Closed, or changed elsewhere since loaded' },
-      handler: ({ em, user, params, body }) => bids.saveBid(ctx(em), user, params.id, body),
+      handler: ({ em, user, params, body, req }) => bids.saveBid(ctx(em, req), user, params.id, body),
     }),
     route({
       method: 'post', path: '/tenders/:id/bid/withdraw', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,
       body: z.object({ version: z.number({ error: 'Version is required.' }).int().min(1) }),
       summary: 'Withdraw the bid before closing.',
-      handler: ({ em, user, params, body }) => bids.withdrawBid(ctx(em), user, params.id, body.version),
+      handler: ({ em, user, params, body, req }) => bids.withdrawBid(ctx(em, req), user, params.id, body.version),
     }),
     route({
       method: 'get', path: '/tenders/:id/bid-workbook', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, produces: XLSX,
@@ -66,7 +69,7 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'Upload a filled-in bid workbook (.xlsx, at most 5 MB): returns its figures for review, or every problem by sheet and cell. Nothing is submitted.',
       handler: async ({ em, user, params, req }) => {
         if (!req.file) throw new ValidationError([{ field: 'file', message: 'Choose the bid workbook (.xlsx) to upload.' }]);
-        return bids.uploadWorkbook(em, user, params.id, req.file);
+        return bids.uploadWorkbook(em, user, params.id, req.file, arrivedAt(req));
       },
     }),
   ];

@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
-import { AuditEntry, type User } from '../entities';
+import { AuditEntry, Tender, type User } from '../entities';
 import { csvCell } from '../workbooks/spreadsheet-text';
 
 /** The hash before the first entry of a tender's chain. */
@@ -87,17 +87,27 @@ export async function audit(em: EntityManager, input: AuditInput): Promise<void>
 
 export async function auditTrail(em: EntityManager, tenderId: string): Promise<AuditEntryView[]> {
   const entries = await em.find(AuditEntry, { tender: tenderId }, { populate: ['actor'], orderBy: { seq: 'asc' } });
+  // Bid entries written before receipts were keyed (migration 20261202170000) carry the bid's
+  // unsalted digest, which a reader could test guesses of the figures against: withheld while the
+  // tender is sealed. The stored entry is unchanged, so the chain still verifies.
+  const sealed = entries.some((e) => e.action.startsWith('bid.') && 'digest' in e.detail)
+    && (await em.count(Tender, { id: tenderId, status: { $in: ['draft', 'open'] } })) > 0;
   return entries.map((e) => ({
     seq: Number(e.seq),
     at: e.at.toISOString(),
     actor: e.actor ? { id: e.actor.id, name: e.actor.name, role: e.actor.role } : null,
     action: e.action,
     subject: e.subject,
-    detail: e.detail,
+    detail: sealed && e.action.startsWith('bid.') ? withoutDigest(e.detail) : e.detail,
     beforeDigest: e.beforeDigest ?? null,
     afterDigest: e.afterDigest ?? null,
     hash: e.hash,
   }));
+}
+
+function withoutDigest(detail: Record<string, unknown>): Record<string, unknown> {
+  const { digest: _withheld, ...rest } = detail;
+  return rest;
 }
 
 /** Recomputes every hash of the tender's chain from the stored content. */

@@ -14,29 +14,37 @@ import { assertBidMatchesDocument, keepDocumentIfMatching } from './bid-document
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
 import { audit } from './audit.service';
+import { bidCommitment, commitBid } from './bid-commitment';
 import { closeIfDue, findVisibleTender } from './tender-access';
 
 export interface BidDeps {
   em: EntityManager;
   boss: PgBoss;
   publicUrl: string;
+  /** When the request arrived in full, by this server's clock (http/arrival.ts): the receipt time. */
+  arrivedAt: Date;
+  hooks?: BidHooks;
+}
+
+/**
+ * Test hooks: hold a bid between its arrival and its transaction, or inside the transaction (its
+ * tender row locked, the bid written) until the test lets it commit.
+ */
+export interface BidHooks {
+  beforeBidTransaction?: (at: { tenderId: string; arrivedAt: Date }) => Promise<void>;
+  beforeBidCommit?: (at: { tenderId: string; arrivedAt: Date }) => Promise<void>;
 }
 
 const LIVE: BidStatus[] = ['submitted', 'revised'];
 const utc = (d: Date) => d.toISOString().slice(0, 19).replace('T', ' ') + ' UTC';
+/** A receipt time, to the millisecond. */
+const utcMs = (d: Date) => d.toISOString().replace('T', ' ').replace('Z', ' UTC');
 
-/**
- * SHA-256 of a bid's canonical content: tender reference, vendor organisation, revision, fee, cap
- * and the prices sorted by region code, as JSON with no spaces. The receipt carries it, so a vendor
- * can prove later what it submitted.
- */
-export function bidDigest(reference: string, vendorId: string, revision: number, figures: BidFigures): string {
-  const prices = Object.keys(figures.prices).sort().map((code) => [code, figures.prices[code]]);
-  const canonical = JSON.stringify({ tender: reference, vendor: vendorId, revision, fixedFee: figures.fixedFee, capacity: figures.capacity, prices });
-  return createHash('sha256').update(canonical).digest('hex');
-}
+/** Bids are sealed while the tender is a draft or open: no figure, nor anything computed from one. */
+const isSealed = (tender: Pick<Tender, 'status'>) => tender.status === 'draft' || tender.status === 'open';
 
-function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), document = bid.document ?? null): BidView {
+/** `nonce` only once the tender is closed: before, it would let a reader test guesses of the figures. */
+function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), document = bid.document ?? null, revealNonce = false): BidView {
   return {
     id: bid.id,
     status: bid.status,
@@ -47,6 +55,7 @@ function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), doc
     version: bid.version,
     submittedAt: bid.submittedAt?.toISOString() ?? null,
     digest: bid.digest ?? null,
+    ...(revealNonce ? { nonce: bid.nonce ?? null } : {}),
     updatedAt: bid.updatedAt.toISOString(),
     document: document ? { id: document.id, filename: document.filename, size: document.size, digest: document.digest } : null,
   };
@@ -64,7 +73,7 @@ function vendorOf(user: User) {
 export async function ownBid(em: EntityManager, user: User, tenderId: string): Promise<BidView | null> {
   const tender = await findVisibleTender(em, user, tenderId);
   const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user) }, { populate: ['lines.region', 'document'] });
-  return bid ? bidView(bid) : null;
+  return bid ? bidView(bid, undefined, undefined, !isSealed(tender)) : null;
 }
 
 class BiddingClosed extends ConflictError {
@@ -75,9 +84,11 @@ class BiddingClosed extends ConflictError {
 
 /**
  * Runs a bid's transaction; when it is refused because bidding has closed, closes the tender too
- * (with its audit entry) if nothing else has yet, as every read does.
+ * (with its audit entry) if it is due and nothing else has yet, as every read does.
  */
-async function whileOpen<T>(em: EntityManager, tenderId: string, work: (tx: EntityManager) => Promise<T>): Promise<T> {
+async function whileOpen<T>(deps: BidDeps, tenderId: string, work: (tx: EntityManager) => Promise<T>): Promise<T> {
+  const em = deps.em;
+  await deps.hooks?.beforeBidTransaction?.({ tenderId, arrivedAt: deps.arrivedAt });
   try {
     return await em.transactional(work);
   } catch (error) {
@@ -98,16 +109,18 @@ interface BiddingTender {
 
 /**
  * One query: locks the tender row for sharing (bids of many vendors proceed together; closing
- * waits for them), checks that `vendorId` was invited (otherwise "not found", as on every read) and,
- * by the database server's clock inside this transaction, that bidding is open; and reads the
- * region codes. Saving a bid was the slowest vendor request (bench:api, phase b) while this took
- * five round trips and hydrated every region as an entity.
+ * waits for them), checks that `vendorId` was invited (otherwise "not found", as on every read),
+ * that the request arrived before the closing time (`arrivedAt`, this server's clock at its edge)
+ * and that the tender is still open — not yet closed and opened, which happens CLOSING_GRACE_MS
+ * after the closing time (tender-access.ts); and reads the region codes. Saving a bid was the
+ * slowest vendor request (bench:api, phase b) while this took five round trips and hydrated every
+ * region as an entity.
  */
-async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string): Promise<BiddingTender> {
+async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
   const rows = await tx.execute<{
-    status: string; reference: string; title: string; closes_at: Date | string; now: Date | string; invited: boolean; regions: Record<string, string> | null;
+    status: string; reference: string; title: string; closes_at: Date | string; invited: boolean; regions: Record<string, string> | null;
   }[]>(
-    `select t.status, t.reference, t.title, t.closes_at, clock_timestamp() as now,
+    `select t.status, t.reference, t.title, t.closes_at,
             exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited,
             (select json_object_agg(r.code, r.id) from region r where r.tender_id = t.id) as regions
        from tender t where t.id = ? for share`,
@@ -116,15 +129,15 @@ async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: str
   const row = rows[0];
   if (!row || !row.invited || row.status === 'draft') throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
-  if (row.status !== 'open' || new Date(row.now) >= closesAt) throw new BiddingClosed(closesAt);
+  if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt);
   return { id: tenderId, reference: row.reference, title: row.title, closesAt, regions: new Map(Object.entries(row.regions ?? {})) };
 }
 
 /** Save a draft, submit, or revise — only before closing, and only over the version loaded. */
 export async function saveBid(deps: BidDeps, user: User, tenderId: string, input: BidSave): Promise<BidView> {
   const org = vendorOf(user);
-  const { bid: saved, tender: bidding } = await whileOpen(deps.em, tenderId, async (tx) => {
-    const bidding = await lockOpenTender(tx, tenderId, org.id);
+  const { bid: saved, tender: bidding } = await whileOpen(deps, tenderId, async (tx) => {
+    const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
     const codes = Object.keys(input.prices);
     const unknown = codes.filter((code) => !bidding.regions.has(code));
     if (unknown.length) {
@@ -153,11 +166,15 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
     if (input.submit) {
       bid.status = bid.revision > 0 ? 'revised' : 'submitted';
       bid.revision += 1;
-      bid.submittedAt = new Date();
-      bid.digest = bidDigest(bidding.reference, org.id, bid.revision, input);
+      bid.submittedAt = deps.arrivedAt;
+      // A fresh nonce for every submission: the receipt of each revision is its own commitment.
+      const { nonce, digest } = commitBid({ tender: bidding.reference, vendor: org.id, revision: bid.revision, ...input });
+      bid.nonce = nonce;
+      bid.digest = digest;
     } else {
       bid.status = 'draft';
       bid.digest = null;
+      bid.nonce = null;
     }
     // The bid row first (a new bid's lines refer to it), then its lines replaced in one statement:
     // as entities, 200 lines cost 200 change sets. The delete cannot see the rows the upsert
@@ -173,10 +190,11 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       // JSON, not arrays: the query builder would spread an array into a list of parameters.
       [bid.id, JSON.stringify(codes.map((c) => ({ region_id: bidding.regions.get(c), unit_price: input.prices[c] }))), bid.id],
     );
+    await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
     return { bid, tender: bidding };
   });
   if (input.submit) {
-    await auditBid(deps.em, tenderId, saved.revision > 1 ? 'bid.revised' : 'bid.submitted', saved, { revision: saved.revision, digest: saved.digest });
+    await auditBid(deps, tenderId, saved.revision > 1 ? 'bid.revised' : 'bid.submitted', saved);
     await sendReceipt(deps, user, bidding, saved, 'submitted');
   }
   // The prices stored are the ones sent: at most 4 decimals, exact in numeric(16,4).
@@ -186,30 +204,36 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
 
 export async function withdrawBid(deps: BidDeps, user: User, tenderId: string, version: number): Promise<BidView> {
   const org = vendorOf(user);
-  const { bid, tender } = await whileOpen(deps.em, tenderId, async (tx) => {
-    const bidding = await lockOpenTender(tx, tenderId, org.id);
+  const { bid, tender } = await whileOpen(deps, tenderId, async (tx) => {
+    const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
     const b = await tx.findOne(Bid, { tender: tenderId, vendorOrganisation: org }, { lockMode: LockMode.PESSIMISTIC_WRITE });
     if (!b) throw new NotFoundError('Your bid');
     if (b.version !== version) throw new ConflictError('This bid was changed elsewhere since you loaded it. Reload it; nothing was withdrawn.');
     if (b.status === 'withdrawn') throw new ConflictError('This bid is already withdrawn.');
     b.status = 'withdrawn';
     b.digest = null;
+    b.nonce = null;
+    await tx.flush();
+    await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
     return { bid: b, tender: bidding };
   });
-  await auditBid(deps.em, tenderId, 'bid.withdrawn', bid, { revision: bid.revision });
+  await auditBid(deps, tenderId, 'bid.withdrawn', bid);
   await sendReceipt(deps, user, tender, bid, 'withdrawn');
   const fresh = await deps.em.fork().findOneOrFail(Bid, { id: bid.id }, { populate: ['lines.region', 'document'] });
   return bidView(fresh);
 }
 
 /**
- * The trail records that a bid changed state and its digest, never its figures or its vendor.
- * Written just after the bid's own transaction rather than inside it: the chain's per-tender lock
- * would otherwise make every vendor's save wait for the others' — near the deadline, long enough
- * to be refused. The digest is on the bid and in the receipt either way.
+ * The trail records that a bid arrived, was revised or was withdrawn — its revision and when it
+ * was received — never its figures, its vendor or anything computed from the figures (not even
+ * the receipt's commitment: the trail is readable before closing). Written just after the bid's
+ * own transaction rather than inside it: the chain's per-tender lock would otherwise make every
+ * vendor's save wait for the others'. So a bid received just before the closing time may be
+ * recorded after the tender's closing entry; `receivedAt` says when it came.
  */
-async function auditBid(em: EntityManager, tenderId: string, action: string, bid: Bid, detail: Record<string, unknown>): Promise<void> {
-  await em.fork().transactional((tx) => audit(tx, { tenderId, actor: null, action, subject: `bid ${bid.id}`, detail }));
+async function auditBid(deps: BidDeps, tenderId: string, action: string, bid: Bid): Promise<void> {
+  const detail = { revision: bid.revision, receivedAt: deps.arrivedAt.toISOString() };
+  await deps.em.fork().transactional((tx) => audit(tx, { tenderId, actor: null, action, subject: `bid ${bid.id}`, detail }));
 }
 
 /** The receipt never carries figures: the admin can read the outbox before closing. */
@@ -224,7 +248,7 @@ async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid
     title: tender.title,
     withdrawn: what === 'withdrawn',
     revision: bid.revision,
-    at: utc(new Date()),
+    at: utcMs(deps.arrivedAt),
     digest: bid.digest ?? '',
     closesAt: utc(tender.closesAt),
     link: `${deps.publicUrl}/tenders/${tender.id}`,
@@ -236,7 +260,7 @@ async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid
 export async function bidsOf(em: EntityManager, user: User, tenderId: string): Promise<BidsAnswer> {
   const tender = await findVisibleTender(em, user, tenderId);
   const submitted = await em.count(Bid, { tender, status: { $in: LIVE } });
-  if (tender.status === 'draft' || tender.status === 'open') return { submitted };
+  if (isSealed(tender)) return { submitted };
   return { submitted, bids: await tabulate(em, tender) };
 }
 
@@ -244,13 +268,17 @@ export async function bidsOf(em: EntityManager, user: User, tenderId: string): P
  * Every live (submitted or revised) bid of the tender, by vendor name: the tabulation, and the
  * award problem of a run. One query, prices gathered per bid by PostgreSQL: hydrating 30 bids ×
  * 200 lines × their regions as entities took over a second per request (bench:api, phase c).
+ * Only for a closed tender: each bid comes with its receipt's commitment, the nonce that keys it,
+ * and whether the stored figures still give that commitment (`receiptVerified`).
  */
 export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): Promise<TabulatedBid[]> {
   const rows = await em.execute<{
     vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
-    submitted_at: Date | string; digest: string; document_id: string | null; prices: Record<string, number | string> | null;
+    submitted_at: Date | string; digest: string; nonce: string | null; revision: number; reference: string; document_id: string | null;
+    prices: Record<string, number | string> | null;
   }[]>(
-    `select o.id as vendor_id, o.name as vendor_name, o.sme, b.fixed_fee, b.capacity, b.submitted_at, b.digest, b.document_id,
+    `select o.id as vendor_id, o.name as vendor_name, o.sme, b.fixed_fee, b.capacity, b.submitted_at, b.digest, b.nonce, b.revision,
+            (select t.reference from tender t where t.id = b.tender_id) as reference, b.document_id,
             (select json_object_agg(r.code, l.unit_price order by r.position)
                from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices
        from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
@@ -258,19 +286,28 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
       order by o.name asc, o.id asc`,
     [tender.id],
   );
-  return rows.map((b) => ({
-    vendor: { id: b.vendor_id, name: b.vendor_name, sme: b.sme },
-    fixedFee: Number(b.fixed_fee),
-    capacity: b.capacity === null ? null : Number(b.capacity),
-    prices: recordByCode(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)] as const)),
-    submittedAt: new Date(b.submitted_at).toISOString(),
-    digest: b.digest,
-    documentId: b.document_id,
-  }));
+  return rows.map((b) => {
+    const fixedFee = Number(b.fixed_fee);
+    const capacity = b.capacity === null ? null : Number(b.capacity);
+    const prices = recordByCode(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)] as const));
+    const recomputed = b.nonce ? bidCommitment(b.nonce, { tender: b.reference, vendor: b.vendor_id, revision: b.revision, fixedFee, capacity, prices }) : null;
+    return {
+      vendor: { id: b.vendor_id, name: b.vendor_name, sme: b.sme },
+      fixedFee,
+      capacity,
+      prices,
+      submittedAt: new Date(b.submitted_at).toISOString(),
+      revision: b.revision,
+      digest: b.digest,
+      nonce: b.nonce,
+      receiptVerified: recomputed !== null && recomputed === b.digest,
+      documentId: b.document_id,
+    };
+  });
 }
 
 function assertUnsealed(tender: Tender): void {
-  if (tender.status === 'draft' || tender.status === 'open') {
+  if (isSealed(tender)) {
     throw new ConflictError('Bids are sealed until the closing time.');
   }
 }
@@ -308,11 +345,12 @@ export async function vendorWorkbook(em: EntityManager, user: User, tenderId: st
 
 /** Reads an uploaded workbook into bid figures for review; keeps the file for the bid record. */
 export async function uploadWorkbook(
-  em: EntityManager, user: User, tenderId: string, file: { buffer: Buffer; originalname: string; size: number },
+  em: EntityManager, user: User, tenderId: string, file: { buffer: Buffer; originalname: string; size: number }, arrivedAt: Date,
 ): Promise<{ documentId: string; bid: BidFigures }> {
   const org = vendorOf(user);
   const tender = await findVisibleTender(em, user, tenderId);
-  if (tender.status !== 'open') throw new ConflictError(`Bidding closed at ${utc(tender.closesAt)}.`);
+  // As a bid: on time when the upload arrived in full before the closing time.
+  if (tender.status !== 'open' || arrivedAt.getTime() >= tender.closesAt.getTime()) throw new ConflictError(`Bidding closed at ${utc(tender.closesAt)}.`);
   const parsed = await parseBidWorkbookOffThread(file.buffer, regionInputs(tender), { reference: tender.reference });
   if (!parsed.ok) {
     throw new ValidationError(parsed.errors.map((e) => ({ field: e.cell || 'file', message: e.message })), 'The workbook has problems; nothing was saved.');

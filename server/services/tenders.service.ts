@@ -10,7 +10,7 @@ import { renderMail } from '../mail/templates';
 import { createOrganisation, invitePerson } from './people.service';
 import { audit } from './audit.service';
 import { escapeLike } from './like';
-import { closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
+import { CLOSING_GRACE_MS, closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
 
 export interface TenderDeps {
   em: EntityManager;
@@ -221,7 +221,8 @@ export async function publishTender(deps: TenderDeps, user: User, id: string): P
     await audit(tx, { tenderId: t.id, actor: user, action: 'tender.published', subject: 'tender', before: { status: 'draft' }, after: { status: 'open', closesAt: t.closesAt.toISOString() } });
     return t;
   });
-  await deps.boss.send(QUEUES.tenderClose, { tenderId: tender.id }, { startAfter: tender.closesAt, singletonKey: `close-${tender.id}` });
+  // Closed (and opened) once bids received before the closing time are in: tender-access.ts.
+  await deps.boss.send(QUEUES.tenderClose, { tenderId: tender.id }, { startAfter: new Date(tender.closesAt.getTime() + CLOSING_GRACE_MS), singletonKey: `close-${tender.id}` });
   const invitations = await em.fork().find(Invitation, { tender: tender.id });
   await notifyInvited(deps, tender, invitations.map((i) => i.id));
   return tenderView(em.fork(), user, id);

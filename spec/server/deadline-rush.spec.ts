@@ -1,13 +1,15 @@
-import { Bid, BidLine, Tender } from '../../server/entities';
+import { AuditEntry, Bid, BidLine, Tender } from '../../server/entities';
+import { CLOSING_GRACE_MS, closeIfDue } from '../../server/services/tender-access';
 import { makeUser, signedIn, startTestApp, type Browser, type TestApp } from '../support/app';
 import { openTender, tenderBody } from '../support/tenders';
 
 /**
  * Many vendors save their bids in the last moments before the closing time, some after it. The
- * closing time is moved under their feet while their requests are in flight, so some saves are
- * checked before it and some after: the rule is that every accepted bid is stored whole and every
- * refused one is refused as "Bidding closed" with nothing stored — no other answer. Nothing here
- * depends on how fast the machine is.
+ * closing time is moved under their feet while their requests are in flight, so some arrive before
+ * it and some after: the rule is that every accepted bid arrived before the closing time (its
+ * receipt time says so) and is stored whole, and every refused one is refused as "Bidding closed"
+ * with nothing stored — no other answer; closing then counts exactly the accepted bids. Nothing
+ * here depends on how fast the machine is.
  */
 const VENDORS = 40;
 const REGIONS = 12;
@@ -35,13 +37,14 @@ function submit(v: { b: Browser }, k: number) {
 
 test('bids saved across the closing time are either stored whole or refused as closed, never anything else', async () => {
   // A few finish well before the closing time; half are in flight when it arrives (set to "now" by
-  // the database's clock); the rest are sent after it.
+  // this process's clock, the server's); the rest are sent after it.
   const early = await Promise.all(vendors.slice(0, 5).map((v, k) => submit(v, k).then((res) => ({ v, res }))));
   expect(early.map((a) => a.res.status)).toEqual([200, 200, 200, 200, 200]);
   const first = vendors.slice(5, VENDORS / 2);
   const second = vendors.slice(VENDORS / 2);
   const inFlight = first.map((v, k) => submit(v, 5 + k).then((res) => ({ v, res })));
-  await t.em().getConnection().execute(`update tender set closes_at = clock_timestamp() where id = ?`, [tenderId]);
+  const closesAt = new Date();
+  await t.em().nativeUpdate(Tender, { id: tenderId }, { closesAt });
   const late = second.map((v, k) => submit(v, VENDORS / 2 + k).then((res) => ({ v, res })));
   const answers = [...early, ...(await Promise.all([...inFlight, ...late]))];
 
@@ -53,8 +56,10 @@ test('bids saved across the closing time are either stored whole or refused as c
     if (res.status === 200) {
       accepted += 1;
       expect(res.body).toMatchObject({ status: 'submitted', revision: 1, prices });
+      expect(new Date(res.body.submittedAt).getTime()).toBeLessThan(closesAt.getTime());
       const bid = stored.get(v.org);
       expect(bid?.status).toBe('submitted');
+      expect(bid?.submittedAt?.toISOString()).toBe(res.body.submittedAt);
       expect(await t.em().count(BidLine, { bid: bid!.id })).toBe(REGIONS);
     } else {
       refused += 1;
@@ -69,7 +74,10 @@ test('bids saved across the closing time are either stored whole or refused as c
   expect(storedBids).toHaveLength(accepted);
   expect(accepted + refused).toBe(VENDORS);
   expect(refused).toBeGreaterThanOrEqual(VENDORS / 2);
+  // Closing, once the grace has passed, counts exactly the accepted bids.
+  expect(await closeIfDue(t.em(), tenderId, new Date(closesAt.getTime() + CLOSING_GRACE_MS + 1000))).toBe(true);
   expect((await t.em().findOneOrFail(Tender, { id: tenderId })).status).toBe('closed');
+  expect((await t.em().findOneOrFail(AuditEntry, { tender: tenderId, action: 'tender.closed' })).detail).toEqual({ submittedBids: accepted });
 }, 120_000);
 
 test('after the rush, the buyer sees exactly the accepted bids in the tabulation, each with every region priced', async () => {

@@ -4,7 +4,7 @@ import { seed } from '../../server/ops/seed';
 import { DEMO_PASSWORD } from '../../seeds/demo-people';
 import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
-import { openTender } from '../support/tenders';
+import { openTender, passClosingTime } from '../support/tenders';
 
 /** The buyer → compliance flow on the demo salt tender, through the API with the real engine. */
 jest.setTimeout(120_000);
@@ -177,7 +177,8 @@ test('the audit CSV is safe against spreadsheet formula injection', async () => 
   const b = await signedIn(t, other);
   const open = await t.em().findOneOrFail(Tender, { reference: 'NHP-2027-002' });
   // Handed to that buyer (a buyer evaluates only its own tenders), and its closing time passed.
-  await t.em().nativeUpdate(Tender, { id: open.id }, { closesAt: new Date(Date.now() - 1000), createdBy: other.id });
+  await t.em().nativeUpdate(Tender, { id: open.id }, { createdBy: other.id });
+  await passClosingTime(t, open.id);
   await b.get(`/api/tenders/${open.id}`);
   const s = await b.post(`/api/tenders/${open.id}/scenarios`, { name: '+cmd|calc', rules: {} });
   expect(s.status).toBe(201);
@@ -187,7 +188,7 @@ test('the audit CSV is safe against spreadsheet formula injection', async () => 
   expect(csv.text).not.toMatch(/(^|,)"[=+\-@]/m);
 });
 
-test('a bid appears in the trail only by its digest: no figures, no vendor', async () => {
+test('before closing, a bid appears in the trail only as having arrived: its revision and receipt time, no figures, no receipt digest, no vendor', async () => {
   const firm = await makeUser(t, 'vendor');
   const vendor = await signedIn(t, firm);
   const open = { id: await openTender(buyer, [firm.vendorOrganisation!.id]) };
@@ -195,7 +196,8 @@ test('a bid appears in the trail only by its digest: no figures, no vendor', asy
   expect(bid.status).toBe(200);
   const openTrail = (await buyer.get(`/api/tenders/${open.id}/audit`)).body as { action: string; detail: Record<string, unknown>; actor: unknown }[];
   const entry = openTrail.find((e) => e.action === 'bid.submitted')!;
-  expect(entry.detail).toEqual({ revision: 1, digest: bid.body.digest });
+  expect(entry.detail).toEqual({ revision: 1, receivedAt: bid.body.submittedAt });
   expect(entry.actor).toBeNull();
   expect(JSON.stringify(openTrail)).not.toContain('81.5');
+  expect(JSON.stringify(openTrail)).not.toContain(bid.body.digest);
 });

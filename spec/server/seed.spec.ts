@@ -36,3 +36,19 @@ test.each(['admin', 'buyer', 'compliance', 'vendor1', 'vendor7'])('the demo sign
   const res = await (await new Browser(t.app).init()).signIn(`${who}@demo.tendara.test`, DEMO_PASSWORD);
   expect(res.status).toBe(200);
 });
+
+test('every demo bid has a receipt keyed with a nonce of its own, and the closed tender\'s receipts verify at opening', async () => {
+  const rows = await t.em().getConnection().execute<{ nonce: string | null; digest: string | null }[]>(`select nonce, digest from bid`);
+  expect(rows).toHaveLength(9);
+  for (const r of rows) {
+    expect(r.nonce).toMatch(/^[0-9a-f]{64}$/);
+    expect(r.digest).toMatch(/^[0-9a-f]{64}$/);
+  }
+  expect(new Set(rows.map((r) => r.nonce)).size).toBe(rows.length);
+  const buyer = await new Browser(t.app).init();
+  expect((await buyer.signIn('buyer@demo.tendara.test', DEMO_PASSWORD)).status).toBe(200);
+  const salt = await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' });
+  const bids = (await buyer.get(`/api/tenders/${salt.id}/bids`)).body.bids as { nonce: string; receiptVerified: boolean }[];
+  expect(bids).toHaveLength(7);
+  for (const b of bids) expect(b).toMatchObject({ nonce: expect.stringMatching(/^[0-9a-f]{64}$/), receiptVerified: true });
+});

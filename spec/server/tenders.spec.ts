@@ -1,7 +1,7 @@
 import { AuditEntry, MailMessage, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
-import { openTender, tenderBody } from '../support/tenders';
+import { openTender, passClosingTime, tenderBody } from '../support/tenders';
 
 let t: TestApp;
 let buyer: Browser;
@@ -127,7 +127,7 @@ test('no e-mail to vendors is sent for a draft', async () => {
 test('the scheduled close job closes a tender at its closing time without anyone reading it', async () => {
   const id = await openTender(buyer, [orgA]);
   // Publishing scheduled the job for the closing time; run the clock forward and send it now.
-  await t.em().nativeUpdate(Tender, { id }, { closesAt: new Date(Date.now() - 1000) });
+  await passClosingTime(t, id);
   await t.boss.send(QUEUES.tenderClose, { tenderId: id });
   let status = 'open';
   for (let i = 0; i < 50 && status !== 'closed'; i++) {
@@ -139,7 +139,7 @@ test('the scheduled close job closes a tender at its closing time without anyone
 
 test('a tender past its closing time is listed as closed before the close job runs, without the list writing; the job records the closing in the audit trail', async () => {
   const id = await openTender(buyer, [orgA]);
-  await t.em().nativeUpdate(Tender, { id }, { closesAt: new Date(Date.now() - 1000) });
+  await passClosingTime(t, id);
   const list = await buyer.get('/api/tenders');
   expect(list.body.find((x: { id: string }) => x.id === id).status).toBe('closed');
   expect((await buyer.get('/api/tenders?status=closed')).body.map((x: { id: string }) => x.id)).toContain(id);

@@ -1,5 +1,6 @@
 import type { TenderInput } from '@shared/tenders';
 import { Tender } from '../../server/entities';
+import { CLOSING_GRACE_MS } from '../../server/services/tender-access';
 import type { Browser, TestApp } from './app';
 
 let seq = 0;
@@ -34,7 +35,10 @@ export async function openTender(buyer: Browser, organisationIds: string[], body
   return id;
 }
 
-/** Moves the closing time into the past (as if the clock had run on) — the tender closes on next access. */
+/**
+ * Moves the closing time into the past, beyond the grace in which bids received before it are
+ * still stored (as if the clock had run on) — the tender closes on next access.
+ */
 export async function passClosingTime(t: TestApp, tenderId: string): Promise<void> {
-  await t.em().nativeUpdate(Tender, { id: tenderId }, { closesAt: new Date(Date.now() - 1000) });
+  await t.em().nativeUpdate(Tender, { id: tenderId }, { closesAt: new Date(Date.now() - CLOSING_GRACE_MS - 1000) });
 }

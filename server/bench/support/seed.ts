@@ -1,6 +1,6 @@
 import { Client } from 'pg';
 import { hashPassword } from '../../auth/password';
-import { bidDigest } from '../../services/bids.service';
+import { commitBid } from '../../services/bid-commitment';
 
 /**
  * Fictional data for the benchmarks, written with plain SQL (thousands of rows in a second or two,
@@ -90,11 +90,11 @@ async function submitBids(db: Client, tender: SeededTender, orgIds: string[], ra
     const fixedFee = Math.round(10_000 + random() * 50_000);
     // A third of the vendors cannot supply more than a quarter of the whole forecast.
     const capacity = random() < 0.33 ? Math.round(totalForecast * 0.25) : null;
-    const digest = bidDigest(tender.reference, orgId, 1, { fixedFee, capacity, prices });
+    const { nonce, digest } = commitBid({ tender: tender.reference, vendor: orgId, revision: 1, fixedFee, capacity, prices });
     const { rows } = await db.query<{ id: string }>(
-      `insert into bid (id, tender_id, vendor_organisation_id, status, fixed_fee, capacity, submitted_at, digest, revision, version)
-       values (gen_random_uuid(), $1, $2, 'submitted', $3, $4, now() - interval '1 day', $5, 1, 2) returning id`,
-      [tender.id, orgId, fixedFee, capacity, digest],
+      `insert into bid (id, tender_id, vendor_organisation_id, status, fixed_fee, capacity, submitted_at, digest, nonce, revision, version)
+       values (gen_random_uuid(), $1, $2, 'submitted', $3, $4, now() - interval '1 day', $5, $6, 1, 2) returning id`,
+      [tender.id, orgId, fixedFee, capacity, digest, nonce],
     );
     await db.query(
       `insert into bid_line (id, bid_id, region_id, unit_price) select gen_random_uuid(), $1, r, p from unnest($2::uuid[], $3::numeric[]) as x(r, p)`,

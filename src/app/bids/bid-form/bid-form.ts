@@ -160,7 +160,7 @@ export class BidForm {
           this.form.markAsPristine();
           this.status.set(
             submit
-              ? `Bid submitted: revision ${bid.revision}. Your receipt digest is ${bid.digest}. A receipt e-mail is on its way.`
+              ? `Bid submitted: revision ${bid.revision}. Your receipt commitment is ${bid.digest}. A receipt e-mail is on its way.`
               : 'Draft saved. It is not submitted: buyers will not count it until you submit it.',
           );
         },
