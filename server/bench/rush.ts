@@ -49,7 +49,7 @@ export async function deadlineRush(baseUrl: string, databaseUrl: string, tender:
   const db = new Client({ connectionString: databaseUrl });
   await db.connect();
   try {
-    // Closing time a little ahead, by the database's clock (the one the server decides by).
+    // Closing time a little ahead, by this machine's clock (the server's: it decides by its own).
     const lead = 1.5;
     const closesAt = Date.now() + Math.round((lead + o.beforeSeconds) * 1000);
     await db.query(`update tender set closes_at = $2 where id = $1`, [tender.id, new Date(closesAt)]);
