@@ -1,5 +1,5 @@
 import { createHash } from 'node:crypto';
-import { Migration20261202170000 } from '../../server/migrations/Migration20261202170000';
+import { Migration20261202175000 } from '../../server/migrations/Migration20261202175000';
 import { audit } from '../../server/services/audit.service';
 import { makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { openTender, passClosingTime } from '../support/tenders';
@@ -28,7 +28,7 @@ test('the migration gives every live bid stored before keyed receipts a nonce an
   await conn.execute(`alter table bid drop column nonce`);
   await conn.execute(`update bid set digest = ? where status = 'submitted'`, [unsalted]);
 
-  await new Migration20261202170000(t.orm.em.getDriver(), t.orm.config).up();
+  await new Migration20261202175000(t.orm.em.getDriver(), t.orm.config).up();
 
   const rows = await conn.execute<{ status: string; nonce: string | null; digest: string | null }[]>(`select status, nonce, digest from bid order by status`);
   expect(rows).toEqual([
