@@ -78,7 +78,8 @@ export async function audit(em: EntityManager, input: AuditInput): Promise<void>
   );
 }
 
-export async function auditTrail(em: EntityManager, tenderId: string): Promise<AuditEntryView[]> {
+/** A tender's trail, or with `null` the global one (administration: people, organisations, links). */
+export async function auditTrail(em: EntityManager, tenderId: string | null): Promise<AuditEntryView[]> {
   const entries = await em.find(AuditEntry, { tender: tenderId }, { populate: ['actor'], orderBy: { seq: 'asc' } });
   return entries.map((e) => ({
     seq: Number(e.seq),
@@ -94,11 +95,11 @@ export async function auditTrail(em: EntityManager, tenderId: string): Promise<A
 }
 
 /** Recomputes every hash of the tender's chain from the stored content. */
-export async function verifyTrail(em: EntityManager, tenderId: string): Promise<AuditVerification> {
+export async function verifyTrail(em: EntityManager, tenderId: string | null): Promise<AuditVerification> {
   const rows = await em.execute<{
     seq: string; at: Date; tender_id: string | null; actor_id: string | null; action: string; subject: string;
     detail: Record<string, unknown>; before_digest: string | null; after_digest: string | null; prev_hash: string; hash: string;
-  }[]>(`select * from audit_entry where tender_id = ? order by seq`, [tenderId]);
+  }[]>(`select * from audit_entry where tender_id is not distinct from ?::uuid order by seq`, [tenderId]);
   let prev = GENESIS;
   for (const r of rows) {
     const expected = entryHash(prev, {

@@ -31,7 +31,9 @@ export async function signIn(baseUrl: string, email: string, password: string): 
   if (res.status !== 200) throw new Error(`sign-in of ${email}: ${res.status} ${await res.text()}`);
   const sid = cookiesOf(res).get('tendara.sid');
   if (!sid) throw new Error(`sign-in of ${email} set no session cookie`);
-  return { email, xsrf, cookie: `XSRF-TOKEN=${xsrf}; tendara.sid=${sid}` };
+  // Sign-in rotates the XSRF token: only the new one is accepted from now on.
+  const rotated = cookiesOf(res).get('XSRF-TOKEN') ?? xsrf;
+  return { email, xsrf: rotated, cookie: `XSRF-TOKEN=${rotated}; tendara.sid=${sid}` };
 }
 
 /** Signs in many people, a few at a time (each sign-in is a deliberate scrypt on the server). */
