@@ -257,7 +257,7 @@ export async function setActive(em: EntityManager, id: string, active: boolean, 
   const user = await em.transactional(async (tx) => {
     const u = await findUser(tx, id, true);
     if (active && u.membership === 'refused') {
-      throw new ConflictError('The organisation\'s contact refused this person: invite them again if the organisation asks for it.');
+      throw new ConflictError('The organisation\'s contact refused this person, so the account stays closed.');
     }
     await tx.nativeUpdate(User, { id }, { active });
     if (!active) await endSessions(tx, id);
