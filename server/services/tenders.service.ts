@@ -237,7 +237,8 @@ async function notifyInvited(deps: TenderDeps, tender: Tender, invitationIds: st
   const em = deps.em.fork();
   const invitations = await em.find(Invitation, { id: { $in: invitationIds } }, { populate: ['vendorOrganisation'] });
   for (const inv of invitations) {
-    const people = await em.find(User, { vendorOrganisation: inv.vendorOrganisation, active: true, role: 'vendor' });
+    // Only approved members: a person awaiting the organisation's approval learns nothing of it.
+    const people = await em.find(User, { vendorOrganisation: inv.vendorOrganisation, active: true, role: 'vendor', membership: 'approved' });
     for (const person of people) {
       const mail = renderMail('invitation', `Invitation to tender ${tender.reference}: ${tender.title}`, {
         name: person.name,

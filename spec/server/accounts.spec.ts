@@ -32,6 +32,14 @@ async function mailJobs(): Promise<number> {
   return Number(rows[0]!.n);
 }
 
+/** Mail jobs queued (or sent) to `to` whose subject starts with `subject`; read as the queue holds them, no waiting. */
+async function mailJobsTo(to: string, subject = ''): Promise<number> {
+  const rows = await t.em().execute<{ n: string }[]>(
+    `select count(*) as n from pgboss.job where name = 'mail-send' and data->>'to' = ? and starts_with(data->>'subject', ?)`, [to, subject],
+  );
+  return Number(rows[0]!.n);
+}
+
 describe('a vendor organisation decides who joins it', () => {
   test('an admin cannot put a person into a vendor organisation that has people: the account is pending, has no link and cannot sign in until the contact approves', async () => {
     const contactUser = await makeUser(t, 'vendor');
@@ -52,6 +60,11 @@ describe('a vendor organisation decides who joins it', () => {
     await t.em().nativeUpdate(User, { id: mallory.id }, { passwordHash: hash });
     expect((await (await new Browser(t.app).init()).signIn('mallory@intruder.test')).status).toBe(401);
     await t.em().nativeUpdate(User, { id: mallory.id }, { passwordHash: null });
+
+    // A tender published to the firm meanwhile is e-mailed to its contact, not to the pending person.
+    await openTender(buyer, [org.id]);
+    expect(await mailJobsTo(contactUser.email, 'Invitation to tender')).toBeGreaterThan(0);
+    expect(await mailJobsTo('mallory@intruder.test')).toBe(0);
 
     // The contact is asked, and approves in the app; only then does the person get a link.
     const ask = await waitForMail(t, contactUser.email, 'Approve a new person');
