@@ -30,7 +30,7 @@ test('the admin invites a person from the People page; the e-mail shows in the O
   await signIn(page, 'admin@demo.tendara.test');
   await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'People' }).click();
   await page.getByRole('heading', { name: 'People', level: 1 }).waitFor();
-  await page.getByRole('row', { name: /Owen Marsh/ }).waitFor();
+  await page.getByRole('table', { name: 'People' }).getByRole('row', { name: /Owen Marsh/ }).waitFor();
   await screenshot(page, 'people-1280');
   expect(await seriousViolations(page)).toEqual([]);
 
@@ -109,7 +109,7 @@ test('on a phone (390×844) the sign-in page, the menu and the People page fit t
     await screenshot(page, 'sign-in-390');
     await signIn(page, 'admin@demo.tendara.test');
     await page.goto(`${baseUrl()}/people`);
-    await page.getByRole('row', { name: /Owen Marsh/ }).waitFor();
+    await page.getByRole('table', { name: 'People' }).getByRole('row', { name: /Owen Marsh/ }).waitFor();
     await screenshot(page, 'people-390');
     const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
     expect(overflow).toBeLessThanOrEqual(0);
