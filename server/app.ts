@@ -4,7 +4,6 @@ import { randomUUID } from 'node:crypto';
 import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
-import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
 import session from 'express-session';
 import helmet from 'helmet';
 import type { Pool } from 'pg';
@@ -12,14 +11,14 @@ import type PgBoss from 'pg-boss';
 import { pinoHttp } from 'pino-http';
 import { configurePassport } from './auth/passport';
 import { createSessionStore } from './auth/session-store';
+import { signInLimits } from './auth/sign-in-limits';
 import type { Config } from './config';
 import { stampArrival } from './http/arrival';
-import { AppError } from './http/errors';
+import { noStore } from './http/cache-control';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
 import { mountRoutes, route, type AnyRoute } from './http/route';
-import { xsrf } from './http/xsrf';
-import { PgRateLimitStore } from './http/rate-limit-store';
+import { xsrf, xsrfSessionBinding } from './http/xsrf';
 import { logger } from './logger';
 import { outboxRoutes } from './routes/outbox.routes';
 import { peopleRoutes } from './routes/people.routes';
@@ -46,7 +45,7 @@ const SESSION_HOURS = 8;
 /** Every API route of the app, in one list (mounted, documented and tested from it). */
 export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): AnyRoute[] {
   const routes: AnyRoute[] = [
-    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(), ...tenderRoutes(deps), ...bidRoutes(deps), ...evaluationRoutes(deps), ...noticeRoutes(deps),
+    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(deps.config), ...tenderRoutes(deps), ...bidRoutes(deps), ...evaluationRoutes(deps), ...noticeRoutes(deps),
   ];
   routes.push(
     route({
@@ -107,6 +106,7 @@ export function createApp(deps: AppDeps): Express {
   );
 
   const api = express.Router();
+  api.use(noStore());
   api.use(cookieParser());
   api.use(xsrf());
   api.use(express.json({ limit: '1mb' }));
@@ -127,22 +127,10 @@ export function createApp(deps: AppDeps): Express {
   const auth = configurePassport(orm);
   api.use(auth.initialize());
   api.use(auth.session());
-  // Failed sign-ins per IP and e-mail: 10 per 15 minutes (successful ones do not count).
-  api.post(
-    '/session',
-    rateLimit({
-      windowMs: 15 * 60_000,
-      limit: 10,
-      skipSuccessfulRequests: true,
-      // Counted in PostgreSQL, so that every web process sees the same failures.
-      store: new PgRateLimitStore(deps.sessionPool),
-      standardHeaders: 'draft-8',
-      legacyHeaders: false,
-      keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`,
-      handler: (_req, _res, next) =>
-        next(new AppError(429, 'Too many attempts', 'Too many failed sign-ins. Wait 15 minutes and try again.')),
-    }),
-  );
+  api.use(xsrfSessionBinding());
+  // Failed sign-ins: per IP across e-mails, and per IP and (normalised) e-mail; counted in
+  // PostgreSQL, so that every web process sees the same failures.
+  api.post('/session', ...signInLimits(config.signInIpLimit, deps.sessionPool));
   mountRoutes(api, apiRoutes(deps, auth));
   api.use(apiNotFound);
   app.use('/api', api);

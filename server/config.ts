@@ -40,6 +40,15 @@ const envSchema = z.object({
    * server and PostgreSQL are never kept waiting by them; `normal`: the usual class at WORKER_NICE.
    */
   WORKER_SCHED: z.enum(['idle', 'normal']).default('idle'),
+  /**
+   * Show set-password links in the admin's Outbox (1) or mask them (0, the default). Only for a
+   * test or demo installation, whose administrator reads the caught mail instead of the people it
+   * is addressed to; `npm start` (the demo) turns it on. Off, nobody can take over an account
+   * from the Outbox.
+   */
+  OUTBOX_SHOW_LINKS: z.enum(['0', '1']).default('0'),
+  /** Failed sign-ins from one IP address, across every e-mail, per 15 minutes (password spraying). */
+  SIGN_IN_IP_LIMIT: z.coerce.number().int().min(1).max(10_000).default(30),
 });
 
 export type Config = {
@@ -59,6 +68,8 @@ export type Config = {
   solveConcurrency: number;
   workerNice: number;
   workerSched: 'idle' | 'normal';
+  outboxShowLinks: boolean;
+  signInIpLimit: number;
 };
 
 /** Reads the environment; throws one error listing every bad variable. */
@@ -86,5 +97,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     solveConcurrency: e.SOLVE_CONCURRENCY,
     workerNice: e.WORKER_NICE,
     workerSched: e.WORKER_SCHED,
+    outboxShowLinks: e.OUTBOX_SHOW_LINKS === '1',
+    signInIpLimit: e.SIGN_IN_IP_LIMIT,
   };
 }

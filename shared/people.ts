@@ -39,13 +39,21 @@ export const tokenParamSchema = z.object({
   token: z.string().regex(/^[A-Za-z0-9_-]{20,100}$/, { error: 'The link is not valid.' }),
 });
 
+/**
+ * A vendor account's membership of its organisation: `pending` until the organisation's contact
+ * approves a person an administrator added (no sign-in, no link until then), `refused` if they refuse.
+ */
+export type Membership = 'approved' | 'pending' | 'refused';
+
 export interface PersonView {
   id: string;
   email: string;
   name: string;
   role: Role;
   active: boolean;
+  /** No password set yet (a fresh invitation link can be sent; a reset cannot). */
   invitationPending: boolean;
+  membership: Membership;
   vendorOrganisation: { id: string; name: string } | null;
   createdAt: string;
   lastSignInAt: string | null;
@@ -64,6 +72,17 @@ export interface AccountSetupView {
   email: string;
   name: string;
   expiresAt: string;
+  /** `invitation`: a first password; `reset`: a new one (every session of the person ends). */
+  purpose: 'invitation' | 'reset';
+}
+
+/** GET /api/organisation/members: a vendor's own organisation, its people and who decides. */
+export interface MemberView {
+  organisation: { id: string; name: string };
+  /** Whether the signed-in vendor is the contact who approves or refuses new people. */
+  youAreContact: boolean;
+  contactName: string | null;
+  people: { id: string; name: string; email: string; membership: Membership; active: boolean; createdAt: string }[];
 }
 
 /** GET /api/outbox */

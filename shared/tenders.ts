@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { emailSchema } from './auth';
 import { bidInputSchema, regionListSchema } from './bids';
 import { plainText } from './text';
 
@@ -60,7 +61,7 @@ export const invitationInputSchema = z
         registrationNumber: text('Registration number', 40),
         sme: z.boolean({ error: 'SME must be true or false.' }),
         contactName: text('Contact name', 120),
-        contactEmail: z.string().trim().max(254).pipe(z.email({ error: 'Enter a valid e-mail address.' })),
+        contactEmail: emailSchema,
       })
       .optional(),
   })

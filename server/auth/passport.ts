@@ -3,7 +3,7 @@ import type { Request } from 'express';
 import passport from 'passport';
 import { Strategy as LocalStrategy } from 'passport-local';
 import { User as UserEntity } from '../entities';
-import { escapeLike } from '../services/like';
+import { normaliseEmail } from '@shared/auth';
 import { DUMMY_HASH, verifyPassword } from './password';
 import { loadedSessionUser } from './session-store';
 import { signedInUser } from './session-user';
@@ -19,7 +19,8 @@ declare global {
 
 /**
  * Passport with the local strategy. The answer is the same for an unknown e-mail, a wrong password
- * and a deactivated person, and takes as long, so sign-in cannot be used to probe e-mails.
+ * a deactivated person and one whose membership of a vendor organisation is not approved, and takes
+ * as long, so sign-in cannot be used to probe e-mails. The e-mail is normalised and compared exactly.
  */
 export function configurePassport(orm: MikroORM): passport.PassportStatic {
   const instance = new passport.Passport();
@@ -30,11 +31,11 @@ export function configurePassport(orm: MikroORM): passport.PassportStatic {
       (async () => {
         const user = await em().findOne(
           UserEntity,
-          { email: { $ilike: escapeLike(email.trim()) } },
+          { email: normaliseEmail(email) },
           { populate: ['passwordHash', 'vendorOrganisation'] },
         );
         const ok = await verifyPassword(password, user?.passwordHash ?? DUMMY_HASH);
-        if (!user || !ok || !user.active || !user.passwordHash) return done(null, false);
+        if (!user || !ok || !user.active || !user.passwordHash || user.membership !== 'approved') return done(null, false);
         return done(null, user);
       })().catch(done);
     }),

@@ -2,10 +2,11 @@ import { Entity, Enum, Unique, ManyToOne, Property } from '@mikro-orm/core';
 import { BaseEntity } from './base.entity';
 import { User } from './user.entity';
 
-export const ACCOUNT_TOKEN_PURPOSES = ['invitation'] as const;
+/** `invitation`: the first password of a new account; `reset`: a new password for an account that has one. */
+export const ACCOUNT_TOKEN_PURPOSES = ['invitation', 'reset'] as const;
 
 /**
- * A one-time link to set a password. Only the SHA-256 of the token is stored, so a leaked
+ * A one-time link to set a password (a first one, or a reset). Only the SHA-256 of the token is stored, so a leaked
  * database does not hand out working links.
  */
 @Entity({ tableName: 'account_token' })

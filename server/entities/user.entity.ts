@@ -1,16 +1,24 @@
-import { Check, Entity, Enum, Index, ManyToOne, Property, type Opt } from '@mikro-orm/core';
+import { Check, Entity, Enum, ManyToOne, Property, Unique, type Opt } from '@mikro-orm/core';
 import { ROLES, type Role } from '@shared/auth';
 import { BaseEntity } from './base.entity';
 import { VendorOrganisation } from './vendor-organisation.entity';
 
 /**
- * A person who signs in. E-mail is unique regardless of case (a unique index on lower(email),
- * created by the migration); it is stored as typed, trimmed.
+ * Whether a vendor account belongs to its organisation yet: an account an administrator adds to an
+ * organisation that already has people stays `pending` until the organisation's contact approves
+ * it (it cannot sign in, and no set-password link exists, until then); `refused` when they refuse.
+ */
+export const MEMBERSHIP_STATES = ['approved', 'pending', 'refused'] as const;
+export type MembershipState = (typeof MEMBERSHIP_STATES)[number];
+
+/**
+ * A person who signs in. The e-mail is stored normalised (`normaliseEmail` in shared/auth.ts:
+ * NFKC, lower case, trimmed) and is unique as stored; every lookup normalises and compares exactly.
  */
 @Entity({ tableName: 'app_user' })
-@Index({ name: 'app_user_email_lower_unique', expression: 'create unique index "app_user_email_lower_unique" on "app_user" (lower("email"))' })
 @Check({ name: 'app_user_vendor_organisation_check', expression: "(role = 'vendor') = (vendor_organisation_id is not null)" })
 export class User extends BaseEntity {
+  @Unique({ name: 'app_user_email_unique' })
   @Property({ type: 'string', length: 254 })
   email!: string;
 
@@ -32,4 +40,7 @@ export class User extends BaseEntity {
 
   @Property({ type: 'datetime', nullable: true })
   lastSignInAt?: Date | null;
+
+  @Enum({ items: () => MEMBERSHIP_STATES, nativeEnumName: 'membership_state', default: 'approved' })
+  membership: MembershipState & Opt = 'approved';
 }

@@ -1,4 +1,5 @@
 import type { Options, Store, IncrementResponse } from 'express-rate-limit';
+import { createHash } from 'node:crypto';
 import type { Pool } from 'pg';
 
 /**
@@ -25,18 +26,23 @@ export class PgRateLimitStore implements Store {
          hits = case when rate_limit_hit.reset_at <= clock_timestamp() then 1 else rate_limit_hit.hits + 1 end,
          reset_at = case when rate_limit_hit.reset_at <= clock_timestamp() then excluded.reset_at else rate_limit_hit.reset_at end
        returning hits, reset_at`,
-      [this.prefix + key, this.windowMs],
+      [this.rowKey(key), this.windowMs],
     );
     this.pruneNowAndThen();
     return { totalHits: rows[0]!.hits, resetTime: rows[0]!.reset_at };
   }
 
   async decrement(key: string): Promise<void> {
-    await this.pool.query(`update rate_limit_hit set hits = greatest(hits - 1, 0) where key = $1`, [this.prefix + key]);
+    await this.pool.query(`update rate_limit_hit set hits = greatest(hits - 1, 0) where key = $1`, [this.rowKey(key)]);
   }
 
   async resetKey(key: string): Promise<void> {
-    await this.pool.query(`delete from rate_limit_hit where key = $1`, [this.prefix + key]);
+    await this.pool.query(`delete from rate_limit_hit where key = $1`, [this.rowKey(key)]);
+  }
+
+  /** The row's key: the prefix and a SHA-256 of the limiter's key, so no e-mail address is stored and any bytes are safe. */
+  private rowKey(key: string): string {
+    return this.prefix + createHash('sha256').update(key).digest('hex');
   }
 
   private pruneNowAndThen(): void {

@@ -108,6 +108,8 @@ if [ "$mode" = start ]; then
   export MAIL_CATCHER_PORT=${MAIL_CATCHER_PORT:-2525}
   export SMTP_URL=${SMTP_URL:-smtp://127.0.0.1:$MAIL_CATCHER_PORT}
   export CLIENT_DIST="$root/dist/client/browser"
+  # The demo's administrator reads the caught mail: show set-password links in the Outbox.
+  export OUTBOX_SHOW_LINKS=${OUTBOX_SHOW_LINKS:-1}
   port_free "$PORT" || die "Port $PORT on $HOST is taken by another program. Start with another port: PORT=3001 npm start"
   port_free "$MAIL_CATCHER_PORT" || die "Port $MAIL_CATCHER_PORT (mail catcher) is taken. Start with MAIL_CATCHER_PORT=2526 npm start"
   node dist/server/ops/migrate.js

@@ -4,6 +4,7 @@ import { signInSchema, type SessionUser } from '@shared/auth';
 import type { User } from '../entities';
 import { AppError, UnauthorizedError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
+import { rotateXsrf } from '../http/xsrf';
 
 export function sessionUser(user: User): SessionUser {
   return {
@@ -15,7 +16,10 @@ export function sessionUser(user: User): SessionUser {
   };
 }
 
-/** passport.authenticate as a promise, then a fresh session id (no session fixation). */
+/**
+ * passport.authenticate as a promise, then a fresh session id (no session fixation) and a fresh
+ * XSRF token bound to it.
+ */
 function signIn(auth: passport.PassportStatic, req: Request, res: Response): Promise<User> {
   return new Promise((resolve, reject) => {
     const next: NextFunction = (err?: unknown) => (err ? reject(err) : undefined);
@@ -24,7 +28,11 @@ function signIn(auth: passport.PassportStatic, req: Request, res: Response): Pro
       if (!user) return reject(new AppError(401, 'Sign-in failed', 'E-mail or password is not correct.'));
       req.session.regenerate((regenErr) => {
         if (regenErr) return reject(regenErr);
-        req.login(user, (loginErr) => (loginErr ? reject(loginErr) : resolve(user)));
+        req.login(user, (loginErr) => {
+          if (loginErr) return reject(loginErr);
+          rotateXsrf(req, res);
+          resolve(user);
+        });
       });
     })(req, res, next);
   });
@@ -43,7 +51,7 @@ export function sessionRoutes(auth: passport.PassportStatic): AnyRoute[] {
     }),
     route({
       method: 'post', path: '/session', tag: 'Session', access: 'public', body: signInSchema,
-      summary: 'Sign in with e-mail and password (needs the X-XSRF-TOKEN header). The same 401 for any bad pair; 429 after repeated failures.',
+      summary: 'Sign in with e-mail and password (needs the X-XSRF-TOKEN header; answers with a new XSRF-TOKEN cookie, and the old token stops working). The same 401 for any bad pair; 429 after repeated failures.',
       responses: { 200: '{ user }', 401: 'E-mail or password is not correct', 429: 'Too many failed attempts' },
       handler: async ({ req, res, em }) => {
         const user = await signIn(auth, req, res);

@@ -85,7 +85,8 @@ export async function audit(em: EntityManager, input: AuditInput): Promise<void>
   );
 }
 
-export async function auditTrail(em: EntityManager, tenderId: string): Promise<AuditEntryView[]> {
+/** A tender's trail, or with `null` the global one (administration: people, organisations, links). */
+export async function auditTrail(em: EntityManager, tenderId: string | null): Promise<AuditEntryView[]> {
   const entries = await em.find(AuditEntry, { tender: tenderId }, { populate: ['actor'], orderBy: { seq: 'asc' } });
   // Bid entries written before receipts were keyed (migration 20261202170000) carry the bid's
   // unsalted digest, which a reader could test guesses of the figures against: withheld while the
@@ -111,11 +112,11 @@ function withoutDigest(detail: Record<string, unknown>): Record<string, unknown>
 }
 
 /** Recomputes every hash of the tender's chain from the stored content. */
-export async function verifyTrail(em: EntityManager, tenderId: string): Promise<AuditVerification> {
+export async function verifyTrail(em: EntityManager, tenderId: string | null): Promise<AuditVerification> {
   const rows = await em.execute<{
     seq: string; at: Date; tender_id: string | null; actor_id: string | null; action: string; subject: string;
     detail: Record<string, unknown>; before_digest: string | null; after_digest: string | null; prev_hash: string; hash: string;
-  }[]>(`select * from audit_entry where tender_id = ? order by seq`, [tenderId]);
+  }[]>(`select * from audit_entry where tender_id is not distinct from ?::uuid order by seq`, [tenderId]);
   let prev = GENESIS;
   for (const r of rows) {
     const expected = entryHash(prev, {

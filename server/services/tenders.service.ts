@@ -7,7 +7,7 @@ import { Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../en
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
-import { createOrganisation, invitePerson } from './people.service';
+import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from './people.service';
 import { audit } from './audit.service';
 import { escapeLike } from './like';
 import { CLOSING_GRACE_MS, closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
@@ -166,28 +166,36 @@ export async function inviteVendors(deps: TenderDeps, user: User, id: string, in
   const tender = await findVisibleTender(em, user, id);
   if (tender.status !== 'draft' && tender.status !== 'open') throw new ConflictError('Vendors can be invited only before closing.');
   const orgIds = [...new Set(input.vendorOrganisationIds)];
-  if (input.newVendor) {
-    const nv = input.newVendor;
-    const org = await createOrganisation(em.fork(), { name: nv.organisationName, registrationNumber: nv.registrationNumber, sme: nv.sme, contactEmail: nv.contactEmail });
-    await invitePerson({ em: em.fork(), boss: deps.boss, publicUrl: deps.publicUrl }, { name: nv.contactName, email: nv.contactEmail, role: 'vendor', vendorOrganisationId: org.id }, user);
-    orgIds.push(org.id);
-  }
-  const added = await em.transactional(async (tx) => {
+  // The new organisation, its contact's account, the invitations and their audit entries commit
+  // together; the contact's e-mail is queued only after that. A refused request leaves nothing.
+  const { added, mails } = await em.transactional(async (tx) => {
     await lockTender(tx, user, tender.id, ['draft', 'open'], 'Vendors can be invited only before closing.');
+    const mails: MailOut[] = [];
+    const newOrgIds: string[] = [];
+    if (input.newVendor) {
+      const nv = input.newVendor;
+      const org = await registerOrganisation(tx, { name: nv.organisationName, registrationNumber: nv.registrationNumber, sme: nv.sme, contactEmail: nv.contactEmail }, user);
+      const person = await addPerson(tx, deps, { name: nv.contactName, email: nv.contactEmail, role: 'vendor', vendorOrganisationId: org.id }, user);
+      mails.push(...person.mails);
+      newOrgIds.push(org.id);
+    }
     const orgs = await tx.find(VendorOrganisation, { id: { $in: orgIds } });
     if (orgs.length !== orgIds.length) {
       const missing = orgIds.findIndex((oid) => !orgs.some((o) => o.id === oid));
       throw new ValidationError([{ field: `vendorOrganisationIds[${missing}]`, message: 'This vendor organisation does not exist.' }]);
     }
-    const existing = await tx.find(Invitation, { tender: tender.id, vendorOrganisation: { $in: orgIds } });
+    orgs.push(...(await tx.find(VendorOrganisation, { id: { $in: newOrgIds } })));
+    const allIds = orgs.map((o) => o.id);
+    const existing = await tx.find(Invitation, { tender: tender.id, vendorOrganisation: { $in: allIds } });
     const fresh = orgs.filter((o) => !existing.some((e) => e.vendorOrganisation.id === o.id));
     const created = fresh.map((o) => tx.create(Invitation, { tender: tender.id, vendorOrganisation: o, invitedBy: user }));
     await tx.flush();
     if (fresh.length) {
       await audit(tx, { tenderId: tender.id, actor: user, action: 'invitations.added', subject: 'invitations', detail: { vendors: fresh.map((o) => o.name) } });
     }
-    return created;
+    return { added: created, mails };
   });
+  await sendAfterCommit(deps.boss, mails);
   if (tender.status === 'open') await notifyInvited(deps, tender, added.map((i) => i.id));
   return tenderView(em.fork(), user, id);
 }
@@ -234,7 +242,8 @@ async function notifyInvited(deps: TenderDeps, tender: Tender, invitationIds: st
   const em = deps.em.fork();
   const invitations = await em.find(Invitation, { id: { $in: invitationIds } }, { populate: ['vendorOrganisation'] });
   for (const inv of invitations) {
-    const people = await em.find(User, { vendorOrganisation: inv.vendorOrganisation, active: true, role: 'vendor' });
+    // Only approved members: a person awaiting the organisation's approval learns nothing of it.
+    const people = await em.find(User, { vendorOrganisation: inv.vendorOrganisation, active: true, role: 'vendor', membership: 'approved' });
     for (const person of people) {
       const mail = renderMail('invitation', `Invitation to tender ${tender.reference}: ${tender.title}`, {
         name: person.name,

@@ -5,7 +5,7 @@ const ROLES = [
   { email: 'admin@demo.tendara.test', role: 'Administrator', nav: ['Overview', 'Tenders', 'Notices', 'People', 'Outbox'] },
   { email: 'buyer@demo.tendara.test', role: 'Buyer', nav: ['Overview', 'Tenders', 'Notices'] },
   { email: 'compliance@demo.tendara.test', role: 'Compliance officer', nav: ['Overview', 'Tenders', 'Notices'] },
-  { email: 'vendor1@demo.tendara.test', role: 'Vendor', nav: ['Overview', 'My tenders', 'Notices'] },
+  { email: 'vendor1@demo.tendara.test', role: 'Vendor', nav: ['Overview', 'My tenders', 'Notices', 'My organisation'] },
 ];
 
 let b: Awaited<ReturnType<typeof openBrowser>>;

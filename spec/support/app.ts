@@ -33,7 +33,8 @@ export interface TestApp {
   close(): Promise<void>;
 }
 
-export async function startTestApp(options: { workers?: boolean; solver?: boolean } = {}): Promise<TestApp> {
+/** `env` adds or overrides environment variables of the server's configuration (server/config.ts). */
+export async function startTestApp(options: { workers?: boolean; solver?: boolean; env?: Record<string, string> } = {}): Promise<TestApp> {
   const databaseUrl = await createTestDatabase();
   const orm = await MikroORM.init(ormConfig(databaseUrl));
   const catcher = await startMailCatcher(orm, 0);
@@ -43,6 +44,7 @@ export async function startTestApp(options: { workers?: boolean; solver?: boolea
     DATABASE_URL: databaseUrl,
     SMTP_URL: `smtp://127.0.0.1:${catcher.port}`,
     PUBLIC_URL: 'http://tendara.test',
+    ...options.env,
   });
   const boss = createBoss(databaseUrl);
   await boss.start();
@@ -104,11 +106,14 @@ export class Browser {
   }
   /** GET /api/session once to receive the XSRF cookie. */
   async init(): Promise<this> {
-    const res = await this.agent.get('/api/session');
-    const cookies = ([] as string[]).concat(res.headers['set-cookie'] ?? []);
+    this.takeXsrf(await this.agent.get('/api/session'));
+    return this;
+  }
+  /** Keeps the XSRF token a response set (GET /api/session sets one, sign-in a fresh one), as Angular does. */
+  private takeXsrf(res: { headers: Record<string, unknown> }): void {
+    const cookies = ([] as string[]).concat((res.headers['set-cookie'] as string[] | undefined) ?? []);
     const xsrf = cookies.find((c) => c.startsWith('XSRF-TOKEN='));
     if (xsrf) this.xsrf = xsrf.split(';')[0]!.split('=')[1]!;
-    return this;
   }
   get token(): string {
     return this.xsrf;
@@ -124,7 +129,9 @@ export class Browser {
     return this.send('post', path, body);
   }
   async signIn(email: string, password = TEST_PASSWORD) {
-    return this.post('/api/session', { email, password });
+    const res = await this.post('/api/session', { email, password });
+    this.takeXsrf(res);
+    return res;
   }
 }
 

@@ -54,6 +54,11 @@ export const routes: Routes = [
         loadChildren: () => import('./notices/notices.routes').then((m) => m.NOTICE_ROUTES),
       },
       {
+        path: 'organisation',
+        canActivate: [roleGuard(['vendor'])],
+        loadChildren: () => import('./organisation/organisation.routes').then((m) => m.ORGANISATION_ROUTES),
+      },
+      {
         path: 'outbox',
         canActivate: [roleGuard(['admin'])],
         loadChildren: () => import('./outbox/outbox.routes').then((m) => m.OUTBOX_ROUTES),

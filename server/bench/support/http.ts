@@ -32,9 +32,9 @@ export async function signIn(baseUrl: string, email: string, password: string): 
   const set = cookiesOf(res);
   const sid = set.get('tendara.sid');
   if (!sid) throw new Error(`sign-in of ${email} set no session cookie`);
-  // A fresh XSRF token given with the sign-in replaces the one before it.
-  const token = set.get('XSRF-TOKEN') || xsrf;
-  return { email, xsrf: token, cookie: `XSRF-TOKEN=${token}; tendara.sid=${sid}` };
+  // Sign-in rotates the XSRF token: only the new one is accepted from now on.
+  const rotated = cookiesOf(res).get('XSRF-TOKEN') ?? xsrf;
+  return { email, xsrf: rotated, cookie: `XSRF-TOKEN=${rotated}; tendara.sid=${sid}` };
 }
 
 /** Signs in many people, a few at a time (each sign-in is a deliberate scrypt on the server). */

@@ -4,6 +4,7 @@ import type { NoticeKind } from '@shared/notices';
 import { Bid, Recommendation, Region, User, type Run, type Tender } from '../../entities';
 import { ConflictError } from '../../http/errors';
 import { renderMail } from '../../mail/templates';
+import { normaliseEmail } from '@shared/auth';
 
 const DAY = 86_400_000;
 
@@ -66,8 +67,10 @@ export async function composeLetters(em: EntityManager, tender: Tender, sentAt =
   const letters: Letter[] = [];
   for (const bid of bids) {
     const org = bid.vendorOrganisation;
-    const people = await em.find(User, { vendorOrganisation: org, active: true });
-    const to = [...new Set([org.contactEmail, ...people.map((p) => p.email)].map((e) => e.toLowerCase()))];
+    // Only people the organisation has approved: one an admin added and its contact has not
+    // accepted sees nothing of it, letters included.
+    const people = await em.find(User, { vendorOrganisation: org, active: true, membership: 'approved' });
+    const to = [...new Set([org.contactEmail, ...people.map((p) => p.email)].map(normaliseEmail))];
     const award = result.awards.find((a) => a.vendor === org.id);
     if (award) {
       const view = {

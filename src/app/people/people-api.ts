@@ -1,5 +1,6 @@
 import { HttpClient } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
+import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
 import type {
   InviteUser,
   PersonView,
@@ -36,6 +37,20 @@ export class PeopleApi {
   /** Sends a fresh set-password link; earlier links stop working. */
   resendInvitation(id: string): Observable<void> {
     return this.http.post<void>(`${this.base}/users/${encodeURIComponent(id)}/invitation`, {});
+  }
+
+  /** E-mails the person, at their own address, a link to choose a new password. */
+  sendPasswordReset(id: string): Observable<void> {
+    return this.http.post<void>(`${this.base}/users/${encodeURIComponent(id)}/password-reset`, {});
+  }
+
+  /** The admin audit trail, oldest first. */
+  auditTrail(): Observable<AuditEntryView[]> {
+    return this.http.get<AuditEntryView[]>(`${this.base}/admin/audit`);
+  }
+
+  verifyAuditTrail(): Observable<AuditVerification> {
+    return this.http.get<AuditVerification>(`${this.base}/admin/audit/verify`);
   }
 
   organisations(): Observable<VendorOrganisationView[]> {

@@ -22,6 +22,8 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'My tenders', icon: 'request_quote', link: '/tenders', roles: ['vendor'] },
   { label: 'Notices', icon: 'mark_email_unread', link: '/notices', roles: ['admin', 'buyer', 'compliance', 'vendor'] },
   { label: 'People', icon: 'group', link: '/people', roles: ['admin'] },
+  // A vendor's own firm: its people, and the contact's approval of new ones.
+  { label: 'My organisation', icon: 'domain', link: '/organisation', roles: ['vendor'] },
   { label: 'Outbox', icon: 'outbox', link: '/outbox', roles: ['admin'] },
 ];
 

@@ -1,4 +1,5 @@
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { Component } from '@angular/core';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { HarnessLoader } from '@angular/cdk/testing';
 import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
@@ -12,7 +13,12 @@ import { MatTableHarness } from '@angular/material/table/testing';
 import { provideRouter } from '@angular/router';
 import type { PersonView, VendorOrganisationView } from '@shared/people';
 import { provideApi } from '../../core/http/provide-api';
+import { AdminAudit } from '../admin-audit/admin-audit';
 import { PeopleList } from './people-list';
+
+/** The admin audit trail below the table loads on its own; these tests are about the list. */
+@Component({ selector: 'app-admin-audit', template: '' })
+class NoAdminAudit {}
 
 const saltmarsh: VendorOrganisationView = {
   id: '3f0d8c3e-7a0b-4c55-9b1e-0a4c2d5e6f70',
@@ -26,6 +32,7 @@ function personView(overrides: Partial<PersonView> & Pick<PersonView, 'id' | 'na
   return {
     active: true,
     invitationPending: false,
+    membership: 'approved',
     vendorOrganisation: null,
     createdAt: '2026-11-02T09:00:00Z',
     lastSignInAt: null,
@@ -69,6 +76,7 @@ describe('PeopleList', () => {
         { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } },
       ],
     });
+    TestBed.overrideComponent(PeopleList, { remove: { imports: [AdminAudit] }, add: { imports: [NoAdminAudit] } });
     http = TestBed.inject(HttpTestingController);
     fixture = TestBed.createComponent(PeopleList);
     loader = TestbedHarnessEnvironment.loader(fixture);

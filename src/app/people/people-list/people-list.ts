@@ -26,6 +26,7 @@ import { Observable, map } from 'rxjs';
 import { Auth } from '../../core/auth/auth';
 import { ApiError } from '../../core/http/api-error';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { AdminAudit } from '../admin-audit/admin-audit';
 import { InviteDialog } from '../invite-dialog/invite-dialog';
 import { PeopleApi } from '../people-api';
 import { STATUS_LABELS, personStatus } from '../person-status';
@@ -66,6 +67,7 @@ function matches(person: PersonView, filter: string): boolean {
     MatIconModule,
     MatMenuModule,
     MatProgressBarModule,
+    AdminAudit,
   ],
   templateUrl: './people-list.html',
   styleUrl: './people-list.scss',
@@ -101,6 +103,7 @@ export class PeopleList {
     const filter = this.normalisedFilter();
     return filter ? this.rows().filter((person) => matches(person, filter)).length : this.count();
   });
+  private readonly audit = viewChild(AdminAudit);
   protected readonly statusLabel = STATUS_LABELS;
   protected readonly statusOf = personStatus;
 
@@ -159,7 +162,12 @@ export class PeopleList {
       .subscribe((person) => {
         if (!person) return;
         this.rows.update((rows) => [...rows, person]);
-        this.status.set(`Invitation sent to ${person.email}.`);
+        this.audit()?.reload();
+        this.status.set(
+          person.membership === 'pending'
+            ? `${person.name} is added to ${person.vendorOrganisation?.name}, pending approval by its contact; they get their link once approved.`
+            : `Invitation sent to ${person.email}.`,
+        );
       });
   }
 
@@ -193,8 +201,38 @@ export class PeopleList {
       .resendInvitation(person.id)
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
-        next: () => this.status.set(`A new invitation link was sent to ${person.email}. Earlier links no longer work.`),
+        next: () => {
+          this.audit()?.reload();
+          this.status.set(`A new invitation link was sent to ${person.email}. Earlier links no longer work.`);
+        },
         error: (error: unknown) => this.status.set(this.describe(error)),
+      });
+  }
+
+  protected sendPasswordReset(person: PersonView): void {
+    this.dialog
+      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, {
+        data: {
+          title: `Send ${person.name} a password reset?`,
+          message: `A one-time link goes to ${person.email} only. When ${person.name} uses it, every session they have open ends. Their present password works until then.`,
+          confirm: 'Send reset link',
+        },
+        maxWidth: '95vw',
+      })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((confirmed) => {
+        if (!confirmed) return;
+        this.api
+          .sendPasswordReset(person.id)
+          .pipe(takeUntilDestroyed(this.destroyRef))
+          .subscribe({
+            next: () => {
+              this.audit()?.reload();
+              this.status.set(`A password reset link was sent to ${person.email}.`);
+            },
+            error: (error: unknown) => this.status.set(this.describe(error)),
+          });
       });
   }
 
@@ -210,6 +248,7 @@ export class PeopleList {
           .subscribe({
             next: (updated) => {
               this.rows.update((rows) => rows.map((row) => (row.id === updated.id ? updated : row)));
+              this.audit()?.reload();
               this.status.set(done);
             },
             error: (error: unknown) => this.status.set(this.describe(error)),
