@@ -1,18 +1,16 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { randomUUID } from 'node:crypto';
-import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
+import { RequestContext } from '@mikro-orm/postgresql';
 import connectPgSimple from 'connect-pg-simple';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import { rateLimit, ipKeyGenerator } from 'express-rate-limit';
 import session from 'express-session';
 import helmet from 'helmet';
-import type { Pool } from 'pg';
-import type PgBoss from 'pg-boss';
 import { pinoHttp } from 'pino-http';
 import { configurePassport } from './auth/passport';
-import type { Config } from './config';
+import { SESSION_COOKIE, type AppDeps } from './context';
 import { AppError } from './http/errors';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
@@ -27,15 +25,6 @@ import { bidRoutes } from './routes/bids.routes';
 import { evaluationRoutes } from './routes/evaluation.routes';
 import { noticeRoutes } from './routes/notices.routes';
 
-export interface AppDeps {
-  config: Config;
-  orm: MikroORM;
-  boss: PgBoss;
-  /** Pool for the session store. */
-  sessionPool: Pool;
-}
-
-export const SESSION_COOKIE = 'tendara.sid';
 const SESSION_HOURS = 8;
 
 /** Every API route of the app, in one list (mounted, documented and tested from it). */
@@ -129,7 +118,7 @@ export function createApp(deps: AppDeps): Express {
       skipSuccessfulRequests: true,
       standardHeaders: 'draft-8',
       legacyHeaders: false,
-      keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String(req.body?.email ?? '').trim().toLowerCase()}`,
+      keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${emailOf(req.body).trim().toLowerCase()}`,
       handler: (_req, _res, next) =>
         next(new AppError(429, 'Too many attempts', 'Too many failed sign-ins. Wait 15 minutes and try again.')),
     }),
@@ -153,4 +142,10 @@ export function createApp(deps: AppDeps): Express {
 
 function noCacheIndex(res: express.Response, file: string): void {
   if (file.endsWith('index.html')) res.setHeader('Cache-Control', 'no-cache');
+}
+
+/** The e-mail of a sign-in body, if it has one (the body is not validated yet when this runs). */
+function emailOf(body: unknown): string {
+  const email = (body as { email?: unknown } | undefined)?.email;
+  return typeof email === 'string' ? email : '';
 }

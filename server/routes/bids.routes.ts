@@ -1,10 +1,9 @@
 import { z } from 'zod';
 import { bidSaveSchema, tenderIdParamSchema } from '@shared/tenders';
-import type { AppDeps } from '../app';
+import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as bids from '../services/bids.service';
-import { UPLOAD_MAX_BYTES } from './tenders.routes';
 
 const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 

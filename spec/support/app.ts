@@ -5,7 +5,8 @@ import { Pool } from 'pg';
 import type PgBoss from 'pg-boss';
 import request from 'supertest';
 import type { Role } from '@shared/auth';
-import { createApp, type AppDeps } from '../../server/app';
+import { createApp } from '../../server/app';
+import type { AppDeps } from '../../server/context';
 import { loadConfig, type Config } from '../../server/config';
 import { MailMessage, User, VendorOrganisation } from '../../server/entities';
 import { createBoss, startMailWorker, startTenderCloseWorker } from '../../server/jobs/queue';
@@ -105,7 +106,7 @@ export class Browser {
     const res = await this.agent.get('/api/session');
     const cookies = ([] as string[]).concat(res.headers['set-cookie'] ?? []);
     const xsrf = cookies.find((c) => c.startsWith('XSRF-TOKEN='));
-    if (xsrf) this.xsrf = xsrf.split(';')[0]!.split('=')[1]!;
+    if (xsrf) this.xsrf = xsrf.split(';')[0].split('=')[1]!;
     return this;
   }
   get token(): string {
