@@ -12,13 +12,16 @@ const serverTransform = {
 const sharedAlias = { '^@shared/(.*)$': '<rootDir>/shared/$1' };
 
 module.exports = {
+  // Real PostgreSQL, mail and solver workers on a shared 2-core machine: generous limits, no timing
+  // asserted. Jest reads testTimeout here only (a project's own is ignored); a file that needs more
+  // sets jest.setTimeout.
+  testTimeout: 60_000,
   projects: [
     {
       displayName: 'award',
       rootDir: __dirname,
       testEnvironment: 'node',
       testMatch: ['<rootDir>/spec/award/**/*.spec.ts'],
-      testTimeout: 120_000,
       transform: serverTransform,
       moduleNameMapper: sharedAlias,
     },
@@ -30,8 +33,6 @@ module.exports = {
       transform: serverTransform,
       moduleNameMapper: sharedAlias,
       setupFiles: ['<rootDir>/spec/support/env.ts'],
-      // Real PostgreSQL, mail and solver workers on a shared 2-core machine: generous limits, no timing asserted.
-      testTimeout: 60_000,
     },
     {
       displayName: 'components',

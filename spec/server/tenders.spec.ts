@@ -2,6 +2,7 @@ import { MailMessage, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
 import { openTender, tenderBody } from '../support/tenders';
+import { drainQueue, waitFor } from '../support/wait';
 
 let t: TestApp;
 let buyer: Browser;
@@ -119,8 +120,8 @@ test('no e-mail to vendors is sent for a draft', async () => {
   const body = tenderBody();
   const created = await buyer.post('/api/tenders', body);
   await buyer.post(`/api/tenders/${created.body.id}/invitations`, { vendorOrganisationIds: [orgA] });
-  // The mail worker polls every second: give it time to send anything it was (wrongly) given.
-  await new Promise((r) => setTimeout(r, 2500));
+  // Every mail goes through the queue: once it is drained, anything (wrongly) given to it has been sent.
+  await drainQueue(t, QUEUES.mail);
   expect(await t.em().count(MailMessage, { subject: { $like: `Invitation to tender ${body.reference}%` } })).toBe(0);
 });
 
@@ -129,12 +130,8 @@ test('the scheduled close job closes a tender at its closing time without anyone
   // Publishing scheduled the job for the closing time; run the clock forward and send it now.
   await t.em().nativeUpdate(Tender, { id }, { closesAt: new Date(Date.now() - 1000) });
   await t.boss.send(QUEUES.tenderClose, { tenderId: id });
-  let status = 'open';
-  for (let i = 0; i < 50 && status !== 'closed'; i++) {
-    await new Promise((r) => setTimeout(r, 200));
-    status = (await t.em().findOneOrFail(Tender, { id })).status;
-  }
-  expect(status).toBe('closed');
+  await waitFor('the close job to close the tender', async () => (await t.em().findOneOrFail(Tender, { id })).status === 'closed', { timeoutMs: 10_000 });
+  expect((await t.em().findOneOrFail(Tender, { id })).status).toBe('closed');
 });
 
 test('a tender closed by reading the list is recorded in its audit trail', async () => {
