@@ -8,8 +8,7 @@ import { DUMMY_HASH, verifyPassword } from './password';
 declare global {
   // eslint-disable-next-line @typescript-eslint/no-namespace -- Express's own augmentation point
   namespace Express {
-    // req.user is our User entity.
-    // eslint-disable-next-line @typescript-eslint/no-empty-object-type
+    // eslint-disable-next-line @typescript-eslint/no-empty-object-type -- declaration merging: req.user is our User entity
     interface User extends UserEntity {}
   }
 }

@@ -42,7 +42,7 @@ export async function deadlineRush(baseUrl: string, databaseUrl: string, tender:
       `update tender set closes_at = clock_timestamp() + make_interval(secs => $2) where id = $1 returning closes_at`,
       [tender.id, lead + o.before],
     );
-    const closesAt = rows[0]!.closes_at.getTime();
+    const closesAt = rows[0].closes_at.getTime();
     const windowStart = closesAt - o.before * 1000;
     const span = (o.before + o.after) * 1000;
     const prices = Object.fromEntries(tender.regionCodes.map((c, k) => [c, 40 + k]));

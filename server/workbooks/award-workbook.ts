@@ -51,5 +51,5 @@ export async function buildAwardWorkbook(run: RunView, tender: { reference: stri
     for (const line of a.lines) matrix.cell(4 + i, regions.indexOf(line.region) + 2).value(line.quantity).style('numberFormat', '#,##0.###');
   });
   matrix.column(1).width(42);
-  return (await wb.outputAsync()) as Buffer;
+  return (await wb.outputAsync());
 }
