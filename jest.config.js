@@ -12,9 +12,9 @@ const serverTransform = {
 const sharedAlias = { '^@shared/(.*)$': '<rootDir>/shared/$1' };
 
 module.exports = {
-  // A global option: jest ignores testTimeout inside a project, which left hooks at 5 s.
-  // Real PostgreSQL, mail and solver workers on a shared 2-core machine: generous limits, no
-  // timing asserted (engine specs that need longer set it with jest.setTimeout).
+  // Real PostgreSQL, mail and solver workers on a shared 2-core machine: generous limits, no timing
+  // asserted. Jest reads testTimeout here only (a project's own is ignored); a file that needs more
+  // sets jest.setTimeout.
   testTimeout: 60_000,
   projects: [
     {

@@ -9,8 +9,11 @@ module.exports = {
     '^.+\\.ts$': ['ts-jest', { tsconfig: '<rootDir>/tsconfig.spec-server.json', diagnostics: false }],
   },
   moduleNameMapper: { '^@shared/(.*)$': '<rootDir>/shared/$1' },
-  globalSetup: '<rootDir>/spec/e2e/support/global-setup.ts',
-  globalTeardown: '<rootDir>/spec/e2e/support/global-teardown.ts',
+  // E2E_COUNT_ONLY (SKIP_E2E=1 npm test): only count the tests, so neither server nor browser.
+  ...(process.env['E2E_COUNT_ONLY'] ? {} : {
+    globalSetup: '<rootDir>/spec/e2e/support/global-setup.ts',
+    globalTeardown: '<rootDir>/spec/e2e/support/global-teardown.ts',
+  }),
   maxWorkers: 1,
   testTimeout: 60_000,
 };

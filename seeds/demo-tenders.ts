@@ -59,7 +59,7 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
     em.create(Invitation, { tender: salt, vendorOrganisation: org, invitedBy: buyer, notifiedAt: salt.publishedAt });
     const prices: Record<string, number> = {};
     offer.prices.forEach((p, i) => {
-      if (p !== undefined) prices[regions[i]!.code] = p;
+      if (p !== undefined) prices[regions[i].code] = p;
     });
     const bid = em.create(Bid, {
       tender: salt, vendorOrganisation: org, status: 'submitted', fixedFee: offer.fee, capacity: offer.cap,
@@ -67,7 +67,7 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
       // Each bid's receipt commitment with its own nonce, as a submission makes them.
       ...commitBid({ tender: salt.reference, vendor: org.id, revision: 1, fixedFee: offer.fee, capacity: offer.cap, prices }),
     });
-    for (const r of regions) if (prices[r.code] !== undefined) em.create(BidLine, { bid, region: r, unitPrice: prices[r.code]! });
+    for (const r of regions) if (prices[r.code] !== undefined) em.create(BidLine, { bid, region: r, unitPrice: prices[r.code] });
   }
 
   // 2. Open for two more weeks: grit bins, five districts, bids still coming in.
@@ -89,11 +89,11 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
   const early: [string, number, number | null, number[]][] = [['v2', 2500, 1500, [88, 91, 86.5, 92, 95]], ['v5', 1800, 900, [84, 87.5, 90, 89, 93]]];
   for (const [key, fee, cap, p] of early) {
     const org = orgs.get(key)!;
-    const prices = Object.fromEntries(sites.map((s, i) => [s.code, p[i]!]));
+    const prices = Object.fromEntries(sites.map((s, i) => [s.code, p[i]]));
     const bid = em.create(Bid, {
       tender: bins, vendorOrganisation: org, status: 'submitted', fixedFee: fee, capacity: cap, revision: 1,
       submittedAt: new Date(now.getTime() - DAY), ...commitBid({ tender: bins.reference, vendor: org.id, revision: 1, fixedFee: fee, capacity: cap, prices }),
     });
-    sites.forEach((s, i) => em.create(BidLine, { bid, region: s, unitPrice: p[i]! }));
+    sites.forEach((s, i) => em.create(BidLine, { bid, region: s, unitPrice: p[i] }));
   }
 }

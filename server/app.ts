@@ -1,13 +1,11 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { randomUUID } from 'node:crypto';
-import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
+import { RequestContext } from '@mikro-orm/postgresql';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import session from 'express-session';
 import helmet from 'helmet';
-import type { Pool } from 'pg';
-import type PgBoss from 'pg-boss';
 import { pinoHttp } from 'pino-http';
 import { configurePassport } from './auth/passport';
 import { createSessionStore } from './auth/session-store';
@@ -15,6 +13,7 @@ import { signInLimits } from './auth/sign-in-limits';
 import type { Config } from './config';
 import { stampArrival } from './http/arrival';
 import { noStore } from './http/cache-control';
+import { SESSION_COOKIE, type AppDeps } from './context';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
 import { mountRoutes, route, type AnyRoute } from './http/route';
@@ -29,17 +28,6 @@ import type { BidHooks } from './services/bids.service';
 import { evaluationRoutes } from './routes/evaluation.routes';
 import { noticeRoutes } from './routes/notices.routes';
 
-export interface AppDeps {
-  config: Config;
-  orm: MikroORM;
-  boss: PgBoss;
-  /** Pool for the session store. */
-  sessionPool: Pool;
-  /** Test hooks around a bid's transaction (spec/server/bid-arrival.spec.ts); none in production. */
-  bidHooks?: BidHooks;
-}
-
-export const SESSION_COOKIE = 'tendara.sid';
 const SESSION_HOURS = 8;
 
 /** Every API route of the app, in one list (mounted, documented and tested from it). */
@@ -150,4 +138,10 @@ export function createApp(deps: AppDeps): Express {
 
 function noCacheIndex(res: express.Response, file: string): void {
   if (file.endsWith('index.html')) res.setHeader('Cache-Control', 'no-cache');
+}
+
+/** The e-mail of a sign-in body, if it has one (the body is not validated yet when this runs). */
+function emailOf(body: unknown): string {
+  const email = (body as { email?: unknown } | undefined)?.email;
+  return typeof email === 'string' ? email : '';
 }

@@ -11,8 +11,7 @@ import { signedInUser } from './session-user';
 declare global {
   // eslint-disable-next-line @typescript-eslint/no-namespace -- Express's own augmentation point
   namespace Express {
-    // req.user is our User entity.
-    // eslint-disable-next-line @typescript-eslint/no-empty-object-type
+    // eslint-disable-next-line @typescript-eslint/no-empty-object-type -- declaration merging: req.user is our User entity
     interface User extends UserEntity {}
   }
 }

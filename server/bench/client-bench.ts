@@ -38,7 +38,7 @@ const kB = (n: number) => (n / 1024).toFixed(1);
 
 function buildFigures(): string[][] {
   const index = fs.readFileSync(path.join(BROWSER, 'index.html'), 'utf8');
-  const initial = [...index.matchAll(/<(?:script|link rel="modulepreload")[^>]*(?:src|href)="([^"]+\.js)"/g)].map((m) => m[1]!);
+  const initial = [...index.matchAll(/<(?:script|link rel="modulepreload")[^>]*(?:src|href)="([^"]+\.js)"/g)].map((m) => m[1]);
   const size = (file: string) => {
     const content = fs.readFileSync(path.join(BROWSER, file));
     return { raw: content.length, gzip: gzipSync(content).length };
@@ -95,6 +95,7 @@ const READY = ({ host, cells, signature }: { host: string; cells: number; signat
   const el = document.querySelector(host);
   if (!el || el.querySelectorAll('tbody td').length !== cells) return false;
   const before = (window as unknown as { __before?: string }).__before;
+  // eslint-disable-next-line @typescript-eslint/no-implied-eval, @typescript-eslint/no-unsafe-call -- runs in the page, which gets the function as source text
   return before === undefined || new Function(`return (${signature})`)()(host) !== before;
 };
 
@@ -111,7 +112,9 @@ async function timedNavigation(page: Page, url: string, host: string, cells: num
 async function timedClick(page: Page, selector: string, host: string, cells: number, changes = true): Promise<Timing> {
   await page.evaluate(({ start, signature, sel, h, changes: c }) => {
     const w = window as unknown as { __before?: string };
-    w.__before = c ? new Function(`return (${signature})`)()(h) : undefined;
+    // eslint-disable-next-line @typescript-eslint/no-implied-eval, @typescript-eslint/no-unsafe-call -- runs in the page, which gets the function as source text
+    w.__before = c ? (new Function(`return (${signature})`)()(h) as string) : undefined;
+    // eslint-disable-next-line @typescript-eslint/no-implied-eval, @typescript-eslint/no-unsafe-call -- as above
     new Function(`return (${start})`)()();
     (document.querySelector(sel) as HTMLElement).click();
   }, { start: START.toString(), signature: SIGNATURE.toString(), sel: selector, h: host, changes });

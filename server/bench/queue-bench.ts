@@ -163,7 +163,7 @@ function report(results: SetupResult[]): void {
     if (!x) return ['-', '-', '-', '-'];
     return [x.status, fmt(secondsBetween(x.queuedAt, x.startedAt)), fmt(secondsBetween(x.startedAt, x.finishedAt)), fmt(x.result?.solveSeconds ?? null)];
   };
-  const order = results[0]!.runs.map((x) => x.scenarioName);
+  const order = results[0].runs.map((x) => x.scenarioName);
   out.push(table(
     ['scenario', ...results.flatMap((r, k) => [`#${k + 1} status`, `#${k + 1} wait`, `#${k + 1} solve`, `#${k + 1} engine`])],
     order.map((s) => [s, ...results.flatMap((r) => byScenario(r, s))]),
@@ -187,7 +187,7 @@ async function main(): Promise<void> {
   const { proc, url } = await startServer({ RUN_WORKERS: '0' });
   log(`server pid ${proc.child.pid} at ${url} (RUN_WORKERS=0)`);
   const buyer = await signIn(url, seeded.buyerEmail, BENCH_PASSWORD);
-  const rules = benchRules(tenders[0]!.regionCodes, orgIds).slice(0, RUNS);
+  const rules = benchRules(tenders[0].regionCodes, orgIds).slice(0, RUNS);
   const scenarioIds: string[][] = [];
   const t0 = performance.now();
   for (const t of tenders) scenarioIds.push((await createScenarios(url, buyer, t.id, rules, TIME_LIMIT)).map((s) => s.id));
@@ -196,7 +196,7 @@ async function main(): Promise<void> {
   await sessionLoad(url, buyer, 'warm-up', 5);
 
   const results: SetupResult[] = [];
-  for (const [k, workers] of SETUPS.entries()) results.push(await runSetup(databaseUrl, url, buyer, tenders[k]!.id, scenarioIds[k]!, workers, workerEnv(k), deadline));
+  for (const [k, workers] of SETUPS.entries()) results.push(await runSetup(databaseUrl, url, buyer, tenders[k].id, scenarioIds[k], workers, workerEnv(k), deadline));
   report(results);
 }
 

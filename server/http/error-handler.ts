@@ -35,12 +35,14 @@ export const apiNotFound: RequestHandler = (req, _res, next) => {
  */
 export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
   let problem: AppError;
+  // body-parser's errors carry a `type`.
+  const type: unknown = (err as { type?: unknown } | null | undefined)?.type;
   if (err instanceof AppError) problem = err;
-  else if (err?.type === 'entity.parse.failed') {
+  else if (type === 'entity.parse.failed') {
     problem = new AppError(400, 'Malformed JSON', 'The request body is not valid JSON.', [{ field: '(body)', message: 'The request body is not valid JSON.' }]);
-  } else if (err?.type === 'entity.too.large') {
+  } else if (type === 'entity.too.large') {
     problem = new AppError(413, 'Request too large', 'The request body is larger than allowed.');
-  } else if (err?.type === 'encoding.unsupported' || err?.type === 'charset.unsupported') {
+  } else if (type === 'encoding.unsupported' || type === 'charset.unsupported') {
     problem = new AppError(415, 'Unsupported encoding', 'Send the body as UTF-8 JSON.');
   } else if (err instanceof MulterError) {
     problem = err.code === 'LIMIT_FILE_SIZE'

@@ -49,8 +49,8 @@ export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
   produces?: string;
   /** A multipart upload of one file in `field` (kept in memory, at most `maxBytes`). */
   upload?: { field: string; maxBytes: number };
-  /** Returns the JSON body, or writes the response itself and returns undefined. */
-  handler: (input: RouteInput<P, Q, B>) => Promise<unknown> | unknown;
+  /** Returns the JSON body (or a promise of it), or writes the response itself and returns undefined. */
+  handler: (input: RouteInput<P, Q, B>) => unknown;
 }
 
 export type AnyRoute = RouteDef<any, any, any>; // eslint-disable-line @typescript-eslint/no-explicit-any -- heterogeneous list

@@ -13,7 +13,7 @@ const SAFE_METHODS = new Set(['GET', 'HEAD', 'OPTIONS']);
  */
 export function xsrf(): RequestHandler {
   return (req, res, next) => {
-    let token: unknown = req.cookies?.[XSRF_COOKIE];
+    let token: unknown = (req.cookies as Record<string, unknown> | undefined)?.[XSRF_COOKIE];
     if (typeof token !== 'string' || !/^[A-Za-z0-9_-]{32,64}$/.test(token)) {
       token = newToken();
       setCookie(req, res, token as string);
@@ -23,7 +23,7 @@ export function xsrf(): RequestHandler {
     }
     if (SAFE_METHODS.has(req.method)) return next();
     const header = req.get(XSRF_HEADER);
-    if (!header || !equal(header, token as string)) return next(forbidden());
+    if (!header || !equal(header, token)) return next(forbidden());
     next();
   };
 }

@@ -2,7 +2,7 @@
 import 'reflect-metadata';
 import { MikroORM } from '@mikro-orm/postgresql';
 import { ormConfig } from '../mikro-orm.config';
-(async () => {
+void (async () => {
   const orm = await MikroORM.init(ormConfig(process.env.DATABASE_URL!));
   const r = await orm.getMigrator().createMigration(undefined, false, process.argv[2] === 'initial');
   // A command-line tool: it reports on stdout.

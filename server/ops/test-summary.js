@@ -1,10 +1,26 @@
 // Adds up the jest JSON reports given as arguments and prints CI's summary line:
 //   N passed, N failed, N skipped
-// Exits 1 when a test failed or a suite could not run (a suite that fails to load counts as one failure).
+// `--check NAME=passed|failed|skipped` (lint, typecheck) counts as one test each.
+// Exits 1 when a test or check failed or a suite could not run (a suite that fails to load counts as one failure).
 const fs = require('node:fs');
 
 let passed = 0, failed = 0, skipped = 0;
-for (const file of process.argv.slice(2)) {
+const args = process.argv.slice(2);
+const files = [];
+for (let i = 0; i < args.length; i++) {
+  if (args[i] !== '--check') {
+    files.push(args[i]);
+    continue;
+  }
+  const [name, outcome] = String(args[++i]).split('=');
+  if (outcome === 'passed') passed += 1;
+  else if (outcome === 'skipped') skipped += 1;
+  else {
+    console.error(`[tendara] ${name} failed (see its output above)`);
+    failed += 1;
+  }
+}
+for (const file of files) {
   let report;
   try {
     report = JSON.parse(fs.readFileSync(file, 'utf8'));

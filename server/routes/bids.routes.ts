@@ -1,12 +1,11 @@
 import { z } from 'zod';
 import { bidSaveSchema, tenderIdParamSchema } from '@shared/tenders';
-import type { AppDeps } from '../app';
+import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
 import { arrivedAt } from '../http/arrival';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as bids from '../services/bids.service';
 import { cleanDocumentContent } from '../services/bid-documents';
-import { UPLOAD_MAX_BYTES } from './tenders.routes';
 
 const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 

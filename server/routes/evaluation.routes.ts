@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { compareQuerySchema, decisionInputSchema, recommendationInputSchema, returnInputSchema, scenarioInputSchema } from '@shared/evaluation';
 import { tenderIdParamSchema } from '@shared/tenders';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../context';
 import { route, type AnyRoute } from '../http/route';
 import { auditCsv, auditTrail, verifyTrail } from '../services/audit.service';
 import { currentRecommendation, decide, recommend } from '../services/evaluation/recommendation.service';

@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { noticeListQuerySchema } from '@shared/notices';
 import { tenderIdParamSchema } from '@shared/tenders';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../context';
 import { route, type AnyRoute } from '../http/route';
 import { runView } from '../services/evaluation/results.service';
 import { approvedRun } from '../services/notices/letters';

@@ -1,7 +1,7 @@
 import {
   idParamSchema, inviteUserSchema, setPasswordSchema, tokenParamSchema, vendorOrganisationSchema,
 } from '@shared/people';
-import type { AppDeps } from '../app';
+import type { AppDeps } from '../context';
 import { route, type AnyRoute } from '../http/route';
 import { auditTrail, verifyTrail } from '../services/audit.service';
 import * as people from '../services/people.service';

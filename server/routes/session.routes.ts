@@ -1,6 +1,7 @@
-import type { NextFunction, Request, Response } from 'express';
+import type { NextFunction, Request, RequestHandler, Response } from 'express';
 import type passport from 'passport';
 import { signInSchema, type SessionUser } from '@shared/auth';
+import { SESSION_COOKIE } from '../context';
 import type { User } from '../entities';
 import { AppError, UnauthorizedError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
@@ -22,8 +23,9 @@ export function sessionUser(user: User): SessionUser {
  */
 function signIn(auth: passport.PassportStatic, req: Request, res: Response): Promise<User> {
   return new Promise((resolve, reject) => {
-    const next: NextFunction = (err?: unknown) => (err ? reject(err) : undefined);
-    auth.authenticate('local', { session: false }, (err: unknown, user: User | false) => {
+    // passport calls next only with an error (never 'route' or 'router').
+    const next: NextFunction = (err?: Error | 'route' | 'router') => (err instanceof Error ? reject(err) : undefined);
+    (auth.authenticate('local', { session: false }, (err: Error | null, user: User | false) => {
       if (err) return reject(err);
       if (!user) return reject(new AppError(401, 'Sign-in failed', 'E-mail or password is not correct.'));
       req.session.regenerate((regenErr) => {
@@ -34,7 +36,7 @@ function signIn(auth: passport.PassportStatic, req: Request, res: Response): Pro
           resolve(user);
         });
       });
-    })(req, res, next);
+    }) as RequestHandler)(req, res, next);
   });
 }
 
@@ -68,7 +70,7 @@ export function sessionRoutes(auth: passport.PassportStatic): AnyRoute[] {
           req.logout((err) => {
             if (err) return reject(err);
             req.session.destroy(() => {
-              res.clearCookie('tendara.sid');
+              res.clearCookie(SESSION_COOKIE);
               resolve();
             });
           });

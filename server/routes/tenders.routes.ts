@@ -1,12 +1,10 @@
 import { z } from 'zod';
 import { invitationInputSchema, tenderIdParamSchema, tenderInputSchema, tenderListQuerySchema } from '@shared/tenders';
-import type { AppDeps } from '../app';
+import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as tenders from '../services/tenders.service';
 import { parseRegionFileOffThread } from '../workbooks/workbook-pool';
-
-export const UPLOAD_MAX_BYTES = 5 * 1024 * 1024;
 
 export function tenderRoutes(deps: AppDeps): AnyRoute[] {
   const ctx = (em: import('@mikro-orm/postgresql').EntityManager) => ({ em, boss: deps.boss, publicUrl: deps.config.publicUrl });

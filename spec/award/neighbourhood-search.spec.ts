@@ -1,3 +1,4 @@
+import { once } from 'node:events';
 import type { AwardProblem } from '../../shared/award';
 import { bestAward, newBoard, publishAward } from '../../server/award/award-board';
 import { buildModel } from '../../server/award/build-model';
@@ -8,7 +9,7 @@ import type { MipModel } from '../../server/award/model';
 import { costOf } from '../../server/award/reduced-model';
 import { HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome } from '../../server/award/solve';
 import { verifyAward } from '../../server/award/verify';
-import { closeSolverPool } from '../../server/award/workers';
+import { closeSolverPool, solverPool } from '../../server/award/workers';
 import { largeSoleProblem, prng } from './support/problems';
 
 // The large neighbourhood search (server/award/workers/lns-worker.mjs) run on its own against a
@@ -114,10 +115,19 @@ describe('the large neighbourhood search', () => {
     publishAward(board, costOf(model, start), start);
     const controller = new AbortController();
     const run = runInWorker(LNS_WORKER, { model, structure, board, timeLimitSeconds: 60 }, controller.signal);
-    setTimeout(() => controller.abort(new Error('solve finished elsewhere')), 1500);
+    // At the abort, the search runs on one of the pool's threads: the hook is their exit.
+    let ended: Promise<unknown>[] = [];
+    setTimeout(() => {
+      ended = solverPool(LNS_WORKER).threads.map((thread) => once(thread, 'exit'));
+      controller.abort(new Error('solve finished elsewhere'));
+    }, 1500);
     await expect(run).rejects.toThrow('solve finished elsewhere');
     const version = new Int32Array(board, 0, 2)[1];
-    await new Promise((resolve) => setTimeout(resolve, 1000));
+    // Once every one of those threads has ended (the aborted one terminated, the idle ones by closing
+    // the pools) nothing can write to the board: any write after the rejection is caught, no pause.
+    await closeSolverPool();
+    await Promise.all(ended);
+    expect(ended.length).toBeGreaterThan(0);
     expect(new Int32Array(board, 0, 2)[1]).toBe(version);
 
     const small = setUp(largeSoleProblem(10, 40, 2));

@@ -32,7 +32,7 @@ const problemArb: fc.Arbitrary<AwardProblem> = fc
         fixedFee: v.fee,
         capacity: v.capFactor === null ? null : Math.ceil(v.capFactor * total),
         sme: v.sme,
-        prices: Object.fromEntries(demands.flatMap((_, j) => (v.prices[j] === null ? [] : [[`R${j}`, v.prices[j]!]]))),
+        prices: Object.fromEntries(demands.flatMap((_, j) => (v.prices[j] === null ? [] : [[`R${j}`, v.prices[j]]]))),
       })),
       options: { timeLimitSeconds: 20 },
     };

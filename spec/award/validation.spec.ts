@@ -12,7 +12,7 @@ async function refusal(problem: unknown): Promise<AwardInputError> {
 describe('problem validation', () => {
   test('a price for a region the tender does not have is refused, naming the vendor and region', async () => {
     const p = baseProblem();
-    (p.vendors[1].prices as Record<string, number>).R07 = 12;
+    (p.vendors[1].prices).R07 = 12;
     const err = await refusal(p);
     expect(err.errors).toEqual([{ field: 'vendors[1].prices.R07', message: 'Unknown region "R07": it is not in the tender\'s regions.' }]);
   });

@@ -1,7 +1,7 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { MailMessage } from '../../server/entities';
 import { ormConfig } from '../../server/mikro-orm.config';
-import { baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
+import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
 
 /** The administrator's pages, and a new person's path from invitation e-mail to first sign-in. */
 let b: Awaited<ReturnType<typeof openBrowser>>;
@@ -115,7 +115,7 @@ test('on a phone (390×844) the sign-in page, the menu and the People page fit t
     expect(overflow).toBeLessThanOrEqual(0);
     await page.getByRole('button', { name: 'Navigation' }).click();
     await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Outbox' }).waitFor();
-    await page.waitForTimeout(500); // let the menu finish sliding in before the picture
+    await animationsDone(page); // the menu has finished sliding in before the picture
     await screenshot(page, 'menu-390');
     expect(await seriousViolations(page)).toEqual([]);
   } finally {

@@ -1,5 +1,5 @@
 import type { Page } from 'playwright-core';
-import { SHOTS, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
+import { SHOTS, animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
 
 /**
  * The evaluation of the closed demo tender NHP-2026-014 (seven bids), end to end in the browser:
@@ -38,9 +38,9 @@ async function waitForDialogFocus(page: Page): Promise<void> {
   await page.waitForFunction(() => document.activeElement?.closest('mat-dialog-container') != null);
 }
 
-/** Lets animations and charts settle before a picture (pictures are for people, not compared). */
+/** Lets animations settle before a picture (pictures are for people, not compared). */
 async function settle(page: Page): Promise<void> {
-  await page.waitForTimeout(400);
+  await animationsDone(page);
   await page.locator('mat-sidenav-content').evaluate((el) => el.scrollTo(0, 0)).catch(() => undefined);
 }
 
@@ -125,7 +125,7 @@ test('the run result shows the totals, the award by vendor, the allocation matri
   await matrix.scrollIntoViewIfNeeded();
   await page.screenshot({ path: `${SHOTS}/run-result-matrix-1280.png` });
   await page.getByRole('table', { name: 'Cost split' }).scrollIntoViewIfNeeded();
-  await page.waitForTimeout(400);
+  await animationsDone(page);
   await page.screenshot({ path: `${SHOTS}/run-result-charts-1280.png` });
 });
 
@@ -160,7 +160,7 @@ test('the buyer creates a scenario with at most three vendors, runs it, and the 
   await waitForDialogFocus(page);
   await dialog.getByLabel('Scenario name').fill('Split, at most three vendors');
   await dialog.getByLabel('Maximum number of vendors').fill('3');
-  await page.waitForTimeout(300);
+  await animationsDone(page);
   await screenshot(page, 'scenario-editor-1280');
   expect(await seriousViolations(page)).toEqual([]);
   await dialog.getByRole('button', { name: 'Save scenario' }).click();

@@ -64,7 +64,7 @@ test('a vendor downloads the bid workbook, fills it in, uploads it, reviews the 
   const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Download bid workbook' }).click()]);
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'tendara-bid-'));
   const file = path.join(dir, 'filled-bid.xlsx');
-  const workbook = await XlsxPopulate.fromFileAsync((await download.path())!);
+  const workbook = await XlsxPopulate.fromFileAsync((await download.path()));
   const sheet = workbook.sheet('Bid')!;
   sheet.cell('C4').value(2200);
   sheet.cell('C5').value(null);
@@ -127,7 +127,7 @@ test("the buyer's bid tabulation of the closed tender marks each region's lowest
 
   const [download] = await Promise.all([page.waitForEvent('download'), page.getByRole('link', { name: 'Export to .xlsx' }).click()]);
   expect(download.suggestedFilename()).toBe('NHP-2026-014-bid-tabulation.xlsx');
-  const exported = await XlsxPopulate.fromFileAsync((await download.path())!);
+  const exported = await XlsxPopulate.fromFileAsync((await download.path()));
   expect(exported.sheets().length).toBeGreaterThan(0);
 });
 

@@ -35,28 +35,30 @@ beforeAll(async () => {
   buyer = await demo('buyer@demo.tendara.test');
   compliance = await demo('compliance@demo.tendara.test');
   tenderId = (await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' })).id;
-});
-afterAll(() => t.close());
-
-test('a closed tender starts with two ready scenarios: all regions split, and all regions sole', async () => {
+  // The built-in scenarios and their runs, which several tests read (set up here, not by a test).
   const res = await compliance.get(`/api/tenders/${tenderId}/scenarios`);
   expect(res.status).toBe(200);
   scenarios = res.body;
+  for (const s of scenarios) runs[s.builtIn!] = await run(s.id);
+});
+afterAll(() => t.close());
+
+test('a closed tender starts with two ready scenarios: all regions split, and all regions sole', () => {
   expect(scenarios.map((s) => [s.builtIn, s.rules.sourcing])).toEqual([['split', 'split'], ['sole', 'sole']]);
 });
 
 test('scenarios cannot be built on an open tender: the bids are still sealed', async () => {
-  const open = await t.em().findOneOrFail(Tender, { reference: 'NHP-2027-002' });
-  const res = await buyer.get(`/api/tenders/${open.id}/scenarios`);
+  const firm = await makeUser(t, 'vendor');
+  const open = await openTender(buyer, [firm.vendorOrganisation!.id]);
+  const res = await buyer.get(`/api/tenders/${open}/scenarios`);
   expect(res.status).toBe(409);
 });
 
 test('split and sole runs finish optimal; each objective is recomputed from the stored bids', async () => {
-  for (const s of scenarios) runs[s.builtIn!] = await run(s.id);
   const bids = await t.em().find(Bid, { tender: tenderId }, { populate: ['lines.region', 'vendorOrganisation'] });
   const tender = await t.em().findOneOrFail(Tender, { id: tenderId }, { populate: ['regions'] });
   for (const kind of ['split', 'sole']) {
-    const r = runs[kind]!;
+    const r = runs[kind];
     expect(r.status).toBe('optimal');
     let total = 0;
     const supplied = new Map<string, number>();
@@ -79,12 +81,12 @@ test('split and sole runs finish optimal; each objective is recomputed from the 
 });
 
 test('the demo figures make split and sole differ, and the cost of sole award is never negative', async () => {
-  const res = await compliance.get(`/api/tenders/${tenderId}/compare`).query({ runs: `${runs['split']!.id},${runs['sole']!.id}` });
+  const res = await compliance.get(`/api/tenders/${tenderId}/compare`).query({ runs: `${runs['split'].id},${runs['sole'].id}` });
   expect(res.status).toBe(200);
   const { costOfSoleAward, runs: cols, baseline } = res.body;
-  expect(baseline.runId).toBe(runs['split']!.id);
+  expect(baseline.runId).toBe(runs['split'].id);
   expect(costOfSoleAward.amount).toBeGreaterThan(0);
-  expect(costOfSoleAward.amount).toBeCloseTo(runs['sole']!.result!.objective! - runs['split']!.result!.objective!, 4);
+  expect(costOfSoleAward.amount).toBeCloseTo(runs['sole'].result!.objective! - runs['split'].result!.objective!, 4);
   expect(cols[0].priceOverSplit).toBe(0);
   expect(cols[1].regionsSplit).toBe(0);
 });
@@ -96,7 +98,7 @@ test('a rule never lowers the optimum: at most two vendors costs at least the pl
   expect(['optimal', 'infeasible']).toContain(r.status);
   if (r.status === 'optimal') {
     expect(r.result!.awards.length).toBeLessThanOrEqual(2);
-    expect(r.result!.objective!).toBeGreaterThanOrEqual(runs['split']!.result!.objective! - 1e-6);
+    expect(r.result!.objective!).toBeGreaterThanOrEqual(runs['split'].result!.objective! - 1e-6);
   }
 });
 
@@ -110,7 +112,7 @@ test('bad rules are refused naming the field', async () => {
 });
 
 test('resilience: the award re-solved without each awarded vendor, the worst case marked', async () => {
-  const split = runs['split']!;
+  const split = runs['split'];
   const res = await compliance.post(`/api/runs/${split.id}/resilience`);
   expect(res.status).toBe(202);
   expect(res.body.queued).toBe(split.result!.awards.length);
@@ -128,7 +130,7 @@ test('resilience: the award re-solved without each awarded vendor, the worst cas
 });
 
 test('four-eyes: the person who recommended can never approve, even with the compliance role', async () => {
-  const rec = await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: runs['split']!.id, justification: 'Least total cost; every depot covered by at most two vendors.' });
+  const rec = await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: runs['split'].id, justification: 'Least total cost; every depot covered by at most two vendors.' });
   expect(rec.status).toBe(201);
   expect(rec.body.status).toBe('recommended');
   // Someone recommends, then is made a compliance officer: still not allowed to approve their own.
@@ -152,7 +154,7 @@ test('approval by compliance awards the tender and freezes its scenarios', async
   expect(res.status).toBe(200);
   expect(res.body).toMatchObject({ status: 'approved', decidedBy: { name: 'Priya Castell' } });
   expect((await buyer.get(`/api/tenders/${tenderId}`)).body.status).toBe('awarded');
-  expect((await buyer.post(`/api/scenarios/${scenarios[0]!.id}/runs`)).status).toBe(409);
+  expect((await buyer.post(`/api/scenarios/${scenarios[0].id}/runs`)).status).toBe(409);
   expect((await buyer.post(`/api/tenders/${tenderId}/scenarios`, { name: 'Late', rules: {} })).status).toBe(409);
 });
 

@@ -12,7 +12,7 @@ afterAll(() => t.close());
 function linkFrom(text: string): string {
   const m = text.match(/http:\/\/tendara\.test\/account-setup\/([A-Za-z0-9_-]+)/);
   if (!m) throw new Error(`no link in: ${text}`);
-  return m[1]!;
+  return m[1];
 }
 
 test('inviting a person e-mails a one-time link; the person sets a password and signs in', async () => {
@@ -113,10 +113,13 @@ test('a bad id in the path is a 400 naming the field', async () => {
 });
 
 test('the people list shows everyone with role, organisation and status', async () => {
+  const org = await admin.post('/api/vendor-organisations', { name: 'Listed Grit', registrationNumber: 'LG-1', sme: false, contactEmail: 'office@listed.test' });
+  expect(org.status).toBe(201);
+  expect((await admin.post('/api/users', { name: 'Lis', email: 'lis@listed.test', role: 'vendor', vendorOrganisationId: org.body.id })).status).toBe(201);
   const res = await admin.get('/api/users');
   expect(res.status).toBe(200);
-  const vic = res.body.find((p: { email: string }) => p.email === 'vic@fenwick.test');
-  expect(vic).toMatchObject({ role: 'vendor', invitationPending: true, vendorOrganisation: { name: 'Fenwick Grit' } });
+  const listed = res.body.find((p: { email: string }) => p.email === 'lis@listed.test');
+  expect(listed).toMatchObject({ role: 'vendor', active: true, invitationPending: true, vendorOrganisation: { name: 'Listed Grit' } });
 });
 
 test('the outbox lists caught mail newest first and shows one message with text and HTML', async () => {
@@ -137,6 +140,9 @@ test('the API document lists every route with its roles', async () => {
   const res = await admin.get('/api/openapi.json');
   expect(res.body.openapi).toBe('3.1.0');
   expect(res.body.paths['/api/users'].post['x-roles']).toEqual(['admin']);
-  expect(res.body.paths['/api/users'].post.requestBody.content['application/json'].schema.properties.email).toBeDefined();
-  expect(res.body.paths['/api/users/{id}/deactivate'].post.responses['403']).toBeDefined();
+  expect(res.body.paths['/api/users'].post.requestBody.content['application/json'].schema.properties.email).toEqual({ type: 'string', maxLength: 254 });
+  expect(res.body.paths['/api/users/{id}/deactivate'].post.responses['403']).toEqual({
+    description: 'Role not allowed, or missing XSRF token',
+    content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } },
+  });
 });

@@ -20,6 +20,7 @@ test('the demo data loads once: a second load adds nothing', async () => {
 });
 
 test('the demo salt tender is closed with a submitted bid from each of the seven vendors; the second is open for two weeks', async () => {
+  await seed(t.em(), 'demo'); // loads the data unless an earlier test has
   const salt = await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' }, { populate: ['regions'] });
   expect(salt.status).toBe('closed');
   expect(salt.regions).toHaveLength(12);
@@ -33,6 +34,7 @@ test('the demo salt tender is closed with a submitted bid from each of the seven
 });
 
 test.each(['admin', 'buyer', 'compliance', 'vendor1', 'vendor7'])('the demo sign-in %s works with the demo password', async (who) => {
+  await seed(t.em(), 'demo'); // loads the data unless an earlier test has
   const res = await (await new Browser(t.app).init()).signIn(`${who}@demo.tendara.test`, DEMO_PASSWORD);
   expect(res.status).toBe(200);
 });

@@ -1,4 +1,4 @@
-import { SESSION_COOKIE } from '../../server/app';
+import { SESSION_COOKIE } from '../../server/context';
 import { TOUCH_EVERY_MS } from '../../server/auth/session-store';
 import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 

@@ -1,4 +1,4 @@
-import { SESSION_COOKIE } from '../../server/app';
+import { SESSION_COOKIE } from '../../server/context';
 import { Browser, makeUser, startTestApp, TEST_PASSWORD, type TestApp } from '../support/app';
 
 let t: TestApp;

@@ -1,5 +1,5 @@
 import request from 'supertest';
-import { SESSION_COOKIE } from '../../server/app';
+import { SESSION_COOKIE } from '../../server/context';
 import { User } from '../../server/entities';
 import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { openTender } from '../support/tenders';

@@ -2,6 +2,7 @@ import { AuditEntry, MailMessage, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
 import { openTender, passClosingTime, tenderBody } from '../support/tenders';
+import { drainQueue, waitFor } from '../support/wait';
 
 let t: TestApp;
 let buyer: Browser;
@@ -119,8 +120,8 @@ test('no e-mail to vendors is sent for a draft', async () => {
   const body = tenderBody();
   const created = await buyer.post('/api/tenders', body);
   await buyer.post(`/api/tenders/${created.body.id}/invitations`, { vendorOrganisationIds: [orgA] });
-  // The mail worker polls every second: give it time to send anything it was (wrongly) given.
-  await new Promise((r) => setTimeout(r, 2500));
+  // Every mail goes through the queue: once it is drained, anything (wrongly) given to it has been sent.
+  await drainQueue(t, QUEUES.mail);
   expect(await t.em().count(MailMessage, { subject: { $like: `Invitation to tender ${body.reference}%` } })).toBe(0);
 });
 
@@ -129,12 +130,8 @@ test('the scheduled close job closes a tender at its closing time without anyone
   // Publishing scheduled the job for the closing time; run the clock forward and send it now.
   await passClosingTime(t, id);
   await t.boss.send(QUEUES.tenderClose, { tenderId: id });
-  let status = 'open';
-  for (let i = 0; i < 50 && status !== 'closed'; i++) {
-    await new Promise((r) => setTimeout(r, 200));
-    status = (await t.em().findOneOrFail(Tender, { id })).status;
-  }
-  expect(status).toBe('closed');
+  await waitFor('the close job to close the tender', async () => (await t.em().findOneOrFail(Tender, { id })).status === 'closed', { timeoutMs: 10_000 });
+  expect((await t.em().findOneOrFail(Tender, { id })).status).toBe('closed');
 });
 
 test('a tender past its closing time is listed as closed before the close job runs, without the list writing; the job records the closing in the audit trail', async () => {
@@ -148,12 +145,7 @@ test('a tender past its closing time is listed as closed before the close job ru
   expect((await t.em().findOneOrFail(Tender, { id })).status).toBe('open');
   expect(await t.em().count(AuditEntry, { tender: id, action: 'tender.closed' })).toBe(0);
   await t.boss.send(QUEUES.tenderClose, { tenderId: id });
-  let status = 'open';
-  for (let i = 0; i < 50 && status !== 'closed'; i++) {
-    await new Promise((r) => setTimeout(r, 200));
-    status = (await t.em().findOneOrFail(Tender, { id })).status;
-  }
-  expect(status).toBe('closed');
+  await waitFor('the close job to close the tender', async () => (await t.em().findOneOrFail(Tender, { id })).status === 'closed', { timeoutMs: 10_000 });
   const trail = await buyer.get(`/api/tenders/${id}/audit`);
   expect(trail.body.map((e: { action: string }) => e.action)).toEqual(['tender.created', 'invitations.added', 'tender.published', 'tender.closed']);
   expect((await buyer.get(`/api/tenders/${id}/audit/verify`)).body.ok).toBe(true);

@@ -5,7 +5,8 @@ import { Pool } from 'pg';
 import type PgBoss from 'pg-boss';
 import request from 'supertest';
 import type { Role } from '@shared/auth';
-import { createApp, type AppDeps } from '../../server/app';
+import { createApp } from '../../server/app';
+import type { AppDeps } from '../../server/context';
 import { loadConfig, type Config } from '../../server/config';
 import { MailMessage, User, VendorOrganisation } from '../../server/entities';
 import { createBoss, startMailWorker, startTenderCloseWorker } from '../../server/jobs/queue';
@@ -113,7 +114,7 @@ export class Browser {
   private takeXsrf(res: { headers: Record<string, unknown> }): void {
     const cookies = ([] as string[]).concat((res.headers['set-cookie'] as string[] | undefined) ?? []);
     const xsrf = cookies.find((c) => c.startsWith('XSRF-TOKEN='));
-    if (xsrf) this.xsrf = xsrf.split(';')[0]!.split('=')[1]!;
+    if (xsrf) this.xsrf = xsrf.split(';')[0].split('=')[1]!;
   }
   get token(): string {
     return this.xsrf;

@@ -12,8 +12,8 @@ function cookiesOf(res: Response): Map<string, string> {
   const out = new Map<string, string>();
   for (const c of res.headers.getSetCookie()) {
     const [pair] = c.split(';');
-    const eq = pair!.indexOf('=');
-    out.set(pair!.slice(0, eq), pair!.slice(eq + 1));
+    const eq = pair.indexOf('=');
+    out.set(pair.slice(0, eq), pair.slice(eq + 1));
   }
   return out;
 }
@@ -39,13 +39,13 @@ export async function signIn(baseUrl: string, email: string, password: string): 
 
 /** Signs in many people, a few at a time (each sign-in is a deliberate scrypt on the server). */
 export async function signInAll(baseUrl: string, emails: string[], password: string, parallel = 4): Promise<Session[]> {
-  const out: Session[] = new Array(emails.length);
+  const out = new Array<Session>(emails.length);
   let next = 0;
   await Promise.all(
     Array.from({ length: parallel }, async () => {
       while (next < emails.length) {
         const k = next++;
-        out[k] = await signIn(baseUrl, emails[k]!, password);
+        out[k] = await signIn(baseUrl, emails[k], password);
       }
     }),
   );

@@ -100,7 +100,7 @@ export function joinPhases(label: string, parts: Phase[]): Phase {
 export function percentile(values: number[], p: number): number {
   if (!values.length) return NaN;
   const sorted = [...values].sort((a, b) => a - b);
-  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))]!;
+  return sorted[Math.min(sorted.length - 1, Math.max(0, Math.ceil((p / 100) * sorted.length) - 1))];
 }
 
 export interface Summary {
@@ -130,8 +130,8 @@ export function summarise(p: Phase): Summary {
 /** A fixed-width table; numbers right-aligned. */
 export function table(headers: string[], rows: (string | number)[][]): string {
   const cells = rows.map((r) => r.map((c) => (typeof c === 'number' ? (Number.isInteger(c) ? String(c) : c.toFixed(1)) : c)));
-  const widths = headers.map((h, k) => Math.max(h.length, ...cells.map((r) => r[k]!.length)));
-  const line = (r: string[]) => r.map((c, k) => (k === 0 ? c.padEnd(widths[k]!) : c.padStart(widths[k]!))).join('  ');
+  const widths = headers.map((h, k) => Math.max(h.length, ...cells.map((r) => r[k].length)));
+  const line = (r: string[]) => r.map((c, k) => (k === 0 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
   return [line(headers), widths.map((w) => '-'.repeat(w)).join('  '), ...cells.map(line)].join('\n') + '\n';
 }
 

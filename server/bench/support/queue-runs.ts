@@ -87,7 +87,7 @@ export async function watchRuns(url: string, buyer: Session, tenderId: string, r
   for (;;) {
     while (runs.length < runIds.length) {
       const t0 = performance.now();
-      const run = await runDetail(url, buyer, runIds[runs.length]!);
+      const run = await runDetail(url, buyer, runIds[runs.length]);
       pollMs.push(performance.now() - t0);
       if (!FINISHED.has(run.status)) break;
       runs.push(run);

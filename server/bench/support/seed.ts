@@ -61,7 +61,7 @@ async function createTender(
      returning id`,
     [o.reference, o.title, o.closesInMinutes, o.status, buyerId],
   );
-  const id = rows[0]!.id;
+  const id = rows[0].id;
   await db.query(
     `insert into region (id, tender_id, code, name, forecast, position)
      select gen_random_uuid(), $1, 'R' || lpad(i::text, 3, '0'), 'Depot ' || i, 400 + (i * 137) % 900, i - 1
@@ -86,7 +86,7 @@ async function submitBids(db: Client, tender: SeededTender, orgIds: string[], ra
   for (const orgId of orgIds) {
     const factor = 0.9 + random() * 0.3;
     const prices: Record<string, number> = {};
-    regions.forEach((r, k) => (prices[r.code] = Math.round(base[k]! * factor * (0.95 + random() * 0.1) * 100) / 100));
+    regions.forEach((r, k) => (prices[r.code] = Math.round(base[k] * factor * (0.95 + random() * 0.1) * 100) / 100));
     const fixedFee = Math.round(10_000 + random() * 50_000);
     // A third of the vendors cannot supply more than a quarter of the whole forecast.
     const capacity = random() < 0.33 ? Math.round(totalForecast * 0.25) : null;
@@ -98,7 +98,7 @@ async function submitBids(db: Client, tender: SeededTender, orgIds: string[], ra
     );
     await db.query(
       `insert into bid_line (id, bid_id, region_id, unit_price) select gen_random_uuid(), $1, r, p from unnest($2::uuid[], $3::numeric[]) as x(r, p)`,
-      [rows[0]!.id, regions.map((r) => r.id), regions.map((r) => prices[r.code])],
+      [rows[0].id, regions.map((r) => r.id), regions.map((r) => prices[r.code])],
     );
   }
 }
@@ -114,7 +114,7 @@ export async function seedBenchData(databaseUrl: string, options: SeedOptions = 
       `insert into app_user (id, email, name, role, password_hash) values (gen_random_uuid(), $1, 'Mara Quell', 'buyer', $2) returning id`,
       [buyerEmail, hash],
     );
-    const buyerId = buyer.rows[0]!.id;
+    const buyerId = buyer.rows[0].id;
     const orgs = await db.query<{ id: string; n: number }>(
       `insert into vendor_organisation (id, name, registration_number, sme, contact_email)
        select gen_random_uuid(), 'Saltway Supply ' || lpad(i::text, 3, '0'), 'BR-' || lpad(i::text, 3, '0'), i % 4 = 0,

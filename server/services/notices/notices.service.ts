@@ -85,7 +85,7 @@ export async function readNotice(em: EntityManager, user: User, id: string): Pro
 export async function notifiedIfAllSent(em: EntityManager, tenderId: string): Promise<void> {
   await em.transactional(async (tx) => {
     const rows = await tx.execute<{ open: string }[]>(`select count(*) as open from notice where tender_id = ? and status <> 'sent'`, [tenderId]);
-    if (Number(rows[0]!.open) > 0) return;
+    if (Number(rows[0].open) > 0) return;
     const changed = await tx.nativeUpdate(Tender, { id: tenderId, status: 'awarded' }, { status: 'notified' });
     if (changed) await audit(tx, { tenderId, actor: null, action: 'tender.notified', subject: 'tender', detail: {}, before: { status: 'awarded' }, after: { status: 'notified' } });
   });

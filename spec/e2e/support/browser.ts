@@ -64,3 +64,13 @@ export async function seriousViolations(page: Page): Promise<{ id: string; impac
     .filter((v) => v.impact === 'serious' || v.impact === 'critical')
     .map((v) => ({ id: v.id, impact: v.impact, help: v.help, targets: v.nodes.map((n) => n.target.join(' ')) }));
 }
+
+/**
+ * Waits until no CSS animation or transition is running (a menu sliding in, a dialog opening; the
+ * endless ones of progress indicators aside), then for one more frame: before a picture, instead
+ * of a fixed pause.
+ */
+export async function animationsDone(page: Page): Promise<void> {
+  await page.waitForFunction(() => document.getAnimations().every((a) => a.playState !== 'running' || a.effect?.getComputedTiming().iterations === Infinity));
+  await page.evaluate(() => new Promise<void>((resolve) => requestAnimationFrame(() => resolve())));
+}

@@ -68,7 +68,7 @@ describe('bid workbook: download, fill in, upload', () => {
   it('has an instructions sheet with the closing time in UTC, the blank rule, the file rules and the caution', async () => {
     const workbook = await XlsxPopulate.fromDataAsync(await buildBidWorkbook(view));
     expect(workbook.sheets().map((s) => s.name())).toEqual(['Instructions', 'Bid']);
-    const text = (sheetOf(workbook, 'Instructions').usedRange()?.value() ?? []).flat().join('\n');
+    const text = (sheetOf(workbook, 'Instructions').usedRange()?.value() ?? []).flat().map(String).join('\n');
     expect(text).toContain('2026-03-02 11:00 UTC');
     expect(text).toMatch(/Leave a price blank if you do not offer that region/);
     expect(text).toMatch(/Keep the file as \.xlsx/);

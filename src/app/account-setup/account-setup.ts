@@ -18,7 +18,7 @@ import { AccountSetupApi } from './account-setup-api';
 
 /** A typing slip is caught here; the server only ever sees one password. */
 function sameAsPassword(control: AbstractControl): ValidationErrors | null {
-  const password = control.parent?.get('password')?.value;
+  const password: unknown = control.parent?.get('password')?.value;
   return control.value === password ? null : { zod: 'The two passwords are not the same.' };
 }
 

@@ -40,7 +40,7 @@ describe('AllocationMatrix', () => {
     const { fixture, el, heads, cells } = render(regions(200));
     expect(heads()).toEqual(regions(25).map((r) => r.code));
     expect(cells()).toBe(25);
-    expect(el.querySelector('.mat-mdc-paginator-range-label')!.textContent!.trim()).toBe('Regions 1–25 of 200');
+    expect(el.querySelector('.mat-mdc-paginator-range-label')!.textContent.trim()).toBe('Regions 1–25 of 200');
 
     (el.querySelector('button[aria-label="Next regions"]') as HTMLButtonElement).click();
     fixture.detectChanges();
@@ -51,7 +51,7 @@ describe('AllocationMatrix', () => {
     (el.querySelector('button[aria-label="Last regions"]') as HTMLButtonElement).click();
     fixture.detectChanges();
     expect(heads()[heads().length - 1]).toBe('R200');
-    expect(el.querySelector('.mat-mdc-paginator-range-label')!.textContent!.trim()).toBe('Regions 176–200 of 200');
+    expect(el.querySelector('.mat-mdc-paginator-range-label')!.textContent.trim()).toBe('Regions 176–200 of 200');
   });
 
   it('offers every region at once as the largest page size', () => {

@@ -43,7 +43,7 @@ describe('RecommendationPanel', () => {
   }
 
   function button(page: HTMLElement, text: string): HTMLButtonElement {
-    return [...page.querySelectorAll('button')].find((b) => b.textContent!.includes(text))!;
+    return [...page.querySelectorAll('button')].find((b) => b.textContent.includes(text))!;
   }
 
   function typeComment(page: HTMLElement, text: string): void {

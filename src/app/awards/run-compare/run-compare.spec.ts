@@ -73,7 +73,7 @@ describe('RunCompare', () => {
 
   it('puts the runs side by side with the price of each over the split baseline', async () => {
     const page = await open(`${SPLIT},${SOLE}`, comparison);
-    const headers = [...page.querySelectorAll('thead th')].map((th) => th.textContent!.trim());
+    const headers = [...page.querySelectorAll('thead th')].map((th) => th.textContent.trim());
     expect(headers[1]).toContain('All regions split');
     expect(headers[1]).toContain('Split baseline');
     expect(headers[2]).toContain('All regions sole');

@@ -84,13 +84,13 @@ describe('RunResult', () => {
 
   it('writes the totals in the tender currency, with the per-vendor award and the matrix', async () => {
     await answerPoll(runView());
-    const totals = page().querySelector('.totals')!.textContent!;
+    const totals = page().querySelector('.totals')!.textContent;
     expect(totals).toContain(eur(50000));
     expect(totals).toContain(eur(1184567.5));
     expect(totals).toContain(eur(1234567.5));
 
     const vendorRows = [...page().querySelectorAll('table[aria-labelledby=vendors-heading] tr.mat-mdc-row')].map((row) =>
-      [...row.querySelectorAll('td')].map((cell) => cell.textContent!.trim()),
+      [...row.querySelectorAll('td')].map((cell) => cell.textContent.trim()),
     );
     expect(vendorRows[0][0]).toBe('Northfell Minerals');
     expect(vendorRows[0][1]).toBe('Cranby depot');
@@ -116,7 +116,7 @@ describe('RunResult', () => {
         result: { ...runView().result!, status: 'infeasible', objective: null, fixedCost: null, variableCost: null, bound: null, gap: null, awards: [], diagnosis },
       }),
     );
-    const items = [...page().querySelectorAll('.diagnosis li')].map((li) => li.textContent!.trim());
+    const items = [...page().querySelectorAll('.diagnosis li')].map((li) => li.textContent.trim());
     expect(items).toEqual(diagnosis);
     expect(page().querySelector('.run-status')!.textContent).toContain('No award meets the rules');
     expect(page().textContent).not.toContain('Recommend this award');
@@ -125,7 +125,7 @@ describe('RunResult', () => {
 
   it('cancels a solving run and stops asking once the server says it is cancelled', async () => {
     await answerPoll(runView({ status: 'solving', finishedAt: null, result: null, objective: null }));
-    const cancel = [...page().querySelectorAll('button')].find((b) => b.textContent!.includes('Cancel run'))!;
+    const cancel = [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Cancel run'))!;
     cancel.click();
     const { startedAt, finishedAt, result, ...summary } = runView({ status: 'cancelled' });
     void result;

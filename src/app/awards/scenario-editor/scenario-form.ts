@@ -100,6 +100,6 @@ export function scenarioInput(form: ScenarioForm): ScenarioInput {
     },
   };
   // Leave out undefined keys so the body reads as the rules that apply.
-  input.rules = Object.fromEntries(Object.entries(input.rules).filter(([, v]) => v !== undefined)) as ScenarioInput['rules'];
+  input.rules = Object.fromEntries(Object.entries(input.rules).filter(([, v]) => v !== undefined));
   return input;
 }

@@ -28,7 +28,7 @@ export function bidFormGroup(regions: readonly RegionView[]) {
     fixedFee: new FormControl<number | null>(null, zodValidator(fixedFeeSchema)),
     noCap: new FormControl(false, { nonNullable: true }),
     capacity: new FormControl<number | null>(null, capacityValidator),
-    prices: new FormGroup(prices) as PriceGroup,
+    prices: new FormGroup(prices),
   });
 }
 export type BidFormGroup = ReturnType<typeof bidFormGroup>;

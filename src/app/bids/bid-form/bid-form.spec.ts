@@ -17,6 +17,7 @@ const tender: TenderView = {
   commodity: 'Brine, 23 %',
   unit: 'm3',
   currency: 'EUR',
+  locale: 'en-GB',
   status: 'open',
   closesAt: new Date(Date.now() + 5 * 86_400_000).toISOString(),
   regionCount: 2,

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, output, signal, untracked } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { AbstractControl, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
@@ -124,12 +124,12 @@ export class BidForm {
   }
 
   protected priceControl(code: string): AbstractControl {
-    return this.form.controls.prices.controls[code]!;
+    return this.form.controls.prices.controls[code];
   }
 
   protected lineValue(code: string, forecast: number): string {
     this.formValue();
-    const price = this.priceControl(code).value;
+    const price: unknown = this.priceControl(code).value;
     return typeof price === 'number' && price > 0 ? money(price * forecast, this.tender().currency) : '—';
   }
 

@@ -50,7 +50,7 @@ describe('NoticeReader', () => {
     const page = await show(letter);
 
     expect(page.querySelector('h1')!.textContent).toBe('Award of contract HWP-2026-07');
-    const facts = page.querySelector('.facts')!.textContent!;
+    const facts = page.querySelector('.facts')!.textContent;
     expect(facts).toContain('HWP-2026-07 · Road de-icing salt, winter 2026/27');
     expect(facts).toContain('Award letter');
     expect(facts).toContain('Sent');
@@ -68,7 +68,7 @@ describe('NoticeReader', () => {
     expect(copy.textContent).toContain('Standstill period ends on 15 December 2026.');
     expect(copy.querySelector('script, style, [style], [onclick]')).toBeNull();
     // The document's <title> is not printed as stray text before the letter.
-    expect(copy.textContent!.startsWith('Award of contract')).toBe(true);
+    expect(copy.textContent.startsWith('Award of contract')).toBe(true);
     expect(page.querySelector('script')).toBeNull();
     expect(document.title).not.toBe('owned');
   });
@@ -77,7 +77,7 @@ describe('NoticeReader', () => {
     const page = await show(letter);
     const print = jest.spyOn(window, 'print').mockImplementation(() => undefined);
 
-    const button = [...page.querySelectorAll('button')].find((b) => b.textContent!.includes('Print'))!;
+    const button = [...page.querySelectorAll('button')].find((b) => b.textContent.includes('Print'))!;
     button.click();
 
     expect(print).toHaveBeenCalledTimes(1);

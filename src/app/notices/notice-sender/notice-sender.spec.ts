@@ -36,7 +36,7 @@ function tender(status: TenderStatus): TenderView {
     publishedAt: '2026-11-01T09:00:00Z',
     closedAt: '2026-11-20T12:00:00Z',
     regions: [],
-  } as TenderView;
+  };
 }
 
 const queuedPair: NoticeSummary[] = [
@@ -53,6 +53,7 @@ describe('NoticeSender', () => {
   let page: HTMLElement;
 
   const render = () => fixture.detectChanges();
+  // eslint-disable-next-line no-restricted-syntax -- two tests prove the poll has stopped by letting five poll intervals (NOTICE_POLL_MS, 10 ms) pass; a controllable clock would be better
   const wait = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
 
   /** Opens the sender for a tender in the given state whose notices are, so far, `notices`. */
@@ -87,7 +88,7 @@ describe('NoticeSender', () => {
   }
 
   function sendButton(): HTMLButtonElement {
-    return [...page.querySelectorAll('button')].find((b) => /Send notices|Sending/.test(b.textContent!))!;
+    return [...page.querySelectorAll('button')].find((b) => /Send notices|Sending/.test(b.textContent))!;
   }
 
   /** Clicks Send notices and confirms in the dialog; returns the POST, unanswered. */
@@ -115,7 +116,7 @@ describe('NoticeSender', () => {
 
     expect(page.querySelector('.counts')!.textContent).toContain('1 award letter, 1 regret letter.');
     const choices = [...page.querySelectorAll<HTMLButtonElement>('.letter-choice')];
-    expect(choices.map((c) => c.textContent!.replace(/\s+/g, ' ').trim())).toEqual([
+    expect(choices.map((c) => c.textContent.replace(/\s+/g, ' ').trim())).toEqual([
       'Northfell Minerals, Award letter',
       'Brinewick Salt Co-op, Regret letter',
     ]);
@@ -198,7 +199,7 @@ describe('NoticeSender', () => {
       ['Northfell Minerals', 'mark_email_readSent'],
       ['Brinewick Salt Co-op', 'mark_email_readSent'],
     ]);
-    expect(page.querySelector('.delivery-summary')!.textContent!.trim()).toBe('2 of 2 sent.');
+    expect(page.querySelector('.delivery-summary')!.textContent.trim()).toBe('2 of 2 sent.');
     expect(page.querySelector('.subtitle')!.textContent).toContain('Notices sent');
     expect(sendButton().getAttribute('aria-disabled')).toBe('true');
     expect(page.querySelector('#send-blocked')!.textContent).toBe('Every notice of this tender has been sent.');

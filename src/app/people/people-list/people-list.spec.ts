@@ -115,7 +115,7 @@ describe('PeopleList', () => {
     await filter.setValue('nobody-like-this');
     const table = await loader.getHarness(MatTableHarness);
     expect(await table.getRows()).toHaveLength(0);
-    expect((await table.host()).text()).resolves.toContain('Nobody matches');
+    await expect((await table.host()).text()).resolves.toContain('Nobody matches');
   });
 
   describe('invite dialog', () => {

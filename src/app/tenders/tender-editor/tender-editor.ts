@@ -94,9 +94,9 @@ export class TenderEditor {
 
   protected closingMessage(): string | null {
     const control = this.form.controls.closesDate;
-    const server = control.errors?.['server'];
+    const server: unknown = control.errors?.['server'];
     if (typeof server === 'string') return server;
-    const error = this.form.errors?.['closing'];
+    const error: unknown = this.form.errors?.['closing'];
     return typeof error === 'string' && (control.touched || this.form.controls.closesTime.touched) ? error : null;
   }
 

@@ -1,0 +1,34 @@
+import type { TestApp } from './app';
+
+/**
+ * Polls `check` until it returns something other than `undefined`, `null` or `false`, and returns
+ * that; fails after `timeoutMs` naming `what`. The way a test waits: for a condition, never a fixed
+ * time (the lint forbids plain sleeps in specs).
+ */
+export async function waitFor<T>(
+  what: string,
+  check: () => Promise<T | undefined | null | false> | T | undefined | null | false,
+  { timeoutMs = 60_000, everyMs = 100 }: { timeoutMs?: number; everyMs?: number } = {},
+): Promise<T> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const value = await check();
+    if (value !== undefined && value !== null && value !== false) return value;
+    if (Date.now() > deadline) throw new Error(`waited ${timeoutMs} ms for ${what}`);
+    await new Promise((resolve) => setTimeout(resolve, everyMs));
+  }
+}
+
+/**
+ * Waits until pg-boss queue `name` has no job waiting, retrying or running: every job given to it
+ * so far has been done. How a test proves that something was NOT sent (drain, then look), instead
+ * of sleeping and hoping the worker would have been quick enough.
+ */
+export async function drainQueue(t: TestApp, name: string, timeoutMs = 60_000): Promise<void> {
+  await waitFor(`queue ${name} to drain`, async () => {
+    const [row] = await t.em().getConnection().execute<{ pending: number }[]>(
+      `select count(*)::int as pending from pgboss.job where name = ? and state in ('created', 'retry', 'active')`, [name],
+    );
+    return row?.pending === 0;
+  }, { timeoutMs });
+}
