@@ -15,7 +15,7 @@ export function referenceLp(p: AwardProblem): string {
   const rows: string[] = [];
   const bounds: string[] = [];
   const binaries: string[] = [];
-  const bids = p.vendors.map((v) => p.regions.map((r) => (v.prices)[r.id]));
+  const bids = p.vendors.map((v) => p.regions.map((r) => (v.prices as Record<string, number | undefined>)[r.id]));
   const num = (x: number) => (Number.isInteger(x) ? String(x) : x.toPrecision(17));
   // Quantity term of vendor i in region j: q or d·z.
   const qTerm = (i: number, j: number) => (sole(p.regions[j].id) ? `${num(p.regions[j].demand)} z_${i}_${j}` : `q_${i}_${j}`);
