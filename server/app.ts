@@ -10,7 +10,6 @@ import { pinoHttp } from 'pino-http';
 import { configurePassport } from './auth/passport';
 import { createSessionStore } from './auth/session-store';
 import { signInLimits } from './auth/sign-in-limits';
-import type { Config } from './config';
 import { stampArrival } from './http/arrival';
 import { noStore } from './http/cache-control';
 import { SESSION_COOKIE, type AppDeps } from './context';
@@ -24,7 +23,6 @@ import { peopleRoutes } from './routes/people.routes';
 import { sessionRoutes } from './routes/session.routes';
 import { tenderRoutes } from './routes/tenders.routes';
 import { bidRoutes } from './routes/bids.routes';
-import type { BidHooks } from './services/bids.service';
 import { evaluationRoutes } from './routes/evaluation.routes';
 import { noticeRoutes } from './routes/notices.routes';
 
@@ -140,8 +138,3 @@ function noCacheIndex(res: express.Response, file: string): void {
   if (file.endsWith('index.html')) res.setHeader('Cache-Control', 'no-cache');
 }
 
-/** The e-mail of a sign-in body, if it has one (the body is not validated yet when this runs). */
-function emailOf(body: unknown): string {
-  const email = (body as { email?: unknown } | undefined)?.email;
-  return typeof email === 'string' ? email : '';
-}

@@ -8,8 +8,10 @@ import { z } from 'zod';
  */
 
 /** C0 controls (NUL…US), DEL and C1 controls. */
+// eslint-disable-next-line no-control-regex -- finding control characters is this pattern's purpose
 const ANY_CONTROL = /[\u0000-\u001f\u007f-\u009f]/;
 /** The same, less tab, line feed and carriage return. */
+// eslint-disable-next-line no-control-regex -- finding control characters is this pattern's purpose
 const CONTROL_EXCEPT_LINES = /[\u0000-\u0008\u000b\u000c\u000e-\u001f\u007f-\u009f]/;
 
 /** True when `text` holds a control character a single-line field must not (any of them). */

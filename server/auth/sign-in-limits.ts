@@ -12,6 +12,12 @@ export const SIGN_IN_EMAIL_LIMIT = 10;
 const tooMany: RequestHandler = (_req, _res, next) =>
   next(new AppError(429, 'Too many attempts', 'Too many failed sign-ins. Wait 15 minutes and try again.'));
 
+/** The e-mail of a sign-in body, if it has one (the body is not validated yet when this runs). */
+function emailOf(body: unknown): string {
+  const email = (body as { email?: unknown } | undefined)?.email;
+  return typeof email === 'string' ? email : '';
+}
+
 /**
  * The limits on failed sign-ins (successful ones do not count), in front of POST /api/session:
  * per IP address across every e-mail (password spraying), and per IP address and e-mail. The
@@ -27,7 +33,7 @@ export function signInLimits(ipLimit: number, pool: Pool): RequestHandler[] {
       limit: SIGN_IN_EMAIL_LIMIT,
       identifier: 'ip-email',
       store: new PgRateLimitStore(pool, 'sign-in:'),
-      keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${normaliseEmail(String(req.body?.email ?? ''))}`,
+      keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${normaliseEmail(emailOf(req.body))}`,
     }),
   ];
 }

@@ -51,7 +51,7 @@ function rotating(url: string, sessions: Session[]): DriveOptions {
   let k = 0;
   return {
     url, connections: CONNECTIONS, amount: PHASE_REQUESTS, maxSeconds: MAX_SECONDS,
-    requests: [{ method: 'GET', setupRequest: (req: autocannon.RequestSpec) => ({ ...req, headers: headersOf(sessions[k++ % sessions.length]!) }) }],
+    requests: [{ method: 'GET', setupRequest: (req: autocannon.RequestSpec) => ({ ...req, headers: headersOf(sessions[k++ % sessions.length]) }) }],
   };
 }
 
@@ -76,7 +76,7 @@ async function main(): Promise<void> {
   const listPhase = (label: string) => drive(label, rotating(`${url}/api/tenders`, twenty));
   const buyerListPhase = (label: string) => drive(label, rotating(`${url}/api/tenders`, [buyer]));
   const versions = new Map<string, number | null>();
-  const ownTender = new Map(fifty.map((s, k) => [s.email, seeded.own[k]!]));
+  const ownTender = new Map(fifty.map((s, k) => [s.email, seeded.own[k]]));
   const bidPhase = async (label: string) => {
     // Each vendor saves over the version it loaded, then over the one each save returns, as the client does.
     for (const s of fifty) versions.set(s.email, (await call<{ bid: { version: number } | null }>(url, s, 'GET', `/api/tenders/${ownTender.get(s.email)!.id}/bid`)).body.bid?.version ?? null);

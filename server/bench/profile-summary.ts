@@ -17,12 +17,12 @@ interface CpuProfile { nodes: ProfileNode[]; samples: number[]; timeDeltas: numb
 
 export function packageOf(url: string): string {
   if (!url) return '(native)';
-  if (url.startsWith('node:')) return url.split('/')[0]!;
+  if (url.startsWith('node:')) return url.split('/')[0];
   const file = url.replace(/^file:\/\//, '');
   const nm = file.lastIndexOf('node_modules/');
   if (nm >= 0) {
     const rest = file.slice(nm + 'node_modules/'.length).split('/');
-    return rest[0]!.startsWith('@') ? `${rest[0]}/${rest[1]}` : rest[0]!;
+    return rest[0].startsWith('@') ? `${rest[0]}/${rest[1]}` : rest[0];
   }
   const dist = file.indexOf('/dist/');
   return `tendara:${dist >= 0 ? file.slice(dist + 6) : path.basename(file)}`;

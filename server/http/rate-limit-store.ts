@@ -29,7 +29,7 @@ export class PgRateLimitStore implements Store {
       [this.rowKey(key), this.windowMs],
     );
     this.pruneNowAndThen();
-    return { totalHits: rows[0]!.hits, resetTime: rows[0]!.reset_at };
+    return { totalHits: rows[0].hits, resetTime: rows[0].reset_at };
   }
 
   async decrement(key: string): Promise<void> {

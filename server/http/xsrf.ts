@@ -61,7 +61,7 @@ export function xsrfSessionBinding(): RequestHandler {
     const bound = req.session?.xsrf;
     if (!bound) return next();
     if (SAFE_METHODS.has(req.method)) {
-      if (req.cookies?.[XSRF_COOKIE] !== bound) setCookie(req, res, bound);
+      if ((req.cookies as Record<string, string | undefined> | undefined)?.[XSRF_COOKIE] !== bound) setCookie(req, res, bound);
       return next();
     }
     const header = req.get(XSRF_HEADER);

@@ -13,6 +13,6 @@ import { ConflictError } from '../http/errors';
 export async function transition<T extends BaseEntity>(
   tx: EntityManager, entity: EntityName<T>, id: string, from: readonly string[], changes: EntityData<T>, conflict: string,
 ): Promise<void> {
-  const changed = await tx.nativeUpdate(entity, { id, status: { $in: from } } as FilterQuery<T>, { ...changes, updatedAt: new Date() } as EntityData<T>);
+  const changed = await tx.nativeUpdate(entity, { id, status: { $in: from } } as FilterQuery<T>, { ...changes, updatedAt: new Date() });
   if (changed !== 1) throw new ConflictError(conflict);
 }

@@ -19,8 +19,8 @@ describe('problem validation', () => {
 
   test('a negative price and a price given as text are refused with their fields', async () => {
     const p = baseProblem();
-    (p.vendors[0].prices as Record<string, unknown>).A = -1;
-    (p.vendors[2].prices as Record<string, unknown>).B = '2.5';
+    (p.vendors[0].prices).A = -1;
+    (p.vendors[2].prices).B = '2.5';
     const err = await refusal(p);
     expect(err.errors).toEqual(expect.arrayContaining([
       { field: 'vendors[0].prices.A', message: 'Unit price must not be negative.' },

@@ -23,13 +23,13 @@ afterAll(() => t.close());
 function linkFrom(text: string): string {
   const m = text.match(/http:\/\/tendara\.test\/account-setup\/([A-Za-z0-9_-]+)/);
   if (!m) throw new Error(`no link in: ${text}`);
-  return m[1]!;
+  return m[1];
 }
 
 /** Set-password mails queued but not yet sent, plus those sent (pg-boss keeps both in its job table). */
 async function mailJobs(): Promise<number> {
   const rows = await t.em().execute<{ n: string }[]>(`select count(*) as n from pgboss.job where name = 'mail-send'`);
-  return Number(rows[0]!.n);
+  return Number(rows[0].n);
 }
 
 /** Mail jobs queued (or sent) to `to` whose subject starts with `subject`; read as the queue holds them, no waiting. */
@@ -37,7 +37,7 @@ async function mailJobsTo(to: string, subject = ''): Promise<number> {
   const rows = await t.em().execute<{ n: string }[]>(
     `select count(*) as n from pgboss.job where name = 'mail-send' and data->>'to' = ? and starts_with(data->>'subject', ?)`, [to, subject],
   );
-  return Number(rows[0]!.n);
+  return Number(rows[0].n);
 }
 
 describe('a vendor organisation decides who joins it', () => {
@@ -237,7 +237,7 @@ describe('a refused new-vendor invitation leaves nothing', () => {
   });
 });
 
-test('the common-password list knows common passwords (whatever their case and spaces) but not the test or demo ones', async () => {
+test('the common-password list knows common passwords (whatever their case and spaces) but not the test or demo ones', () => {
   expect(isCommonPassword(TEST_PASSWORD)).toBe(false);
   expect(isCommonPassword('demo-pass-2026')).toBe(false);
   expect(isCommonPassword('Password Password')).toBe(true);

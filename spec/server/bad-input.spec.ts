@@ -42,7 +42,7 @@ describe('control characters are refused with the field named, before anything i
     const before = await t.em().count(Tender, {});
     const body = tenderBody(2);
     body.title = 'Salt\u0000';
-    body.regions[1]!.name = 'Depot\u00002';
+    body.regions[1].name = 'Depot\u00002';
     const res = await buyer.post('/api/tenders', body);
     expect(res.status).toBe(400);
     expect(res.headers['content-type']).toMatch(/application\/problem\+json/);
@@ -114,9 +114,9 @@ describe('figures the columns cannot store exactly are refused', () => {
   test('a forecast of 1e-7 (which numeric(16,4) would store as 0) or of 1e12 is refused naming the region', async () => {
     const before = await t.em().count(Tender, {});
     const body = tenderBody(3);
-    body.regions[0]!.forecast = 1e-7;
-    body.regions[1]!.forecast = 12.34567;
-    body.regions[2]!.forecast = 1e12;
+    body.regions[0].forecast = 1e-7;
+    body.regions[1].forecast = 12.34567;
+    body.regions[2].forecast = 1e12;
     const res = await buyer.post('/api/tenders', body);
     expect(res.status).toBe(400);
     expect(res.body.errors).toEqual([
@@ -166,7 +166,7 @@ describe('region codes that are reserved words are refused at entry', () => {
   test.each(['__proto__', 'constructor', 'toString'])('a tender with region code %s is refused naming the code', async (code) => {
     const before = await t.em().count(Tender, {});
     const body = tenderBody(2);
-    body.regions[1]!.code = code;
+    body.regions[1].code = code;
     const res = await buyer.post('/api/tenders', body);
     expect(res.status).toBe(400);
     expect(res.body.errors).toEqual([{

@@ -52,7 +52,7 @@ async function someoneWaitsForALock(): Promise<void> {
     const [row] = await t.em().getConnection().execute<{ n: string }[]>(
       `select count(*) as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock'`,
     );
-    if (Number(row!.n) > 0) return;
+    if (Number(row.n) > 0) return;
     await new Promise((r) => setTimeout(r, 20));
   }
 }
@@ -143,7 +143,7 @@ test('a bid, a withdrawal or a workbook received after the closing time is refus
     r.on('data', (c: Buffer) => chunks.push(c));
     r.on('end', () => cb(null, Buffer.concat(chunks)));
   });
-  const workbook = (await (await XlsxPopulate.fromDataAsync(wb.body as Buffer)).outputAsync()) as Buffer;
+  const workbook = (await (await XlsxPopulate.fromDataAsync(wb.body as Buffer)).outputAsync());
   // Closed a second ago: still within the grace, so the tender is not yet closed and opened.
   await t.em().nativeUpdate(Tender, { id: tenderId }, { closesAt: new Date(Date.now() - 1000) });
   const revision = await v.send('put', `/api/tenders/${tenderId}/bid`, { ...figures, fixedFee: 1, submit: true, version: first.body.version });

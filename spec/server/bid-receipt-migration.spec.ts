@@ -20,8 +20,8 @@ test('the migration gives every live bid stored before keyed receipts a nonce an
   const tenderId = await openTender(buyer, vendors.map((v) => v.vendorOrganisation!.id));
   const [live, draft] = await Promise.all(vendors.map((v) => signedIn(t, v)));
   const figures = { fixedFee: 12000, capacity: null, prices: { R01: 44.5, R03: 47.25 } };
-  expect((await live!.send('put', `/api/tenders/${tenderId}/bid`, { ...figures, submit: true, version: null })).status).toBe(200);
-  expect((await draft!.send('put', `/api/tenders/${tenderId}/bid`, { ...figures, submit: false, version: null })).status).toBe(200);
+  expect((await live.send('put', `/api/tenders/${tenderId}/bid`, { ...figures, submit: true, version: null })).status).toBe(200);
+  expect((await draft.send('put', `/api/tenders/${tenderId}/bid`, { ...figures, submit: false, version: null })).status).toBe(200);
   // The schema and rows as they were before the migration.
   const conn = t.em().getConnection();
   const unsalted = createHash('sha256').update('as before').digest('hex');
@@ -35,7 +35,7 @@ test('the migration gives every live bid stored before keyed receipts a nonce an
     { status: 'draft', nonce: null, digest: null },
     { status: 'submitted', nonce: expect.stringMatching(/^[0-9a-f]{64}$/), digest: expect.stringMatching(/^[0-9a-f]{64}$/) },
   ]);
-  expect(rows[1]!.digest).not.toBe(unsalted);
+  expect(rows[1].digest).not.toBe(unsalted);
 
   // An audit entry written before the change, with the unsalted digest: withheld while sealed.
   await t.em().transactional((tx) => audit(tx, { tenderId, actor: null, action: 'bid.revised', subject: 'bid x', detail: { revision: 2, digest: unsalted } }));
@@ -48,5 +48,5 @@ test('the migration gives every live bid stored before keyed receipts a nonce an
   expect((await buyer.get(`/api/tenders/${tenderId}/audit/verify`)).body.ok).toBe(true);
   await passClosingTime(t, tenderId);
   const bids = (await buyer.get(`/api/tenders/${tenderId}/bids`)).body.bids;
-  expect(bids).toEqual([expect.objectContaining({ digest: rows[1]!.digest, nonce: rows[1]!.nonce, receiptVerified: true })]);
+  expect(bids).toEqual([expect.objectContaining({ digest: rows[1].digest, nonce: rows[1].nonce, receiptVerified: true })]);
 });

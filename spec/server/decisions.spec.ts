@@ -51,10 +51,10 @@ async function race(tenderId: string, requests: (() => PromiseLike<Response>)[])
       const { rows } = await hold.query<{ n: number }>(
         `select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and pid <> pg_backend_pid()`,
       );
-      if (rows[0]!.n + answered >= requests.length) break;
+      if (rows[0].n + answered >= requests.length) break;
       if (Date.now() > deadline) {
         const activity = await hold.query(`select state, wait_event_type, wait_event, left(query, 120) as query from pg_stat_activity where datname = current_database() and pid <> pg_backend_pid()`);
-        throw new Error(`only ${rows[0]!.n} waiting and ${answered} answered of ${requests.length}: ${JSON.stringify(activity.rows)}`);
+        throw new Error(`only ${rows[0].n} waiting and ${answered} answered of ${requests.length}: ${JSON.stringify(activity.rows)}`);
       }
       await new Promise((r) => setTimeout(r, 10));
     }
@@ -103,14 +103,14 @@ test('two requests to run the same scenario at once make one run: one is queued 
   const { tenderId, scenarioId } = await closedTender();
   const answers = await race(tenderId, buyers.map((b) => () => b.post(`/api/scenarios/${scenarioId}/runs`)));
   expect(statuses(answers)).toEqual([200, 202]);
-  expect(answers[0]!.body.id).toBe(answers[1]!.body.id);
+  expect(answers[0].body.id).toBe(answers[1].body.id);
   expect(await t.em().count(Run, { tender: tenderId })).toBe(1);
   expect(await auditCount(tenderId, 'run.queued')).toBe(1);
   // Asked again later, with the run solved and nothing changed: still that run, no second solve.
-  await waitForRun(buyers[0], answers[0]!.body.id);
+  await waitForRun(buyers[0], answers[0].body.id);
   const again = await buyers[0].post(`/api/scenarios/${scenarioId}/runs`);
   expect(again.status).toBe(200);
-  expect(again.body).toEqual({ id: answers[0]!.body.id, status: 'optimal' });
+  expect(again.body).toEqual({ id: answers[0].body.id, status: 'optimal' });
   expect(await t.em().count(Run, { tender: tenderId })).toBe(1);
 });
 

@@ -72,8 +72,8 @@ beforeAll(async () => {
   vendorA = await signedIn(t, a);
   vendorB = await signedIn(t, b);
   const body = tenderBody(3, 60, { title: '@SUM(1)' });
-  body.regions[0]!.name = '+1+1';
-  body.regions[1]!.name = ` ${LINK}`;
+  body.regions[0].name = '+1+1';
+  body.regions[1].name = ` ${LINK}`;
   const created = await buyer.post('/api/tenders', body);
   expect(created.status).toBe(201);
   tenderId = created.body.id;

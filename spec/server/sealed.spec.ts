@@ -72,13 +72,13 @@ async function derivedSecrets(): Promise<Record<string, string>> {
   );
   return {
     'unsalted SHA-256 of the content': createHash('sha256').update(canonical).digest('hex'),
-    'nonce': row!.nonce,
-    'SHA-256 of the uploaded workbook': row!.file_digest,
+    'nonce': row.nonce,
+    'SHA-256 of the uploaded workbook': row.file_digest,
   };
 }
 
 test.each(['buyer', 'compliance', 'admin'])('before closing, no GET route shows %s a bid figure or a value a guess of the figures could be checked against', async (who) => {
-  const b = readers[who]!;
+  const b = readers[who];
   const secrets = await derivedSecrets();
   const mails = await t.em().find(MailMessage, {});
   const gets = apiRoutes(t.deps).filter((r) => r.method === 'get');
@@ -115,7 +115,7 @@ test('before closing, the vendor itself is never served the nonce that keys its 
   for (const r of gets) {
     const path = '/api' + r.path.replace(':id', tenderId).replace(':token', 'x'.repeat(43));
     const res = await vendorBrowser.get(path).buffer(true);
-    expect({ path, leaked: (text(res.body) + text(res.text)).includes(nonce!) }).toEqual({ path, leaked: false });
+    expect({ path, leaked: (text(res.body) + text(res.text)).includes(nonce) }).toEqual({ path, leaked: false });
   }
 });
 
@@ -132,7 +132,7 @@ test('before closing, no e-mail carries a figure, the unsalted digest of the con
 });
 
 test('before closing, the audit trail records that a bid arrived, with no digest or other value computed from its figures', async () => {
-  const trail = (await readers['compliance']!.get(`/api/tenders/${tenderId}/audit`)).body as {
+  const trail = (await readers['compliance'].get(`/api/tenders/${tenderId}/audit`)).body as {
     action: string; detail: Record<string, unknown>; beforeDigest: string | null; afterDigest: string | null;
   }[];
   const bidEntries = trail.filter((e) => e.action.startsWith('bid.'));
@@ -151,23 +151,23 @@ test('at opening, anyone can recompute each receipt from the revealed figures an
   expect(receipt).toMatch(/^[0-9a-f]{64}$/);
 
   await passClosingTime(t, tenderId);
-  const res = await readers['buyer']!.get(`/api/tenders/${tenderId}/bids`);
+  const res = await readers['buyer'].get(`/api/tenders/${tenderId}/bids`);
   expect(res.status).toBe(200);
   const [bid] = res.body.bids as { vendor: { id: string }; revision: number; fixedFee: number; capacity: number | null; prices: Record<string, number>; digest: string; nonce: string; receiptVerified: boolean }[];
   expect(bid).toMatchObject({ digest: receipt, receiptVerified: true });
   // The third party's recipe (DEVELOPERS.md, "Sealed bids"), with node:crypto alone.
-  const { reference } = (await readers['buyer']!.get(`/api/tenders/${tenderId}`)).body as { reference: string };
+  const { reference } = (await readers['buyer'].get(`/api/tenders/${tenderId}`)).body as { reference: string };
   const message = JSON.stringify({
-    tender: reference, vendor: bid!.vendor.id, revision: bid!.revision, fixedFee: bid!.fixedFee, capacity: bid!.capacity,
-    prices: Object.keys(bid!.prices).sort().map((code) => [code, bid!.prices[code]]),
+    tender: reference, vendor: bid.vendor.id, revision: bid.revision, fixedFee: bid.fixedFee, capacity: bid.capacity,
+    prices: Object.keys(bid.prices).sort().map((code) => [code, bid.prices[code]]),
   });
   expect(message).toBe(canonical);
-  expect(createHmac('sha256', Buffer.from(bid!.nonce, 'hex')).update(message).digest('hex')).toBe(receipt);
+  expect(createHmac('sha256', Buffer.from(bid.nonce, 'hex')).update(message).digest('hex')).toBe(receipt);
   // The vendor sees the key of its own receipt now too.
-  expect((await vendorBrowser.get(`/api/tenders/${tenderId}/bid`)).body.bid).toMatchObject({ digest: receipt, nonce: bid!.nonce });
+  expect((await vendorBrowser.get(`/api/tenders/${tenderId}/bid`)).body.bid).toMatchObject({ digest: receipt, nonce: bid.nonce });
 
   // A figure changed behind the application's back no longer matches its receipt.
   await t.em().getConnection().execute(`update bid set fixed_fee = fixed_fee + 1`);
-  const tampered = await readers['compliance']!.get(`/api/tenders/${tenderId}/bids`);
+  const tampered = await readers['compliance'].get(`/api/tenders/${tenderId}/bids`);
   expect(tampered.body.bids[0]).toMatchObject({ digest: receipt, receiptVerified: false });
 });

@@ -23,7 +23,7 @@ async function sessionCookie(b: Browser): Promise<string> {
   const res = await b.get('/api/session');
   const cookie = ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith(`${SESSION_COOKIE}=`));
   if (!cookie) throw new Error('no session cookie in the answer');
-  return cookie.split(';')[0]!;
+  return cookie.split(';')[0];
 }
 
 test('after sign-out the very next request is 401, also when the old session cookie is sent again', async () => {
@@ -86,11 +86,11 @@ test('a signed-in request writes the session back at most once a minute, and mov
   const [signedInRow] = await sessionsOf(user.id);
   for (let k = 0; k < 3; k++) expect((await b.get('/api/session')).status).toBe(200);
   const [unchanged] = await sessionsOf(user.id);
-  expect(unchanged!.expireMs).toBe(signedInRow!.expireMs);
+  expect(unchanged.expireMs).toBe(signedInRow.expireMs);
   // As if the last write was longer ago than the throttle: the next request moves the expiry on.
-  await sql(`update http_session set expire = expire - make_interval(secs => ?) where sid = ?`, [(2 * TOUCH_EVERY_MS) / 1000, signedInRow!.sid]);
+  await sql(`update http_session set expire = expire - make_interval(secs => ?) where sid = ?`, [(2 * TOUCH_EVERY_MS) / 1000, signedInRow.sid]);
   const [aged] = await sessionsOf(user.id);
   expect((await b.get('/api/session')).status).toBe(200);
   const [touched] = await sessionsOf(user.id);
-  expect(touched!.expireMs).toBeGreaterThanOrEqual(aged!.expireMs + TOUCH_EVERY_MS);
+  expect(touched.expireMs).toBeGreaterThanOrEqual(aged.expireMs + TOUCH_EVERY_MS);
 });

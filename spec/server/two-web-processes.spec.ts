@@ -63,7 +63,7 @@ beforeAll(async () => {
   [a, b] = await Promise.all([startWebProcess(secret), startWebProcess(secret)]);
 });
 afterAll(async () => {
-  await Promise.all(servers.map((s) => (s.exitCode === null ? new Promise((r) => { s.once('exit', r); s.kill('SIGTERM'); }) : undefined)));
+  await Promise.all(servers.map((s) => (s.exitCode === null ? new Promise((r) => { s.once('exit', r); s.kill('SIGTERM'); }) : Promise.resolve())));
   await t.close();
 });
 
@@ -111,7 +111,7 @@ test('failed sign-ins are counted across web processes: the limit is the same wi
   const user = await makeUser(t, 'buyer');
   const attempt = async (url: string) => {
     const first = await fetch(`${url}/api/session`);
-    const xsrf = first.headers.getSetCookie().find((c) => c.startsWith('XSRF-TOKEN='))!.split(';')[0]!.split('=')[1]!;
+    const xsrf = first.headers.getSetCookie().find((c) => c.startsWith('XSRF-TOKEN='))!.split(';')[0].split('=')[1];
     const res = await fetch(`${url}/api/session`, {
       method: 'POST', headers: { 'content-type': 'application/json', 'x-xsrf-token': xsrf, cookie: `XSRF-TOKEN=${xsrf}` },
       body: JSON.stringify({ email: user.email, password: 'not-the-password' }),

@@ -156,14 +156,14 @@ export async function seedBenchData(databaseUrl: string, options: SeedOptions = 
     const own: SeededTender[] = [];
     for (let k = 0; k < Math.min(50, all.length); k++) {
       own.push(await createTender(db, buyerId, {
-        reference: `BENCH-OWN${pad(k + 1, 2)}`, title: `Grit for depot ${k + 1}`, status: 'open', closesInMinutes: 60 * 24, regions: 40, invite: [all[k]!],
+        reference: `BENCH-OWN${pad(k + 1, 2)}`, title: `Grit for depot ${k + 1}`, status: 'open', closesInMinutes: 60 * 24, regions: 40, invite: [all[k]],
       }));
     }
     await seedBuyerBulk(db, buyerId, buyerBulk);
     // As autovacuum leaves a database at rest: statistics and the visibility map (index-only scans).
     await db.query('vacuum analyze');
     const { rows: counted } = await db.query<{ n: number }>(`select count(*)::int as n from tender where created_by_id = $1`, [buyerId]);
-    return { buyerEmail, vendors, big, open, rush, own, buyerTenders: counted[0]!.n };
+    return { buyerEmail, vendors, big, open, rush, own, buyerTenders: counted[0].n };
   } finally {
     await db.end();
   }

@@ -111,13 +111,13 @@ export function cellFormat(sheetXml: string, stylesXml: string, address: string)
 export async function unzipAll(zip: Buffer): Promise<Map<string, Buffer>> {
   return new Promise((resolve, reject) => {
     yauzl.fromBuffer(zip, { lazyEntries: true }, (error, file) => {
-      if (error || !file) return reject(error);
+      if (error || !file) return reject(error ?? new Error('yauzl opened no zip'));
       const parts = new Map<string, Buffer>();
       file.on('error', reject);
       file.on('end', () => resolve(parts));
       file.on('entry', (entry: yauzl.Entry) => {
         file.openReadStream(entry, (streamError, stream) => {
-          if (streamError || !stream) return reject(streamError);
+          if (streamError || !stream) return reject(streamError ?? new Error(`yauzl opened no stream for ${entry.fileName}`));
           const chunks: Buffer[] = [];
           stream.on('data', (c: Buffer) => chunks.push(c));
           stream.on('error', reject);

@@ -61,7 +61,7 @@ describe('Members', () => {
   it('the contact approves a person an administrator added, after confirming, and the table shows them as a member', async () => {
     await open(view(true));
     const table = await loader.getHarness(MatTableHarness);
-    expect((await table.getCellTextByColumnName())['state']!.text).toEqual(['Member', 'Awaiting your approval']);
+    expect((await table.getCellTextByColumnName())['state'].text).toEqual(['Member', 'Awaiting your approval']);
 
     await (await loader.getHarness(MatButtonHarness.with({ text: /Approve/ }))).click();
     const dialog = await documentLoader.getHarness(MatDialogHarness);
@@ -71,7 +71,7 @@ describe('Members', () => {
     await clicked;
     await fixture.whenStable();
 
-    expect((await table.getCellTextByColumnName())['state']!.text).toEqual(['Member', 'Member']);
+    expect((await table.getCellTextByColumnName())['state'].text).toEqual(['Member', 'Member']);
     expect(document.querySelector('[role=status]')!.textContent).toContain('Nadia Quarry is approved');
   });
 
