@@ -31,6 +31,7 @@ export function normaliseEmail(value: string): string {
 
 export const emailSchema = z
   .string({ error: 'E-mail is required.' })
+  .max(254, { error: 'E-mail must be at most 254 characters.' })
   .transform(normaliseEmail)
   .pipe(z.string().max(254, { error: 'E-mail must be at most 254 characters.' }).pipe(z.email({ error: 'Enter a valid e-mail address.' })));
 

@@ -16,11 +16,13 @@ const REGIONS = 12;
 
 let t: TestApp;
 let tenderId: string;
+/** The tender's owner: a buyer evaluates only its own tenders. */
+let buyer: Browser;
 const vendors: { b: Browser; org: string }[] = [];
 
 beforeAll(async () => {
   t = await startTestApp();
-  const buyer = await signedIn(t, await makeUser(t, 'buyer'));
+  buyer = await signedIn(t, await makeUser(t, 'buyer'));
   for (let i = 0; i < VENDORS; i++) {
     const u = await makeUser(t, 'vendor');
     vendors.push({ b: await signedIn(t, u), org: u.vendorOrganisation!.id });
@@ -82,7 +84,6 @@ test('bids saved across the closing time are either stored whole or refused as c
 
 test('after the rush, the buyer sees exactly the accepted bids in the tabulation, each with every region priced', async () => {
   const stored = await t.em().count(Bid, { tender: tenderId, status: 'submitted' });
-  const buyer = await signedIn(t, await makeUser(t, 'buyer'));
   const res = await buyer.get(`/api/tenders/${tenderId}/bids`);
   expect(res.status).toBe(200);
   expect(res.body.submitted).toBe(stored);
