@@ -1,3 +1,4 @@
+import type { MembershipState } from '../entities/user.entity';
 import connectPgSimple from 'connect-pg-simple';
 import session from 'express-session';
 import type { Pool } from 'pg';
@@ -17,6 +18,7 @@ export interface SessionUserRow {
   name: string;
   role: string;
   active: boolean;
+  membership: MembershipState;
   last_sign_in_at: string | null;
   vendor_organisation: {
     id: string; created_at: string; updated_at: string; name: string; registration_number: string; sme: boolean; contact_email: string;
@@ -32,7 +34,8 @@ interface Loaded {
 type WithLoaded = { [LOADED]?: Loaded };
 
 /**
- * The session, read with one query that also reads the person it names (only if active) and their
+ * The session, read with one query that also reads the person it names (only if active and, in a
+ * vendor organisation, approved by its contact) and their
  * organisation — the session store read and the user lookup were two round trips on every request
  * (bench:api, phase d). The person is read afresh on every request, so a deactivation, a role
  * change or a password reset that deletes the person's sessions takes effect on the very next one.
@@ -43,7 +46,7 @@ const GET = `
                  || jsonb_build_object('vendor_organisation', (select to_jsonb(o) from vendor_organisation o where o.id = u.vendor_organisation_id))
             from app_user u
            where u.id = case when s.sess #>> '{passport,user}' ~ '^[0-9a-fA-F-]{36}$' then (s.sess #>> '{passport,user}')::uuid end
-             and u.active) as person,
+             and u.active and u.membership = 'approved') as person,
          s.sess #>> '{passport,user}' is not null as names_person
     from http_session s
    where s.sid = $1 and s.expire >= now()`;

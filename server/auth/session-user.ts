@@ -18,7 +18,7 @@ export function signedInUser(em: EntityManager, row: SessionUserRow): User {
     : null;
   return em.merge(User, {
     id: row.id, createdAt: new Date(row.created_at), updatedAt: new Date(row.updated_at),
-    email: row.email, name: row.name, role: row.role as Role, active: row.active,
+    email: row.email, name: row.name, role: row.role as Role, active: row.active, membership: row.membership,
     lastSignInAt: row.last_sign_in_at ? new Date(row.last_sign_in_at) : null, vendorOrganisation: organisation,
   });
 }

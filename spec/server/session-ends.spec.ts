@@ -46,6 +46,16 @@ test('after deactivation the very next request is 401, even if the session row w
   expect((await b.get('/api/session')).status).toBe(401);
 });
 
+test("a vendor whose place in its firm is no longer approved is 401 on the very next request, even with its session row left behind", async () => {
+  const user = await makeUser(t, 'vendor');
+  const b = await signedIn(t, user);
+  expect((await b.get('/api/tenders')).status).toBe(200);
+  // Behind the API's back: the firm's approval is gone but the session row is still there.
+  await sql(`update app_user set membership = 'pending' where id = ?`, [user.id]);
+  expect(await sessionsOf(user.id)).toHaveLength(1);
+  expect((await b.get('/api/tenders')).status).toBe(401);
+});
+
 test('a session deleted from the store (as a password reset does to every other session) ends on its very next request', async () => {
   const user = await makeUser(t, 'vendor');
   const first = await signedIn(t, user);
