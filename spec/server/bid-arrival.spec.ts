@@ -3,6 +3,7 @@ import { AuditEntry, Bid, Tender } from '../../server/entities';
 import { CLOSING_GRACE_MS, closeIfDue } from '../../server/services/tender-access';
 import { makeUser, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
 import { openTender } from '../support/tenders';
+import { waitFor } from '../support/wait';
 
 /**
  * A bid is on time when its request arrived in full before the closing time (stamped by the server
@@ -48,13 +49,12 @@ async function closeJustAfter(tenderId: string, arrivedAt: Date): Promise<Date> 
 
 /** Waits until some backend of the test database waits for a lock. */
 async function someoneWaitsForALock(): Promise<void> {
-  for (;;) {
+  await waitFor('a backend of the test database to wait for a lock', async () => {
     const [row] = await t.em().getConnection().execute<{ n: string }[]>(
       `select count(*) as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock'`,
     );
-    if (Number(row.n) > 0) return;
-    await new Promise((r) => setTimeout(r, 20));
-  }
+    return Number(row.n) > 0;
+  }, { everyMs: 20 });
 }
 
 test('a bid whose request arrived before the closing time is accepted and stamped with its arrival, though its transaction starts after it', async () => {

@@ -6,6 +6,7 @@ import { auditLockKey } from '../../server/services/audit.service';
 import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
 import { openTender, passClosingTime } from '../support/tenders';
+import { waitFor } from '../support/wait';
 
 /**
  * Decisions cannot contradict: two decisions on one tender sent at the same moment never both win.
@@ -44,20 +45,19 @@ async function race(tenderId: string, requests: (() => PromiseLike<Response>)[])
     await hold.query('select pg_advisory_xact_lock(hashtext($1))', [auditLockKey(tenderId)]);
     let answered = 0;
     const pending = requests.map((r) => Promise.resolve(r()).then((res) => { answered += 1; return res; }));
-    const deadline = Date.now() + 30_000;
-    for (;;) {
+    let waiting = 0;
+    await waitFor('every request to wait for the lock or to have answered', async () => {
       // pg_stat_activity is read once per transaction and then kept: clear that snapshot each time.
       await hold.query('select pg_stat_clear_snapshot()');
       const { rows } = await hold.query<{ n: number }>(
         `select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and pid <> pg_backend_pid()`,
       );
-      if (rows[0].n + answered >= requests.length) break;
-      if (Date.now() > deadline) {
-        const activity = await hold.query(`select state, wait_event_type, wait_event, left(query, 120) as query from pg_stat_activity where datname = current_database() and pid <> pg_backend_pid()`);
-        throw new Error(`only ${rows[0].n} waiting and ${answered} answered of ${requests.length}: ${JSON.stringify(activity.rows)}`);
-      }
-      await new Promise((r) => setTimeout(r, 10));
-    }
+      waiting = rows[0].n;
+      return waiting + answered >= requests.length;
+    }, { timeoutMs: 30_000, everyMs: 10 }).catch(async (error: Error) => {
+      const activity = await hold.query(`select state, wait_event_type, wait_event, left(query, 120) as query from pg_stat_activity where datname = current_database() and pid <> pg_backend_pid()`);
+      throw new Error(`${error.message}: only ${waiting} waiting and ${answered} answered of ${requests.length}: ${JSON.stringify(activity.rows)}`);
+    });
     await hold.query('commit');
     return await Promise.all(pending);
   } finally {

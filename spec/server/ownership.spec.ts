@@ -6,6 +6,7 @@ import type { AnyRoute } from '../../server/http/route';
 import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
 import { openTender, passClosingTime, tenderBody } from '../support/tenders';
+import { waitFor } from '../support/wait';
 
 /**
  * Ownership: a buyer edits and evaluates only the tenders it created. Another buyer gets 404 — not
@@ -72,10 +73,7 @@ beforeAll(async () => {
   expect((await owner.post(`/api/tenders/${tenderId}/notices`)).status).toBe(202);
   ids['notice'] = (await t.em().findOneOrFail(Notice, { tender: tenderId })).id;
   // Once the letter is out the tender is notified: wait for that, so that its status stays put below.
-  for (let i = 0; (await t.em().findOneOrFail(Tender, { id: tenderId })).status !== 'notified'; i++) {
-    if (i > 240) throw new Error('the notice was not sent');
-    await new Promise((r) => setTimeout(r, 250));
-  }
+  await waitFor('the notice to be sent (tender notified)', async () => (await t.em().findOneOrFail(Tender, { id: tenderId })).status === 'notified');
 });
 afterAll(() => t.close());
 

@@ -6,6 +6,7 @@ import { Bid } from '../../server/entities';
 import { call, signIn, type Session } from '../../server/bench/support/http';
 import { makeUser, startTestApp, TEST_PASSWORD, type TestApp } from '../support/app';
 import { tenderBody } from '../support/tenders';
+import { waitFor } from '../support/wait';
 
 /**
  * The web server keeps no state of its own — sessions, failed sign-in counts, uploads, jobs and
@@ -48,12 +49,11 @@ async function startWebProcess(secret: string): Promise<string> {
   servers.push(child);
   const url = `http://127.0.0.1:${port}`;
   // Ready when it answers; a process that exits fails the test at once.
-  for (;;) {
+  return waitFor(`the web process on port ${port} to answer`, async () => {
     if (child.exitCode !== null) throw new Error(`the web process on port ${port} exited with ${child.exitCode}`);
     const status = await fetch(`${url}/api/session`).then((r) => r.status, () => 0);
-    if (status === 401) return url;
-    await new Promise((r) => setTimeout(r, 100));
-  }
+    return status === 401 && url;
+  });
 }
 
 beforeAll(async () => {
