@@ -1,6 +1,7 @@
 import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { MatButtonModule } from '@angular/material/button';
-import { MAT_DIALOG_DATA, MatDialogModule } from '@angular/material/dialog';
+import { MAT_DIALOG_DATA, MatDialogModule, type MatDialog } from '@angular/material/dialog';
+import { filter, type Observable } from 'rxjs';
 
 export interface ConfirmData {
   title: string;
@@ -43,4 +44,12 @@ export interface ConfirmData {
 })
 export class ConfirmDialog {
   protected readonly data = inject<ConfirmData>(MAT_DIALOG_DATA);
+}
+
+/** Asks `question` in a ConfirmDialog; emits once, only if the person confirmed. */
+export function whenConfirmed(dialog: MatDialog, question: ConfirmData): Observable<true> {
+  return dialog
+    .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data: question, maxWidth: '95vw' })
+    .afterClosed()
+    .pipe(filter((confirmed): confirmed is true => confirmed === true));
 }

@@ -7,7 +7,8 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import type { MemberView, Membership } from '@shared/people';
 import { ApiError } from '../../core/http/api-error';
-import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { switchMap } from 'rxjs';
+import { type ConfirmData, whenConfirmed } from '../../ui/confirm-dialog';
 import { OrganisationApi } from '../organisation-api';
 
 type Member = MemberView['people'][number];
@@ -65,22 +66,18 @@ export class Members {
   }
 
   private decide(person: Member, question: ConfirmData, approve: boolean, done: string): void {
-    this.dialog
-      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data: question, maxWidth: '95vw' })
-      .afterClosed()
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe((confirmed) => {
-        if (!confirmed) return;
-        (approve ? this.api.approve(person.id) : this.api.refuse(person.id))
-          .pipe(takeUntilDestroyed(this.destroyRef))
-          .subscribe({
-            next: (updated) => {
-              this.view.set(updated);
-              this.status.set(done);
-            },
-            error: (error: unknown) =>
-              this.status.set(error instanceof ApiError ? error.userMessage : 'That did not work. Please try again.'),
-          });
+    whenConfirmed(this.dialog, question)
+      .pipe(
+        switchMap(() => (approve ? this.api.approve(person.id) : this.api.refuse(person.id))),
+        takeUntilDestroyed(this.destroyRef),
+      )
+      .subscribe({
+        next: (updated) => {
+          this.view.set(updated);
+          this.status.set(done);
+        },
+        error: (error: unknown) =>
+          this.status.set(error instanceof ApiError ? error.userMessage : 'That did not work. Please try again.'),
       });
   }
 }

@@ -22,10 +22,10 @@ import { MatSort, MatSortModule } from '@angular/material/sort';
 import { MatTableDataSource, MatTableModule } from '@angular/material/table';
 import { ROLE_LABELS } from '@shared/roles';
 import type { PersonView } from '@shared/people';
-import { Observable, map } from 'rxjs';
+import { Observable, map, switchMap } from 'rxjs';
 import { Auth } from '../../core/auth/auth';
 import { ApiError } from '../../core/http/api-error';
-import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { type ConfirmData, whenConfirmed } from '../../ui/confirm-dialog';
 import { AdminAudit } from '../admin-audit/admin-audit';
 import { InviteDialog } from '../invite-dialog/invite-dialog';
 import { PeopleApi } from '../people-api';
@@ -210,49 +210,34 @@ export class PeopleList {
   }
 
   protected sendPasswordReset(person: PersonView): void {
-    this.dialog
-      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, {
-        data: {
-          title: `Send ${person.name} a password reset?`,
-          message: `A one-time link goes to ${person.email} only. When ${person.name} uses it, every session they have open ends. Their present password works until then.`,
-          confirm: 'Send reset link',
+    whenConfirmed(this.dialog, {
+      title: `Send ${person.name} a password reset?`,
+      message: `A one-time link goes to ${person.email} only. When ${person.name} uses it, every session they have open ends. Their present password works until then.`,
+      confirm: 'Send reset link',
+    })
+      .pipe(
+        switchMap(() => this.api.sendPasswordReset(person.id)),
+        takeUntilDestroyed(this.destroyRef),
+      )
+      .subscribe({
+        next: () => {
+          this.audit()?.reload();
+          this.status.set(`A password reset link was sent to ${person.email}.`);
         },
-        maxWidth: '95vw',
-      })
-      .afterClosed()
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe((confirmed) => {
-        if (!confirmed) return;
-        this.api
-          .sendPasswordReset(person.id)
-          .pipe(takeUntilDestroyed(this.destroyRef))
-          .subscribe({
-            next: () => {
-              this.audit()?.reload();
-              this.status.set(`A password reset link was sent to ${person.email}.`);
-            },
-            error: (error: unknown) => this.status.set(this.describe(error)),
-          });
+        error: (error: unknown) => this.status.set(this.describe(error)),
       });
   }
 
   private confirmThen(question: ConfirmData, action: () => Observable<PersonView>, done: string): void {
-    this.dialog
-      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data: question, maxWidth: '95vw' })
-      .afterClosed()
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe((confirmed) => {
-        if (!confirmed) return;
-        action()
-          .pipe(takeUntilDestroyed(this.destroyRef))
-          .subscribe({
-            next: (updated) => {
-              this.rows.update((rows) => rows.map((row) => (row.id === updated.id ? updated : row)));
-              this.audit()?.reload();
-              this.status.set(done);
-            },
-            error: (error: unknown) => this.status.set(this.describe(error)),
-          });
+    whenConfirmed(this.dialog, question)
+      .pipe(switchMap(action), takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (updated) => {
+          this.rows.update((rows) => rows.map((row) => (row.id === updated.id ? updated : row)));
+          this.audit()?.reload();
+          this.status.set(done);
+        },
+        error: (error: unknown) => this.status.set(this.describe(error)),
       });
   }
 
