@@ -147,7 +147,9 @@ else
   reports=(.test-results/unit.json)
   if [ -z "${SKIP_E2E:-}" ]; then
     say "Running the browser tests (Chromium)"
-    npx jest --ci -c jest.e2e.config.js --forceExit --json --outputFile=.test-results/e2e.json || status=1
+    # E2E_ARGS (e.g. one file: E2E_ARGS=spec/e2e/tenders.e2e.ts) narrows the browser run while developing.
+    # shellcheck disable=SC2086 # word splitting of E2E_ARGS is the point
+    npx jest --ci -c jest.e2e.config.js --forceExit --json --outputFile=.test-results/e2e.json ${E2E_ARGS:-} || status=1
     reports+=(.test-results/e2e.json)
   else
     # Counted, not run: jest lists every browser test as skipped (no name matches), without the
