@@ -74,6 +74,12 @@ export const awardRulesSchema = z.object({
   require: z.array(idSchema, { error: 'Required vendors must be a list of vendor ids.' }).default([]),
   /** Least share of the total forecast that must go to SME vendors. */
   smeShare: fraction('SME share').optional(),
+  /** Quantities are awarded in whole multiples of this (e.g. 1 or 25 units); absent: any quantity. */
+  awardIncrement: z
+    .number({ error: 'Award increment must be a number.' })
+    .refine(Number.isFinite, { error: 'Award increment must be a finite number.' })
+    .refine((v) => v > 0, { error: 'Award increment must be greater than 0 (leave it out for none).' })
+    .optional(),
 });
 
 export const awardOptionsSchema = z.object({

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { emailSchema } from './auth';
+import { awardRulesSchema } from './award';
 import { bidInputSchema, regionListSchema } from './bids';
 import { plainText } from './text';
 
@@ -13,6 +14,31 @@ export type BidStatus = (typeof BID_STATUSES)[number];
 
 const text = (label: string, max: number) =>
   plainText(z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` }), label);
+
+/**
+ * The award basis published with the tender: the engine's rules (same field names) that are fixed
+ * before bids arrive. Which vendors are excluded or required is not part of it: exclusions come
+ * from the compliance check of each bid, with its ground.
+ */
+export const awardBasisSchema = awardRulesSchema.omit({ exclude: true, require: true });
+export type AwardBasis = z.output<typeof awardBasisSchema>;
+export const DEFAULT_AWARD_BASIS: AwardBasis = { sourcing: 'split', soleRegions: [] };
+
+/** The contracting authority named in notices and exports. */
+export const buyingBodySchema = z.object({
+  name: text('Buying body name', 200),
+  address: plainText(z.string({ error: 'Address must be text.' }).trim().max(500, { error: 'Address must be at most 500 characters.' }), 'Address', true).default(''),
+  email: emailSchema,
+  /** ISO 3166-1 alpha-2. */
+  country: z.string({ error: 'Country is required.' }).regex(/^[A-Z]{2}$/, { error: 'Country must be a two-letter ISO 3166-1 code such as IE.' }),
+});
+export type BuyingBody = z.output<typeof buyingBodySchema>;
+
+/** An IANA time zone name the runtime knows (Europe/Dublin, UTC…). */
+export const timeZoneSchema = z
+  .string({ error: 'Time zone must be text.' })
+  .max(64, { error: 'Time zone must be at most 64 characters.' })
+  .refine((tz) => { try { new Intl.DateTimeFormat('en', { timeZone: tz }); return /^[A-Za-z_]+(\/[A-Za-z0-9_+-]+)*$/.test(tz); } catch { return false; } }, { error: 'Time zone must be an IANA name such as Europe/Dublin.' });
 
 /** POST /api/tenders and PUT /api/tenders/:id (drafts only). */
 export const tenderInputSchema = z.object({
@@ -43,8 +69,38 @@ export const tenderInputSchema = z.object({
     .default('en-GB'),
   description: plainText(z.string({ error: 'Description must be text.' }).max(5000, { error: 'Description must be at most 5000 characters.' }), 'Description', true).default(''),
   regions: regionListSchema,
+  /** The award rules vendors bid against; locked at publish. */
+  awardBasis: awardBasisSchema.default(DEFAULT_AWARD_BASIS),
+  buyingBody: buyingBodySchema.nullable().default(null),
+  /** Closing times are entered and shown in this zone. */
+  timeZone: timeZoneSchema.default('UTC'),
+  /** Pre-tender estimate of the contract value, in the tender's currency; never shown to vendors. */
+  estimatedValue: z
+    .number({ error: 'Estimated value must be a number.' })
+    .refine(Number.isFinite, { error: 'Estimated value must be a finite number.' })
+    .min(0, { error: 'Estimated value must not be negative.' })
+    .max(1e13, { error: 'Estimated value must be below 10,000,000,000,000.' })
+    .nullable()
+    .default(null),
+  /** Days after closing during which bids must stay valid (90 is common practice). */
+  bidValidityDays: z
+    .number({ error: 'Bid validity must be a whole number of days.' })
+    .int({ error: 'Bid validity must be a whole number of days.' })
+    .min(1, { error: 'Bid validity must be at least 1 day.' })
+    .max(730, { error: 'Bid validity must be at most 730 days.' })
+    .default(90),
+  /** Last time for vendors' questions; absent: 5 days before closing. */
+  clarificationsCloseAt: z.iso.datetime({ offset: true, error: 'Clarification deadline must be a date and time (ISO 8601 with a time zone).' }).nullable().default(null),
+  /** A unit price or bid total this many percent below the median is flagged as abnormally low. */
+  abnormallyLowPercent: z
+    .number({ error: 'Abnormally low threshold must be a number of percent.' })
+    .min(1, { error: 'Abnormally low threshold must be at least 1 %.' })
+    .max(90, { error: 'Abnormally low threshold must be at most 90 %.' })
+    .default(20),
 });
 export type TenderInput = z.infer<typeof tenderInputSchema>;
+/** A tender body as a client sends it (fields with a default may be left out). */
+export type TenderInputBody = z.input<typeof tenderInputSchema>;
 
 export const tenderListQuerySchema = z.object({
   status: z.enum(TENDER_STATUSES, { error: 'Unknown status.' }).optional(),
@@ -101,6 +157,15 @@ export interface TenderView extends TenderSummary {
   publishedAt: string | null;
   closedAt: string | null;
   regions: RegionView[];
+  awardBasis: AwardBasis;
+  buyingBody: BuyingBody | null;
+  timeZone: string;
+  bidValidityDays: number;
+  /** When vendors' questions close (the stored one, or 5 days before closing). */
+  clarificationsCloseAt: string;
+  abnormallyLowPercent: number;
+  /** Buyer, compliance and admin only: the pre-tender estimate. */
+  estimatedValue?: number | null;
   /** Buyer, compliance and admin only. */
   invitations?: { vendorOrganisation: { id: string; name: string; sme: boolean }; invitedAt: string }[];
   /** Buyer, compliance and admin: how many vendors have a submitted bid (never what they bid before closing). */

@@ -1,5 +1,5 @@
-import { Collection, Entity, Enum, ManyToOne, OneToMany, Property, Unique, type Opt } from '@mikro-orm/core';
-import { TENDER_STATUSES, type TenderStatus } from '@shared/tenders';
+import { Collection, DecimalType, Entity, Enum, ManyToOne, OneToMany, Property, Unique, type Opt } from '@mikro-orm/core';
+import { TENDER_STATUSES, type AwardBasis, type BuyingBody, type TenderStatus } from '@shared/tenders';
 import { BaseEntity } from './base.entity';
 import { Region } from './region.entity';
 import { User } from './user.entity';
@@ -49,6 +49,31 @@ export class Tender extends BaseEntity {
 
   @Property({ type: 'datetime', nullable: true })
   closedAt?: Date | null;
+
+  /** The award rules published with the tender (engine field names); locked at publish. */
+  @Property({ type: 'json' })
+  awardBasis: AwardBasis & Opt = { sourcing: 'split', soleRegions: [] };
+
+  @Property({ type: 'json', nullable: true })
+  buyingBody?: BuyingBody | null;
+
+  /** IANA name; closing times are entered and shown in it. */
+  @Property({ type: 'string', length: 64, default: 'UTC' })
+  timeZone: string & Opt = 'UTC';
+
+  /** Pre-tender estimate; never shown to vendors. */
+  @Property({ type: new DecimalType('number'), precision: 16, scale: 2, nullable: true })
+  estimatedValue?: number | null;
+
+  @Property({ type: 'integer', default: 90 })
+  bidValidityDays: number & Opt = 90;
+
+  /** null: 5 days before closing. */
+  @Property({ type: 'datetime', nullable: true })
+  clarificationsCloseAt?: Date | null;
+
+  @Property({ type: new DecimalType('number'), precision: 5, scale: 2, default: 20 })
+  abnormallyLowPercent: number & Opt = 20;
 
   @OneToMany({ entity: () => Region, mappedBy: 'tender', orderBy: { position: 'asc' } })
   regions = new Collection<Region>(this);

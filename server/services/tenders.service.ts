@@ -97,7 +97,14 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
     publishedAt: tender.publishedAt?.toISOString() ?? null,
     closedAt: tender.closedAt?.toISOString() ?? null,
     regions: regions.map((r) => ({ code: r.code, name: r.name, forecast: r.forecast })),
+    awardBasis: tender.awardBasis,
+    buyingBody: tender.buyingBody ?? null,
+    timeZone: tender.timeZone,
+    bidValidityDays: tender.bidValidityDays,
+    clarificationsCloseAt: clarificationsCloseAt(tender).toISOString(),
+    abnormallyLowPercent: tender.abnormallyLowPercent,
   };
+  if (user.role !== 'vendor') view.estimatedValue = tender.estimatedValue ?? null;
   if (user.role === 'vendor') {
     const bid = await em.findOne(Bid, { tender, vendorOrganisation: user.vendorOrganisation! });
     view.myBidStatus = bid?.status ?? null;
@@ -120,6 +127,17 @@ function checkClosingTime(input: TenderInput): Date {
   return closesAt;
 }
 
+/** The tender's own columns from the input (regions are rows of their own). */
+function tenderFields(input: TenderInput) {
+  const { regions: _regions, clarificationsCloseAt, ...fields } = input;
+  return { ...fields, clarificationsCloseAt: clarificationsCloseAt ? new Date(clarificationsCloseAt) : null };
+}
+
+/** Vendors' questions close at the stored deadline, else 5 days before closing. */
+export function clarificationsCloseAt(t: Tender): Date {
+  return t.clarificationsCloseAt ?? new Date(t.closesAt.getTime() - 5 * 24 * 3600_000);
+}
+
 function writeRegions(em: EntityManager, tender: Tender, regions: RegionInput[]): void {
   regions.forEach((r, position) => em.create(Region, { tender, code: r.code, name: r.name, forecast: r.forecast, position }));
 }
@@ -130,9 +148,8 @@ export async function createTender(em: EntityManager, user: User, input: TenderI
     if (await tx.count(Tender, { reference: input.reference })) {
       throw new ConflictError('A tender with this reference exists.', [{ field: 'reference', message: 'This reference is already used.' }]);
     }
-    const { regions, ...fields } = input;
-    const tender = tx.create(Tender, { ...fields, closesAt, createdBy: user });
-    writeRegions(tx, tender, regions);
+    const tender = tx.create(Tender, { ...tenderFields(input), closesAt, createdBy: user });
+    writeRegions(tx, tender, input.regions);
     await tx.flush();
     await audit(tx, { tenderId: tender.id, actor: user, action: 'tender.created', subject: 'tender', after: input });
     return tender.id;
@@ -149,11 +166,10 @@ export async function updateTender(em: EntityManager, user: User, id: string, in
     if (input.reference !== tender.reference && (await tx.count(Tender, { reference: input.reference }))) {
       throw new ConflictError('A tender with this reference exists.', [{ field: 'reference', message: 'This reference is already used.' }]);
     }
-    const { regions, ...fields } = input;
     const before = { reference: tender.reference, title: tender.title, closesAt: tender.closesAt.toISOString() };
-    tx.assign(tender, { ...fields, closesAt });
+    tx.assign(tender, { ...tenderFields(input), closesAt });
     await tx.nativeDelete(Region, { tender });
-    writeRegions(tx, tender, regions);
+    writeRegions(tx, tender, input.regions);
     await tx.flush();
     await audit(tx, { tenderId: tender.id, actor: user, action: 'tender.updated', subject: 'tender', before, after: input });
   });

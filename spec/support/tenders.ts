@@ -1,11 +1,11 @@
-import type { TenderInput } from '@shared/tenders';
+import type { TenderInputBody } from '@shared/tenders';
 import { Tender } from '../../server/entities';
 import { CLOSING_GRACE_MS } from '../../server/services/tender-access';
 import type { Browser, TestApp } from './app';
 
 let seq = 0;
 /** A tender body with `n` regions R01…, closing in `minutes`. */
-export function tenderBody(n = 3, minutes = 60, overrides: Partial<TenderInput> = {}): TenderInput {
+export function tenderBody(n = 3, minutes = 60, overrides: Partial<TenderInputBody> = {}): TenderInputBody {
   const locale = 'en-GB';
   seq += 1;
   return {

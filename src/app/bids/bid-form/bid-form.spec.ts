@@ -26,6 +26,12 @@ const tender: TenderView = {
   standstillDays: 10,
   publishedAt: '2026-11-01T09:00:00Z',
   closedAt: null,
+  awardBasis: { sourcing: 'split', soleRegions: [] },
+  buyingBody: null,
+  timeZone: 'UTC',
+  bidValidityDays: 90,
+  clarificationsCloseAt: '2026-11-15T12:00:00Z',
+  abnormallyLowPercent: 20,
   regions: [
     { code: 'HVN', name: 'Harrowven depot', forecast: 400 },
     { code: 'QSL', name: 'Quillstead depot', forecast: 300 },

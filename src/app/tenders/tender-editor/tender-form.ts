@@ -110,6 +110,14 @@ export function formBody(form: TenderForm): unknown {
     locale: v.locale.trim(),
     description: v.description,
     regions: v.regions,
+    // Not in the form yet: the server's defaults apply.
+    awardBasis: undefined,
+    buyingBody: undefined,
+    timeZone: undefined,
+    estimatedValue: undefined,
+    bidValidityDays: undefined,
+    clarificationsCloseAt: undefined,
+    abnormallyLowPercent: undefined,
   } satisfies Record<keyof TenderInput, unknown>;
 }
 
