@@ -82,6 +82,19 @@ export default tseslint.config(
     },
   },
 
+  // Every environment variable is read and validated in server/config.ts (loadConfig, setting):
+  // a misspelt or malformed one fails at start with its name, and the list of them is one file.
+  {
+    files: ['server/**/*.ts', 'shared/**/*.ts', 'src/**/*.ts', 'seeds/**/*.ts'],
+    ignores: ['server/config.ts', 'server/bench/**'],
+    rules: {
+      'no-restricted-properties': ['error', {
+        object: 'process', property: 'env',
+        message: 'Read environment variables in server/config.ts (loadConfig or setting()), nowhere else.',
+      }],
+    },
+  },
+
   // MikroORM's generated migrations: up() and down() are async by its Migration API, whether they
   // await or not.
   { files: ['server/migrations/*.ts'], rules: { '@typescript-eslint/require-await': 'off' } },

@@ -7,6 +7,7 @@ import express, { type Express } from 'express';
 import session from 'express-session';
 import helmet from 'helmet';
 import { pinoHttp } from 'pino-http';
+import { setting } from './config';
 import { configurePassport } from './auth/passport';
 import { createSessionStore } from './auth/session-store';
 import { signInLimits } from './auth/sign-in-limits';
@@ -37,7 +38,7 @@ export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): An
     route({
       method: 'get', path: '/openapi.json', tag: 'Meta', access: 'public',
       summary: 'This document.',
-      handler: () => openApiDocument(routes, process.env['npm_package_version'] ?? '0.1.0'),
+      handler: () => openApiDocument(routes, setting('npm_package_version')),
     }),
   );
   return routes;

@@ -101,3 +101,31 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     signInIpLimit: e.SIGN_IN_IP_LIMIT,
   };
 }
+
+/**
+ * Settings that modules read on their own, outside `Config` (the logger, the queue, the award
+ * engine's thread pools, the command-line tools), each validated here when it is read. They are
+ * read when used, not at import, so a test can set one for the process it starts.
+ */
+const settingSchemas = {
+  LOG_LEVEL: envSchema.shape.LOG_LEVEL,
+  /** How soon the jobs of a worker that died are expired and retried elsewhere (pg-boss maintenance). */
+  QUEUE_MAINTENANCE_SECONDS: z.coerce.number().int().min(1).max(3600).default(15),
+  /** Seconds between tries of a notice while the mail server is unreachable, and how many tries in all. */
+  NOTICE_RETRY_SECONDS: z.coerce.number().int().min(1).max(86_400).default(30),
+  NOTICE_RETRY_LIMIT: z.coerce.number().int().min(1).max(10_000).default(240),
+  /** Threads of each award solver pool (server/award/workers.ts); at least 2. */
+  AWARD_SOLVER_THREADS: z.coerce.number().int().min(2).max(64).default(2),
+  /** The database of the command-line tools (migrate, seed, migration:create). */
+  DATABASE_URL: z.string().default(''),
+  /** Set by npm for `npm run` and `npm start`; the API document's version. */
+  npm_package_version: z.string().default('0.1.0'),
+} as const;
+type Settings = { [K in keyof typeof settingSchemas]: z.output<(typeof settingSchemas)[K]> };
+
+/** One setting from the environment, validated; a bad value throws an error naming the variable. */
+export function setting<K extends keyof Settings>(name: K, env: NodeJS.ProcessEnv = process.env): Settings[K] {
+  const parsed = settingSchemas[name].safeParse(env[name]);
+  if (!parsed.success) throw new Error(`Invalid configuration:\n  ${name}: ${parsed.error.issues.map((i) => i.message).join('; ')}`);
+  return parsed.data as Settings[K];
+}

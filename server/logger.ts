@@ -1,4 +1,5 @@
 import pino from 'pino';
+import { setting } from './config';
 
 /**
  * The one structured logger of the server (JSON lines on stdout). Written asynchronously: a
@@ -8,7 +9,7 @@ import pino from 'pino';
  */
 export const logger = pino(
   {
-    level: process.env['LOG_LEVEL'] ?? 'info',
+    level: setting('LOG_LEVEL'),
     base: { app: 'tendara' },
     redact: { paths: ['req.headers.cookie', 'req.headers["x-xsrf-token"]', 'password', '*.password'], remove: true },
   },

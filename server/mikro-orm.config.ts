@@ -2,6 +2,7 @@ import path from 'node:path';
 import { defineConfig } from '@mikro-orm/postgresql';
 import { Migrator } from '@mikro-orm/migrations';
 import { ENTITIES } from './entities';
+import { setting } from './config';
 
 /**
  * MikroORM options. The schema changes only through migrations (server/migrations), never by
@@ -37,4 +38,4 @@ export function ormConfig(databaseUrl: string, options: { debug?: boolean } = {}
   });
 }
 
-export default ormConfig(process.env['DATABASE_URL'] ?? 'postgresql://localhost/tendara');
+export default ormConfig(setting('DATABASE_URL') || 'postgresql://localhost/tendara');

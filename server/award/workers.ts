@@ -1,6 +1,7 @@
 import { existsSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import Piscina from 'piscina';
+import { setting } from '../config';
 
 /**
  * The worker-thread pool for solver runs. Solvers are synchronous WebAssembly: run in the main
@@ -33,7 +34,7 @@ export function solverPool(file = 'highs-worker.mjs'): Piscina {
     pool = new Piscina({
       // Two runs of one solver at most per solve (HiGHS A and B); more threads than that only
       // compete for the same cores.
-      maxThreads: Math.max(2, Number(process.env.AWARD_SOLVER_THREADS) || 2),
+      maxThreads: setting('AWARD_SOLVER_THREADS'),
       minThreads: 0,
       idleTimeout: 10_000,
       // Node 20.19+ lets require() load an ES module, and piscina tries require() first; that path

@@ -1,6 +1,7 @@
 import PgBoss from 'pg-boss';
 import { logger } from '../logger';
 import type { Mailer, OutgoingMail } from '../mail/mailer';
+import { setting } from '../config';
 
 /** Queue names. Jobs live in PostgreSQL (pg-boss), so workers on other machines can share them. */
 export const QUEUES = {
@@ -29,7 +30,7 @@ export function createBoss(databaseUrl: string, options: { install?: boolean } =
     supervise: !options.install,
     schedule: !options.install,
     // How soon the jobs of a worker that died are expired and retried elsewhere.
-    maintenanceIntervalSeconds: Number(process.env['QUEUE_MAINTENANCE_SECONDS'] ?? 15),
+    maintenanceIntervalSeconds: setting('QUEUE_MAINTENANCE_SECONDS'),
   });
   boss.on('error', (err) => logger.error({ err }, 'job queue error'));
   return boss;
@@ -69,8 +70,8 @@ export async function startTenderCloseWorker(boss: PgBoss, close: (tenderId: str
 }
 
 /** Seconds between tries while the mail server is unreachable, and how many tries in all. */
-export const noticeRetrySeconds = () => Number(process.env['NOTICE_RETRY_SECONDS'] ?? 30);
-export const noticeRetryLimit = () => Number(process.env['NOTICE_RETRY_LIMIT'] ?? 240);
+export const noticeRetrySeconds = () => setting('NOTICE_RETRY_SECONDS');
+export const noticeRetryLimit = () => setting('NOTICE_RETRY_LIMIT');
 
 /** Queues the sending of one notice (server/jobs/notice-job.ts), now or after `delaySeconds`. */
 export async function queueNotice(boss: PgBoss, noticeId: string, delaySeconds = 0): Promise<void> {

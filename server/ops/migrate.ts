@@ -3,6 +3,7 @@ import { MikroORM } from '@mikro-orm/postgresql';
 import { logger } from '../logger';
 import { ormConfig } from '../mikro-orm.config';
 import { createBoss, ensureQueues } from '../jobs/queue';
+import { setting } from '../config';
 
 /**
  * Applies pending MikroORM migrations (all in one transaction), then installs or upgrades
@@ -24,7 +25,7 @@ export async function migrate(databaseUrl: string): Promise<string[]> {
 
 if (require.main === module) {
   const quiet = process.argv.includes('--quiet');
-  migrate(process.env['DATABASE_URL'] ?? '')
+  migrate(setting('DATABASE_URL'))
     .then((names) => {
       if (!quiet) logger.info({ applied: names }, names.length ? 'migrations applied' : 'schema up to date');
     })

@@ -3,6 +3,7 @@ import { MikroORM, type EntityManager } from '@mikro-orm/postgresql';
 import { logger } from '../logger';
 import { ormConfig } from '../mikro-orm.config';
 import { loadDemo } from '../../seeds/demo';
+import { setting } from '../config';
 
 /** Named data sets. Each loads once per database (recorded in seed_history). */
 export const SEEDS: Record<string, (em: EntityManager) => Promise<void>> = {
@@ -27,7 +28,7 @@ export async function seed(em: EntityManager, name: string): Promise<boolean> {
 if (require.main === module) {
   const name = process.argv[2] ?? 'demo';
   (async () => {
-    const orm = await MikroORM.init(ormConfig(process.env['DATABASE_URL'] ?? ''));
+    const orm = await MikroORM.init(ormConfig(setting('DATABASE_URL')));
     try {
       const loaded = await seed(orm.em.fork(), name);
       logger.info({ dataSet: name }, loaded ? 'demo data loaded' : 'demo data already present');
