@@ -1,7 +1,9 @@
+import { CsvError, parse } from 'csv-parse/sync';
+
 /**
- * A small CSV reader for uploads people export from spreadsheets: comma or semicolon separated
+ * Reads CSV uploads people export from spreadsheets with csv-parse: comma or semicolon separated
  * (chosen from the header line), fields optionally in double quotes with "" for a quote, line breaks
- * inside quotes allowed, CRLF or LF, an optional UTF-8 byte-order mark.
+ * inside quotes allowed, CRLF or LF, an optional UTF-8 byte-order mark (removed when decoding).
  */
 
 export interface CsvRecord {
@@ -37,65 +39,44 @@ function detectDelimiter(text: string): ',' | ';' {
   return semicolons > commas ? ';' : ',';
 }
 
+/** What csv-parse reports, in the words of the people who upload the file. */
+function csvMessage(err: CsvError): string {
+  const line = (err as CsvError & { lines?: number }).lines;
+  switch (err.code) {
+    case 'CSV_QUOTE_NOT_CLOSED': return `Line ${line}: a quoted field is never closed.`;
+    case 'INVALID_OPENING_QUOTE': return `Line ${line}: a quote (") appears inside an unquoted field.`;
+    case 'CSV_INVALID_CLOSING_QUOTE': return `Line ${line}: unexpected text after a closing quote.`;
+    default: return `Line ${line}: this line cannot be read as CSV (${err.message}).`;
+  }
+}
+
+/** A record as csv-parse gives it with `info` and `raw`. */
+interface ParsedRecord { record: string[]; info: { lines: number }; raw: string }
+
 export function parseCsv(text: string, maxRecords: number): CsvResult {
   const delimiter = detectDelimiter(text);
-  const records: CsvRecord[] = [];
-  let fields: string[] = [];
-  let field = '';
-  let quoted = false;
-  let afterQuote = false;
-  let line = 1;
-  let recordLine = 1;
-
-  const endField = () => {
-    fields.push(field);
-    field = '';
-    afterQuote = false;
-  };
-  const endRecord = () => {
-    endField();
-    // Blank lines are skipped rather than reported: spreadsheets often leave one at the end.
-    if (fields.some((f) => f.trim() !== '')) records.push({ line: recordLine, fields });
-    fields = [];
-  };
-
-  for (let i = 0; i < text.length; i++) {
-    const ch = text[i];
-    if (quoted) {
-      if (ch === '"') {
-        if (text[i + 1] === '"') {
-          field += '"';
-          i++;
-        } else {
-          quoted = false;
-          afterQuote = true;
-        }
-      } else {
-        if (ch === '\n') line++;
-        field += ch;
-      }
-      continue;
-    }
-    if (ch === '"') {
-      if (field.trim() !== '' || afterQuote) return { ok: false, message: `Line ${line}: a quote (") appears inside an unquoted field.` };
-      field = '';
-      quoted = true;
-    } else if (ch === delimiter) {
-      endField();
-    } else if (ch === '\r' || ch === '\n') {
-      if (ch === '\r' && text[i + 1] === '\n') i++;
-      endRecord();
-      line++;
-      recordLine = line;
-      if (records.length > maxRecords) return { ok: false, message: `The file has more than ${maxRecords} rows.` };
-    } else if (afterQuote) {
-      if (ch.trim() !== '') return { ok: false, message: `Line ${line}: unexpected text after a closing quote.` };
-    } else {
-      field += ch;
-    }
+  let parsed: ParsedRecord[];
+  try {
+    // One kind of line break: csv-parse counts a CRLF inside quotes as two lines.
+    parsed = parse(text.replace(/\r\n?/g, '\n'), {
+      delimiter,
+      relax_column_count: true,
+      // Blank lines (often one at the end) are skipped rather than reported.
+      skip_records_with_empty_values: true,
+      trim: true,
+      info: true,
+      raw: true,
+      // One more than allowed, to tell "too many" from "just enough".
+      to: maxRecords + 1,
+      // csv-parse's types do not model the `info` and `raw` options' record shape.
+    }) as unknown as ParsedRecord[];
+  } catch (err) {
+    if (err instanceof CsvError) return { ok: false, message: csvMessage(err) };
+    throw err;
   }
-  if (quoted) return { ok: false, message: `Line ${recordLine}: a quoted field is never closed.` };
-  if (field !== '' || fields.length > 0) endRecord();
-  if (records.length > maxRecords) return { ok: false, message: `The file has more than ${maxRecords} rows.` };
+  if (parsed.length > maxRecords) return { ok: false, message: `The file has more than ${maxRecords} rows.` };
+  // info.lines is where a record ends; it starts as many lines earlier as it holds line breaks
+  // (raw text includes the line break that ends it).
+  const records = parsed.map(({ record, info, raw }) => ({ line: info.lines - (raw.replace(/\n$/, '').match(/\n/g)?.length ?? 0), fields: record }));
   return { ok: true, delimiter, records };
 }
