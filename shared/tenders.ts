@@ -12,6 +12,32 @@ export type TenderStatus = (typeof TENDER_STATUSES)[number];
 export const BID_STATUSES = ['draft', 'submitted', 'revised', 'withdrawn'] as const;
 export type BidStatus = (typeof BID_STATUSES)[number];
 
+/**
+ * The product's core rules, in one place for server and client (SQL included: `sqlList` in
+ * server/services/sql.ts). A bid counts — it is tabulated, opened, evaluated, answered with a notice — when it
+ * is submitted, or submitted again.
+ */
+export const LIVE_BID_STATUSES = ['submitted', 'revised'] as const satisfies readonly BidStatus[];
+export const isLiveBid = (status: BidStatus): boolean => (LIVE_BID_STATUSES as readonly BidStatus[]).includes(status);
+
+/** Bids are sealed while the tender is in one of these: no figure, nor anything computed from one, leaves the server. */
+export const SEALED_TENDER_STATUSES = ['draft', 'open'] as const satisfies readonly TenderStatus[];
+export const isSealed = (status: TenderStatus): boolean => (SEALED_TENDER_STATUSES as readonly TenderStatus[]).includes(status);
+
+/** Every move a tender may make (from → to); each is a guarded transition on the server. */
+export const TENDER_TRANSITIONS = {
+  draft: ['open'],
+  open: ['closed'],
+  closed: ['awarded'],
+  awarded: ['notified'],
+  notified: [],
+} as const satisfies Record<TenderStatus, readonly TenderStatus[]>;
+
+/** The statuses a tender may move to `to` from. */
+export function statusesBefore(to: TenderStatus): TenderStatus[] {
+  return TENDER_STATUSES.filter((from) => (TENDER_TRANSITIONS[from] as readonly TenderStatus[]).includes(to));
+}
+
 const text = (label: string, max: number) =>
   plainText(z.string({ error: `${label} is required.` }).trim().min(1, { error: `${label} is required.` }).max(max, { error: `${label} must be at most ${max} characters.` }), label);
 

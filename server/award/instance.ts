@@ -1,5 +1,6 @@
 import { awardProblemSchema, type ValidAwardProblem } from '../../shared/award';
 import { AwardInputError } from './errors';
+import { fieldPath } from '@shared/field-path';
 
 /** A vendor after normalisation: indices instead of ids, caps made explicit. */
 export interface InstanceVendor {
@@ -41,16 +42,6 @@ export interface AwardInstance {
   };
   timeLimitSeconds: number;
   relativeGap: number;
-}
-
-/** Turns a zod path into the field notation of our error lists: `vendors[2].prices.R07`. */
-export function fieldPath(path: readonly PropertyKey[]): string {
-  let out = '';
-  for (const part of path) {
-    if (typeof part === 'number') out += `[${part}]`;
-    else out += out ? `.${String(part)}` : String(part);
-  }
-  return out;
 }
 
 /** Validates a problem file; throws AwardInputError naming every refused field. */

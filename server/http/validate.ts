@@ -1,13 +1,11 @@
 import type { z } from 'zod';
 import { ValidationError, type FieldError } from './errors';
+import { fieldPath } from '@shared/field-path';
 
 /** zod issues → field errors with dotted paths (`prices.R07`, `regions[2].code`). */
 export function fieldErrors(error: z.ZodError, prefix = ''): FieldError[] {
   return error.issues.map((issue) => {
-    const field = issue.path.reduce<string>((acc, part) => {
-      if (typeof part === 'number') return `${acc}[${part}]`;
-      return acc ? `${acc}.${String(part)}` : String(part);
-    }, prefix);
+    const field = fieldPath(issue.path, prefix);
     return { field: field || '(body)', message: issue.message };
   });
 }

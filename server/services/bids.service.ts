@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { recordByCode, type BidFigures } from '@shared/bids';
-import type { BidSave, BidStatus, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
+import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
 import { wrap } from '@mikro-orm/core';
 import { Bid, BidDocument, Tender, type User } from '../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../http/errors';
@@ -16,6 +16,8 @@ import { regionInputs } from './tenders.service';
 import { audit } from './audit.service';
 import { bidCommitment, commitBid } from './bid-commitment';
 import { closeIfDue, findVisibleTender } from './tender-access';
+import { isLiveBid, isSealed, LIVE_BID_STATUSES } from '@shared/tenders';
+import { sqlList } from './sql';
 
 export interface BidDeps {
   em: EntityManager;
@@ -35,13 +37,10 @@ export interface BidHooks {
   beforeBidCommit?: (at: { tenderId: string; arrivedAt: Date }) => Promise<void>;
 }
 
-const LIVE: BidStatus[] = ['submitted', 'revised'];
 const utc = (d: Date) => d.toISOString().slice(0, 19).replace('T', ' ') + ' UTC';
 /** A receipt time, to the millisecond. */
 const utcMs = (d: Date) => d.toISOString().replace('T', ' ').replace('Z', ' UTC');
 
-/** Bids are sealed while the tender is a draft or open: no figure, nor anything computed from one. */
-const isSealed = (tender: Pick<Tender, 'status'>) => tender.status === 'draft' || tender.status === 'open';
 
 /** `nonce` only once the tender is closed: before, it would let a reader test guesses of the figures. */
 function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), document = bid.document ?? null, revealNonce = false): BidView {
@@ -73,7 +72,7 @@ function vendorOf(user: User) {
 export async function ownBid(em: EntityManager, user: User, tenderId: string): Promise<BidView | null> {
   const tender = await findVisibleTender(em, user, tenderId);
   const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user) }, { populate: ['lines.region', 'document'] });
-  return bid ? bidView(bid, undefined, undefined, !isSealed(tender)) : null;
+  return bid ? bidView(bid, undefined, undefined, !isSealed(tender.status)) : null;
 }
 
 class BiddingClosed extends ConflictError {
@@ -149,7 +148,7 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
     if ((existing?.version ?? null) !== loaded) {
       throw new ConflictError('This bid was changed elsewhere (another tab or a colleague) since you loaded it. Reload it to see the current figures; nothing was saved.');
     }
-    if (existing && !input.submit && LIVE.includes(existing.status)) {
+    if (existing && !input.submit && isLiveBid(existing.status)) {
       throw new ConflictError('This bid is submitted. Submit your changes as a revision, or withdraw the bid.');
     }
     const bid = existing ?? tx.create(Bid, { tender, vendorOrganisation: org, fixedFee: input.fixedFee, capacity: input.capacity });
@@ -259,8 +258,8 @@ async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid
 /** Sealed until closing: before it, only the count of submitted bids. */
 export async function bidsOf(em: EntityManager, user: User, tenderId: string): Promise<BidsAnswer> {
   const tender = await findVisibleTender(em, user, tenderId);
-  const submitted = await em.count(Bid, { tender, status: { $in: LIVE } });
-  if (isSealed(tender)) return { submitted };
+  const submitted = await em.count(Bid, { tender, status: { $in: [...LIVE_BID_STATUSES] } });
+  if (isSealed(tender.status)) return { submitted };
   return { submitted, bids: await tabulate(em, tender) };
 }
 
@@ -282,7 +281,7 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
             (select json_object_agg(r.code, l.unit_price order by r.position)
                from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices
        from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
-      where b.tender_id = ? and b.status in ('submitted', 'revised')
+      where b.tender_id = ? and b.status in (${sqlList(LIVE_BID_STATUSES)})
       order by o.name asc, o.id asc`,
     [tender.id],
   );
@@ -307,7 +306,7 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
 }
 
 function assertUnsealed(tender: Tender): void {
-  if (isSealed(tender)) {
+  if (isSealed(tender.status)) {
     throw new ConflictError('Bids are sealed until the closing time.');
   }
 }
@@ -326,7 +325,7 @@ export async function bidDocument(em: EntityManager, user: User, tenderId: strin
   const tender = await findVisibleTender(em, user, tenderId);
   assertUnsealed(tender);
   // Only the workbook behind a live bid is part of the record.
-  const bid = await em.findOne(Bid, { tender, document: documentId, status: { $in: LIVE } });
+  const bid = await em.findOne(Bid, { tender, document: documentId, status: { $in: [...LIVE_BID_STATUSES] } });
   if (!bid) throw new NotFoundError('The workbook');
   return em.findOneOrFail(BidDocument, { id: documentId }, { populate: ['content'] });
 }

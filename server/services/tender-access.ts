@@ -3,6 +3,8 @@ import type { TenderStatus } from '@shared/tenders';
 import { Invitation, Tender, type User } from '../entities';
 import { ConflictError, NotFoundError } from '../http/errors';
 import { audit } from './audit.service';
+import { LIVE_BID_STATUSES } from '@shared/tenders';
+import { sqlList } from './sql';
 
 /**
  * How long after its closing time a tender is closed and its bids opened. A bid is on time when its
@@ -58,7 +60,7 @@ async function closeWhere(em: EntityManager, condition: string, params: unknown[
     const rows = await tx.execute<{ id: string; bids: string }[]>(
       `update tender set status = 'closed', closed_at = closes_at, updated_at = now()
          where id = any(?::uuid[])
-         returning id, (select count(*) from bid where bid.tender_id = tender.id and bid.status in ('submitted', 'revised')) as bids`,
+         returning id, (select count(*) from bid where bid.tender_id = tender.id and bid.status in (${sqlList(LIVE_BID_STATUSES)})) as bids`,
       [`{${locked.map((r) => r.id).join(',')}}`],
     );
     for (const row of rows) {

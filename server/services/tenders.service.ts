@@ -11,14 +11,13 @@ import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from '
 import { audit } from './audit.service';
 import { escapeLike } from './like';
 import { CLOSING_GRACE_MS, closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
+import { LIVE_BID_STATUSES, statusesBefore } from '@shared/tenders';
 
 export interface TenderDeps {
   em: EntityManager;
   boss: PgBoss;
   publicUrl: string;
 }
-
-const LIVE_BID: BidStatus[] = ['submitted', 'revised'];
 
 export function tenderSummary(t: Tender, regions: Region[]): TenderSummary {
   return {
@@ -114,7 +113,7 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
       vendorOrganisation: { id: i.vendorOrganisation.id, name: i.vendorOrganisation.name, sme: i.vendorOrganisation.sme },
       invitedAt: i.createdAt.toISOString(),
     }));
-    view.submittedBids = await em.count(Bid, { tender, status: { $in: LIVE_BID } });
+    view.submittedBids = await em.count(Bid, { tender, status: { $in: [...LIVE_BID_STATUSES] } });
   }
   return view;
 }
@@ -232,7 +231,7 @@ export async function removeInvitation(em: EntityManager, user: User, id: string
 export async function publishTender(deps: TenderDeps, user: User, id: string): Promise<TenderView> {
   const { em } = deps;
   const tender = await em.transactional(async (tx) => {
-    await lockTender(tx, user, id, ['draft'], 'This tender is already published.');
+    await lockTender(tx, user, id, statusesBefore('open'), 'This tender is already published.');
     const t = await tx.findOneOrFail(Tender, { id }, { populate: ['regions'] });
     const problems = [];
     if (t.closesAt.getTime() <= Date.now() + 60_000) problems.push({ field: 'closesAt', message: 'Closing time has passed; set a new one before publishing.' });

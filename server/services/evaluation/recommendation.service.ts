@@ -6,6 +6,7 @@ import { audit } from '../audit.service';
 import { lockTender } from '../tender-access';
 import { transition } from '../transition';
 import { evaluableTender, FROZEN } from './scenarios.service';
+import { statusesBefore } from '@shared/tenders';
 
 const AWAITING = 'A recommendation is awaiting compliance; it must be approved or returned first.';
 
@@ -70,7 +71,7 @@ export async function decide(em: EntityManager, user: User, tenderId: string, de
     }
     await transition(tx, Recommendation, r.id, ['recommended'], { status: decision, decidedBy: user.id, decidedAt: new Date(), comment: comment || null }, 'This recommendation has already been decided.');
     if (decision === 'approved') {
-      await transition(tx, Tender, tenderId, ['closed'], { status: 'awarded' }, 'The tender is no longer open to an award decision.');
+      await transition(tx, Tender, tenderId, statusesBefore('awarded'), { status: 'awarded' }, 'The tender is no longer open to an award decision.');
     }
     await audit(tx, {
       tenderId, actor: user, action: `recommendation.${decision}`, subject: `recommendation ${r.id}`,

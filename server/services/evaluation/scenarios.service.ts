@@ -3,6 +3,7 @@ import type PgBoss from 'pg-boss';
 import { awardRulesSchema } from '@shared/award';
 import type { AwardProblem } from '@shared/award';
 import type { RunStatus, RunSummary, ScenarioInput, ScenarioView } from '@shared/evaluation';
+import { isSealed } from '@shared/tenders';
 import { Run, Scenario, type Tender, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { QUEUES } from '../../jobs/queue';
@@ -37,7 +38,7 @@ export const FROZEN = 'This tender is awarded: its scenarios and bids are frozen
 /** Evaluation happens on closed tenders; once awarded, scenarios and runs are frozen. */
 export async function evaluableTender(em: EntityManager, user: User, tenderId: string, forChange = false): Promise<Tender> {
   const tender = await findVisibleTender(em, user, tenderId);
-  if (tender.status === 'draft' || tender.status === 'open') {
+  if (isSealed(tender.status)) {
     throw new ConflictError('Award scenarios can be built only after the closing time, when the bids are unsealed.');
   }
   if (forChange && tender.status !== 'closed') {

@@ -5,6 +5,7 @@ import { Bid, Recommendation, Region, User, type Run, type Tender } from '../../
 import { ConflictError } from '../../http/errors';
 import { renderMail } from '../../mail/templates';
 import { normaliseEmail } from '@shared/auth';
+import { LIVE_BID_STATUSES } from '@shared/tenders';
 
 const DAY = 86_400_000;
 
@@ -43,7 +44,7 @@ export async function composeLetters(em: EntityManager, tender: Tender, sentAt =
   const run = await approvedRun(em, tender);
   const result = run.result as AwardResult;
   const regions = new Map((await em.find(Region, { tender })).map((r) => [r.code, r]));
-  const bids = await em.find(Bid, { tender, status: { $in: ['submitted', 'revised'] } }, { populate: ['lines.region', 'vendorOrganisation'] });
+  const bids = await em.find(Bid, { tender, status: { $in: [...LIVE_BID_STATUSES] } }, { populate: ['lines.region', 'vendorOrganisation'] });
   const contact = await em.findOneOrFail(User, { id: tender.createdBy.id });
   const money = new Intl.NumberFormat(tender.locale, { style: 'currency', currency: tender.currency });
   const qty = new Intl.NumberFormat(tender.locale, { maximumFractionDigits: 3 });

@@ -7,6 +7,7 @@ import { queueNotice } from '../../jobs/queue';
 import { audit } from '../audit.service';
 import { findVisibleTender, lockTender, tenderOwnerScope } from '../tender-access';
 import { approvedRun, composeLetters } from './letters';
+import { statusesBefore } from '@shared/tenders';
 
 const NOT_AWARDED = 'Notices go out once compliance has approved an award for this tender.';
 
@@ -86,7 +87,7 @@ export async function notifiedIfAllSent(em: EntityManager, tenderId: string): Pr
   await em.transactional(async (tx) => {
     const rows = await tx.execute<{ open: string }[]>(`select count(*) as open from notice where tender_id = ? and status <> 'sent'`, [tenderId]);
     if (Number(rows[0].open) > 0) return;
-    const changed = await tx.nativeUpdate(Tender, { id: tenderId, status: 'awarded' }, { status: 'notified' });
+    const changed = await tx.nativeUpdate(Tender, { id: tenderId, status: { $in: statusesBefore('notified') } }, { status: 'notified' });
     if (changed) await audit(tx, { tenderId, actor: null, action: 'tender.notified', subject: 'tender', detail: {}, before: { status: 'awarded' }, after: { status: 'notified' } });
   });
 }

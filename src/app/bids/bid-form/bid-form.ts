@@ -7,7 +7,7 @@ import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
-import { bidSaveSchema, type BidView, type TenderView } from '@shared/tenders';
+import { bidSaveSchema, isLiveBid, type BidView, type TenderView } from '@shared/tenders';
 import { startWith } from 'rxjs';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { hasClosed, localClosingTime, minuteClock } from '../../tenders/closing-time';
@@ -17,6 +17,7 @@ import { fieldMessage } from '../../ui/zod-validator';
 import { BidApi } from '../bid-api';
 import { totalAtForecast } from '../bid-total';
 import { bidFigures, bidFormGroup, controlFor, fillBid, syncCap, type BidFormGroup } from './bid-fields';
+import { controlPath } from '@shared/field-path';
 
 /** The vendor's bid on one tender: by form or by workbook, saved, submitted, revised or withdrawn. */
 @Component({
@@ -54,7 +55,7 @@ export class BidForm {
     const t = this.tender();
     return t.status !== 'open' || hasClosed(t.closesAt, this.now());
   });
-  protected readonly live = computed(() => ['submitted', 'revised'].includes(this.bid()?.status ?? ''));
+  protected readonly live = computed(() => { const status = this.bid()?.status; return !!status && isLiveBid(status); });
   protected readonly statusText = computed(() => {
     const bid = this.bid();
     return bid ? BID_STATUS_LABELS[bid.status] : 'Not started';
@@ -141,7 +142,7 @@ export class BidForm {
     const parsed = bidSaveSchema.safeParse(body);
     if (this.form.invalid || !parsed.success) {
       this.form.markAllAsTouched();
-      const issues = parsed.success ? [] : parsed.error.issues.map((i) => ({ field: i.path.map(String).join('.'), message: i.message }));
+      const issues = parsed.success ? [] : parsed.error.issues.map((i) => ({ field: controlPath(i.path), message: i.message }));
       const unplaced = this.place(issues);
       this.failure.set(['Nothing was saved: some figures need attention; each is marked below.', ...unplaced].join(' '));
       this.status.set('Nothing was saved: some figures need attention.');

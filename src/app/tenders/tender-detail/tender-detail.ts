@@ -6,7 +6,7 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { Title } from '@angular/platform-browser';
 import { RouterLink } from '@angular/router';
-import type { TenderView } from '@shared/tenders';
+import { isSealed, type TenderView } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
@@ -49,12 +49,12 @@ export class TenderDetail {
   protected readonly canEvaluate = computed(() => {
     const role = this.auth.user()?.role;
     const status = this.tender()?.status;
-    return (role === 'buyer' || role === 'compliance') && !!status && status !== 'draft' && status !== 'open';
+    return (role === 'buyer' || role === 'compliance') && !!status && !isSealed(status);
   });
   /** Sealed while draft or open (the server decides; a passed closing time is closed at the next load). */
   protected readonly sealed = computed(() => {
     const t = this.tender();
-    return !t || t.status === 'draft' || t.status === 'open';
+    return !t || isSealed(t.status);
   });
   protected readonly timeLeft = computed(() => {
     const t = this.tender();

@@ -3,6 +3,7 @@ import { regionInputSchema, type RegionInput } from '@shared/bids';
 import { tenderInputSchema, type TenderInput, type TenderView } from '@shared/tenders';
 import type { FieldProblem } from '../../core/http/api-error';
 import { zodValidator } from '../../ui/zod-validator';
+import { controlPath as toControlPath } from '@shared/field-path';
 
 const fields = tenderInputSchema.shape;
 const regionFields = regionInputSchema.shape;
@@ -126,7 +127,7 @@ export function formBody(form: TenderForm): unknown {
  * into this form's control path ('regions.3.forecast'); the closing time lives in two inputs.
  */
 export function controlPath(field: string | readonly PropertyKey[]): string {
-  const path = typeof field === 'string' ? field.replace(/\[(\d+)\]/g, '.$1') : field.map(String).join('.');
+  const path = toControlPath(field);
   return path === 'closesAt' ? 'closesDate' : path;
 }
 
