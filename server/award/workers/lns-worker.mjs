@@ -130,8 +130,9 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
       const kind = KINDS[Math.floor(random() * KINDS.length)];
       const { free } = neighbourhood(ctx, award, kind, sizes[kind], random);
       for (let c = 0; c < model.numCols; c++) {
-        // Continuous quantities stay free: with the award decisions fixed they form an LP.
-        const open = free[c] === 1 || !model.integer[c];
+        // Quantities stay free: with the award decisions fixed they form an LP, or with an award
+        // increment a small integer program (whole increments) of the same rows.
+        const open = free[c] === 1 || ctx.quantity[c] === 1;
         lower[c] = open ? model.colLower[c] : best.x[c];
         upper[c] = open ? model.colUpper[c] : best.x[c];
       }
