@@ -139,7 +139,8 @@ export const awardProblemSchema = z
       });
     }
     const increment = rules.awardIncrement;
-    if (increment !== undefined) {
+    // An increment refused above (zero, negative, not finite) has its own message: no forecast is judged by it.
+    if (increment !== undefined && Number.isFinite(increment) && increment > 0) {
       p.regions.forEach((r, i) => {
         if (!isWholeMultiple(r.demand, increment)) {
           ctx.addIssue({ code: 'custom', path: ['regions', i, 'demand'], message: `Forecast quantity ${r.demand} is not a whole multiple of the award increment ${increment}: every quantity awarded is.` });
