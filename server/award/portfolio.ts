@@ -83,7 +83,7 @@ async function neighbourhoodRun(request: EngineRequest, board: SharedArrayBuffer
   if (greedy) publishAward(board, costOf(model, greedy), greedy);
   signal.throwIfAborted();
   const seconds = Math.max(0.5, (deadline - performance.now()) / 1000);
-  return runInWorker(LNS_WORKER, { model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000, randomSeed: 20_260 }, signal);
+  return runInWorker(LNS_WORKER, { model, structure: { open: map.open, supply: map.supply }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000, randomSeed: 20_260 }, signal);
 }
 
 export const portfolioEngine: SolverEngine = {

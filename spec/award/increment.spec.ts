@@ -284,7 +284,7 @@ describe('the search paths keep quantities in whole increments', () => {
     const board = newBoard(model);
     publishAward(board, costOf(model, greedy!), greedy!);
     const outcome = await runInWorker<EngineOutcome>(LNS_WORKER, {
-      model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: 40, maxRounds: 8, randomSeed: 3,
+      model, structure: { open: map.open, supply: map.supply }, board, timeLimitSeconds: 40, maxRounds: 8, randomSeed: 3,
     });
     expect(outcome.status).toBe('feasible');
     expect(outcome.objective!).toBeLessThanOrEqual(costOf(model, greedy!) + 1e-6);

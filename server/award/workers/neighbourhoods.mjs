@@ -12,20 +12,12 @@ const NO_BID = 3;
 
 /**
  * What the neighbourhoods need from the model, computed once: the columns of each vendor and
- * region (`structure` is build-model.ts's ModelMap: open[i], supply[i][j], -1 where absent, and
- * soleColumn[j], true where region j's columns are the binary z_ij) and which columns are
- * quantities (q_ij: continuous, or whole increments with an award increment). Without
- * soleColumn, every continuous column counts as a quantity.
+ * region (`structure` is build-model.ts's ModelMap: open[i], supply[i][j], -1 where absent).
  */
 export function prepare(model, structure) {
-  const { open, supply, soleColumn } = structure;
+  const { open, supply } = structure;
   const m = open.length;
   const n = supply[0]?.length ?? 0;
-  const quantity = new Uint8Array(model.numCols);
-  for (let c = 0; c < model.numCols; c++) if (!model.integer[c]) quantity[c] = 1;
-  if (soleColumn) {
-    for (let i = 0; i < m; i++) for (let j = 0; j < n; j++) if (supply[i][j] >= 0 && !soleColumn[j]) quantity[supply[i][j]] = 1;
-  }
   // Normalised price of vendor i in region j: its column's cost over the mean of the region's
   // bidders (sole columns cost p·d, split ones p; within a region the scale is the same).
   const profile = Array.from({ length: m }, () => new Float64Array(n).fill(NO_BID));
@@ -48,7 +40,7 @@ export function prepare(model, structure) {
   for (let i = 0; i < m; i++) if (open[i] >= 0) vendors.push(i);
   const distance = (a, b) => { let s = 0; for (let j = 0; j < n; j++) s += Math.abs(profile[a][j] - profile[b][j]); return s; };
   const nearVendors = new Map(vendors.map((i) => [i, vendors.filter((k) => k !== i).map((k) => [k, distance(i, k)]).sort((p, q) => p[1] - q[1]).map((p) => p[0])]));
-  return { model, open, supply, m, n, quantity, profile, cheapest, vendors, nearVendors };
+  return { model, open, supply, m, n, profile, cheapest, vendors, nearVendors };
 }
 
 /** Who supplies each region in award x, and which vendors are awarded. */
