@@ -55,7 +55,9 @@ export function extractAward(inst: AwardInstance, map: ModelMap, values: ArrayLi
     });
     const opened = map.open[i] >= 0 && values[map.open[i]] > 0.5;
     if (!opened && lines.length === 0) return;
-    const quantity = lines.reduce((s, l) => s + l.quantity, 0);
+    const sum = lines.reduce((s, l) => s + l.quantity, 0);
+    // A sum of whole multiples is one: reported as exactly as its lines (0.1 + 0.2 is 0.3).
+    const quantity = u === undefined ? sum : Number(sum.toPrecision(15));
     const variable = lines.reduce((s, l) => s + l.cost, 0);
     fixedCost += v.fee;
     variableCost += variable;

@@ -119,6 +119,18 @@ describe('hand-worked awards with an award increment', () => {
     expect(quantities(r)).toEqual({ V1: { A: 0.3, B: 0.1 }, V2: { B: 0.6 } });
     expect(6 * 0.1).not.toBe(0.6);
   });
+
+  test('a vendor total of decimal lines is reported exactly too: 0.1 t + 0.2 t is 0.3 t, not 0.30000000000000004', async () => {
+    // One vendor, A 0.1 t and B 0.2 t at 10 a tonne: 0.3 t for 3.
+    const r = await solved({
+      regions: [{ id: 'A', demand: 0.1 }, { id: 'B', demand: 0.2 }],
+      vendors: [{ id: 'V1', capacity: null, prices: { A: 10, B: 10 } }],
+      rules: { awardIncrement: 0.1, minAwardQuantity: 0.1 },
+    });
+    expect(r.objective).toBeCloseTo(3, 9);
+    expect(r.awards.map((a) => ({ vendor: a.vendor, quantity: a.quantity }))).toEqual([{ vendor: 'V1', quantity: 0.3 }]);
+    expect(0.1 + 0.2).not.toBe(0.3);
+  });
 });
 
 describe('an award increment in the problem file', () => {
