@@ -94,7 +94,8 @@ export const awardOptionsSchema = z.object({
 /**
  * Whether `quantity` is a whole multiple (1, 2, 3 … times) of `increment`, to floating-point
  * accuracy: the quotient is within 1e-9 (relative) of a whole number of at least 1, so that
- * 0.3 counts as 3 × 0.1. The award engine's validation and the tender editor use this one test.
+ * 0.3 counts as 3 × 0.1. The award engine's validation and verifier use it; the tender editor's
+ * check at publish should use this one test too, so both refuse the same forecasts.
  */
 export function isWholeMultiple(quantity: number, increment: number): boolean {
   const k = quantity / increment;
