@@ -91,6 +91,18 @@ export const awardOptionsSchema = z.object({
   relativeGap: fraction('Relative gap').default(0),
 });
 
+/**
+ * Whether `quantity` is a whole multiple (1, 2, 3 … times) of `increment`, to floating-point
+ * accuracy: the quotient is within 1e-9 (relative) of a whole number of at least 1, so that
+ * 0.3 counts as 3 × 0.1. The award engine's validation and verifier use it; the tender editor's
+ * check at publish should use this one test too, so both refuse the same forecasts.
+ */
+export function isWholeMultiple(quantity: number, increment: number): boolean {
+  const k = quantity / increment;
+  const whole = Math.round(k);
+  return whole >= 1 && Math.abs(k - whole) <= 1e-9 * Math.max(1, Math.abs(k));
+}
+
 /** The problem file, version 1. Cross-references (ids in prices and rules) are checked too. */
 export const awardProblemSchema = z
   .object({
@@ -125,6 +137,15 @@ export const awardProblemSchema = z
     for (const key of ['exclude', 'require'] as const) {
       rules[key].forEach((id, k) => {
         if (!vendorIds.has(id)) ctx.addIssue({ code: 'custom', path: (['rules', key, k]), message: `Unknown vendor "${id}".` });
+      });
+    }
+    const increment = rules.awardIncrement;
+    // An increment refused above (zero, negative, not finite) has its own message: no forecast is judged by it.
+    if (increment !== undefined && Number.isFinite(increment) && increment > 0) {
+      p.regions.forEach((r, i) => {
+        if (!isWholeMultiple(r.demand, increment)) {
+          ctx.addIssue({ code: 'custom', path: ['regions', i, 'demand'], message: `Forecast quantity ${r.demand} is not a whole multiple of the award increment ${increment}: every quantity awarded is.` });
+        }
       });
     }
     if (rules.minVendors !== undefined && rules.maxVendors !== undefined && rules.minVendors > rules.maxVendors) {

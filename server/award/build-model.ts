@@ -1,4 +1,4 @@
-import { effectiveCapacity, type AwardInstance } from './instance';
+import { effectiveCapacity, inIncrements, regionLimit, type AwardInstance } from './instance';
 import { ModelBuilder, type MipModel, type ModelMap } from './model';
 
 /**
@@ -8,8 +8,12 @@ import { ModelBuilder, type MipModel, type ModelMap } from './model';
  *   q_ij ≤ min(d_j, K_i) y_i (strong linking); sole regions use q_ij = d_j z_ij, Σ_i z_ij = 1.
  * K_i here is the effective capacity (cap, vendor-share rule, reach of the regions bid): a
  * tighter but equivalent constant, so the LP bound is stronger and nothing feasible is cut off.
+ * With an award increment the model is built in whole increments (`inIncrements`): every q_ij is
+ * an integer count of increments and every quantity constant is counted in increments.
  */
-export function buildModel(inst: AwardInstance): { model: MipModel; map: ModelMap } {
+export function buildModel(problemInstance: AwardInstance): { model: MipModel; map: ModelMap } {
+  const inst = inIncrements(problemInstance);
+  const wholeIncrements = inst.unitSize !== undefined;
   const b = new ModelBuilder();
   const INF = Number.POSITIVE_INFINITY;
   const rules = inst.rules;
@@ -25,8 +29,8 @@ export function buildModel(inst: AwardInstance): { model: MipModel; map: ModelMa
       const p = v.prices[j];
       if (!usable[i] || p === null) return -1;
       if (r.sole) return caps[i] + 1e-9 >= r.demand && regionShare >= 1 ? b.addCol(`z_${i}_${j}`, p * r.demand, 0, 1, true) : -1;
-      const upper = Math.min(r.demand * regionShare, caps[i]);
-      return upper > 0 ? b.addCol(`q_${i}_${j}`, p, 0, upper, false) : -1;
+      const upper = Math.min(regionLimit(inst, j), caps[i]);
+      return upper > 0 ? b.addCol(`q_${i}_${j}`, p, 0, upper, wholeIncrements) : -1;
     }));
   // Quantity coefficient of a supply column: 1 for q_ij, d_j for z_ij.
   const qty = (j: number) => (soleColumn[j] ? inst.regions[j].demand : 1);
@@ -57,7 +61,7 @@ export function buildModel(inst: AwardInstance): { model: MipModel; map: ModelMa
     inst.regions.forEach((r, j) => {
       const c = supply[i][j];
       if (c < 0) return;
-      const u = r.sole ? 1 : Math.min(r.demand * regionShare, caps[i]);
+      const u = r.sole ? 1 : Math.min(regionLimit(inst, j), caps[i]);
       b.addRow(`link_${i}_${j}`, [c, open[i]], [1, -u], -INF, 0);
     });
   });

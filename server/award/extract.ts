@@ -14,11 +14,23 @@ export interface ExtractedAward {
 const DUST = 1e-7;
 
 /**
+ * k whole increments of size u, as the number a reader expects: k·u rounded to 15 significant
+ * digits, so 6 × 0.1 is reported as 0.6, not 0.6000000000000001 (a whole multiple to any test).
+ */
+export function increments(k: number, u: number): number {
+  return Number((k * u).toPrecision(15));
+}
+
+/**
  * Reads quantities per vendor and region: sole columns are rounded to 0/1, split quantities
- * below dust are dropped. A vendor is listed only when it supplies something or its fee is
- * charged (y_i = 1), so the award lists exactly the awarded vendors.
+ * below dust are dropped. With an award increment the model counts split quantities in whole
+ * increments: each is rounded to its integer count k and reported as k increments (the whole
+ * forecast when k is all of the region), never as a solver's fraction. A vendor is listed only
+ * when it supplies something or its fee is charged (y_i = 1), so the award lists exactly the
+ * awarded vendors. `inst` is the problem's instance (`toInstance`), in the problem's units.
  */
 export function extractAward(inst: AwardInstance, map: ModelMap, values: ArrayLike<number>): ExtractedAward {
+  const u = inst.increment;
   const awards: VendorAward[] = [];
   let fixedCost = 0;
   let variableCost = 0;
@@ -29,7 +41,10 @@ export function extractAward(inst: AwardInstance, map: ModelMap, values: ArrayLi
       if (c < 0) return;
       let quantity: number;
       if (map.soleColumn[j]) quantity = values[c] > 0.5 ? r.demand : 0;
-      else {
+      else if (u !== undefined) {
+        const k = Math.round(values[c]);
+        quantity = k === Math.round(r.demand / u) ? r.demand : increments(k, u);
+      } else {
         quantity = values[c];
         if (quantity < DUST * Math.max(1, r.demand)) quantity = 0;
         if (Math.abs(quantity - r.demand) < DUST * Math.max(1, r.demand)) quantity = r.demand;
@@ -40,7 +55,9 @@ export function extractAward(inst: AwardInstance, map: ModelMap, values: ArrayLi
     });
     const opened = map.open[i] >= 0 && values[map.open[i]] > 0.5;
     if (!opened && lines.length === 0) return;
-    const quantity = lines.reduce((s, l) => s + l.quantity, 0);
+    const sum = lines.reduce((s, l) => s + l.quantity, 0);
+    // A sum of whole multiples is one: reported as exactly as its lines (0.1 + 0.2 is 0.3).
+    const quantity = u === undefined ? sum : Number(sum.toPrecision(15));
     const variable = lines.reduce((s, l) => s + l.cost, 0);
     fixedCost += v.fee;
     variableCost += variable;

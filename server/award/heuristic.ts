@@ -1,4 +1,4 @@
-import { effectiveCapacity, type AwardInstance } from './instance';
+import { effectiveCapacity, inIncrements, regionLimit, type AwardInstance } from './instance';
 import type { MipModel, ModelMap } from './model';
 
 /**
@@ -7,7 +7,9 @@ import type { MipModel, ModelMap } from './model';
  * with a greedy assignment and shift/swap moves for the regions. Rule-agnostic on purpose: the
  * result is checked against every row of the model and dropped when it breaks any.
  */
-export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map: ModelMap, budgetMs = 1000, signal?: AbortSignal): Promise<Float64Array | null> {
+export async function greedyIncumbent(problemInstance: AwardInstance, model: MipModel, map: ModelMap, budgetMs = 1000, signal?: AbortSignal): Promise<Float64Array | null> {
+  // The model's own view: with an award increment, quantities in whole increments (build-model.ts).
+  const inst = inIncrements(problemInstance);
   // It runs on the caller's thread: it yields to the event loop after every round of moves (a few
   // milliseconds each) and stops at a time budget, keeping the best award so far, or at once
   // (returning nothing) when the solve no longer needs it.
@@ -15,7 +17,6 @@ export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map:
   const m = inst.vendors.length;
   const n = inst.regions.length;
   if (m === 0 || m * n > 200_000) return null;
-  const share = inst.rules.maxRegionShare ?? 1;
   const caps = inst.vendors.map((_, i) => effectiveCapacity(inst, i));
   const usable = inst.vendors.map((_, i) => map.open[i] >= 0);
   const demand = inst.regions.map((r) => r.demand);
@@ -40,7 +41,8 @@ export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map:
       } else {
         let left = demand[j];
         for (const i of bidders) {
-          const take = Math.min(left, residual[i], share * demand[j]);
+          // Whole increments stay whole: demand, residual caps and the region limit are integers then.
+          const take = Math.min(left, residual[i], regionLimit(inst, j));
           if (take <= 0) continue;
           q[i][j] += take;
           residual[i] -= take;
@@ -132,13 +134,15 @@ export async function greedyIncumbent(inst: AwardInstance, model: MipModel, map:
 }
 
 /**
- * True when x meets every bound and row of the model (tolerance 1e-7, relative to the row). The
+ * True when x meets every bound and row of the model (tolerance 1e-7, relative to the row) and
+ * its integer columns are whole (to 1e-9). The
  * neighbourhood-search worker has its own copy (workers/neighbourhoods.mjs: plain ESM cannot import
  * this file); the tests hold its awards to this one.
  */
 export function satisfiesRows(model: MipModel, x: Float64Array): boolean {
   for (let c = 0; c < model.numCols; c++) {
     if (x[c] < model.colLower[c] - 1e-9 || x[c] > model.colUpper[c] + 1e-7 * Math.max(1, model.colUpper[c])) return false;
+    if (model.integer[c] && Math.abs(x[c] - Math.round(x[c])) > 1e-9) return false;
   }
   for (let r = 0; r < model.rowNames.length; r++) {
     let act = 0;

@@ -1,6 +1,6 @@
 import type { AwardResult } from '../../shared/award';
 import { buildModel } from './build-model';
-import { diagnose, SOLVER_ONLY_INFEASIBLE } from './diagnose';
+import { diagnose, solverOnlyInfeasible } from './diagnose';
 import { emptyResult, extractAward, relativeGap } from './extract';
 import { greedyIncumbent } from './heuristic';
 import { toInstance, validateProblem } from './instance';
@@ -54,7 +54,7 @@ export async function solveAward(input: unknown, options: SolveAwardOptions = {}
   });
 
   if (outcome.status === 'infeasible') {
-    return emptyResult({ status: 'infeasible', engine: outcome.engine, solveSeconds: seconds(), diagnosis: [SOLVER_ONLY_INFEASIBLE] });
+    return emptyResult({ status: 'infeasible', engine: outcome.engine, solveSeconds: seconds(), diagnosis: [solverOnlyInfeasible(inst)] });
   }
   if (!outcome.values) {
     const why = outcome.status === 'failed'

@@ -36,12 +36,19 @@ export interface AwardInstance {
     minVendors?: number;
     maxVendorShare?: number;
     maxRegionShare?: number;
-    /** Always set: default 1 unit (or the total forecast if that is smaller). */
+    /** Always set: default 1 unit (or the total forecast if that is smaller); with an award increment, rounded up to whole increments by `inIncrements`. */
     minAwardQuantity: number;
     smeShare?: number;
   };
   timeLimitSeconds: number;
   relativeGap: number;
+  /** The award increment (`rules.awardIncrement`) in the problem's unit; absent: any quantity. */
+  increment?: number;
+  /**
+   * Set only on the solver's view of an instance with an increment (`inIncrements`): every
+   * quantity here counts whole increments of this size, and awarded quantities are integers.
+   */
+  unitSize?: number;
 }
 
 /** Validates a problem file; throws AwardInputError naming every refused field. */
@@ -93,7 +100,34 @@ export function toInstance(problem: ValidAwardProblem): AwardInstance {
     },
     timeLimitSeconds: problem.options.timeLimitSeconds,
     relativeGap: problem.options.relativeGap,
+    ...(r.awardIncrement !== undefined ? { increment: r.awardIncrement } : {}),
   };
+}
+
+// Quotients within this (relative) of a whole number are that number: 0.3 / 0.1 is 3, not 2.999….
+const WHOLE = 1e-9;
+const floorWhole = (x: number) => Math.floor(x + WHOLE * Math.max(1, Math.abs(x)));
+const ceilWhole = (x: number) => Math.ceil(x - WHOLE * Math.max(1, Math.abs(x)));
+
+/**
+ * The instance the models are built from (MODEL.md, "Award increment"): with an increment u,
+ * every quantity counted in whole increments — forecasts d/u (whole: validation checks it),
+ * caps ⌊K/u⌋, the minimum award ⌈m/u⌉, unit prices p·u per increment, so costs are unchanged —
+ * and `unitSize` = u tells the model builder that quantities are integers. Without an
+ * increment, the instance itself. Fees, shares and vendor counts are the same in both.
+ */
+export function inIncrements(inst: AwardInstance): AwardInstance {
+  const u = inst.increment;
+  if (u === undefined || inst.unitSize !== undefined) return inst;
+  const regions = inst.regions.map((r) => ({ ...r, demand: Math.round(r.demand / u) }));
+  const totalDemand = regions.reduce((s, r) => s + r.demand, 0);
+  const vendors = inst.vendors.map((v) => ({
+    ...v,
+    capacity: v.capped ? floorWhole(v.capacity / u) : totalDemand,
+    prices: v.prices.map((p) => (p === null ? null : p * u)),
+  }));
+  const rules = { ...inst.rules, minAwardQuantity: Math.max(0, ceilWhole(inst.rules.minAwardQuantity / u)) };
+  return { ...inst, regions, vendors, totalDemand, rules, increment: undefined, unitSize: u };
 }
 
 /**
@@ -102,12 +136,18 @@ export function toInstance(problem: ValidAwardProblem): AwardInstance {
  */
 export function effectiveCapacity(inst: AwardInstance, i: number): number {
   const v = inst.vendors[i];
-  const share = inst.rules.maxRegionShare ?? 1;
   let reach = 0;
   v.prices.forEach((p, j) => {
-    if (p !== null) reach += inst.regions[j].sole ? inst.regions[j].demand : inst.regions[j].demand * share;
+    if (p !== null) reach += inst.regions[j].sole ? inst.regions[j].demand : regionLimit(inst, j);
   });
   let cap = Math.min(v.capacity, reach);
   if (inst.rules.maxVendorShare !== undefined) cap = Math.min(cap, inst.rules.maxVendorShare * inst.totalDemand);
-  return cap;
+  // In whole increments a vendor's quantities are integers, and so is their sum.
+  return inst.unitSize === undefined ? cap : floorWhole(cap);
+}
+
+/** The most vendor i may carry of a split region j under the region-share rule (whole increments in the solver's view). */
+export function regionLimit(inst: AwardInstance, j: number): number {
+  const limit = inst.regions[j].demand * (inst.rules.maxRegionShare ?? 1);
+  return inst.unitSize === undefined ? limit : floorWhole(limit);
 }

@@ -1,4 +1,4 @@
-import type { ValidAwardProblem, VendorAward } from '../../shared/award';
+import { isWholeMultiple, type ValidAwardProblem, type VendorAward } from '../../shared/award';
 
 /**
  * Checks an award against every rule of the problem, straight from the problem file. Written
@@ -33,6 +33,9 @@ export function verifyAward(problem: ValidAwardProblem, awards: VendorAward[], o
       if (price === undefined) problems.push(`vendor ${a.vendor} supplies region ${line.region}, which it did not bid`);
       else if (Math.abs(line.unitPrice - price) > tol(price)) problems.push(`vendor ${a.vendor}, region ${line.region}: price ${line.unitPrice}, bid ${price}`);
       if (line.quantity < -tol(demand)) problems.push(`vendor ${a.vendor}, region ${line.region}: negative quantity`);
+      if (rules.awardIncrement !== undefined && line.quantity !== 0 && !isWholeMultiple(line.quantity, rules.awardIncrement)) {
+        problems.push(`vendor ${a.vendor}, region ${line.region}: quantity ${line.quantity} is not a whole multiple of the award increment ${rules.awardIncrement}`);
+      }
       if (Math.abs(line.cost - (price ?? line.unitPrice) * line.quantity) > tol(line.cost)) problems.push(`vendor ${a.vendor}, region ${line.region}: cost is not price × quantity`);
       if (rules.maxRegionShare !== undefined && line.quantity > rules.maxRegionShare * demand + tol(demand)) {
         problems.push(`vendor ${a.vendor} carries ${line.quantity} of region ${line.region}, above the maximum region share`);

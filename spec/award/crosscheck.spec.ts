@@ -72,3 +72,55 @@ describe('random problems with every rule and mixes of rules agree with HiGHS us
     expect(statuses).toContain('Infeasible');
   });
 });
+
+// Increments from a lorry-load size down to a decimal one (0.1 is not exact in binary floating point).
+const INCREMENTS = [1, 5, 10, 25, 0.1, 2.5];
+
+/**
+ * A random problem of the kind above with an award increment u: forecasts rounded to whole
+ * multiples of u (at least one), caps and the minimum award quantity left as drawn, so most are
+ * not multiples and the engine has to round them (caps down, the minimum up).
+ */
+function randomIncrementProblem(seed: number): AwardProblem {
+  const base = randomProblem(seed);
+  const increment = INCREMENTS[seed % INCREMENTS.length];
+  const regions = base.regions.map((r) => ({ ...r, demand: increment * Math.max(1, Math.round(r.demand / increment)) }));
+  return { ...base, regions, rules: { ...base.rules, awardIncrement: increment } };
+}
+
+describe('random problems with an award increment agree with HiGHS on the plain statement q = u · n (support/reference-lp.ts)', () => {
+  let highs: Awaited<ReturnType<typeof loadHighs>>;
+  beforeAll(async () => { highs = await loadHighs(); });
+
+  const seeds = Array.from({ length: 30 }, (_, k) => k);
+  test.each(seeds)('random problem with an award increment, seed %i: same status and optimum, every quantity a whole multiple', async (seed) => {
+    const problem = randomIncrementProblem(seed);
+    const reference = highs.solve(referenceLp(problem), { output_flag: false, mip_rel_gap: 0 });
+    const result = await solveAward(problem);
+    if (reference.Status === 'Infeasible') {
+      expect(result.status).toBe('infeasible');
+      expect(result.diagnosis.length).toBeGreaterThan(0);
+    } else {
+      expect(reference.Status).toBe('Optimal');
+      expect(result.status).toBe('optimal');
+      expect(result.objective!).toBeCloseTo(reference.ObjectiveValue, 4);
+      // The independent verifier (server/award/verify.ts) refuses any quantity that is not a whole multiple.
+      expect(verifyAward(validateProblem(problem), result.awards, result.objective!)).toEqual([]);
+    }
+  });
+
+  test('the increment set covers feasible and infeasible problems, optima the increment raises above the plain ones and problems it makes infeasible', () => {
+    const solve = (p: AwardProblem) => highs.solve(referenceLp(p), { output_flag: false, mip_rel_gap: 0 });
+    const outcomes = seeds.map((s) => {
+      const withIncrement = randomIncrementProblem(s);
+      const plain = { ...withIncrement, rules: { ...withIncrement.rules, awardIncrement: undefined } };
+      return { withIncrement: solve(withIncrement), plain: solve(plain) };
+    });
+    expect(outcomes.map((o) => o.withIncrement.Status)).toEqual(expect.arrayContaining(['Optimal', 'Infeasible']));
+    const raised = outcomes.filter((o) => o.withIncrement.Status === 'Optimal' && o.plain.Status === 'Optimal'
+      && o.withIncrement.ObjectiveValue > o.plain.ObjectiveValue + 1e-6);
+    expect(raised.length).toBeGreaterThan(3);
+    // …and problems only the increment makes infeasible (the engine must say so, with a diagnosis).
+    expect(outcomes.filter((o) => o.withIncrement.Status === 'Infeasible' && o.plain.Status === 'Optimal').length).toBeGreaterThan(0);
+  });
+});

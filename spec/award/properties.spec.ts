@@ -94,6 +94,29 @@ describe('facts that must always hold', () => {
     }), RUNS);
   });
 
+  test('an award increment never lowers the optimum, nor does a coarser one (a multiple of the finer), and every award under one verifies', async () => {
+    // Every quantity allowed in loads of 4u is allowed in loads of u, and every one of those is
+    // allowed without an increment: each set of awards contains the next, so the optima rise.
+    await fc.assert(fc.asyncProperty(problemArb, fc.constantFrom(1, 2.5, 5), async (p, fine) => {
+      const coarse = 4 * fine;
+      // Forecasts whole multiples of the coarse increment; caps scaled alike but 1 short, so rounding them down matters.
+      const base: AwardProblem = {
+        ...p,
+        regions: p.regions.map((r) => ({ ...r, demand: r.demand * coarse })),
+        vendors: p.vendors.map((v) => ({ ...v, capacity: v.capacity === null || v.capacity === undefined ? null : v.capacity * coarse - 1 })),
+      };
+      const chain = [await solveAward(base), await solveAward(withRules(base, { awardIncrement: fine })), await solveAward(withRules(base, { awardIncrement: coarse }))];
+      chain.forEach(expectSolved);
+      for (let k = 1; k < chain.length; k++) {
+        if (chain[k - 1].status === 'infeasible') expect(chain[k].status).toBe('infeasible');
+        else expect(cost(chain[k])).toBeGreaterThanOrEqual(cost(chain[k - 1]) - TOL * Math.max(1, cost(chain[k - 1])));
+      }
+      const [, withFine, withCoarse] = chain;
+      if (withFine.status === 'optimal') expect(verifyAward(validateProblem(withRules(base, { awardIncrement: fine })), withFine.awards, withFine.objective!)).toEqual([]);
+      if (withCoarse.status === 'optimal') expect(verifyAward(validateProblem(withRules(base, { awardIncrement: coarse })), withCoarse.awards, withCoarse.objective!)).toEqual([]);
+    }), RUNS);
+  });
+
   test('an uncapped vendor solves the same as one capped at the total forecast', async () => {
     await fc.assert(fc.asyncProperty(problemArb, fc.nat(), async (p, pick) => {
       const total = p.regions.reduce((s, r) => s + r.demand, 0);

@@ -130,7 +130,10 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
       const kind = KINDS[Math.floor(random() * KINDS.length)];
       const { free } = neighbourhood(ctx, award, kind, sizes[kind], random);
       for (let c = 0; c < model.numCols; c++) {
-        // Continuous quantities stay free: with the award decisions fixed they form an LP.
+        // Continuous quantities stay free: with the award decisions fixed they form an LP. With an
+        // award increment the quantities are integer columns (whole increments), fixed outside
+        // the neighbourhood like the award decisions, so a round stays a small integer program
+        // (server/award/MODEL.md, "Award increment").
         const open = free[c] === 1 || !model.integer[c];
         lower[c] = open ? model.colLower[c] : best.x[c];
         upper[c] = open ? model.colUpper[c] : best.x[c];

@@ -4,7 +4,9 @@ import type { AwardProblem } from '../../../shared/award';
  * An independent statement of the award model in CPLEX LP text, for HiGHS (the `highs` package)
  * used directly as a reference solver. Written from DESIGN.md alone, sharing no code with
  * server/award: plain big-M linking (q_ij ≤ cap_i · y_i), sole regions as q_ij = d_j · z_ij.
- * Names: y_<v>, q_<v>_<r>, z_<v>_<r> with vendor and region indices.
+ * An award increment u is stated the plain way, in the problem's own units: q_ij = u · n_ij with
+ * n_ij a general integer (the engine instead counts in increments and rounds caps itself).
+ * Names: y_<v>, q_<v>_<r>, z_<v>_<r>, n_<v>_<r> with vendor and region indices.
  */
 export function referenceLp(p: AwardProblem): string {
   const total = p.regions.reduce((s, r) => s + r.demand, 0);
@@ -15,6 +17,7 @@ export function referenceLp(p: AwardProblem): string {
   const rows: string[] = [];
   const bounds: string[] = [];
   const binaries: string[] = [];
+  const generals: string[] = [];
   const bids = p.vendors.map((v) => p.regions.map((r) => (v.prices as Record<string, number | undefined>)[r.id]));
   const num = (x: number) => (Number.isInteger(x) ? String(x) : x.toPrecision(17));
   // Quantity term of vendor i in region j: q or d·z.
@@ -38,6 +41,10 @@ export function referenceLp(p: AwardProblem): string {
         obj.push(`${num(price)} q_${i}_${j}`);
         rows.push(`lq_${i}_${j}: q_${i}_${j} - ${num(cap)} y_${i} <= 0`);
         if (rules.maxRegionShare !== undefined) bounds.push(`q_${i}_${j} <= ${num(rules.maxRegionShare * r.demand)}`);
+        if (rules.awardIncrement !== undefined) {
+          rows.push(`inc_${i}_${j}: q_${i}_${j} - ${num(rules.awardIncrement)} n_${i}_${j} = 0`);
+          generals.push(`n_${i}_${j}`);
+        }
       }
       terms.push(qTerm(i, j));
     });
@@ -60,5 +67,5 @@ export function referenceLp(p: AwardProblem): string {
     p.vendors.forEach((v, i) => { if (v.sme) p.regions.forEach((_, j) => { if (bids[i][j] !== undefined) terms.push(qTerm(i, j)); }); });
     rows.push(`sme: ${terms.length ? terms.join(' + ') : '0 y_0'} >= ${num(rules.smeShare * total)}`);
   }
-  return ['Minimize', ` cost: ${obj.join(' + ')}`, 'Subject To', ...rows.map((r) => ` ${r}`), 'Bounds', ...bounds.map((b) => ` ${b}`), 'Binaries', ` ${binaries.join(' ')}`, 'End', ''].join('\n');
+  return ['Minimize', ` cost: ${obj.join(' + ')}`, 'Subject To', ...rows.map((r) => ` ${r}`), 'Bounds', ...bounds.map((b) => ` ${b}`), 'Binaries', ` ${binaries.join(' ')}`, ...(generals.length ? ['General', ` ${generals.join(' ')}`] : []), 'End', ''].join('\n');
 }
