@@ -134,7 +134,7 @@ export async function assertBidsValid(tx: EntityManager, tenderId: string, run: 
 
 /**
  * A vendor confirms in the portal that its bid stays valid until `until` (absent: one more
- * validity period after the current end). After closing and before the award is approved; audited.
+ * validity period after the current end, or after now when that has passed). After closing and before the award is approved; audited.
  */
 export async function extendValidity(em: EntityManager, user: User, tenderId: string, input: { until?: string }): Promise<{ validUntil: string; extendedUntil: string }> {
   if (!user.vendorOrganisation) throw new AppError(403, 'Not allowed', 'Only vendors confirm their bids.');
@@ -149,7 +149,8 @@ export async function extendValidity(em: EntityManager, user: User, tenderId: st
     if (!bid) throw new NotFoundError('Your bid');
     const ends = validUntil(tender);
     const current = bid.validityExtendedUntil && bid.validityExtendedUntil > ends ? bid.validityExtendedUntil : ends;
-    const until = input.until ? new Date(input.until) : new Date(current.getTime() + tender.bidValidityDays * DAY);
+    // Absent: one more validity period, from the current end or from now if that has passed.
+    const until = input.until ? new Date(input.until) : new Date(Math.max(current.getTime(), Date.now()) + tender.bidValidityDays * DAY);
     if (until.getTime() <= current.getTime() || until.getTime() <= Date.now()) {
       throw new ValidationError([{ field: 'until', message: `The extension must run past ${utcDate(current)} and past today.` }]);
     }
