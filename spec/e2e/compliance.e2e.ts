@@ -41,9 +41,9 @@ test('the buyer sees each bid\'s compliance check and the flagged price with its
   await screenshot(page, 'bid-tabulation-compliance-1280');
   expect(await seriousViolations(page)).toEqual([]);
   // The flagged row itself, with the Garrow Moor price marked "low".
-  await page.getByRole('region', { name: 'Bid tabulation, scrolls sideways' }).evaluate((el) => el.scrollTo(400, 0));
-  await kestrel.scrollIntoViewIfNeeded();
-  await kestrel.locator('td.flagged').getByText('€46.90').waitFor();
+  const flaggedCell = kestrel.locator('td.flagged');
+  await flaggedCell.getByText('€46.90').waitFor();
+  await flaggedCell.scrollIntoViewIfNeeded();
   await animationsDone(page);
   await screenshot(page, 'bid-tabulation-flagged-row-1280');
 
