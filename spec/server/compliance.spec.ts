@@ -249,6 +249,7 @@ test("after the bids' validity has ended, approval is refused until each awarded
   expect(own.body.bid.validity).toEqual({ validUntil: new Date(closesAt.getTime() + 90 * DAY).toISOString(), extendedUntil: null });
   const past = await first.browser.post(`/api/tenders/${tenderId}/bid/validity-extension`, { until: new Date(Date.now() - DAY).toISOString() });
   expect(past.body.errors.map((e: { field: string }) => e.field)).toEqual(['until']);
+  expect((await t.em().findOneOrFail(Bid, { tender: tenderId, vendorOrganisation: first.orgId })).validityExtendedUntil).toBeNull();
   const extended = await first.browser.post(`/api/tenders/${tenderId}/bid/validity-extension`, {});
   expect(extended.status).toBe(200);
   expect(new Date(extended.body.extendedUntil).getTime()).toBeGreaterThan(Date.now() + 89 * DAY);
