@@ -8,10 +8,12 @@ import { audit } from './audit.service';
 import { tabulate } from './bids.service';
 import { isFlagged } from './evaluation/abnormally-low';
 import { findVisibleTender, lockTender } from './tender-access';
+import { transition } from './transition';
 
 const DAY = 86_400_000;
 const LIVE: BidStatus[] = ['submitted', 'revised'];
 const NOT_CHECKABLE = 'Bids are checked after closing and before an award is approved: this tender is not closed, or its award is already approved.';
+const NOT_LIVE = 'This bid is no longer a submitted bid.';
 const AWAITING = 'A recommendation is awaiting compliance: it must be approved or returned before a bid\'s check changes.';
 
 const utcDate = (d: Date) => d.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
@@ -39,7 +41,7 @@ export async function decideCompliance(em: EntityManager, user: User, tenderId: 
     const bid = await liveBid(tx, tenderId, bidId);
     const ground = input.decision === 'excluded' ? input.ground! : null;
     const decidedAt = new Date();
-    await tx.nativeUpdate(Bid, { id: bidId }, { complianceDecision: input.decision, complianceGround: ground, complianceNote: input.note, complianceDecidedAt: decidedAt });
+    await transition(tx, Bid, bidId, LIVE, { complianceDecision: input.decision, complianceGround: ground, complianceNote: input.note, complianceDecidedAt: decidedAt }, NOT_LIVE);
     await audit(tx, {
       tenderId, actor: user, action: input.decision === 'excluded' ? 'bid.excluded' : 'bid.compliant', subject: `bid ${bidId}`,
       detail: { vendor: bid.vendor.name, decision: input.decision, ground, note: input.note, decidedAt: decidedAt.toISOString() },
@@ -67,7 +69,7 @@ export async function decideAbnormallyLow(em: EntityManager, user: User, tenderI
     if (askedAt.getTime() < tender.closesAt.getTime() || askedAt.getTime() > decidedAt.getTime()) {
       throw new ValidationError([{ field: 'explanationRequestedAt', message: `The explanation is asked for after the closing time (${utcDate(tender.closesAt)}) and not in the future.` }]);
     }
-    await tx.nativeUpdate(Bid, { id: bidId }, { lowPriceExplanationRequestedAt: askedAt, lowPriceAccepted: input.accepted, lowPriceNote: input.note, lowPriceDecidedAt: decidedAt });
+    await transition(tx, Bid, bidId, LIVE, { lowPriceExplanationRequestedAt: askedAt, lowPriceAccepted: input.accepted, lowPriceNote: input.note, lowPriceDecidedAt: decidedAt }, NOT_LIVE);
     await audit(tx, {
       tenderId, actor: user, action: input.accepted ? 'bid.abnormally-low-accepted' : 'bid.abnormally-low-not-accepted', subject: `bid ${bidId}`,
       detail: {
@@ -154,7 +156,7 @@ export async function extendValidity(em: EntityManager, user: User, tenderId: st
     if (until.getTime() <= current.getTime() || until.getTime() <= Date.now()) {
       throw new ValidationError([{ field: 'until', message: `The extension must run past ${utcDate(current)} and past today.` }]);
     }
-    await tx.nativeUpdate(Bid, { id: bid.id }, { validityExtendedUntil: until });
+    await transition(tx, Bid, bid.id, LIVE, { validityExtendedUntil: until }, NOT_LIVE);
     await audit(tx, {
       tenderId, actor: user, action: 'bid.validity-extended', subject: `bid ${bid.id}`,
       detail: { vendor: org.name, validUntil: ends.toISOString(), extendedUntil: until.toISOString() },
