@@ -1,6 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { Bid, BidLine, Invitation, Region, Tender, type User, type VendorOrganisation } from '../server/entities';
+import { audit } from '../server/services/audit.service';
 import { commitBid } from '../server/services/bid-commitment';
+import { writeOpeningRecord } from '../server/services/opening';
 
 /**
  * The demo's tenders — all invented: a highways partnership buying de-icing salt for twelve depots
@@ -22,7 +24,9 @@ const SALT_BIDS: Record<string, { fee: number; cap: number | null; prices: (numb
   v2: { fee: 12000, cap: 9000, prices: [54.9, 55.4, 56.1, 57.3, undefined, 61.5, 55.8, undefined, undefined, 56.2, undefined, undefined] },
   v3: { fee: 8500, cap: 6000, prices: [undefined, undefined, 57.6, 56.4, 55.9, undefined, undefined, 56.8, 57.9, undefined, 58.2, undefined] },
   v4: { fee: 31000, cap: 16000, prices: [63.0, 62.1, 61.4, 60.2, 59.6, 59.1, 63.8, 60.7, 58.8, 64.5, 59.9, 58.4] },
-  v5: { fee: 6000, cap: 5000, prices: [undefined, undefined, undefined, undefined, undefined, undefined, 53.9, 54.6, undefined, 54.2, undefined, 57.1] },
+  // Garrow Moor at 46.9: more than 20 % below that depot's median (60.5; threshold 48.4), flagged as
+  // abnormally low; the buyer asked for an explanation and accepted it (see DEMO_LOW_PRICE below).
+  v5: { fee: 6000, cap: 5000, prices: [undefined, undefined, undefined, undefined, undefined, undefined, 46.9, 54.6, undefined, 54.2, undefined, 57.1] },
   v6: { fee: 58000, cap: null, prices: [60.5, 60.5, 60.5, 60.5, 60.5, 60.5, 60.5, 60.5, 60.5, 60.5, 60.5, 60.5] },
   v7: { fee: 15000, cap: 8000, prices: [58.4, 57.9, undefined, 58.8, 57.2, 57.6, undefined, undefined, 56.9, undefined, 57.4, 56.6] },
 };
@@ -34,7 +38,13 @@ const BIN_SITES: [string, string, number][] = [
 
 const DAY = 86_400_000;
 
-export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string, VendorOrganisation>, now = new Date()): void {
+/** The buyer's recorded decision on the flagged Garrow Moor price (invented, as everything here). */
+export const DEMO_LOW_PRICE = {
+  vendor: 'v5',
+  note: 'Explanation received: the firm stores salt at its own yard two kilometres from the Garrow Moor depot, so its haulage cost there is far lower; the price is sustainable and accepted.',
+};
+
+export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string, VendorOrganisation>, now = new Date()): Tender {
   // 1. Closed: de-icing salt, twelve depots, seven bids.
   const salt = em.create(Tender, {
     reference: 'NHP-2026-014',
@@ -70,6 +80,7 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
     for (const r of regions) if (prices[r.code] !== undefined) em.create(BidLine, { bid, region: r, unitPrice: prices[r.code] });
   }
 
+  const saltTender = salt;
   // 2. Open for two more weeks: grit bins, five districts, bids still coming in.
   const bins = em.create(Tender, {
     reference: 'NHP-2027-002',
@@ -96,4 +107,44 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
     });
     sites.forEach((s, i) => em.create(BidLine, { bid, region: s, unitPrice: p[i] }));
   }
+  return saltTender;
+}
+
+/**
+ * What happened at and after the salt tender's closing, written as the application writes it: the
+ * opening record with its digest in the `tender.closed` entry, every bid found compliant by the
+ * buyer, and the buyer's decision on the one abnormally low price (explanation asked a day after
+ * closing, accepted) — each with its audit entry.
+ */
+export async function completeDemoOpening(em: EntityManager, salt: Tender, buyer: User, orgs: Map<string, VendorOrganisation>): Promise<void> {
+  await em.flush();
+  const closedAt = salt.closedAt!;
+  const opening = await writeOpeningRecord(em, salt.id, closedAt);
+  await audit(em, {
+    tenderId: salt.id, actor: null, action: 'tender.closed', subject: 'tender',
+    detail: { submittedBids: Object.keys(SALT_BIDS).length, ...opening }, before: { status: 'open' }, after: { status: 'closed' },
+  });
+  const checkedAt = new Date(closedAt.getTime() + 2 * 3_600_000);
+  const note = 'Complete bid; qualification documents checked against the criteria.';
+  await em.nativeUpdate(Bid, { tender: salt.id }, { complianceDecision: 'compliant', complianceGround: null, complianceNote: note, complianceDecidedAt: checkedAt });
+  for (const key of Object.keys(SALT_BIDS)) {
+    const org = orgs.get(key)!;
+    await audit(em, {
+      tenderId: salt.id, actor: buyer, action: 'bid.compliant', subject: `vendor ${org.name}`,
+      detail: { vendor: org.name, decision: 'compliant', ground: null, note, decidedAt: checkedAt.toISOString() },
+      after: { decision: 'compliant', ground: null, note },
+    });
+  }
+  const flagged = orgs.get(DEMO_LOW_PRICE.vendor)!;
+  const askedAt = new Date(closedAt.getTime() + DAY);
+  const decidedAt = new Date(closedAt.getTime() + 2 * DAY);
+  await em.nativeUpdate(Bid, { tender: salt.id, vendorOrganisation: flagged.id }, {
+    lowPriceExplanationRequestedAt: askedAt, lowPriceAccepted: true, lowPriceNote: DEMO_LOW_PRICE.note, lowPriceDecidedAt: decidedAt,
+  });
+  const mine = opening.abnormallyLow.find((f) => f.vendor === flagged.id);
+  await audit(em, {
+    tenderId: salt.id, actor: buyer, action: 'bid.abnormally-low-accepted', subject: `vendor ${flagged.name}`,
+    detail: { vendor: flagged.name, explanationRequestedAt: askedAt.toISOString(), accepted: true, note: DEMO_LOW_PRICE.note, flags: { regions: mine?.regions ?? [], total: mine?.total ?? false } },
+    after: { explanationRequestedAt: askedAt.toISOString(), accepted: true, note: DEMO_LOW_PRICE.note },
+  });
 }

@@ -2,7 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { User, VendorOrganisation } from '../server/entities';
 import { hashPassword } from '../server/auth/password';
 import { DEMO_ORGANISATIONS, DEMO_PASSWORD, DEMO_PEOPLE } from './demo-people';
-import { loadDemoTenders } from './demo-tenders';
+import { completeDemoOpening, loadDemoTenders } from './demo-tenders';
 
 /**
  * Loads the demo data set (fictional people and firms) in one transaction. Called through
@@ -25,5 +25,6 @@ export async function loadDemo(em: EntityManager): Promise<void> {
     });
     if (p.role === 'buyer') buyer = user;
   }
-  loadDemoTenders(em, buyer!, orgs);
+  const salt = loadDemoTenders(em, buyer!, orgs);
+  await completeDemoOpening(em, salt, buyer!, orgs);
 }

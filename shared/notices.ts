@@ -3,7 +3,9 @@ import { z } from 'zod';
 /** A notice is one letter to one bidder about one award: queued → sent (or failed after retries). */
 export const NOTICE_STATUSES = ['queued', 'sent', 'failed'] as const;
 export type NoticeStatus = (typeof NOTICE_STATUSES)[number];
-export type NoticeKind = 'award' | 'regret';
+/** An excluded bidder gets an exclusion notice (its ground and note), not a regret letter. */
+export const NOTICE_KINDS = ['award', 'regret', 'exclusion'] as const;
+export type NoticeKind = (typeof NOTICE_KINDS)[number];
 
 export const noticeListQuerySchema = z.object({
   tenderId: z.uuid({ error: 'Must be a valid id.' }).optional(),

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { emailSchema } from './auth';
 import { awardRulesSchema } from './award';
+import type { AbnormallyLowView, BidFlags, ComplianceView } from './compliance';
 import { bidInputSchema, regionListSchema } from './bids';
 import { plainText } from './text';
 
@@ -213,9 +214,13 @@ export interface BidView {
   nonce?: string | null;
   updatedAt: string;
   document: { id: string; filename: string; size: number; digest: string } | null;
+  /** After closing: until when the bid must stay valid (closing + bid validity), and the vendor's confirmed extension. */
+  validity?: { validUntil: string; extendedUntil: string | null };
 }
 
 export interface TabulatedBid {
+  /** The bid's id (the compliance check and the abnormally-low decision are recorded against it). */
+  id: string;
   vendor: { id: string; name: string; sme: boolean };
   fixedFee: number;
   capacity: number | null;
@@ -230,6 +235,12 @@ export interface TabulatedBid {
   /** The server recomputed the commitment from the stored figures and `nonce`, and it equals `digest`. */
   receiptVerified: boolean;
   documentId: string | null;
+  /** The buyer's compliance check (decision null: not yet checked). */
+  compliance: ComplianceView;
+  /** The buyer's decision on this bid's abnormally low flags, if recorded. */
+  abnormallyLow: AbnormallyLowView | null;
+  /** Abnormally low prices and total (empty for an excluded bid), computed by the server from the figures here. */
+  flags: BidFlags;
 }
 
 /** GET /api/tenders/:id/bids */

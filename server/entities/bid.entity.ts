@@ -1,4 +1,5 @@
 import { Collection, DecimalType, Entity, Enum, ManyToOne, OneToMany, Property, Unique, type Opt } from '@mikro-orm/core';
+import type { ComplianceDecision, ExclusionGround } from '@shared/compliance';
 import { BID_STATUSES, type BidStatus } from '@shared/tenders';
 import { BaseEntity } from './base.entity';
 import { BidLine } from './bid-line.entity';
@@ -49,6 +50,36 @@ export class Bid extends BaseEntity {
 
   @ManyToOne({ entity: 'BidDocument', nullable: true, deleteRule: 'set null' })
   document?: BidDocument | null;
+
+  /** The buyer's compliance check after closing (services/compliance.service.ts); null: not yet checked. */
+  @Property({ type: 'string', length: 20, nullable: true })
+  complianceDecision?: ComplianceDecision | null;
+
+  @Property({ type: 'string', length: 30, nullable: true })
+  complianceGround?: ExclusionGround | null;
+
+  @Property({ type: 'text', nullable: true })
+  complianceNote?: string | null;
+
+  @Property({ type: 'datetime', nullable: true })
+  complianceDecidedAt?: Date | null;
+
+  /** The buyer's decision on an abnormally low flag: explanation asked (when), accepted or not, why. */
+  @Property({ type: 'datetime', nullable: true })
+  lowPriceExplanationRequestedAt?: Date | null;
+
+  @Property({ type: 'boolean', nullable: true })
+  lowPriceAccepted?: boolean | null;
+
+  @Property({ type: 'text', nullable: true })
+  lowPriceNote?: string | null;
+
+  @Property({ type: 'datetime', nullable: true })
+  lowPriceDecidedAt?: Date | null;
+
+  /** The vendor confirmed its bid stays valid until then (after the tender's validity period). */
+  @Property({ type: 'datetime', nullable: true })
+  validityExtendedUntil?: Date | null;
 
   @OneToMany({ entity: () => BidLine, mappedBy: 'bid', orphanRemoval: true })
   lines = new Collection<BidLine>(this);

@@ -6,6 +6,7 @@ import { BidLine } from './bid-line.entity';
 import { Invitation } from './invitation.entity';
 import { MailMessage } from './mail-message.entity';
 import { Notice } from './notice.entity';
+import { OpeningRecord } from './opening-record.entity';
 import { Recommendation } from './recommendation.entity';
 import { Region } from './region.entity';
 import { Run } from './run.entity';
@@ -17,7 +18,7 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
-  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice];
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord];
 export {
-  AccountToken, AuditEntry, Notice, Recommendation, Run, RunAward, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, AuditEntry, Notice, OpeningRecord, Recommendation, Run, RunAward, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

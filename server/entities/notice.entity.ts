@@ -1,11 +1,11 @@
 import { Entity, Enum, ManyToOne, Property, Unique, type Opt } from '@mikro-orm/core';
-import { NOTICE_STATUSES, type NoticeKind, type NoticeStatus } from '@shared/notices';
+import { NOTICE_KINDS, NOTICE_STATUSES, type NoticeKind, type NoticeStatus } from '@shared/notices';
 import { BaseEntity } from './base.entity';
 import { Run } from './run.entity';
 import { Tender } from './tender.entity';
 import { VendorOrganisation } from './vendor-organisation.entity';
 
-/** The award or regret letter to one bidder, rendered once and kept as sent. One per bidder per award. */
+/** The award, regret or exclusion letter to one bidder, rendered once and kept as sent. One per bidder per award. */
 @Entity({ tableName: 'notice' })
 @Unique({ properties: ['tender', 'vendorOrganisation'] })
 export class Notice extends BaseEntity {
@@ -18,7 +18,7 @@ export class Notice extends BaseEntity {
   @ManyToOne({ entity: () => VendorOrganisation, deleteRule: 'restrict' })
   vendorOrganisation!: VendorOrganisation;
 
-  @Enum({ items: () => ['award', 'regret'] as const, nativeEnumName: 'notice_kind' })
+  @Enum({ items: () => NOTICE_KINDS, nativeEnumName: 'notice_kind' })
   kind!: NoticeKind;
 
   @Enum({ items: () => NOTICE_STATUSES, nativeEnumName: 'notice_status', default: 'queued' })

@@ -1,10 +1,13 @@
 import { z } from 'zod';
+import { abnormallyLowInputSchema, bidIdParamsSchema, complianceInputSchema, validityExtensionInputSchema } from '@shared/compliance';
 import { bidSaveSchema, tenderIdParamSchema } from '@shared/tenders';
 import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
 import { arrivedAt } from '../http/arrival';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as bids from '../services/bids.service';
+import * as compliance from '../services/compliance.service';
+import * as opening from '../services/opening-record.service';
 import { cleanDocumentContent } from '../services/bid-documents';
 
 const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
@@ -36,6 +39,37 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
         const doc = await bids.bidDocument(em, user, params.id, params.documentId);
         res.attachment(doc.filename).type(XLSX).send(await cleanDocumentContent(doc));
       },
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/opening-record', tag: 'Bids', access: ['buyer', 'compliance', 'admin'], params: tenderIdParamSchema,
+      summary: 'The opening record made when the tender closed: every bid received (vendor, time received, revision, receipt) and every bid withdrawn, with the SHA-256 of its canonical JSON (the tender.closed audit entry carries it). None before closing, nor for a tender closed before opening records were kept (404).',
+      handler: ({ em, user, params }) => opening.openingRecordOf(em, user, params.id),
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/opening-record.xlsx', tag: 'Bids', access: ['buyer', 'compliance', 'admin'], params: tenderIdParamSchema, produces: XLSX,
+      summary: 'The opening record as a workbook.',
+      handler: async ({ em, user, params, res }) => {
+        const file = await opening.openingRecordWorkbook(em, user, params.id);
+        res.attachment(file.filename).type(XLSX).send(file.content);
+      },
+    }),
+    route({
+      method: 'put', path: '/tenders/:id/bids/:bidId/compliance', tag: 'Bids', access: ['buyer'], params: bidIdParamsSchema, body: complianceInputSchema,
+      summary: 'The compliance check of one bid after closing: compliant, or excluded with a ground from the fixed list and a note. An excluded bid is out of every scenario; its vendor gets an exclusion notice. Returns the bid as tabulated.',
+      responses: { 409: 'Not closed, already awarded, or a recommendation awaits compliance' },
+      handler: ({ em, user, params, body }) => compliance.decideCompliance(em, user, params.id, params.bidId, body),
+    }),
+    route({
+      method: 'put', path: '/tenders/:id/bids/:bidId/abnormally-low', tag: 'Bids', access: ['buyer'], params: bidIdParamsSchema, body: abnormallyLowInputSchema,
+      summary: 'For a bid flagged as abnormally low: when an explanation was asked for, whether it was accepted, and why. A run awarding a flagged line is recommended only once it is accepted.',
+      responses: { 409: 'Not closed, already awarded, the bid is not flagged or is excluded' },
+      handler: ({ em, user, params, body }) => compliance.decideAbnormallyLow(em, user, params.id, params.bidId, body),
+    }),
+    route({
+      method: 'post', path: '/tenders/:id/bid/validity-extension', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, body: validityExtensionInputSchema,
+      summary: "The vendor confirms that its bid stays valid until `until` (absent: one more validity period). After closing, before the award is approved; an award past the bids' validity is approved only with each awarded vendor's extension.",
+      responses: { 409: 'Not closed, or already awarded' },
+      handler: ({ em, user, params, body }) => compliance.extendValidity(em, user, params.id, body),
     }),
     route({
       method: 'get', path: '/tenders/:id/bid', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,

@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { recordByCode, type BidFigures } from '@shared/bids';
+import { bidsValidUntil, type ComplianceDecision, type ExclusionGround } from '@shared/compliance';
 import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
 import { wrap } from '@mikro-orm/core';
 import { Bid, BidDocument, Tender, type User } from '../entities';
@@ -18,6 +19,7 @@ import { bidCommitment, commitBid } from './bid-commitment';
 import { closeIfDue, findVisibleTender } from './tender-access';
 import { isLiveBid, isSealed, LIVE_BID_STATUSES } from '@shared/tenders';
 import { sqlList } from './sql';
+import { abnormallyLowFlags } from './evaluation/abnormally-low';
 
 export interface BidDeps {
   em: EntityManager;
@@ -72,7 +74,11 @@ function vendorOf(user: User) {
 export async function ownBid(em: EntityManager, user: User, tenderId: string): Promise<BidView | null> {
   const tender = await findVisibleTender(em, user, tenderId);
   const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user) }, { populate: ['lines.region', 'document'] });
-  return bid ? bidView(bid, undefined, undefined, !isSealed(tender.status)) : null;
+  if (!bid) return null;
+  const view = bidView(bid, undefined, undefined, !isSealed(tender.status));
+  if (isSealed(tender.status) || !isLiveBid(bid.status)) return view;
+  const validUntil = bidsValidUntil(tender.closesAt, tender.bidValidityDays);
+  return { ...view, validity: { validUntil: validUntil.toISOString(), extendedUntil: bid.validityExtendedUntil?.toISOString() ?? null } };
 }
 
 class BiddingClosed extends ConflictError {
@@ -272,25 +278,35 @@ export async function bidsOf(em: EntityManager, user: User, tenderId: string): P
  */
 export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): Promise<TabulatedBid[]> {
   const rows = await em.execute<{
-    vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
+    id: string; vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
     submitted_at: Date | string; digest: string; nonce: string | null; revision: number; reference: string; document_id: string | null;
     prices: Record<string, number | string> | null;
+    compliance_decision: ComplianceDecision | null; compliance_ground: ExclusionGround | null; compliance_note: string | null; compliance_decided_at: Date | string | null;
+    low_price_explanation_requested_at: Date | string | null; low_price_accepted: boolean | null; low_price_note: string | null; low_price_decided_at: Date | string | null;
   }[]>(
-    `select o.id as vendor_id, o.name as vendor_name, o.sme, b.fixed_fee, b.capacity, b.submitted_at, b.digest, b.nonce, b.revision,
+    `select b.id, o.id as vendor_id, o.name as vendor_name, o.sme, b.fixed_fee, b.capacity, b.submitted_at, b.digest, b.nonce, b.revision,
             (select t.reference from tender t where t.id = b.tender_id) as reference, b.document_id,
             (select json_object_agg(r.code, l.unit_price order by r.position)
-               from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices
+               from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices,
+            b.compliance_decision, b.compliance_ground, b.compliance_note, b.compliance_decided_at,
+            b.low_price_explanation_requested_at, b.low_price_accepted, b.low_price_note, b.low_price_decided_at
        from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
       where b.tender_id = ? and b.status in (${sqlList(LIVE_BID_STATUSES)})
       order by o.name asc, o.id asc`,
     [tender.id],
   );
-  return rows.map((b) => {
+  const [regions, [settings]] = await Promise.all([
+    em.execute<{ code: string; forecast: string | number }[]>('select code, forecast from region where tender_id = ? order by position', [tender.id]),
+    em.execute<{ abnormally_low_percent: string | number }[]>('select abnormally_low_percent from tender where id = ?', [tender.id]),
+  ]);
+  const iso = (d: Date | string | null) => (d === null ? null : new Date(d).toISOString());
+  const bids = rows.map((b) => {
     const fixedFee = Number(b.fixed_fee);
     const capacity = b.capacity === null ? null : Number(b.capacity);
     const prices = recordByCode(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)] as const));
     const recomputed = b.nonce ? bidCommitment(b.nonce, { tender: b.reference, vendor: b.vendor_id, revision: b.revision, fixedFee, capacity, prices }) : null;
     return {
+      id: b.id,
       vendor: { id: b.vendor_id, name: b.vendor_name, sme: b.sme },
       fixedFee,
       capacity,
@@ -301,8 +317,19 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
       nonce: b.nonce,
       receiptVerified: recomputed !== null && recomputed === b.digest,
       documentId: b.document_id,
+      compliance: { decision: b.compliance_decision, ground: b.compliance_ground, note: b.compliance_note, decidedAt: iso(b.compliance_decided_at) },
+      abnormallyLow: b.low_price_decided_at === null ? null : {
+        explanationRequestedAt: iso(b.low_price_explanation_requested_at), accepted: b.low_price_accepted === true,
+        note: b.low_price_note ?? '', decidedAt: iso(b.low_price_decided_at)!,
+      },
     };
   });
+  const flags = abnormallyLowFlags(
+    bids.map((b) => ({ vendor: b.vendor.id, excluded: b.compliance.decision === 'excluded', fixedFee: b.fixedFee, prices: b.prices })),
+    regions.map((r) => ({ code: r.code, forecast: Number(r.forecast) })),
+    Number(settings?.abnormally_low_percent ?? 20),
+  );
+  return bids.map((b) => ({ ...b, flags: flags.get(b.vendor.id)! }));
 }
 
 function assertUnsealed(tender: Tender): void {

@@ -4,6 +4,7 @@ import { Invitation, Tender, type User } from '../entities';
 import { ConflictError, NotFoundError } from '../http/errors';
 import { audit } from './audit.service';
 import { LIVE_BID_STATUSES } from '@shared/tenders';
+import { writeOpeningRecord } from './opening';
 import { sqlList } from './sql';
 
 /**
@@ -38,7 +39,8 @@ export async function closeAllDue(em: EntityManager, now = new Date()): Promise<
 }
 
 /**
- * Closes the due tenders matching `condition`, each with its audit entry, in one transaction. The
+ * Closes the due tenders matching `condition`, each with its opening record and its audit entry
+ * (which carries the record's digest), in one transaction. The
  * rows are locked first: a bid being stored holds its tender's row FOR SHARE, so closing waits for
  * every bid in flight; the bids are counted by a later statement, which (read committed) sees them.
  */
@@ -64,9 +66,12 @@ async function closeWhere(em: EntityManager, condition: string, params: unknown[
       [`{${locked.map((r) => r.id).join(',')}}`],
     );
     for (const row of rows) {
+      // The opening record (and the first abnormally-low screen) in the same transaction: its
+      // digest is in the closing entry, so the record cannot change unseen afterwards.
+      const opening = await writeOpeningRecord(tx, row.id, new Date());
       await audit(tx, {
         tenderId: row.id, actor: null, action: 'tender.closed', subject: 'tender',
-        detail: { submittedBids: Number(row.bids) }, before: { status: 'open' }, after: { status: 'closed' },
+        detail: { submittedBids: Number(row.bids), ...opening }, before: { status: 'open' }, after: { status: 'closed' },
       });
     }
     return rows.length;

@@ -1,5 +1,5 @@
 import XlsxPopulate from 'xlsx-populate';
-import { AuditEntry, Bid, Tender } from '../../server/entities';
+import { AuditEntry, Bid, OpeningRecord, Tender } from '../../server/entities';
 import { CLOSING_GRACE_MS, closeIfDue } from '../../server/services/tender-access';
 import { makeUser, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
 import { openTender } from '../support/tenders';
@@ -106,7 +106,10 @@ test('closing waits for a bid received in time that is still being stored, and c
   expect((await saving).status).toBe(200);
   expect(await closing).toBe(true);
   const closed = await t.em().findOneOrFail(AuditEntry, { tender: tenderId, action: 'tender.closed' });
-  expect(closed.detail).toEqual({ submittedBids: 1 });
+  // The count, and the opening record written in the same transaction (one bid: nothing to flag).
+  const record = await t.em().findOneOrFail(OpeningRecord, { tender: tenderId });
+  expect(closed.detail).toEqual({ submittedBids: 1, openingRecordDigest: record.digest, abnormallyLow: [] });
+  expect(record.content.bids.map((b) => b.revision)).toEqual([1]);
   const tab = await buyer.get(`/api/tenders/${tenderId}/bids`);
   expect(tab.body.submitted).toBe(1);
   expect(tab.body.bids).toHaveLength(1);

@@ -1,4 +1,4 @@
-import { AuditEntry, Bid, BidLine, Tender } from '../../server/entities';
+import { AuditEntry, Bid, BidLine, OpeningRecord, Tender } from '../../server/entities';
 import { CLOSING_GRACE_MS, closeIfDue } from '../../server/services/tender-access';
 import { makeUser, signedIn, startTestApp, type Browser, type TestApp } from '../support/app';
 import { openTender, tenderBody } from '../support/tenders';
@@ -79,7 +79,11 @@ test('bids saved across the closing time are either stored whole or refused as c
   // Closing, once the grace has passed, counts exactly the accepted bids.
   expect(await closeIfDue(t.em(), tenderId, new Date(closesAt.getTime() + CLOSING_GRACE_MS + 1000))).toBe(true);
   expect((await t.em().findOneOrFail(Tender, { id: tenderId })).status).toBe('closed');
-  expect((await t.em().findOneOrFail(AuditEntry, { tender: tenderId, action: 'tender.closed' })).detail).toEqual({ submittedBids: accepted });
+  const record = await t.em().findOneOrFail(OpeningRecord, { tender: tenderId });
+  expect(record.content.bids).toHaveLength(accepted);
+  expect((await t.em().findOneOrFail(AuditEntry, { tender: tenderId, action: 'tender.closed' })).detail).toEqual({
+    submittedBids: accepted, openingRecordDigest: record.digest, abnormallyLow: [], // every vendor bids the same prices
+  });
 }, 120_000);
 
 test('after the rush, the buyer sees exactly the accepted bids in the tabulation, each with every region priced', async () => {

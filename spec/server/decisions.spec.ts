@@ -180,3 +180,25 @@ test('two notice sends at once queue one notice per bidder; the second gets 409 
   expect(await t.em().count(Notice, { tender: tenderId })).toBe(vendors.length);
   expect(await auditCount(tenderId, 'notices.queued')).toBe(1);
 });
+
+test('excluding an awarded bid racing the recommendation of that run: exactly one wins, and the bid, the recommendation and the trail agree', async () => {
+  const { tenderId, scenarioId } = await closedTender();
+  const run = await waitForRun(buyers[0], (await buyers[0].post(`/api/scenarios/${scenarioId}/runs`)).body.id);
+  const awarded = run.result!.awards[0].vendor;
+  const bids = (await buyers[0].get(`/api/tenders/${tenderId}/bids`)).body.bids as { id: string; vendor: { id: string } }[];
+  const bidId = bids.find((b) => b.vendor.id === awarded)!.id;
+  const answers = await race(tenderId, [
+    () => buyers[0].send('put', `/api/tenders/${tenderId}/bids/${bidId}/compliance`, { decision: 'excluded', ground: 'other', note: 'Bid bond not provided.' }),
+    () => buyers[1].post(`/api/tenders/${tenderId}/recommendation`, { runId: run.id, justification: 'Least total cost.' }),
+  ]);
+  const [exclusion, recommendation] = answers;
+  const excludedWon = exclusion.status === 200;
+  expect({ exclusion: exclusion.status, recommendation: recommendation.status }).toEqual(excludedWon ? { exclusion: 200, recommendation: 409 } : { exclusion: 409, recommendation: 201 });
+  const stored = await t.em().getConnection().execute<{ decision: string | null }[]>('select compliance_decision as decision from bid where id = ?', [bidId]);
+  expect({ decision: stored[0].decision, recommendations: await t.em().count(Recommendation, { tender: tenderId }) }).toEqual(
+    excludedWon ? { decision: 'excluded', recommendations: 0 } : { decision: null, recommendations: 1 },
+  );
+  expect({ excluded: await auditCount(tenderId, 'bid.excluded'), made: await auditCount(tenderId, 'recommendation.made') }).toEqual(
+    excludedWon ? { excluded: 1, made: 0 } : { excluded: 0, made: 1 },
+  );
+});

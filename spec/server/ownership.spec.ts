@@ -52,6 +52,7 @@ beforeAll(async () => {
   ids['tender'] = tenderId;
   const bid = await vendor.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 900, capacity: null, prices: { R01: 10, R02: 11, R03: 12 }, submit: true, version: null });
   expect(bid.status).toBe(200);
+  ids['bid'] = bid.body.id;
   const em = t.em();
   // A real (blank) workbook: the owner downloads a values-only copy made from it.
   const content = await (await XlsxPopulate.fromBlankAsync()).outputAsync();
@@ -82,7 +83,8 @@ function concrete(r: AnyRoute): string {
   const prefix = r.path.split('/')[1];
   const byPrefix: Record<string, string | undefined> = { tenders: ids['tender'], scenarios: ids['scenario'], runs: ids['run'], notices: ids['notice'] };
   return '/api' + r.path.replace(/:([A-Za-z]+)/g, (_m, name: string) => {
-    const id = name === 'id' ? byPrefix[prefix] : name === 'documentId' ? ids['document'] : name === 'organisationId' ? ids['organisation'] : undefined;
+    const named: Record<string, string | undefined> = { documentId: ids['document'], organisationId: ids['organisation'], bidId: ids['bid'] };
+    const id = name === 'id' ? byPrefix[prefix] : named[name];
     if (!id) throw new Error(`${key(r)}: no id for :${name} — teach this test the new parameter`);
     return id;
   });
@@ -95,6 +97,8 @@ const BODIES: Record<string, object> = {
   'POST /tenders/:id/scenarios': { name: 'Intruder', rules: {} },
   'PUT /scenarios/:id': { name: 'Intruder', rules: {} },
   'POST /tenders/:id/recommendation': { runId: '', justification: 'Intruder' },
+  'PUT /tenders/:id/bids/:bidId/compliance': { decision: 'excluded', ground: 'other', note: 'Intruder' },
+  'PUT /tenders/:id/bids/:bidId/abnormally-low': { accepted: true, note: 'Intruder' },
 };
 const QUERIES: Record<string, () => Record<string, string>> = {
   'GET /tenders/:id/compare': () => ({ runs: `${ids['run']},${ids['run']}` }),

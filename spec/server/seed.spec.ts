@@ -1,6 +1,9 @@
 import { Bid, Tender, User, VendorOrganisation } from '../../server/entities';
 import { seed } from '../../server/ops/seed';
-import { DEMO_PASSWORD } from '../../seeds/demo-people';
+import type { TabulatedBid } from '@shared/tenders';
+import { digestOf } from '../../server/services/audit.service';
+import { DEMO_ORGANISATIONS, DEMO_PASSWORD } from '../../seeds/demo-people';
+import { DEMO_LOW_PRICE } from '../../seeds/demo-tenders';
 import { Browser, startTestApp, type TestApp } from '../support/app';
 
 let t: TestApp;
@@ -53,4 +56,28 @@ test('every demo bid has a receipt keyed with a nonce of its own, and the closed
   const bids = (await buyer.get(`/api/tenders/${salt.id}/bids`)).body.bids as { nonce: string; receiptVerified: boolean }[];
   expect(bids).toHaveLength(7);
   for (const b of bids) expect(b).toMatchObject({ nonce: expect.stringMatching(/^[0-9a-f]{64}$/), receiptVerified: true });
+});
+
+test('the demo salt tender has an opening record whose digest is in its trail, every bid compliant, and one price flagged as abnormally low with the buyer\'s accepted explanation', async () => {
+  await seed(t.em(), 'demo'); // loads the data unless an earlier test has
+  const buyer = await new Browser(t.app).init();
+  expect((await buyer.signIn('buyer@demo.tendara.test', DEMO_PASSWORD)).status).toBe(200);
+  const salt = await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' });
+  const opening = await buyer.get(`/api/tenders/${salt.id}/opening-record`);
+  expect(opening.status).toBe(200);
+  expect(opening.body.record.bids).toHaveLength(7);
+  expect(digestOf(opening.body.record)).toBe(opening.body.digest);
+  const trail = (await buyer.get(`/api/tenders/${salt.id}/audit`)).body as { action: string; detail: Record<string, unknown> }[];
+  expect(trail.find((e) => e.action === 'tender.closed')!.detail['openingRecordDigest']).toBe(opening.body.digest);
+  expect((await buyer.get(`/api/tenders/${salt.id}/audit/verify`)).body.ok).toBe(true);
+  const bids = (await buyer.get(`/api/tenders/${salt.id}/bids`)).body.bids as TabulatedBid[];
+  expect(bids.map((b) => b.compliance.decision)).toEqual(Array(7).fill('compliant'));
+  const flagged = bids.filter((b) => b.flags.prices.length > 0 || b.flags.total !== null);
+  const v5 = DEMO_ORGANISATIONS.find((o) => o.key === DEMO_LOW_PRICE.vendor)!;
+  // Garrow Moor: 53.9 → 46.9; bids there 46.9, 55.8, 60.5, 62.4, 63.8: median 60.5, threshold 48.4.
+  expect(flagged.map((b) => [b.vendor.name, b.flags.prices, b.flags.total])).toEqual([
+    [v5.name, [{ region: 'GRM', price: 46.9, median: 60.5, threshold: 48.4 }], null],
+  ]);
+  expect(flagged[0].abnormallyLow).toMatchObject({ accepted: true, note: DEMO_LOW_PRICE.note });
+  expect(trail.filter((e) => e.action === 'bid.abnormally-low-accepted')).toHaveLength(1);
 });

@@ -3,6 +3,7 @@ import type { RecommendationView } from '@shared/evaluation';
 import { Recommendation, Run, Tender, type User } from '../../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { audit } from '../audit.service';
+import { assertBidsValid, assertRecommendable } from '../compliance.service';
 import { lockTender } from '../tender-access';
 import { transition } from '../transition';
 import { evaluableTender, FROZEN } from './scenarios.service';
@@ -40,6 +41,8 @@ export async function recommend(em: EntityManager, user: User, tenderId: string,
     // Under the tender's lock: of two recommendations racing, the second sees the first (409).
     await lockTender(tx, user, tenderId, ['closed'], FROZEN);
     if (await tx.count(Recommendation, { tender: tenderId, status: 'recommended' })) throw new ConflictError(AWAITING);
+    // Under the lock, so that no compliance decision slips in between the check and the record.
+    await assertRecommendable(tx, tenderId, run);
     const r = tx.create(Recommendation, { tender, run, justification: input.justification, recommendedBy: user });
     await tx.flush();
     await audit(tx, {
@@ -61,7 +64,7 @@ export async function decide(em: EntityManager, user: User, tenderId: string, de
     // Under the tender's lock: approve and return (or two approvals) racing run one after the other;
     // the second finds the recommendation decided, or the tender awarded, and gets 409.
     await lockTender(tx, user, tenderId, ['closed'], 'This tender is awarded: its recommendation was approved and can no longer be decided.');
-    const r = await tx.findOne(Recommendation, { tender: tenderId }, { populate: ['recommendedBy', 'decidedBy'], orderBy: { createdAt: 'desc' } });
+    const r = await tx.findOne(Recommendation, { tender: tenderId }, { populate: ['recommendedBy', 'decidedBy', 'run'], orderBy: { createdAt: 'desc' } });
     if (!r) throw new NotFoundError('A recommendation awaiting a decision');
     if (r.status !== 'recommended') {
       throw new ConflictError(`No recommendation is awaiting a decision: the latest was ${r.status} by ${r.decidedBy?.name ?? 'someone'} at ${r.decidedAt?.toISOString() ?? 'an earlier time'}.`);
@@ -69,6 +72,7 @@ export async function decide(em: EntityManager, user: User, tenderId: string, de
     if (r.recommendedBy.id === user.id) {
       throw new AppError(403, 'Not allowed', 'You made this recommendation: someone else must approve or return it (four-eyes rule).');
     }
+    if (decision === 'approved') await assertBidsValid(tx, tenderId, r.run);
     await transition(tx, Recommendation, r.id, ['recommended'], { status: decision, decidedBy: user.id, decidedAt: new Date(), comment: comment || null }, 'This recommendation has already been decided.');
     if (decision === 'approved') {
       await transition(tx, Tender, tenderId, statusesBefore('awarded'), { status: 'awarded' }, 'The tender is no longer open to an award decision.');

@@ -78,9 +78,8 @@ export async function listScenarios(em: EntityManager, user: User, tenderId: str
 /** Rules must name this tender's regions and bidders. */
 async function checkRules(em: EntityManager, tender: Tender, input: ScenarioInput): Promise<void> {
   const rules = awardRulesSchema.parse(input.rules);
-  const { problem } = await buildProblem(em, tender, rules, 1);
+  const { problem, bidders: vendors } = await buildProblem(em, tender, rules, 1);
   const regions = new Set(problem.regions.map((r) => r.id));
-  const vendors = new Set(problem.vendors.map((v) => v.id));
   const errors = [
     ...rules.soleRegions.flatMap((c, i) => (regions.has(c) ? [] : [{ field: `rules.soleRegions[${i}]`, message: `Region ${c} is not part of this tender.` }])),
     ...rules.exclude.flatMap((v, i) => (vendors.has(v) ? [] : [{ field: `rules.exclude[${i}]`, message: 'This vendor has no submitted bid on this tender.' }])),

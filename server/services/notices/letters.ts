@@ -1,5 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AwardResult } from '@shared/award';
+import { EXCLUSION_GROUND_LABELS } from '@shared/compliance';
 import type { NoticeKind } from '@shared/notices';
 import { Bid, Recommendation, Region, User, type Run, type Tender } from '../../entities';
 import { ConflictError } from '../../http/errors';
@@ -37,8 +38,9 @@ function ordinal(n: number): string {
 
 /**
  * Every bidder's letter, rendered from view models: the awarded vendors' award letters (their
- * lines, which add up to the contract value) and the others' regret letters (their own rank and
- * the awarded total — never another vendor's prices).
+ * lines, which add up to the contract value), the excluded bidders' exclusion notices (ground, note,
+ * date, remedies) and the others' regret letters (their own rank among the bids evaluated and the
+ * awarded total — never another vendor's prices).
  */
 export async function composeLetters(em: EntityManager, tender: Tender, sentAt = new Date()): Promise<Letter[]> {
   const run = await approvedRun(em, tender);
@@ -52,8 +54,10 @@ export async function composeLetters(em: EntityManager, tender: Tender, sentAt =
   const longDate = new Intl.DateTimeFormat(tender.locale, { dateStyle: 'long', timeZone: 'UTC' });
   const standstillEndsAt = new Date(sentAt.getTime() + tender.standstillDays * DAY);
 
-  // Rank: cost per unit of each bid at the forecast of the regions it covered, fee included.
-  const perUnit = bids.map((b) => {
+  // Rank: cost per unit of each bid at the forecast of the regions it covered, fee included; among
+  // the bids evaluated (an excluded bid was not: its vendor gets an exclusion notice, unranked).
+  const evaluated = bids.filter((b) => b.complianceDecision !== 'excluded');
+  const perUnit = evaluated.map((b) => {
     const lines = b.lines.getItems();
     const volume = lines.reduce((s, l) => s + l.region.forecast, 0);
     const cost = b.fixedFee + lines.reduce((s, l) => s + l.unitPrice * l.region.forecast, 0);
@@ -73,7 +77,14 @@ export async function composeLetters(em: EntityManager, tender: Tender, sentAt =
     const people = await em.find(User, { vendorOrganisation: org, active: true, membership: 'approved' });
     const to = [...new Set([org.contactEmail, ...people.map((p) => p.email)].map(normaliseEmail))];
     const award = result.awards.find((a) => a.vendor === org.id);
-    if (award) {
+    if (bid.complianceDecision === 'excluded') {
+      const view = {
+        ...common, vendorName: org.name, ground: EXCLUSION_GROUND_LABELS[bid.complianceGround ?? 'other'], note: bid.complianceNote ?? '',
+        decidedOn: longDate.format(bid.complianceDecidedAt ?? sentAt),
+      };
+      const mail = renderMail('exclusion-notice', `Exclusion of your bid: ${tender.reference}`, view);
+      letters.push({ vendor: { id: org.id, name: org.name }, kind: 'exclusion', to, ...mail, standstillEndsAt });
+    } else if (award) {
       const view = {
         ...common, vendorName: org.name,
         lines: award.lines.map((l) => ({ region: l.region, regionName: regions.get(l.region)?.name ?? l.region, quantity: qty.format(l.quantity), unitPrice: price.format(l.unitPrice), cost: money.format(l.cost) })),
@@ -84,12 +95,13 @@ export async function composeLetters(em: EntityManager, tender: Tender, sentAt =
     } else {
       const view = {
         ...common, vendorName: org.name,
-        rank: ordinal(perUnit.findIndex((p) => p.id === org.id) + 1), bidders: bids.length,
+        rank: ordinal(perUnit.findIndex((p) => p.id === org.id) + 1), bidders: evaluated.length,
         awardedTotal: money.format(result.objective ?? 0), awardedVendors: result.awards.length, oneAwarded: result.awards.length === 1,
       };
       const mail = renderMail('regret-letter', `Outcome of tender ${tender.reference}`, view);
       letters.push({ vendor: { id: org.id, name: org.name }, kind: 'regret', to, ...mail, standstillEndsAt });
     }
   }
-  return letters.sort((a, b) => (a.kind === b.kind ? a.vendor.name.localeCompare(b.vendor.name) : a.kind === 'award' ? -1 : 1));
+  const order = { award: 0, regret: 1, exclusion: 2 };
+  return letters.sort((a, b) => (a.kind === b.kind ? a.vendor.name.localeCompare(b.vendor.name) : order[a.kind] - order[b.kind]));
 }

@@ -51,7 +51,7 @@ export async function sendNotices(deps: NoticeDeps, user: User, tenderId: string
     }));
     if (!fresh.length) throw new ConflictError('The notices of this award have already been queued; each bidder receives its notice once.');
     await tx.flush();
-    await audit(tx, { tenderId, actor: user, action: 'notices.queued', subject: `${fresh.length} notices`, detail: { award: fresh.filter((n) => n.kind === 'award').length, regret: fresh.filter((n) => n.kind === 'regret').length } });
+    await audit(tx, { tenderId, actor: user, action: 'notices.queued', subject: `${fresh.length} notices`, detail: { award: fresh.filter((n) => n.kind === 'award').length, regret: fresh.filter((n) => n.kind === 'regret').length, exclusion: fresh.filter((n) => n.kind === 'exclusion').length } });
     return fresh.map((n) => n.id);
   });
   for (const id of created) await queueNotice(deps.boss, id);

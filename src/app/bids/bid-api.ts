@@ -32,6 +32,11 @@ export class BidApi {
     return this.http.post<{ documentId: string; bid: BidFigures }>(`${this.url(tenderId)}/bid-workbook`, body);
   }
 
+  /** After closing: confirms the bid stays valid for one more validity period (or until `until`). */
+  extendValidity(tenderId: string, until?: string): Observable<{ validUntil: string; extendedUntil: string }> {
+    return this.http.post<{ validUntil: string; extendedUntil: string }>(`${this.url(tenderId)}/bid/validity-extension`, until ? { until } : {});
+  }
+
   workbookUrl(tenderId: string): string {
     return `${this.url(tenderId)}/bid-workbook`;
   }

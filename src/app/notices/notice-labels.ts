@@ -17,6 +17,7 @@ export const NOTICE_STATUS_ICONS: Record<NoticeStatus, string> = {
 export const NOTICE_KIND_LABELS: Record<NoticeKind, string> = {
   award: 'Award letter',
   regret: 'Regret letter',
+  exclusion: 'Exclusion notice',
 };
 
 /** The date a reader cares about: when it went out, or when it was queued if it has not yet. */

@@ -1,8 +1,9 @@
 import { HttpClient, HttpParams } from '@angular/common/http';
 import { Injectable, inject } from '@angular/core';
 import type { RegionInput } from '@shared/bids';
+import type { AbnormallyLowInput, ComplianceInput } from '@shared/compliance';
 import type { VendorOrganisationView } from '@shared/people';
-import type { BidsAnswer, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
+import type { BidsAnswer, InvitationInput, TabulatedBid, TenderInput, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
 import { Observable } from 'rxjs';
 import { API_BASE_URL } from '../core/http/api-base-url';
 
@@ -63,6 +64,20 @@ export class TenderApi {
   /** Plain links (the browser downloads them with the session cookie). */
   tabulationUrl(id: string): string {
     return `${this.tenderUrl(id)}/tabulation.xlsx`;
+  }
+
+  openingRecordUrl(id: string): string {
+    return `${this.tenderUrl(id)}/opening-record.xlsx`;
+  }
+
+  /** The compliance check of one bid (buyer): compliant, or excluded with a ground and a note. */
+  checkBid(id: string, bidId: string, input: ComplianceInput): Observable<TabulatedBid> {
+    return this.http.put<TabulatedBid>(`${this.tenderUrl(id)}/bids/${encodeURIComponent(bidId)}/compliance`, input);
+  }
+
+  /** The buyer's decision on a bid flagged as abnormally low. */
+  decideLowPrice(id: string, bidId: string, input: AbnormallyLowInput): Observable<TabulatedBid> {
+    return this.http.put<TabulatedBid>(`${this.tenderUrl(id)}/bids/${encodeURIComponent(bidId)}/abnormally-low`, input);
   }
 
   documentUrl(id: string, documentId: string): string {

@@ -11,12 +11,13 @@ import { RegionTable } from '../../tenders/region-table/region-table';
 import { TenderApi } from '../../tenders/tender-api';
 import { TENDER_STATUS_LABELS } from '../../tenders/tender-status';
 import { BidForm } from '../bid-form/bid-form';
+import { BidValidity } from '../bid-validity/bid-validity';
 
 /** /tenders/:id for a vendor: the tender it is invited to, and its own bid. */
 @Component({
   selector: 'app-bid-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm],
+  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm, BidValidity],
   templateUrl: './bid-page.html',
   styleUrl: './bid-page.scss',
 })

@@ -1,21 +1,27 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, viewChild } from '@angular/core';
-import { rxResource } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, viewChild } from '@angular/core';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { MatDialog } from '@angular/material/dialog';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSort, MatSortModule } from '@angular/material/sort';
 import { MatTableDataSource, MatTableModule } from '@angular/material/table';
 import { byCode, recordByCode } from '@shared/bids';
+import { EXCLUSION_GROUND_LABELS } from '@shared/compliance';
 import type { TabulatedBid, TenderView } from '@shared/tenders';
+import { Auth } from '../../core/auth/auth';
 import { ApiError } from '../../core/http/api-error';
+import { BidCheckDialog, type BidCheckDialogData } from '../bid-check-dialog/bid-check-dialog';
+import { LowPriceDialog, type LowPriceDialogData } from '../low-price-dialog/low-price-dialog';
 import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
 import { TenderApi } from '../tender-api';
 import { money, quantity } from '../tender-status';
 
-/** The lowest unit price bid for each region (regions nobody bid are left out). */
+/** The lowest unit price bid for each region among the bids not excluded (regions nobody bid are left out). */
 export function lowestPrices(bids: readonly TabulatedBid[]): Record<string, number> {
   const lowest = recordByCode<number>();
   for (const bid of bids) {
+    if (bid.compliance.decision === 'excluded') continue;
     for (const [code, price] of Object.entries(bid.prices)) {
       const best = byCode(lowest, code);
       if (best === undefined || price < best) lowest[code] = price;
@@ -26,7 +32,16 @@ export function lowestPrices(bids: readonly TabulatedBid[]): Record<string, numb
 
 const REGION_COLUMN = 'region:';
 
-/** After closing: every submitted bid, vendor × region, the lowest price of each region marked. */
+/** Whether the server flagged anything in the bid as abnormally low. */
+export function isFlagged(bid: TabulatedBid): boolean {
+  return bid.flags.prices.length > 0 || bid.flags.total !== null;
+}
+
+/**
+ * After closing: every submitted bid, vendor × region, the lowest price of each region marked;
+ * each bid's compliance check and abnormally-low flags (computed by the server, with their medians
+ * and thresholds), and for the buyer the actions that record them.
+ */
 @Component({
   selector: 'app-bid-tabulation',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -36,6 +51,9 @@ const REGION_COLUMN = 'region:';
 })
 export class BidTabulation {
   private readonly api = inject(TenderApi);
+  private readonly auth = inject(Auth);
+  private readonly dialog = inject(MatDialog);
+  private readonly destroyRef = inject(DestroyRef);
   private readonly sort = viewChild(MatSort);
 
   readonly tender = input.required<TenderView>();
@@ -62,8 +80,17 @@ export class BidTabulation {
    */
   protected readonly regionColumns = computed(() => this.tender().regions.map((r) => ({ ...r, column: REGION_COLUMN + r.code })));
   protected readonly shownRegions = regionPage(this.regionColumns, this.regionPageIndex, this.regionPageSize);
-  protected readonly columns = computed(() => ['vendor', 'sme', 'fixedFee', 'capacity', ...this.shownRegions().map((r) => r.column)]);
+  protected readonly columns = computed(() => ['vendor', 'check', 'flags', 'sme', 'fixedFee', 'capacity', ...this.shownRegions().map((r) => r.column)]);
   protected readonly exportUrl = computed(() => this.api.tabulationUrl(this.tender().id));
+  protected readonly openingRecordUrl = computed(() => this.api.openingRecordUrl(this.tender().id));
+  /** The buyer records checks and decisions while the tender is closed and not yet awarded. */
+  protected readonly canDecide = computed(() => this.auth.hasRole(['buyer']) && this.tender().status === 'closed');
+  protected readonly excludedCount = computed(() => this.bids().filter((b) => b.compliance.decision === 'excluded').length);
+  protected readonly uncheckedCount = computed(() => this.bids().filter((b) => b.compliance.decision === null).length);
+  protected readonly flaggedCount = computed(() => this.bids().filter(isFlagged).length);
+  protected readonly isFlagged = isFlagged;
+  /** Announced after a decision is stored. */
+  protected readonly status = signal('');
   protected readonly quantity = quantity;
 
   constructor() {
@@ -100,7 +127,53 @@ export class BidTabulation {
   }
 
   protected isLowest(bid: TabulatedBid, code: string): boolean {
+    if (bid.compliance.decision === 'excluded') return false;
     const price = byCode(bid.prices, code);
     return price !== undefined && price === byCode(this.lowest(), code);
+  }
+
+  protected groundLabel(bid: TabulatedBid): string {
+    return bid.compliance.ground ? EXCLUSION_GROUND_LABELS[bid.compliance.ground] : '';
+  }
+
+  protected priceFlag(bid: TabulatedBid, code: string) {
+    return bid.flags.prices.find((f) => f.region === code);
+  }
+
+  /** The flags in the buyer's words, every figure shown so that it can be checked. */
+  protected flagTexts(bid: TabulatedBid): string[] {
+    const regionName = (code: string) => this.tender().regions.find((r) => r.code === code)?.name ?? code;
+    const pct = bid.flags.percent;
+    return [
+      ...bid.flags.prices.map((f) => `${regionName(f.region)}: ${this.money(f.price)} is more than ${pct} % below the median ${this.money(f.median)} (threshold ${this.money(f.threshold)})`),
+      ...(bid.flags.total ? [`Total at the forecast ${money(bid.flags.total.total, this.tender().currency, 2)} is more than ${pct} % below the median total ${money(bid.flags.total.median, this.tender().currency, 2)}`] : []),
+    ];
+  }
+
+  protected check(bid: TabulatedBid): void {
+    this.dialog
+      .open<BidCheckDialog, BidCheckDialogData, TabulatedBid>(BidCheckDialog, { data: { tenderId: this.tender().id, bid }, width: '640px', maxWidth: '95vw' })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((stored) => {
+        if (!stored) return;
+        this.status.set(`${stored.vendor.name}: ${stored.compliance.decision === 'excluded' ? 'excluded from the evaluation' : 'found compliant'}.`);
+        // Medians count compliant bids only: every bid's flags may change.
+        this.answer.reload();
+      });
+  }
+
+  protected decideLowPrice(bid: TabulatedBid): void {
+    this.dialog
+      .open<LowPriceDialog, LowPriceDialogData, TabulatedBid>(LowPriceDialog, {
+        data: { tenderId: this.tender().id, bid, flags: this.flagTexts(bid) }, width: '640px', maxWidth: '95vw',
+      })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((stored) => {
+        if (!stored) return;
+        this.status.set(`${stored.vendor.name}: explanation ${stored.abnormallyLow?.accepted ? 'accepted' : 'not accepted'}.`);
+        this.answer.reload();
+      });
   }
 }
