@@ -12,6 +12,7 @@ import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
 import { BidTabulation } from '../bid-tabulation/bid-tabulation';
+import { AwardBasisPanel } from '../award-basis-panel/award-basis-panel';
 import { hasClosed, localClosingTime, minuteClock, timeLeft } from '../closing-time';
 import { InvitationsPanel } from '../invitations-panel/invitations-panel';
 import { RegionTable } from '../region-table/region-table';
@@ -22,7 +23,7 @@ import { TENDER_STATUS_LABELS } from '../tender-status';
 @Component({
   selector: 'app-tender-detail',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel],
   templateUrl: './tender-detail.html',
   styleUrl: './tender-detail.scss',
 })
@@ -97,7 +98,7 @@ export class TenderDetail {
           title: `Publish ${tender.reference}?`,
           message:
             `Bidding opens at once and ${invited} invited ${invited === 1 ? 'organisation is' : 'organisations are'} e-mailed. ` +
-            `The regions and closing time (${localClosingTime(tender.closesAt)}) can no longer be changed. ` +
+            `The regions and closing time (${localClosingTime(tender.closesAt, tender.timeZone)}) can no longer be changed. ` +
             `Check them against the tender documents and your procurement rules before you publish.`,
           confirm: 'Publish',
         },
