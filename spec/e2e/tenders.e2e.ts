@@ -205,19 +205,19 @@ test('the buyer sets the award basis, buying body and time zone; a refused forec
 
   await page.getByLabel('Maximum number of vendors').fill('2');
   await page.getByLabel('Maximum vendor share (%)').fill('60');
-  await page.getByLabel('Award increment').fill('200');
+  await page.getByLabel('Award increment').fill('100');
   const preview = page.getByRole('heading', { name: 'What vendors will read' }).locator('xpath=..');
   await preview.getByText('No vendor will be awarded more than 60 % of the total quantity.').waitFor();
-  await preview.getByText('Quantities are awarded in whole multiples of 200 t.').waitFor();
+  await preview.getByText('Quantities are awarded in whole multiples of 100 t.').waitFor();
   await page.getByLabel('Name', { exact: true }).fill('Northvale Highways Partnership');
   await page.getByLabel('Address').fill('Unit 4, Harbour Road, Northvale');
   await page.getByLabel('Contact e-mail').fill('procurement@northvale.tendara.test');
   await page.getByLabel('Country code').fill('ie');
   await page.getByLabel('Estimated contract value').fill('120000');
 
-  // The server refuses 750 t in 200 t steps; its message lands under that forecast.
+  // The server refuses 750 t in 100 t steps; its message lands under that forecast.
   await page.getByRole('button', { name: 'Save draft' }).click();
-  await page.getByText('With an award increment of 200 t, the forecast must be a whole multiple of it.').waitFor();
+  await page.getByText('With an award increment of 100 t, the forecast must be a whole multiple of it.').waitFor();
   await page.getByRole('heading', { name: 'Award basis' }).scrollIntoViewIfNeeded();
   await animationsDone(page);
   await screenshot(page, 'tender-editor-basis-1280');

@@ -75,6 +75,9 @@ export class RunCompare {
     return cause instanceof ApiError ? cause.userMessage : 'The comparison could not be loaded.';
   });
   protected readonly measures = MEASURES;
+  protected hasWhatIf(c: Comparison): boolean {
+    return c.runs.some((r) => !r.awardable);
+  }
   protected readonly soleCost = computed(() => {
     const c = this.comparison.value();
     if (!c?.costOfSoleAward) return null;

@@ -2,7 +2,7 @@ import { FormArray, FormControl, FormGroup, NonNullableFormBuilder, ValidatorFn 
 import { regionInputSchema, type RegionInput } from '@shared/bids';
 import { buyingBodySchema, tenderInputSchema, timeZoneSchema, type AwardBasis, type TenderInput, type TenderView } from '@shared/tenders';
 import { utcToWallTime, wallTimeToUtc } from '@shared/time-zone';
-import { z } from 'zod';
+import { z, type ZodType } from 'zod';
 import type { FieldProblem } from '../../core/http/api-error';
 import { zodValidator } from '../../ui/zod-validator';
 
@@ -83,7 +83,29 @@ const closingTimeValidator: ValidatorFn = (group) => {
   return new Date(at).getTime() > Date.now() ? null : { closing: 'Closing time must be in the future.' };
 };
 
+/** A buying body's field: checked only once any of its fields is filled in (none at all is allowed on a draft). */
+function bodyField(schema: ZodType, upperCase = false): ValidatorFn {
+  return (control) => {
+    const values = Object.values((control.parent?.getRawValue() ?? {}) as Record<string, string>);
+    if (values.every((v) => !v.trim())) return null;
+    // The country code is sent in capitals (formBody), so "ie" is as good as "IE".
+    const value = upperCase ? String(control.value).trim().toUpperCase() : control.value;
+    const result = schema.safeParse(value);
+    return result.success ? null : { zod: result.error.issues[0]?.message ?? 'Not valid.' };
+  };
+}
+
 export function tenderForm(fb: NonNullableFormBuilder) {
+  const buyingBody = fb.group({
+    name: ['', bodyField(bodyFields.name)],
+    address: ['', bodyField(bodyFields.address)],
+    email: ['', bodyField(bodyFields.email)],
+    country: ['', bodyField(bodyFields.country, true)],
+  });
+  // A field's validity depends on its siblings: check all of them on every change.
+  buyingBody.valueChanges.subscribe(() => {
+    for (const control of Object.values(buyingBody.controls)) control.updateValueAndValidity({ emitEvent: false });
+  });
   return fb.group(
     {
       reference: ['', zodValidator(fields.reference)],
@@ -98,12 +120,7 @@ export function tenderForm(fb: NonNullableFormBuilder) {
       description: ['', zodValidator(fields.description)],
       regions: fb.array<RegionGroup>([regionGroup(fb)]),
       awardBasis: awardBasisGroup(),
-      buyingBody: fb.group({
-        name: ['', zodValidator(bodyFields.name)],
-        address: ['', zodValidator(bodyFields.address)],
-        email: ['', zodValidator(bodyFields.email)],
-        country: ['', zodValidator(bodyFields.country)],
-      }),
+      buyingBody,
       timeZone: [VIEWER_TIME_ZONE, zodValidator(timeZoneSchema)],
       estimatedValue: new FormControl<number | null>(null, zodValidator(fields.estimatedValue)),
       bidValidityDays: new FormControl<number | null>(90, zodValidator(fields.bidValidityDays)),
