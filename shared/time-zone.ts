@@ -38,10 +38,13 @@ export function utcToWallTime(iso: string, timeZone: string): string {
   return `${p.year}-${two(p.month)}-${two(p.day)}T${two(p.hour)}:${two(p.minute)}`;
 }
 
-/** "Sat 12 Dec 2026, 12:00 GMT (Europe/Dublin)": the time in the tender's zone, the zone named. */
-export function formatInZone(iso: string, timeZone: string, locale = 'en-GB'): string {
+/**
+ * "Sat 12 Dec 2026, 12:00 GMT (Europe/Dublin)": the time in the tender's zone, the zone named
+ * (`named` false leaves the zone's name out, for a narrow column that names it below).
+ */
+export function formatInZone(iso: string, timeZone: string, locale = 'en-GB', named = true): string {
   const text = new Intl.DateTimeFormat(locale, {
     timeZone, weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short',
   }).format(new Date(iso));
-  return `${text} (${timeZone})`;
+  return named ? `${text} (${timeZone})` : text;
 }

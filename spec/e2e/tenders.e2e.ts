@@ -34,7 +34,7 @@ test('a vendor bids by form: sees the live total, submits, and gets the receipt 
   await screenshot(page, 'tender-list-vendor-1280');
   expect(await seriousViolations(page)).toEqual([]);
 
-  await page.getByRole('row', { name: /NHP-2027-002/ }).getByText(/\(Europe\/Dublin\)/).waitFor();
+  await page.getByRole('row', { name: /NHP-2027-002/ }).getByText(/Europe\/Dublin · closes in/).waitFor();
   await page.getByRole('link', { name: 'NHP-2027-002' }).click();
   await page.getByRole('heading', { name: 'Your bid' }).waitFor();
   // The published award basis in words, before bidding.

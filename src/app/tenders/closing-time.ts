@@ -23,8 +23,8 @@ export function timeLeft(closesAt: string, now: number): string {
  * The closing time in the tender's time zone, the zone named ("Tue, 1 Jul 2031, 12:00 GMT+1
  * (Europe/Dublin)"); without a zone, in the viewer's own, named too.
  */
-export function localClosingTime(iso: string, timeZone?: string): string {
-  if (timeZone) return formatInZone(iso, timeZone);
+export function localClosingTime(iso: string, timeZone?: string, named = true): string {
+  if (timeZone) return formatInZone(iso, timeZone, 'en-GB', named);
   // dateStyle cannot be combined with timeZoneName, hence the separate fields.
   return new Intl.DateTimeFormat(undefined, {
     weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZoneName: 'short',

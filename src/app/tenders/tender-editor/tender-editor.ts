@@ -18,7 +18,7 @@ import { ApiError } from '../../core/http/api-error';
 import { fieldMessage } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
 import { quantity } from '../tender-status';
-import { controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm, zonedInstant } from './tender-form';
+import { clearServerProblems, controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm, zonedInstant } from './tender-form';
 
 /** Every IANA zone the browser knows. */
 const ZONES: readonly string[] = Intl.supportedValuesOf('timeZone');
@@ -193,6 +193,7 @@ export class TenderEditor {
   protected save(): void {
     if (this.busy() || this.form.disabled) return;
     this.failure.set(null);
+    clearServerProblems(this.form);
     const parsed = tenderInputSchema.safeParse(formBody(this.form));
     const duplicates = findDuplicateRegionCodes(this.regions.getRawValue());
     if (this.form.invalid || !parsed.success || duplicates.length) {

@@ -1,7 +1,7 @@
 import { TestBed } from '@angular/core/testing';
 import { NonNullableFormBuilder } from '@angular/forms';
 import { tenderInputSchema, type TenderView } from '@shared/tenders';
-import { fillForm, formBody, placeProblems, tenderForm } from './tender-form';
+import { clearServerProblems, fillForm, formBody, placeProblems, tenderForm } from './tender-form';
 
 /** A fictional draft in Irish time: 12:00 on 1 July 2031 is 11:00 UTC (summer time, UTC+1). */
 const draft: TenderView = {
@@ -83,5 +83,8 @@ describe('tender form', () => {
     expect(form.controls.awardBasis.controls.soleRegions.errors).toEqual({ server: "Region QSL is not one of this tender's regions." });
     expect(form.controls.regions.at(1).controls.forecast.errors).toEqual({ server: 'With an award increment of 25 t, the forecast must be a whole multiple of it.' });
     expect(form.controls.buyingBody.controls.country.errors).toEqual({ server: 'Country must be a two-letter ISO 3166-1 code such as IE.' });
+    // A new attempt starts clean: the forecast's refusal depended on another field.
+    clearServerProblems(form);
+    expect(form.valid).toBe(true);
   });
 });

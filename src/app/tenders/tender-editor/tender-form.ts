@@ -1,4 +1,4 @@
-import { FormArray, FormControl, FormGroup, NonNullableFormBuilder, ValidatorFn } from '@angular/forms';
+import { AbstractControl, FormArray, FormControl, FormGroup, NonNullableFormBuilder, ValidatorFn } from '@angular/forms';
 import { regionInputSchema, type RegionInput } from '@shared/bids';
 import { buyingBodySchema, tenderInputSchema, timeZoneSchema, type AwardBasis, type TenderInput, type TenderView } from '@shared/tenders';
 import { utcToWallTime, wallTimeToUtc } from '@shared/time-zone';
@@ -234,6 +234,18 @@ export function controlPath(field: string | readonly PropertyKey[]): string {
   // One control holds the list of sole-awarded regions.
   if (path.startsWith('awardBasis.soleRegions.')) return 'awardBasis.soleRegions';
   return path;
+}
+
+/**
+ * Drops the server's earlier refusals before a new attempt: some depend on other fields (a
+ * forecast refused for the award increment), so they must not outlive the change that cures them.
+ */
+export function clearServerProblems(control: AbstractControl): void {
+  if (control instanceof FormGroup || control instanceof FormArray) {
+    for (const child of Object.values(control.controls as Record<string, AbstractControl>)) clearServerProblems(child);
+  } else if (control.errors?.['server']) {
+    control.updateValueAndValidity();
+  }
 }
 
 /** Puts each problem on its control; returns the ones with no control (for the form-level line). */
