@@ -240,6 +240,7 @@ test('the buyer sets the award basis, buying body and time zone; a refused forec
   // Reopened, the editor shows what was saved: percentages as percentages, the time in the zone.
   await page.getByRole('link', { name: 'Edit' }).click();
   await page.getByRole('heading', { name: 'Edit tender', level: 1 }).waitFor();
+  await page.waitForFunction(() => document.querySelector<HTMLInputElement>('input[formcontrolname="reference"]')?.value === 'NHP-2027-010');
   await expect(page.getByLabel('Maximum vendor share (%)').inputValue()).resolves.toBe('60');
   await expect(page.getByLabel('Time zone of the procedure').inputValue()).resolves.toBe('Europe/Dublin');
   await expect(page.getByLabel('Closing time of day').inputValue()).resolves.toBe('12:00');
