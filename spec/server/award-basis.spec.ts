@@ -51,7 +51,8 @@ async function workbookText(file: Buffer): Promise<string> {
   for (const sheet of wb.sheets()) {
     const used = sheet.usedRange();
     if (!used) continue;
-    for (const row of used.value() as unknown[][]) for (const v of row) if (v !== undefined && v !== null) out.push(String(v));
+    // Cells hold text, numbers or nothing.
+    for (const row of used.value() as (string | number | boolean | null | undefined)[][]) for (const v of row) if (v !== undefined && v !== null) out.push(String(v));
   }
   return out.join('\n');
 }

@@ -89,7 +89,8 @@ function bodyField(schema: ZodType, upperCase = false): ValidatorFn {
     const values = Object.values((control.parent?.getRawValue() ?? {}) as Record<string, string>);
     if (values.every((v) => !v.trim())) return null;
     // The country code is sent in capitals (formBody), so "ie" is as good as "IE".
-    const value = upperCase ? String(control.value).trim().toUpperCase() : control.value;
+    const text = String(control.value as string);
+    const value = upperCase ? text.trim().toUpperCase() : text;
     const result = schema.safeParse(value);
     return result.success ? null : { zod: result.error.issues[0]?.message ?? 'Not valid.' };
   };
