@@ -222,7 +222,7 @@ test('the buyer sets the award basis, buying body and time zone; a refused forec
   await animationsDone(page);
   await screenshot(page, 'tender-editor-basis-1280');
   expect(await seriousViolations(page)).toEqual([]);
-  await page.getByRole('heading', { name: 'Buying body' }).scrollIntoViewIfNeeded();
+  await page.getByRole('heading', { name: 'Procedure' }).scrollIntoViewIfNeeded();
   await screenshot(page, 'tender-editor-procedure-1280');
 
   await page.getByLabel('Award increment').fill('250');
@@ -232,6 +232,7 @@ test('the buyer sets the award basis, buying body and time zone; a refused forec
   await page.getByText('At most 2 vendors will be awarded.').waitFor();
   await page.getByText('Quantities are awarded in whole multiples of 250 t.').waitFor();
   await page.getByText(/Tue, 1 Jul 2031, 12:00 GMT\+1 \(Europe\/Dublin\)/).first().waitFor();
+  await page.getByText('not shown to vendors').waitFor();
   await page.getByRole('heading', { name: 'How the contract will be awarded' }).scrollIntoViewIfNeeded();
   await animationsDone(page);
   await screenshot(page, 'tender-detail-basis-1280');

@@ -155,6 +155,13 @@ describe('vendors see the basis before bidding, never the estimate', () => {
     }
   });
 
+  test('the bid receipt names the closing time in the tender zone', async () => {
+    const saved = await vendors[0].send('put', `/api/tenders/${id}/bid`, { fixedFee: 100, capacity: null, prices: { R01: 10 }, submit: true, version: null });
+    expect(saved.status).toBe(200);
+    const receipt = await waitForMail(t, vendorUsers[0].email, `Receipt: your bid on ${reference}`);
+    expect(receipt.text).toContain('closing time (Tue, 1 Jul 2031, 12:00 GMT+1 (Europe/Dublin), 2031-07-01 11:00:00 UTC)');
+  });
+
   test("the bid workbook's cover sheet states the basis and the zoned closing time, without the estimate", async () => {
     const text = await workbookText(await download(vendors[1], `/api/tenders/${id}/bid-workbook`));
     expect(text).toContain('How the contract will be awarded (the published award basis)');

@@ -11,6 +11,7 @@ import { Auth } from '../../core/auth/auth';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { money } from '../../ui/number-format';
 import { BidTabulation } from '../bid-tabulation/bid-tabulation';
 import { AwardBasisPanel } from '../award-basis-panel/award-basis-panel';
 import { hasClosed, localClosingTime, minuteClock, timeLeft } from '../closing-time';
@@ -45,6 +46,7 @@ export class TenderDetail {
   protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
   protected readonly statusLabel = TENDER_STATUS_LABELS;
   protected readonly closingTime = localClosingTime;
+  protected readonly money = money;
   protected readonly isDraft = computed(() => this.tender()?.status === 'draft');
   /** Scenarios, runs and the award decision: buyer and compliance, once the bids are unsealed. */
   protected readonly canEvaluate = computed(() => {
