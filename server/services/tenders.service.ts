@@ -138,7 +138,8 @@ function wholeMultiple(value: number, step: number): boolean {
 /**
  * The award basis must fit the tender it is published with: sole-awarded regions are its regions,
  * the minimum number of vendors is not above the maximum, and with an award increment every
- * forecast is a whole multiple of it (the engine awards nothing else).
+ * forecast is a whole multiple of it (the engine awards nothing else). A clarification deadline
+ * set by hand comes before the closing time.
  */
 function checkAwardBasis(input: TenderInput): void {
   const basis = input.awardBasis;
@@ -160,6 +161,9 @@ function checkAwardBasis(input: TenderInput): void {
         errors.push({ field: `regions[${i}].forecast`, message: `With an award increment of ${step} ${input.unit}, the forecast must be a whole multiple of it.` });
       }
     }
+  }
+  if (input.clarificationsCloseAt && new Date(input.clarificationsCloseAt).getTime() >= new Date(input.closesAt).getTime()) {
+    errors.push({ field: 'clarificationsCloseAt', message: 'The clarification deadline must be before the closing time.' });
   }
   if (errors.length) throw new ValidationError(errors);
 }

@@ -89,6 +89,12 @@ describe('editing the basis', () => {
     expect(none.body.errors).toEqual([{ field: 'awardBasis.awardIncrement', message: "No region's forecast is a whole multiple of the award increment 7 t." }]);
   });
 
+  test('a clarification deadline after the closing time is refused naming clarificationsCloseAt', async () => {
+    const res = await buyer.post('/api/tenders', tenderBody(3, 60, { clarificationsCloseAt: new Date(Date.now() + 2 * 3600_000).toISOString() }));
+    expect(res.status).toBe(400);
+    expect(res.body.errors).toEqual([{ field: 'clarificationsCloseAt', message: 'The clarification deadline must be before the closing time.' }]);
+  });
+
   test('publishing needs a buying body: 400 names buyingBody and the tender stays a draft', async () => {
     const created = await buyer.post('/api/tenders', tenderBody(3, 60, { buyingBody: null }));
     expect(created.status).toBe(201);
