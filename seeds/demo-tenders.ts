@@ -38,6 +38,15 @@ const BIN_SITES: [string, string, number][] = [
 
 const DAY = 86_400_000;
 
+/** The demo's buying body (fictional, like everything here); procedures in Irish time. */
+const NORTHVALE = {
+  name: 'Northvale Highways Partnership',
+  address: 'Unit 4, Harbour Road, Northvale',
+  email: 'procurement@northvale.tendara.test',
+  country: 'IE',
+};
+const TIME_ZONE = 'Europe/Dublin';
+
 /** The buyer's recorded decision on the flagged Garrow Moor price (invented, as everything here). */
 export const DEMO_LOW_PRICE = {
   vendor: 'v5',
@@ -60,6 +69,11 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
       'bid some depots only and state the most it can supply over the season.',
     status: 'closed',
     createdBy: buyer,
+    // Published with the tender: split award, at most four vendors, none above 45 % of the total.
+    awardBasis: { sourcing: 'split', soleRegions: [], maxVendors: 4, maxVendorShare: 0.45 },
+    buyingBody: NORTHVALE,
+    timeZone: TIME_ZONE,
+    estimatedValue: 3_150_000,
     publishedAt: new Date(now.getTime() - 24 * DAY),
     closedAt: new Date(now.getTime() - 3 * DAY),
   });
@@ -93,6 +107,9 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
     description: 'Refilling of roadside grit bins across five districts of the fictional Northvale area.',
     status: 'open',
     createdBy: buyer,
+    awardBasis: { sourcing: 'split', soleRegions: [], maxVendors: 3 },
+    buyingBody: NORTHVALE,
+    timeZone: TIME_ZONE,
     publishedAt: new Date(now.getTime() - 2 * DAY),
   });
   const sites = BIN_SITES.map(([code, name, forecast], position) => em.create(Region, { tender: bins, code, name, forecast, position }));

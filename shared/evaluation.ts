@@ -52,8 +52,12 @@ export interface ScenarioView {
   name: string;
   rules: AwardRules;
   timeLimitSeconds: number;
-  /** The two ready-made scenarios every closed tender starts with. */
-  builtIn: 'split' | 'sole' | null;
+  /** The ready-made scenarios every closed tender starts with: its published award basis, all split, all sole. */
+  builtIn: 'published' | 'split' | 'sole' | null;
+  /** True when the rules are the published award basis (the only runs that can be recommended); false: a what-if. */
+  awardable: boolean;
+  /** For a what-if: which rule differs from the published basis, in words (null when awardable). */
+  whatIf: string | null;
   createdAt: string;
   latestRun: RunSummary | null;
 }
@@ -62,6 +66,9 @@ export interface RunSummary {
   id: string;
   scenarioId: string;
   scenarioName: string;
+  /** The rules this run solved are the published award basis; false: a what-if (see `whatIf`). */
+  awardable: boolean;
+  whatIf: string | null;
   status: RunStatus;
   queuedAt: string;
   startedAt: string | null;
@@ -89,6 +96,8 @@ export interface RunView extends RunSummary {
 export interface ComparedRun {
   runId: string;
   scenarioName: string;
+  awardable: boolean;
+  whatIf: string | null;
   status: RunStatus;
   objective: number | null;
   fixedCost: number | null;

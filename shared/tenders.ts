@@ -171,6 +171,8 @@ export interface TenderSummary {
   currency: string;
   status: TenderStatus;
   closesAt: string;
+  /** The procedure's IANA time zone: closing times are shown in it, the zone named. */
+  timeZone: string;
   regionCount: number;
   totalForecast: number;
   /** For vendors: the state of their own bid, if any. */
@@ -186,7 +188,6 @@ export interface TenderView extends TenderSummary {
   regions: RegionView[];
   awardBasis: AwardBasis;
   buyingBody: BuyingBody | null;
-  timeZone: string;
   bidValidityDays: number;
   /** When vendors' questions close (the stored one, or 5 days before closing). */
   clarificationsCloseAt: string;

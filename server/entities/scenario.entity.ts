@@ -4,7 +4,8 @@ import { BaseEntity } from './base.entity';
 import { Tender } from './tender.entity';
 import { User } from './user.entity';
 
-export const BUILT_IN_SCENARIOS = ['split', 'sole'] as const;
+/** In the order of the database enum: the published basis first. */
+export const BUILT_IN_SCENARIOS = ['published', 'split', 'sole'] as const;
 
 /** A named set of award rules for a closed tender. Vendor ids in rules are organisation ids. */
 @Entity({ tableName: 'scenario' })
@@ -22,7 +23,7 @@ export class Scenario extends BaseEntity {
   @Property({ type: 'integer', default: 60 })
   timeLimitSeconds: number & Opt = 60;
 
-  /** The two scenarios every closed tender starts with; null for the buyer's own. */
+  /** The scenarios every closed tender starts with (its published basis, all split, all sole); null for the buyer's own. */
   @Enum({ items: () => BUILT_IN_SCENARIOS, nativeEnumName: 'built_in_scenario', nullable: true })
   builtIn?: (typeof BUILT_IN_SCENARIOS)[number] | null;
 

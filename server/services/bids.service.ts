@@ -3,6 +3,8 @@ import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { recordByCode, type BidFigures } from '@shared/bids';
 import { bidsValidUntil, type ComplianceDecision, type ExclusionGround } from '@shared/compliance';
+import { describeAwardBasis } from '@shared/award-basis';
+import { formatInZone } from '@shared/time-zone';
 import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
 import { wrap } from '@mikro-orm/core';
 import { Bid, BidDocument, Tender, type User } from '../entities';
@@ -108,6 +110,8 @@ interface BiddingTender {
   reference: string;
   title: string;
   closesAt: Date;
+  /** The procedure's IANA time zone, in which closing times are shown. */
+  timeZone: string;
   /** Region code → region id. */
   regions: Map<string, string>;
 }
@@ -123,9 +127,9 @@ interface BiddingTender {
  */
 async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
   const rows = await tx.execute<{
-    status: string; reference: string; title: string; closes_at: Date | string; invited: boolean; regions: Record<string, string> | null;
+    status: string; reference: string; title: string; closes_at: Date | string; time_zone: string; invited: boolean; regions: Record<string, string> | null;
   }[]>(
-    `select t.status, t.reference, t.title, t.closes_at,
+    `select t.status, t.reference, t.title, t.closes_at, t.time_zone,
             exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited,
             (select json_object_agg(r.code, r.id) from region r where r.tender_id = t.id) as regions
        from tender t where t.id = ? for share`,
@@ -135,7 +139,7 @@ async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: str
   if (!row || !row.invited || row.status === 'draft') throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
   if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt);
-  return { id: tenderId, reference: row.reference, title: row.title, closesAt, regions: new Map(Object.entries(row.regions ?? {})) };
+  return { id: tenderId, reference: row.reference, title: row.title, closesAt, timeZone: row.time_zone, regions: new Map(Object.entries(row.regions ?? {})) };
 }
 
 /** Save a draft, submit, or revise — only before closing, and only over the version loaded. */
@@ -255,7 +259,7 @@ async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid
     revision: bid.revision,
     at: utcMs(deps.arrivedAt),
     digest: bid.digest ?? '',
-    closesAt: utc(tender.closesAt),
+    closesAt: tender.timeZone === 'UTC' ? utc(tender.closesAt) : `${formatInZone(tender.closesAt.toISOString(), tender.timeZone)}, ${utc(tender.closesAt)}`,
     link: `${deps.publicUrl}/tenders/${tender.id}`,
   });
   await enqueueMail(deps.boss, { to: user.email, ...mail });
@@ -363,7 +367,8 @@ export async function vendorWorkbook(em: EntityManager, user: User, tenderId: st
   const own = bid ? bidView(bid) : null;
   const content = await buildBidWorkbook({
     reference: tender.reference, title: tender.title, currency: tender.currency, unit: tender.unit,
-    closesAt: tender.closesAt.toISOString(), vendorName: vendorOf(user).name, regions: regionInputs(tender),
+    closesAt: tender.closesAt.toISOString(), timeZone: tender.timeZone, vendorName: vendorOf(user).name, regions: regionInputs(tender),
+    awardBasis: describeAwardBasis(tender.awardBasis, { unit: tender.unit, regions: regionInputs(tender) }),
     bid: own ? { fixedFee: own.fixedFee, capacity: own.capacity, prices: own.prices } : undefined,
   });
   return { filename: `${tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-bid.xlsx`, content };

@@ -1,17 +1,20 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { z } from 'zod';
+import { describeAwardBasis } from '@shared/award-basis';
 import type { RegionInput } from '@shared/bids';
 import type { BidStatus, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
 import { Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
+import { formatInZone } from '@shared/time-zone';
 import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from './people.service';
 import { audit } from './audit.service';
 import { escapeLike } from './like';
 import { CLOSING_GRACE_MS, closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
 import { LIVE_BID_STATUSES, statusesBefore } from '@shared/tenders';
+import { isWholeMultiple } from '@shared/award';
 
 export interface TenderDeps {
   em: EntityManager;
@@ -29,6 +32,7 @@ export function tenderSummary(t: Tender, regions: Region[]): TenderSummary {
     currency: t.currency,
     status: t.status,
     closesAt: t.closesAt.toISOString(),
+    timeZone: t.timeZone,
     regionCount: regions.length,
     totalForecast: regions.reduce((sum, r) => sum + r.forecast, 0),
   };
@@ -66,9 +70,9 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
   }
   const rows = await em.execute<{
     id: string; reference: string; title: string; commodity: string; unit: string; currency: string;
-    status: TenderStatus; closes_at: Date | string; region_count: number; total_forecast: string; my_bid_status: BidStatus | null;
+    status: TenderStatus; closes_at: Date | string; time_zone: string; region_count: number; total_forecast: string; my_bid_status: BidStatus | null;
   }[]>(
-    `select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${CURRENT_STATUS} as status, t.closes_at,
+    `select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${CURRENT_STATUS} as status, t.closes_at, t.time_zone,
             coalesce(r.n, 0)::int as region_count, coalesce(r.total, 0) as total_forecast,
             ${vendor ? '(select b.status from bid b where b.tender_id = t.id and b.vendor_organisation_id = ?)' : 'null'} as my_bid_status
        from tender t
@@ -79,7 +83,7 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
   );
   return rows.map((t) => ({
     id: t.id, reference: t.reference, title: t.title, commodity: t.commodity, unit: t.unit, currency: t.currency,
-    status: t.status, closesAt: new Date(t.closes_at).toISOString(),
+    status: t.status, closesAt: new Date(t.closes_at).toISOString(), timeZone: t.time_zone,
     regionCount: t.region_count, totalForecast: Number(t.total_forecast),
     ...(vendor ? { myBidStatus: t.my_bid_status } : {}),
   }));
@@ -98,7 +102,6 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
     regions: regions.map((r) => ({ code: r.code, name: r.name, forecast: r.forecast })),
     awardBasis: tender.awardBasis,
     buyingBody: tender.buyingBody ?? null,
-    timeZone: tender.timeZone,
     bidValidityDays: tender.bidValidityDays,
     clarificationsCloseAt: clarificationsCloseAt(tender).toISOString(),
     abnormallyLowPercent: tender.abnormallyLowPercent,
@@ -126,6 +129,39 @@ function checkClosingTime(input: TenderInput): Date {
   return closesAt;
 }
 
+/**
+ * The award basis must fit the tender it is published with: sole-awarded regions are its regions,
+ * the minimum number of vendors is not above the maximum, and with an award increment every
+ * forecast is a whole multiple of it (the engine awards nothing else). A clarification deadline
+ * set by hand comes before the closing time.
+ */
+function checkAwardBasis(input: TenderInput): void {
+  const basis = input.awardBasis;
+  const codes = new Set(input.regions.map((r) => r.code));
+  const errors = basis.soleRegions.flatMap((code, i) => (codes.has(code) ? [] : [{ field: `awardBasis.soleRegions[${i}]`, message: `Region ${code} is not one of this tender's regions.` }]));
+  basis.soleRegions.forEach((code, i) => {
+    if (basis.soleRegions.indexOf(code) !== i) errors.push({ field: `awardBasis.soleRegions[${i}]`, message: `Region ${code} is listed twice.` });
+  });
+  if (basis.minVendors !== undefined && basis.maxVendors !== undefined && basis.minVendors > basis.maxVendors) {
+    errors.push({ field: 'awardBasis.minVendors', message: `Minimum number of vendors (${basis.minVendors}) is above the maximum (${basis.maxVendors}).` });
+  }
+  const step = basis.awardIncrement;
+  if (step !== undefined) {
+    const off = input.regions.flatMap((r, i) => (isWholeMultiple(r.forecast, step) ? [] : [i]));
+    if (off.length === input.regions.length && off.length > 0) {
+      errors.push({ field: 'awardBasis.awardIncrement', message: `No region's forecast is a whole multiple of the award increment ${step} ${input.unit}.` });
+    } else {
+      for (const i of off) {
+        errors.push({ field: `regions[${i}].forecast`, message: `With an award increment of ${step} ${input.unit}, the forecast must be a whole multiple of it.` });
+      }
+    }
+  }
+  if (input.clarificationsCloseAt && new Date(input.clarificationsCloseAt).getTime() >= new Date(input.closesAt).getTime()) {
+    errors.push({ field: 'clarificationsCloseAt', message: 'The clarification deadline must be before the closing time.' });
+  }
+  if (errors.length) throw new ValidationError(errors);
+}
+
 /** The tender's own columns from the input (regions are rows of their own). */
 function tenderFields(input: TenderInput) {
   const { regions: _regions, clarificationsCloseAt, ...fields } = input;
@@ -143,6 +179,7 @@ function writeRegions(em: EntityManager, tender: Tender, regions: RegionInput[])
 
 export async function createTender(em: EntityManager, user: User, input: TenderInput): Promise<TenderView> {
   const closesAt = checkClosingTime(input);
+  checkAwardBasis(input);
   const id = await em.transactional(async (tx) => {
     if (await tx.count(Tender, { reference: input.reference })) {
       throw new ConflictError('A tender with this reference exists.', [{ field: 'reference', message: 'This reference is already used.' }]);
@@ -159,6 +196,7 @@ export async function createTender(em: EntityManager, user: User, input: TenderI
 /** Drafts only: once published, vendors price what they were shown. */
 export async function updateTender(em: EntityManager, user: User, id: string, input: TenderInput): Promise<TenderView> {
   const closesAt = checkClosingTime(input);
+  checkAwardBasis(input);
   await em.transactional(async (tx) => {
     await lockTender(tx, user, id, ['draft'], 'Only a draft tender can be edited; this one is published.');
     const tender = await tx.findOneOrFail(Tender, { id });
@@ -237,6 +275,7 @@ export async function publishTender(deps: TenderDeps, user: User, id: string): P
     if (t.closesAt.getTime() <= Date.now() + 60_000) problems.push({ field: 'closesAt', message: 'Closing time has passed; set a new one before publishing.' });
     if (t.regions.length === 0) problems.push({ field: 'regions', message: 'Add at least one region.' });
     if (!(await tx.count(Invitation, { tender: t }))) problems.push({ field: 'invitations', message: 'Invite at least one vendor.' });
+    if (!t.buyingBody) problems.push({ field: 'buyingBody', message: 'Name the buying body (name, address, contact e-mail, country) before publishing.' });
     if (problems.length) throw new ValidationError(problems, 'The tender is not ready to publish.');
     t.status = 'open';
     t.publishedAt = new Date();
@@ -256,6 +295,10 @@ async function notifyInvited(deps: TenderDeps, tender: Tender, invitationIds: st
   if (!invitationIds.length) return;
   const em = deps.em.fork();
   const invitations = await em.find(Invitation, { id: { $in: invitationIds } }, { populate: ['vendorOrganisation'] });
+  // The same sentences as the tender page and the bid workbook (shared/award-basis.ts).
+  const regions = await em.find(Region, { tender: tender.id }, { orderBy: { position: 'asc' } });
+  const basis = describeAwardBasis(tender.awardBasis, { unit: tender.unit, regions });
+  const closes = `${formatInZone(tender.closesAt.toISOString(), tender.timeZone)}${tender.timeZone === 'UTC' ? '' : `, ${tender.closesAt.toISOString().slice(0, 16).replace('T', ' ')} UTC`}`;
   for (const inv of invitations) {
     // Only approved members: a person awaiting the organisation's approval learns nothing of it.
     const people = await em.find(User, { vendorOrganisation: inv.vendorOrganisation, active: true, role: 'vendor', membership: 'approved' });
@@ -266,7 +309,8 @@ async function notifyInvited(deps: TenderDeps, tender: Tender, invitationIds: st
         reference: tender.reference,
         title: tender.title,
         commodity: tender.commodity,
-        closesAt: tender.closesAt.toISOString().slice(0, 16).replace('T', ' '),
+        closesAt: closes,
+        basis,
         link: `${deps.publicUrl}/tenders/${tender.id}`,
       });
       await enqueueMail(deps.boss, { to: person.email, ...mail }, `invite-${inv.id}-${person.id}`);

@@ -15,6 +15,10 @@ export async function buildAwardWorkbook(run: RunView, tender: { reference: stri
   sheet.cell('A1').value(`${tender.reference} — ${tender.title}`).style(TITLE_STYLE);
   sheet.cell('A2').value(`Scenario: ${run.scenarioName}. Status: ${run.status}. Input SHA-256: ${run.inputDigest}`);
   sheet.cell('A3').value('Decision support only: the buyer\'s procurement rules and local law decide.');
+  // Row 4: whether this award can be recommended (the published basis) or is a what-if.
+  sheet.cell('A4')
+    .value(run.awardable ? 'Published award basis: this award can be recommended.' : (run.whatIf ?? 'What-if: for analysis only; it cannot be recommended.'))
+    .style({ bold: !run.awardable });
   const facts: [string, number | string | null][] = [
     ['Total', r?.objective ?? null], ['Fixed fees', r?.fixedCost ?? null], ['Variable cost', r?.variableCost ?? null],
     ['Best bound', r?.bound ?? null], ['Relative gap', r?.gap ?? null], ['Engine', r?.engine ?? ''], ['Solve seconds', r?.solveSeconds ?? null],

@@ -58,6 +58,10 @@ export interface BidWorkbookView {
   unit: string;
   /** ISO 8601 instant. */
   closesAt: string;
+  /** The procedure's IANA time zone (the closing time is also given in UTC). */
+  timeZone?: string;
+  /** The published award basis in words (`describeAwardBasis`), shown on the cover sheet. */
+  awardBasis?: string[];
   vendorName: string;
   regions: RegionInput[];
   bid?: BidFigures;

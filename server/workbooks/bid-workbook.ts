@@ -1,5 +1,6 @@
 import XlsxPopulate from 'xlsx-populate';
 import { byCode } from '@shared/bids';
+import { formatInZone } from '@shared/time-zone';
 import { BID_LAYOUT, type BidWorkbookView, formatUtc } from './bid-layout';
 import { outputSafeWorkbook } from './spreadsheet-text';
 import { addDecimalValidation, protectSheet, unlockCell } from './xlsx-internals';
@@ -12,8 +13,17 @@ export { parseBidWorkbook } from './bid-workbook-parse';
 
 const { columns: COL } = BID_LAYOUT;
 
+/** The closing time in the procedure's zone, named, and in UTC: a file travels between zones. */
+function closingTime(view: BidWorkbookView): string {
+  const zone = view.timeZone ?? 'UTC';
+  return zone === 'UTC' ? formatUtc(view.closesAt) : `${formatInZone(view.closesAt, zone)}, that is ${formatUtc(view.closesAt)}`;
+}
+
+const BASIS_HEADING = 'How the contract will be awarded (the published award basis)';
+
 function instructionLines(view: BidWorkbookView): string[] {
-  const closing = formatUtc(view.closesAt);
+  const closing = closingTime(view);
+  const basis = view.awardBasis?.length ? ['', BASIS_HEADING, ...view.awardBasis.map((line) => `- ${line}`)] : [];
   return [
     `Bid workbook for tender ${view.reference}: ${view.title}`,
     `Prepared for ${view.vendorName}.`,
@@ -30,6 +40,7 @@ function instructionLines(view: BidWorkbookView): string[] {
     '- Keep the file as .xlsx. Do not rename, move or add sheets, rows or columns; only the white cells are editable.',
     '- Formulas are not accepted in any input cell: type the values themselves.',
     '- Uploading the workbook does not submit it: you review the figures and submit on the bid page.',
+    ...basis,
     '',
     'The buyer\'s procurement rules and the tender documents decide what a valid bid is; this workbook is only a way to enter its figures.',
   ];
@@ -43,7 +54,7 @@ function writeInstructions(sheet: XlsxPopulate.Sheet, view: BidWorkbookView): vo
   });
   sheet.cell(1, 1).style(TITLE_STYLE);
   lines.forEach((line, i) => {
-    if (line === 'How to fill it in' || line === 'Rules for the file') sheet.cell(i + 1, 1).style({ bold: true });
+    if (line === 'How to fill it in' || line === 'Rules for the file' || line === BASIS_HEADING) sheet.cell(i + 1, 1).style({ bold: true });
   });
   sizeColumns(sheet, [110]);
   sheet.gridLinesVisible(false);
@@ -53,7 +64,7 @@ function writeHeaderBlock(sheet: XlsxPopulate.Sheet, view: BidWorkbookView): voi
   const L = BID_LAYOUT;
   sheet.cell(L.title).value(`Tender ${view.reference}: ${view.title}`).style(TITLE_STYLE);
   sheet.cell(L.subtitle)
-    .value(`${view.vendorName} · closes ${formatUtc(view.closesAt)} · prices in ${view.currency} per ${view.unit}`)
+    .value(`${view.vendorName} · closes ${closingTime(view)} · prices in ${view.currency} per ${view.unit}`)
     .style(NOTE_STYLE);
   sheet.cell(L.referenceLabel).value(L.labels.reference).style({ bold: true });
   sheet.cell(L.reference).value(view.reference);

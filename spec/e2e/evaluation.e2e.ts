@@ -14,7 +14,7 @@ const FINISHED = /Best award found|Award found, not proven best/;
 
 let b: Awaited<ReturnType<typeof openBrowser>>;
 /** Paths of the runs made below, kept for the later steps. */
-const runs: { split?: string; sole?: string; capped?: string } = {};
+const runs: { basis?: string; split?: string; sole?: string; capped?: string } = {};
 
 beforeAll(async () => {
   b = await openBrowser();
@@ -74,22 +74,31 @@ function amount(text: string): number {
   return Number(match[0].replace(/[^\d.-]/g, ''));
 }
 
-test('the buyer opens the evaluation of the closed tender and runs the two ready-made scenarios, following each live', async () => {
+test('the buyer opens the evaluation of the closed tender and runs the published basis and the two what-ifs, following each live', async () => {
   const { page } = b;
   await signIn(page, 'buyer@demo.tendara.test');
   await openEvaluation(page);
   await page.getByRole('row', { name: /All regions sole/ }).first().waitFor();
+  // The published basis (split, at most four vendors, none above 45 %) first; the two ready-made what-ifs after it.
+  const scenarioRows = page.getByRole('table', { name: 'Scenarios' }).getByRole('row');
+  await expect(scenarioRows.nth(1).textContent()).resolves.toMatch(/Published award basis.*Published basis/);
+  await page.getByRole('row', { name: /All regions split/ }).first().getByText('What-if', { exact: true }).waitFor();
+  await page.getByRole('row', { name: /All regions split/ }).first().getByText(/its maximum number of vendors \(none\) differs from the published award basis \(4\)/).waitFor();
+  await page.getByRole('row', { name: /All regions sole/ }).first().getByText('What-if', { exact: true }).waitFor();
   await settle(page);
   await screenshot(page, 'evaluation-overview-1280');
   expect(await seriousViolations(page)).toEqual([]);
 
+  runs.basis = await runScenario(page, 'Published award basis');
+  await backToScenarios(page);
   runs.split = await runScenario(page, 'All regions split');
   await backToScenarios(page);
   runs.sole = await runScenario(page, 'All regions sole');
   await backToScenarios(page);
   // Both runs are listed with their outcome.
   const runRows = page.getByRole('table', { name: 'Runs' }).getByRole('row');
-  await expect(runRows.filter({ hasText: FINISHED }).count()).resolves.toBe(2);
+  await expect(runRows.filter({ hasText: FINISHED }).count()).resolves.toBe(3);
+  await expect(runRows.filter({ hasText: 'What-if' }).count()).resolves.toBe(2);
   await settle(page);
   await screenshot(page, 'evaluation-overview-runs-1280');
 });
@@ -146,6 +155,8 @@ test('comparing the split and sole runs shows the cost of sole award, never nega
   const table = page.getByRole('table', { name: /Compared runs/ });
   await expect(table.getByRole('columnheader').count()).resolves.toBe(3);
   await table.getByText('Split baseline', { exact: true }).waitFor();
+  // Both compared runs are what-ifs: neither is the published basis.
+  await expect(table.getByRole('row', { name: /Can be recommended/ }).getByText('No: a what-if, for analysis only').count()).resolves.toBe(2);
   await settle(page);
   await screenshot(page, 'compare-1280');
   expect(await seriousViolations(page)).toEqual([]);
@@ -197,9 +208,15 @@ test('the resilience check of the split run re-solves without each awarded vendo
   expect(await seriousViolations(page)).toEqual([]);
 });
 
-test('the buyer recommends the split run with a justification; it awaits a compliance decision', async () => {
+test('a what-if cannot be recommended; the buyer recommends the published basis run with a justification', async () => {
   const { page } = b;
   await page.goto(`${baseUrl()}${runs.split}`);
+  await page.getByRole('heading', { name: 'Totals' }).waitFor();
+  await page.getByRole('note').filter({ hasText: /What-if.*cannot be recommended/ }).waitFor();
+  await expect(page.getByRole('button', { name: 'Recommend this award' }).count()).resolves.toBe(0);
+
+  await page.goto(`${baseUrl()}${runs.basis}`);
+  await page.getByRole('heading', { name: 'Published award basis', level: 1 }).waitFor();
   await page.getByRole('heading', { name: 'Totals' }).waitFor();
   await page.getByRole('button', { name: 'Recommend this award' }).click();
   const dialog = page.getByRole('dialog');

@@ -3,7 +3,7 @@ import os from 'node:os';
 import path from 'node:path';
 import type { Page } from 'playwright-core';
 import XlsxPopulate from 'xlsx-populate';
-import { baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
+import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
 
 /**
  * The tender and bid screens against the demo data: the closed salt tender NHP-2026-014 (seven bids)
@@ -34,8 +34,13 @@ test('a vendor bids by form: sees the live total, submits, and gets the receipt 
   await screenshot(page, 'tender-list-vendor-1280');
   expect(await seriousViolations(page)).toEqual([]);
 
+  await page.getByRole('row', { name: /NHP-2027-002/ }).getByText(/Europe\/Dublin · closes in/).waitFor();
   await page.getByRole('link', { name: 'NHP-2027-002' }).click();
   await page.getByRole('heading', { name: 'Your bid' }).waitFor();
+  // The published award basis in words, before bidding.
+  await page.getByRole('heading', { name: 'How the contract will be awarded' }).waitFor();
+  await page.getByText('At most 3 vendors will be awarded.').waitFor();
+  await page.getByText(/Northvale Highways Partnership/).waitFor();
   await page.getByLabel(/^Fixed fee/).fill('1000');
   await page.getByLabel(/^Capacity cap/).fill('2000');
   await page.getByLabel('Unit price, North district').fill('80');
@@ -173,6 +178,74 @@ test('the buyer drafts a tender in the editor, with messages under the fields it
   await page.getByRole('alert').filter({ hasText: 'Invite at least one vendor.' }).waitFor();
   await screenshot(page, 'tender-detail-draft-1280');
   expect(await seriousViolations(page)).toEqual([]);
+});
+
+test('the buyer sets the award basis, buying body and time zone; a refused forecast is marked; the tender page states the basis', async () => {
+  const { page } = b;
+  await signIn(page, 'buyer@demo.tendara.test');
+  await page.goto(`${baseUrl()}/tenders/new`);
+  await page.getByRole('heading', { name: 'New tender', level: 1 }).waitFor();
+  await page.getByLabel('Reference').fill('NHP-2027-010');
+  await page.getByLabel('Title').fill('Brine for the coastal depots');
+  await page.getByLabel('Commodity').fill('Salt brine, 23 %, delivered');
+  await page.getByLabel('Unit of measure').fill('t');
+  await page.getByLabel('Time zone of the procedure').fill('Europe/Dublin');
+  await page.keyboard.press('Escape');
+  await page.getByLabel('Closing date').fill('2031-07-01');
+  await page.getByLabel('Closing time of day').fill('12:00');
+  // 12:00 in Dublin in July is Irish summer time, UTC+1.
+  await page.getByText('Vendors will see: closes Tue, 1 Jul 2031, 12:00 GMT+1 (Europe/Dublin).').waitFor();
+  await page.getByLabel('Code, region 1').fill('N01');
+  await page.getByLabel('Name, region 1').fill('North harbour');
+  await page.getByLabel('Forecast, region 1').fill('500');
+  await page.getByRole('button', { name: 'Add region' }).click();
+  await page.getByLabel('Code, region 2').fill('S01');
+  await page.getByLabel('Name, region 2').fill('South harbour');
+  await page.getByLabel('Forecast, region 2').fill('750');
+
+  await page.getByLabel('Maximum number of vendors').fill('2');
+  await page.getByLabel('Maximum vendor share (%)').fill('60');
+  await page.getByLabel('Award increment').fill('100');
+  const preview = page.getByRole('heading', { name: 'What vendors will read' }).locator('xpath=..');
+  await preview.getByText('No vendor will be awarded more than 60 % of the total quantity.').waitFor();
+  await preview.getByText('Quantities are awarded in whole multiples of 100 t.').waitFor();
+  await page.getByLabel('Name', { exact: true }).fill('Northvale Highways Partnership');
+  await page.getByLabel('Address').fill('Unit 4, Harbour Road, Northvale');
+  await page.getByLabel('Contact e-mail').fill('procurement@northvale.tendara.test');
+  await page.getByLabel('Country code').fill('ie');
+  await page.getByLabel('Estimated contract value').fill('120000');
+
+  // The server refuses 750 t in 100 t steps; its message lands under that forecast.
+  await page.getByRole('button', { name: 'Save draft' }).click();
+  await page.getByText('With an award increment of 100 t, the forecast must be a whole multiple of it.').waitFor();
+  await page.getByRole('heading', { name: 'Award basis' }).scrollIntoViewIfNeeded();
+  await animationsDone(page);
+  await screenshot(page, 'tender-editor-basis-1280');
+  expect(await seriousViolations(page)).toEqual([]);
+  await page.getByRole('heading', { name: 'Procedure' }).scrollIntoViewIfNeeded();
+  await screenshot(page, 'tender-editor-procedure-1280');
+
+  await page.getByLabel('Award increment').fill('250');
+  await page.getByRole('button', { name: 'Save draft' }).click();
+  await page.getByRole('heading', { name: 'Brine for the coastal depots', level: 1 }).waitFor();
+  await page.getByRole('heading', { name: 'How the contract will be awarded' }).waitFor();
+  await page.getByText('At most 2 vendors will be awarded.').waitFor();
+  await page.getByText('Quantities are awarded in whole multiples of 250 t.').waitFor();
+  await page.getByText(/Tue, 1 Jul 2031, 12:00 GMT\+1 \(Europe\/Dublin\)/).first().waitFor();
+  await page.getByText('not shown to vendors').waitFor();
+  await page.getByRole('heading', { name: 'How the contract will be awarded' }).scrollIntoViewIfNeeded();
+  await animationsDone(page);
+  await screenshot(page, 'tender-detail-basis-1280');
+  expect(await seriousViolations(page)).toEqual([]);
+
+  // Reopened, the editor shows what was saved: percentages as percentages, the time in the zone.
+  await page.getByRole('link', { name: 'Edit' }).click();
+  await page.getByRole('heading', { name: 'Edit tender', level: 1 }).waitFor();
+  await page.waitForFunction(() => document.querySelector<HTMLInputElement>('input[formcontrolname="reference"]')?.value === 'NHP-2027-010');
+  await expect(page.getByLabel('Maximum vendor share (%)').inputValue()).resolves.toBe('60');
+  await expect(page.getByLabel('Time zone of the procedure').inputValue()).resolves.toBe('Europe/Dublin');
+  await expect(page.getByLabel('Closing time of day').inputValue()).resolves.toBe('12:00');
+  await expect(page.getByLabel('Country code').inputValue()).resolves.toBe('IE');
 });
 
 test('on a phone (390×844) the bid form fits the screen', async () => {

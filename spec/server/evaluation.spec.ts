@@ -43,8 +43,20 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-test('a closed tender starts with two ready scenarios: all regions split, and all regions sole', () => {
-  expect(scenarios.map((s) => [s.builtIn, s.rules.sourcing])).toEqual([['split', 'split'], ['sole', 'sole']]);
+test('a closed tender starts with its published award basis first, then all regions split and all regions sole as what-ifs', () => {
+  // The demo salt tender's basis: split award, at most four vendors, none above 45 % of the total.
+  expect(scenarios.map((s) => [s.name, s.builtIn, s.rules.sourcing, s.awardable])).toEqual([
+    ['Published award basis', 'published', 'split', true], ['All regions split', 'split', 'split', false], ['All regions sole', 'sole', 'sole', false],
+  ]);
+  expect(scenarios[0].rules).toEqual({ sourcing: 'split', soleRegions: [], maxVendors: 4, maxVendorShare: 0.45, exclude: [], require: [] });
+});
+
+test('the published basis run meets its rules: at most four vendors, none above 45 % of the total', () => {
+  const r = runs['published'];
+  expect(r.status).toBe('optimal');
+  expect(r.result!.awards.length).toBeLessThanOrEqual(4);
+  for (const a of r.result!.awards) expect(a.share).toBeLessThanOrEqual(0.45 + 1e-9);
+  expect(r.result!.objective!).toBeGreaterThanOrEqual(runs['split'].result!.objective! - 1e-6);
 });
 
 test('scenarios cannot be built on an open tender: the bids are still sealed', async () => {
@@ -130,7 +142,7 @@ test('resilience: the award re-solved without each awarded vendor, the worst cas
 });
 
 test('four-eyes: the person who recommended can never approve, even with the compliance role', async () => {
-  const rec = await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: runs['split'].id, justification: 'Least total cost; every depot covered by at most two vendors.' });
+  const rec = await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: runs['published'].id, justification: 'Least total cost on the published award basis.' });
   expect(rec.status).toBe(201);
   expect(rec.body.status).toBe('recommended');
   // Someone recommends, then is made a compliance officer: still not allowed to approve their own.

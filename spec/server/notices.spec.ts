@@ -17,14 +17,14 @@ async function demo(t: TestApp, who: string): Promise<Browser> {
   return b;
 }
 
-/** Runs the all-split scenario and has it recommended and approved; returns the approved run. */
+/** Runs the published award basis and has it recommended and approved; returns the approved run. */
 async function approvedAward(t: TestApp): Promise<{ tenderId: string; run: RunView; buyer: Browser }> {
   await seed(t.em(), 'demo');
   const buyer = await demo(t, 'buyer');
   const compliance = await demo(t, 'compliance');
   const tenderId = (await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' })).id;
-  const split = (await buyer.get(`/api/tenders/${tenderId}/scenarios`)).body.find((s: { builtIn: string }) => s.builtIn === 'split');
-  const queued = await buyer.post(`/api/scenarios/${split.id}/runs`);
+  const basis = (await buyer.get(`/api/tenders/${tenderId}/scenarios`)).body.find((s: { builtIn: string }) => s.builtIn === 'published');
+  const queued = await buyer.post(`/api/scenarios/${basis.id}/runs`);
   const run = await waitForRun(buyer, queued.body.id);
   expect((await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: run.id, justification: 'Least cost.' })).status).toBe(201);
   expect((await compliance.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: '' })).status).toBe(200);

@@ -19,6 +19,8 @@ export function tenderBody(n = 3, minutes = 60, overrides: Partial<TenderInputBo
     locale,
     description: '',
     regions: Array.from({ length: n }, (_, i) => ({ code: `R${String(i + 1).padStart(2, '0')}`, name: `Depot ${i + 1}`, forecast: 1000 * (i + 1) })),
+    // Publishing needs a buying body (fictional).
+    buyingBody: { name: 'Northmoor Roads Authority', address: '1 Quay Street, Northmoor', email: 'tenders@northmoor.tendara.test', country: 'IE' },
     ...overrides,
   };
 }

@@ -1,4 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
+import type { AwardRules } from '@shared/award';
+import { basisDifference } from '@shared/award-basis';
 import type { RecommendationView } from '@shared/evaluation';
 import { Recommendation, Run, Tender, type User } from '../../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../../http/errors';
@@ -30,13 +32,33 @@ export async function currentRecommendation(em: EntityManager, user: User, tende
   return { recommendation: r ? view(r) : null };
 }
 
+/**
+ * Only a run of the published award basis can be recommended: a what-if (any rule other than the
+ * basis, or vendors left out or required by the buyer) answers 409 naming the first rule that
+ * differs. Both the scenario's rules and the rules the run actually solved are checked (a scenario
+ * may have been edited since); of the solved rules, `exclude` is left out of the comparison, as the
+ * compliance check's exclusions of bids are not the buyer's choice of rules.
+ */
+async function refuseWhatIf(em: EntityManager, tender: Tender, run: Run): Promise<void> {
+  const [row] = await em.execute<{ rules: AwardRules | null }[]>(`select problem->'rules' as rules from run where id = ?`, [run.id]);
+  const solved = row?.rules ? { ...row.rules, exclude: [] } : undefined;
+  const difference = basisDifference(run.scenario.rules, tender.awardBasis) ?? (solved ? basisDifference(solved, tender.awardBasis) : null);
+  if (difference) {
+    throw new ConflictError(
+      `This scenario is a what-if: ${difference.message}. Only a run of the published award basis can be recommended.`,
+      [{ field: difference.field, message: `This rule differs from the published award basis: ${difference.message}.` }],
+    );
+  }
+}
+
 /** The buyer recommends one run's award, with a justification. */
 export async function recommend(em: EntityManager, user: User, tenderId: string, input: { runId: string; justification: string }): Promise<RecommendationView> {
   const tender = await evaluableTender(em, user, tenderId, true);
-  const run = await em.findOne(Run, { id: input.runId, tender });
+  const run = await em.findOne(Run, { id: input.runId, tender }, { populate: ['scenario'] });
   if (!run) throw new ValidationError([{ field: 'runId', message: 'This run does not belong to the tender.' }]);
   if (run.parent) throw new ValidationError([{ field: 'runId', message: 'A resilience re-solve cannot be recommended.' }]);
   if (run.status !== 'optimal' && run.status !== 'feasible') throw new ValidationError([{ field: 'runId', message: 'Only a run with an award can be recommended.' }]);
+  await refuseWhatIf(em, tender, run);
   const id = await em.transactional(async (tx) => {
     // Under the tender's lock: of two recommendations racing, the second sees the first (409).
     await lockTender(tx, user, tenderId, ['closed'], FROZEN);

@@ -5,7 +5,7 @@ import type { Comparison, ComparedRun, ResilienceView, RunView } from '@shared/e
 import { Run, Scenario, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { lockTender } from '../tender-access';
-import { evaluableTender, findOrCreateRun, FROZEN, runInput, runSummary, sendToSolver, type EvaluationDeps, type RunInput } from './scenarios.service';
+import { awardability, evaluableTender, findOrCreateRun, FROZEN, runInput, runSummary, sendToSolver, type EvaluationDeps, type RunInput } from './scenarios.service';
 
 export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
   const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender'] });
@@ -36,7 +36,7 @@ export async function runView(em: EntityManager, user: User, runId: string): Pro
   const run = await findRun(em, user, runId);
   const names = await namesOf(em, runId);
   return {
-    ...runSummary(run),
+    ...runSummary(run, run.tender.awardBasis),
     tenderId: run.tender.id,
     currency: run.tender.currency,
     unit: run.tender.unit,
@@ -79,6 +79,7 @@ export async function compareRuns(em: EntityManager, user: User, tenderId: strin
     return {
       runId: r.id,
       scenarioName: r.scenario.name,
+      ...awardability(r.scenario.rules, tender.awardBasis),
       status: r.status,
       objective: ok ? res!.objective : null,
       fixedCost: ok ? res!.fixedCost : null,

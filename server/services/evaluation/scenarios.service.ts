@@ -1,7 +1,9 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { awardRulesSchema } from '@shared/award';
-import type { AwardProblem } from '@shared/award';
+import type { AwardProblem, AwardRules } from '@shared/award';
+import { basisDifference, whatIfNote } from '@shared/award-basis';
+import type { AwardBasis } from '@shared/tenders';
 import type { RunStatus, RunSummary, ScenarioInput, ScenarioView } from '@shared/evaluation';
 import { isSealed } from '@shared/tenders';
 import { Run, Scenario, type Tender, type User } from '../../entities';
@@ -17,11 +19,19 @@ export interface EvaluationDeps {
   boss: PgBoss;
 }
 
-export function runSummary(run: Run): RunSummary {
+/** Whether rules are the tender's published award basis; if not, the what-if's note in words. */
+export function awardability(rules: AwardRules, basis: AwardBasis): { awardable: boolean; whatIf: string | null } {
+  const difference = basisDifference(rules, basis);
+  return { awardable: !difference, whatIf: difference ? whatIfNote(difference) : null };
+}
+
+/** A run as lists show it; awardable when its scenario's rules are the published basis. */
+export function runSummary(run: Run, basis: AwardBasis): RunSummary {
   return {
     id: run.id,
     scenarioId: run.scenario.id,
     scenarioName: run.scenario.name,
+    ...awardability(run.scenario.rules, basis),
     status: run.status,
     queuedAt: run.createdAt.toISOString(),
     startedAt: run.startedAt?.toISOString() ?? null,
@@ -48,23 +58,34 @@ export async function evaluableTender(em: EntityManager, user: User, tenderId: s
   return tender;
 }
 
-/** Every closed tender starts with two ready scenarios: all regions split, and all regions sole. */
+/** The name of the scenario that holds the tender's published award basis. */
+export const PUBLISHED_BASIS = 'Published award basis';
+
+/**
+ * Every closed tender starts with its published award basis as its first scenario (the only one
+ * whose runs can be recommended), and two what-ifs for analysis unless the basis is one of them:
+ * all regions split, and all regions sole. Made once, on first evaluation after closing (tenders
+ * closed before the basis existed get theirs then too).
+ */
 export async function ensureBuiltInScenarios(em: EntityManager, tender: Tender): Promise<void> {
   const existing = await em.count(Scenario, { tender, builtIn: { $ne: null } });
-  if (existing >= 2) return;
+  if (existing >= 3) return;
+  const published: AwardRules = awardRulesSchema.parse(tender.awardBasis);
   await em.execute(
     `insert into scenario (id, created_at, updated_at, tender_id, name, rules, time_limit_seconds, built_in)
-     values (gen_random_uuid(), now(), now(), ?, 'All regions split', ?::jsonb, 60, 'split'),
+     values (gen_random_uuid(), now(), now(), ?, ?, ?::jsonb, 60, 'published'),
+            (gen_random_uuid(), now(), now(), ?, 'All regions split', ?::jsonb, 60, 'split'),
             (gen_random_uuid(), now(), now(), ?, 'All regions sole', ?::jsonb, 60, 'sole')
      on conflict do nothing`,
-    [tender.id, JSON.stringify(plainRules('split')), tender.id, JSON.stringify(plainRules('sole'))],
+    [tender.id, PUBLISHED_BASIS, JSON.stringify(published), tender.id, JSON.stringify(plainRules('split')), tender.id, JSON.stringify(plainRules('sole'))],
   );
 }
 
-function scenarioView(s: Scenario, latest: Run | undefined): ScenarioView {
+function scenarioView(s: Scenario, latest: Run | undefined, basis: AwardBasis): ScenarioView {
   return {
     id: s.id, tenderId: s.tender.id, name: s.name, rules: s.rules, timeLimitSeconds: s.timeLimitSeconds,
-    builtIn: s.builtIn ?? null, createdAt: s.createdAt.toISOString(), latestRun: latest ? runSummary(latest) : null,
+    builtIn: s.builtIn ?? null, ...awardability(s.rules, basis),
+    createdAt: s.createdAt.toISOString(), latestRun: latest ? runSummary(latest, basis) : null,
   };
 }
 
@@ -72,7 +93,7 @@ export async function listScenarios(em: EntityManager, user: User, tenderId: str
   const tender = await evaluableTender(em, user, tenderId);
   const scenarios = await em.find(Scenario, { tender }, { orderBy: { builtIn: 'asc', createdAt: 'asc' } });
   const runs = await em.find(Run, { tender, parent: null }, { populate: ['scenario'], orderBy: { createdAt: 'desc' } });
-  return scenarios.map((s) => scenarioView(s, runs.find((r) => r.scenario.id === s.id)));
+  return scenarios.map((s) => scenarioView(s, runs.find((r) => r.scenario.id === s.id), tender.awardBasis));
 }
 
 /** Rules must name this tender's regions and bidders. */
@@ -102,7 +123,7 @@ export async function createScenario(deps: EvaluationDeps, user: User, tenderId:
     await audit(tx, { tenderId: tender.id, actor: user, action: 'scenario.created', subject: `scenario ${s.name}`, detail: { rules: s.rules }, after: s.rules });
     return s;
   });
-  return scenarioView(scenario, undefined);
+  return scenarioView(scenario, undefined, tender.awardBasis);
 }
 
 export async function updateScenario(deps: EvaluationDeps, user: User, scenarioId: string, input: ScenarioInput & { timeLimitSeconds: number }): Promise<ScenarioView> {
@@ -110,7 +131,7 @@ export async function updateScenario(deps: EvaluationDeps, user: User, scenarioI
   const scenario = await em.findOne(Scenario, { id: scenarioId });
   if (!scenario) throw new NotFoundError('The scenario');
   const tender = await evaluableTender(em, user, scenario.tender.id, true);
-  if (scenario.builtIn) throw new ConflictError('The two built-in scenarios cannot be changed; create your own.');
+  if (scenario.builtIn) throw new ConflictError('The built-in scenarios cannot be changed; create your own.');
   await checkRules(em, tender, input);
   const before = scenario.rules;
   await em.transactional(async (tx) => {
@@ -120,7 +141,7 @@ export async function updateScenario(deps: EvaluationDeps, user: User, scenarioI
     await tx.flush();
     await audit(tx, { tenderId: tender.id, actor: user, action: 'scenario.updated', subject: `scenario ${s.name}`, before, after: s.rules });
   });
-  return scenarioView(await em.fork().findOneOrFail(Scenario, { id: scenarioId }), undefined);
+  return scenarioView(await em.fork().findOneOrFail(Scenario, { id: scenarioId }), undefined, tender.awardBasis);
 }
 
 /** Run states that make a second solve of the same input pointless: it is waiting, solving, or solved. */
@@ -197,17 +218,17 @@ export async function queueRun(deps: EvaluationDeps, user: User, scenarioId: str
 export async function listRuns(em: EntityManager, user: User, tenderId: string): Promise<RunSummary[]> {
   const tender = await evaluableTender(em, user, tenderId);
   const runs = await em.find(Run, { tender, parent: null }, { populate: ['scenario'], orderBy: { createdAt: 'desc' } });
-  return runs.map(runSummary);
+  return runs.map((r) => runSummary(r, tender.awardBasis));
 }
 
 export async function cancelRun(em: EntityManager, user: User, runId: string): Promise<RunSummary> {
   const run = await em.findOne(Run, { id: runId }, { populate: ['scenario'] });
   if (!run) throw new NotFoundError('The run');
-  await findVisibleTender(em, user, run.tender.id);
+  const tender = await findVisibleTender(em, user, run.tender.id);
   await em.transactional(async (tx) => {
     await transition(tx, Run, runId, ['queued', 'solving'], { status: 'cancelled', finishedAt: new Date() }, 'This run has already finished.');
     await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.cancelled', subject: `run ${run.id}` });
   });
   em.clear();
-  return runSummary(await em.findOneOrFail(Run, { id: runId }, { populate: ['scenario'] }));
+  return runSummary(await em.findOneOrFail(Run, { id: runId }, { populate: ['scenario'] }), tender.awardBasis);
 }

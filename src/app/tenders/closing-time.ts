@@ -1,5 +1,6 @@
 import { Signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
+import { formatInZone } from '@shared/time-zone';
 import { interval, map } from 'rxjs';
 
 const MINUTE = 60_000;
@@ -18,8 +19,12 @@ export function timeLeft(closesAt: string, now: number): string {
   return minutes > 0 ? `closes in ${minutes} min` : 'closes in less than a minute';
 }
 
-/** The closing time in the viewer's own time zone, named so nobody has to guess it. */
-export function localClosingTime(iso: string): string {
+/**
+ * The closing time in the tender's time zone, the zone named ("Tue, 1 Jul 2031, 12:00 GMT+1
+ * (Europe/Dublin)"); without a zone, in the viewer's own, named too.
+ */
+export function localClosingTime(iso: string, timeZone?: string, named = true): string {
+  if (timeZone) return formatInZone(iso, timeZone, 'en-GB', named);
   // dateStyle cannot be combined with timeZoneName, hence the separate fields.
   return new Intl.DateTimeFormat(undefined, {
     weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZoneName: 'short',

@@ -12,6 +12,8 @@ const SOLE = '22222222-2222-4222-8222-222222222222';
 
 function compared(overrides: Partial<ComparedRun> & Pick<ComparedRun, 'runId' | 'scenarioName'>): ComparedRun {
   return {
+    awardable: true,
+    whatIf: null,
     status: 'optimal',
     objective: 1000000,
     fixedCost: 75000,

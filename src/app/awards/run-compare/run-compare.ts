@@ -23,6 +23,7 @@ function signedMoney(value: number, currency: string): string {
 }
 
 const MEASURES: readonly Measure[] = [
+  { label: 'Can be recommended', cell: (run) => (run.awardable ? 'Yes: the published award basis' : 'No: a what-if, for analysis only') },
   { label: 'Status', cell: (run) => RUN_STATUS_LABELS[run.status] },
   { label: 'Total cost', cell: (run, c) => (run.objective === null ? '—' : money(run.objective, c.currency)) },
   { label: 'Fixed fees', cell: (run, c) => (run.fixedCost === null ? '—' : money(run.fixedCost, c.currency)) },
@@ -74,6 +75,9 @@ export class RunCompare {
     return cause instanceof ApiError ? cause.userMessage : 'The comparison could not be loaded.';
   });
   protected readonly measures = MEASURES;
+  protected hasWhatIf(c: Comparison): boolean {
+    return c.runs.some((r) => !r.awardable);
+  }
   protected readonly soleCost = computed(() => {
     const c = this.comparison.value();
     if (!c?.costOfSoleAward) return null;

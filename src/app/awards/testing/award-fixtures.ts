@@ -24,6 +24,8 @@ export function runView(overrides: Partial<RunView> = {}): RunView {
     tenderId: TENDER_ID,
     scenarioId: 'c0ffee00-0000-4000-8000-000000000001',
     scenarioName: 'All regions split',
+    awardable: true,
+    whatIf: null,
     status: 'optimal',
     queuedAt: '2026-12-01T09:00:00Z',
     startedAt: '2026-12-01T09:00:01Z',

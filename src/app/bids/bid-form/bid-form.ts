@@ -177,7 +177,7 @@ export class BidForm {
         maxWidth: '95vw',
         data: {
           title: 'Withdraw your bid?',
-          message: `Your bid on ${this.tender().reference} will no longer be considered. You can submit a new one until the closing time (${localClosingTime(this.tender().closesAt)}).`,
+          message: `Your bid on ${this.tender().reference} will no longer be considered. You can submit a new one until the closing time (${localClosingTime(this.tender().closesAt, this.tender().timeZone)}).`,
           confirm: 'Withdraw bid',
           destructive: true,
         },

@@ -6,6 +6,7 @@ import { Title } from '@angular/platform-browser';
 import { RouterLink } from '@angular/router';
 import { ApiError } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
+import { AwardBasisPanel } from '../../tenders/award-basis-panel/award-basis-panel';
 import { localClosingTime, minuteClock, timeLeft } from '../../tenders/closing-time';
 import { RegionTable } from '../../tenders/region-table/region-table';
 import { TenderApi } from '../../tenders/tender-api';
@@ -17,7 +18,7 @@ import { BidValidity } from '../bid-validity/bid-validity';
 @Component({
   selector: 'app-bid-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm, BidValidity],
+  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm, BidValidity, AwardBasisPanel],
   templateUrl: './bid-page.html',
   styleUrl: './bid-page.scss',
 })

@@ -11,7 +11,9 @@ import { Auth } from '../../core/auth/auth';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { money } from '../../ui/number-format';
 import { BidTabulation } from '../bid-tabulation/bid-tabulation';
+import { AwardBasisPanel } from '../award-basis-panel/award-basis-panel';
 import { hasClosed, localClosingTime, minuteClock, timeLeft } from '../closing-time';
 import { InvitationsPanel } from '../invitations-panel/invitations-panel';
 import { RegionTable } from '../region-table/region-table';
@@ -22,7 +24,7 @@ import { TENDER_STATUS_LABELS } from '../tender-status';
 @Component({
   selector: 'app-tender-detail',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel],
   templateUrl: './tender-detail.html',
   styleUrl: './tender-detail.scss',
 })
@@ -44,6 +46,7 @@ export class TenderDetail {
   protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
   protected readonly statusLabel = TENDER_STATUS_LABELS;
   protected readonly closingTime = localClosingTime;
+  protected readonly money = money;
   protected readonly isDraft = computed(() => this.tender()?.status === 'draft');
   /** Scenarios, runs and the award decision: buyer and compliance, once the bids are unsealed. */
   protected readonly canEvaluate = computed(() => {
@@ -97,7 +100,7 @@ export class TenderDetail {
           title: `Publish ${tender.reference}?`,
           message:
             `Bidding opens at once and ${invited} invited ${invited === 1 ? 'organisation is' : 'organisations are'} e-mailed. ` +
-            `The regions and closing time (${localClosingTime(tender.closesAt)}) can no longer be changed. ` +
+            `The regions and closing time (${localClosingTime(tender.closesAt, tender.timeZone)}) can no longer be changed. ` +
             `Check them against the tender documents and your procurement rules before you publish.`,
           confirm: 'Publish',
         },

@@ -5,6 +5,11 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
+import { MatAutocompleteModule } from '@angular/material/autocomplete';
+import { MatRadioModule } from '@angular/material/radio';
+import { MatSelectModule } from '@angular/material/select';
+import { describeAwardBasis } from '@shared/award-basis';
+import { formatInZone } from '@shared/time-zone';
 import { Router, RouterLink } from '@angular/router';
 import { findDuplicateRegionCodes } from '@shared/bids';
 import { tenderInputSchema, type TenderView } from '@shared/tenders';
@@ -13,7 +18,10 @@ import { ApiError } from '../../core/http/api-error';
 import { fieldMessage } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
 import { quantity } from '../tender-status';
-import { controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm } from './tender-form';
+import { clearServerProblems, controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm, zonedInstant } from './tender-form';
+
+/** Every IANA zone the browser knows. */
+const ZONES: readonly string[] = Intl.supportedValuesOf('timeZone');
 
 function currencyName(code: string): string | null {
   if (!/^[A-Z]{3}$/.test(code)) return null;
@@ -29,7 +37,9 @@ function currencyName(code: string): string | null {
 @Component({
   selector: 'app-tender-editor',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, RouterLink, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule],
+  imports: [
+    ReactiveFormsModule, RouterLink, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatAutocompleteModule, MatRadioModule, MatSelectModule,
+  ],
   templateUrl: './tender-editor.html',
   styleUrl: './tender-editor.scss',
 })
@@ -44,6 +54,8 @@ export class TenderEditor {
 
   protected readonly form = tenderForm(this.fb);
   protected readonly regions = this.form.controls.regions;
+  protected readonly basis = this.form.controls.awardBasis;
+  protected readonly body = this.form.controls.buyingBody;
   protected readonly loading = signal(false);
   protected readonly notEditable = signal<string | null>(null);
   protected readonly busy = signal(false);
@@ -62,7 +74,34 @@ export class TenderEditor {
     this.value();
     return quantity(this.regions.controls.reduce((sum, r) => sum + (Number(r.controls.forecast.value) || 0), 0));
   });
-  protected readonly timeZone = Intl.DateTimeFormat().resolvedOptions().timeZone;
+  /** Zones matching what is typed (all of them when it is a whole zone name), at most 50. */
+  protected readonly zoneOptions = computed(() => {
+    this.value();
+    const typed = this.form.controls.timeZone.value.trim().toLowerCase();
+    const list = !typed || ZONES.some((z) => z.toLowerCase() === typed) ? ZONES : ZONES.filter((z) => z.toLowerCase().includes(typed));
+    return list.slice(0, 50);
+  });
+  protected readonly regionCodes = computed(() => {
+    this.value();
+    return this.regions.getRawValue().map((r) => r.code.trim()).filter(Boolean);
+  });
+  protected readonly unitLabel = computed(() => {
+    this.value();
+    return this.form.controls.unit.value.trim() || 'units';
+  });
+  /** The sentences vendors will read (the same function as the tender page, workbook and invitation). */
+  protected readonly basisPreview = computed(() => {
+    this.value();
+    const body = formBody(this.form) as { awardBasis: Parameters<typeof describeAwardBasis>[0] };
+    return describeAwardBasis(body.awardBasis, { unit: this.unitLabel(), regions: this.regions.getRawValue() });
+  });
+  /** "Closes Sat 12 Dec 2026, 12:00 GMT (Europe/Dublin)": what vendors will be shown. */
+  protected readonly closingPreview = computed(() => {
+    this.value();
+    const v = this.form.getRawValue();
+    const at = zonedInstant(v.closesDate, v.closesTime, v.timeZone);
+    return at ? `Vendors will see: closes ${formatInZone(at, v.timeZone)}.` : null;
+  });
 
   constructor() {
     effect(() => {
@@ -154,6 +193,7 @@ export class TenderEditor {
   protected save(): void {
     if (this.busy() || this.form.disabled) return;
     this.failure.set(null);
+    clearServerProblems(this.form);
     const parsed = tenderInputSchema.safeParse(formBody(this.form));
     const duplicates = findDuplicateRegionCodes(this.regions.getRawValue());
     if (this.form.invalid || !parsed.success || duplicates.length) {

@@ -19,6 +19,7 @@ function summary(overrides: Partial<TenderSummary> & Pick<TenderSummary, 'id' | 
     unit: 't',
     currency: 'EUR',
     closesAt: new Date(Date.now() + 13 * DAY + 4.5 * 3_600_000).toISOString(),
+    timeZone: 'UTC',
     regionCount: 3,
     totalForecast: 12500,
     ...overrides,
