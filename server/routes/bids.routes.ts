@@ -9,8 +9,8 @@ import * as bids from '../services/bids.service';
 import * as compliance from '../services/compliance.service';
 import * as opening from '../services/opening-record.service';
 import { cleanDocumentContent } from '../services/bid-documents';
+import { sendDownload, XLSX } from '../http/download';
 
-const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
 export function bidRoutes(deps: AppDeps): AnyRoute[] {
   const ctx = (em: import('@mikro-orm/postgresql').EntityManager, req: import('express').Request): bids.BidDeps => ({
@@ -28,7 +28,7 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       responses: { 409: 'Bids are sealed until closing' },
       handler: async ({ em, user, params, res }) => {
         const file = await bids.tabulationWorkbook(em, user, params.id);
-        res.attachment(file.filename).type(XLSX).send(file.content);
+        sendDownload(res, { ...file, type: XLSX });
       },
     }),
     route({
@@ -37,7 +37,7 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'A workbook a vendor uploaded with its bid (after closing only), as a values-only copy: no formulas, links, names or macros. The original is kept as the record.',
       handler: async ({ em, user, params, res }) => {
         const doc = await bids.bidDocument(em, user, params.id, params.documentId);
-        res.attachment(doc.filename).type(XLSX).send(await cleanDocumentContent(doc));
+        sendDownload(res, { filename: doc.filename, content: await cleanDocumentContent(doc), type: XLSX });
       },
     }),
     route({
@@ -50,7 +50,7 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'The opening record as a workbook.',
       handler: async ({ em, user, params, res }) => {
         const file = await opening.openingRecordWorkbook(em, user, params.id);
-        res.attachment(file.filename).type(XLSX).send(file.content);
+        sendDownload(res, { ...file, type: XLSX });
       },
     }),
     route({
@@ -93,7 +93,7 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'The bid workbook for this tender, with the figures saved so far.',
       handler: async ({ em, user, params, res }) => {
         const file = await bids.vendorWorkbook(em, user, params.id);
-        res.attachment(file.filename).type(XLSX).send(file.content);
+        sendDownload(res, { ...file, type: XLSX });
       },
     }),
     route({

@@ -9,9 +9,9 @@ import { compareRuns, findRun, resilienceOf, runView, startResilience } from '..
 import { findVisibleTender } from '../services/tender-access';
 import { cancelRun, createScenario, listRuns, listScenarios, queueRun, updateScenario } from '../services/evaluation/scenarios.service';
 import { buildAwardWorkbook } from '../workbooks/award-workbook';
+import { CSV, exportName, sendDownload, XLSX } from '../http/download';
 
 const id = z.object({ id: z.uuid({ error: 'Must be a valid id.' }) });
-const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 const EVALUATORS = ['buyer', 'compliance'] as const;
 
 export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
@@ -62,7 +62,7 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
       handler: async ({ em, user, params, res }) => {
         const run = await findRun(em, user, params.id);
         const file = await buildAwardWorkbook(await runView(em, user, params.id), run.tender);
-        res.attachment(`${run.tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-award-${run.id.slice(0, 8)}.xlsx`).type(XLSX).send(file);
+        sendDownload(res, { filename: exportName(run.tender.reference, `award-${run.id.slice(0, 8)}.xlsx`), content: file, type: XLSX });
       },
     }),
     route({
@@ -125,7 +125,7 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'The audit trail as CSV (cells that could start a spreadsheet formula are quoted as text).',
       handler: async ({ em, user, params, res }) => {
         const tender = await findVisibleTender(em, user, params.id);
-        res.attachment(`${tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-audit-trail.csv`).type('text/csv; charset=utf-8').send(await auditCsv(em, params.id));
+        sendDownload(res, { filename: exportName(tender.reference, 'audit-trail.csv'), content: await auditCsv(em, params.id), type: CSV });
       },
     }),
   ];

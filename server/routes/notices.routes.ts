@@ -8,8 +8,8 @@ import { approvedRun } from '../services/notices/letters';
 import { listNotices, previewNotices, readNotice, sendNotices } from '../services/notices/notices.service';
 import { findVisibleTender } from '../services/tender-access';
 import { buildAwardWorkbook } from '../workbooks/award-workbook';
+import { exportName, sendDownload, XLSX } from '../http/download';
 
-const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 
 export function noticeRoutes(deps: AppDeps): AnyRoute[] {
   return [
@@ -42,7 +42,7 @@ export function noticeRoutes(deps: AppDeps): AnyRoute[] {
         const tender = await findVisibleTender(em, user, params.id);
         const run = await approvedRun(em, tender);
         const file = await buildAwardWorkbook(await runView(em, user, run.id), tender);
-        res.attachment(`${tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-award-schedule.xlsx`).type(XLSX).send(file);
+        sendDownload(res, { filename: exportName(tender.reference, 'award-schedule.xlsx'), content: file, type: XLSX });
       },
     }),
   ];

@@ -22,6 +22,7 @@ import { closeIfDue, findVisibleTender } from './tender-access';
 import { isLiveBid, isSealed, LIVE_BID_STATUSES } from '@shared/tenders';
 import { sqlList } from './sql';
 import { abnormallyLowFlags } from './evaluation/abnormally-low';
+import { exportName } from '../http/download';
 
 export interface BidDeps {
   em: EntityManager;
@@ -349,7 +350,7 @@ export async function tabulationWorkbook(em: EntityManager, user: User, tenderId
     reference: tender.reference, title: tender.title, currency: tender.currency, unit: tender.unit,
     regions: regionInputs(tender), bids: await tabulate(em, tender),
   });
-  return { filename: `${tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-bid-tabulation.xlsx`, content };
+  return { filename: exportName(tender.reference, 'bid-tabulation.xlsx'), content };
 }
 
 export async function bidDocument(em: EntityManager, user: User, tenderId: string, documentId: string): Promise<BidDocument> {
@@ -371,7 +372,7 @@ export async function vendorWorkbook(em: EntityManager, user: User, tenderId: st
     awardBasis: describeAwardBasis(tender.awardBasis, { unit: tender.unit, regions: regionInputs(tender) }),
     bid: own ? { fixedFee: own.fixedFee, capacity: own.capacity, prices: own.prices } : undefined,
   });
-  return { filename: `${tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-bid.xlsx`, content };
+  return { filename: exportName(tender.reference, 'bid.xlsx'), content };
 }
 
 /** Reads an uploaded workbook into bid figures for review; keeps the file for the bid record. */

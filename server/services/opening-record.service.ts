@@ -5,6 +5,7 @@ import { OpeningRecord, type User } from '../entities';
 import { AppError } from '../http/errors';
 import { buildOpeningRecordWorkbook } from '../workbooks/opening-record-workbook';
 import { findVisibleTender } from './tender-access';
+import { exportName } from '../http/download';
 
 /**
  * The opening record of a closed tender (buyer owning it, compliance, admin). None exists before
@@ -24,5 +25,5 @@ export async function openingRecordOf(em: EntityManager, user: User, tenderId: s
 export async function openingRecordWorkbook(em: EntityManager, user: User, tenderId: string): Promise<{ filename: string; content: Buffer }> {
   const view = await openingRecordOf(em, user, tenderId);
   const content = await buildOpeningRecordWorkbook(view);
-  return { filename: `${view.record.tender.reference.replace(/[^A-Za-z0-9._-]/g, '_')}-opening-record.xlsx`, content };
+  return { filename: exportName(view.record.tender.reference, 'opening-record.xlsx'), content };
 }
