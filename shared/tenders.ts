@@ -2,10 +2,11 @@ import { z } from 'zod';
 import { emailSchema } from './auth';
 import { awardRulesSchema } from './award';
 import { bidInputSchema, regionListSchema } from './bids';
+import type { AmendmentView } from './procedure';
 import { plainText } from './text';
 
-/** A tender's life: draft → open (published) → closed (bids unsealed) → awarded → notified. */
-export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified'] as const;
+/** A tender's life: draft → open (published) → closed (bids unsealed) → awarded → notified; draft or open → cancelled. */
+export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified', 'cancelled'] as const;
 export type TenderStatus = (typeof TENDER_STATUSES)[number];
 
 /** A bid's life: draft → submitted → revised (submitted again) / withdrawn; locked at closing. */
@@ -164,6 +165,10 @@ export interface TenderView extends TenderSummary {
   /** When vendors' questions close (the stored one, or 5 days before closing). */
   clarificationsCloseAt: string;
   abnormallyLowPercent: number;
+  /** The amendments issued while the tender was open, in order (everyone who sees the tender). */
+  amendments: AmendmentView[];
+  /** When and why the buyer cancelled the procedure, if it did. */
+  cancellation: { at: string; reason: string } | null;
   /** Buyer, compliance and admin only: the pre-tender estimate. */
   estimatedValue?: number | null;
   /** Buyer, compliance and admin only. */
@@ -187,6 +192,10 @@ export interface BidView {
   nonce?: string | null;
   updatedAt: string;
   document: { id: string; filename: string; size: number; digest: string } | null;
+  /** The amendment the last submission answered (0: the original documents). */
+  answersAmendment: number;
+  /** What an amendment did to this bid ("Amendment 2 added region …"), until the vendor submits again. */
+  amendmentNote: string | null;
 }
 
 export interface TabulatedBid {
@@ -201,7 +210,12 @@ export interface TabulatedBid {
   digest: string;
   /** The 256-bit key of the commitment, hex; revealed at opening. */
   nonce: string | null;
-  /** The server recomputed the commitment from the stored figures and `nonce`, and it equals `digest`. */
+  /**
+   * Prices this bid gave for regions an amendment removed after it was submitted: part of what its
+   * receipt commits to, never evaluated. Absent when there are none.
+   */
+  removedPrices?: Record<string, number>;
+  /** The server recomputed the commitment from the stored figures (`prices` and `removedPrices`) and `nonce`, and it equals `digest`. */
   receiptVerified: boolean;
   documentId: string | null;
 }

@@ -40,8 +40,11 @@ const utc = (d: Date) => d.toISOString().slice(0, 19).replace('T', ' ') + ' UTC'
 /** A receipt time, to the millisecond. */
 const utcMs = (d: Date) => d.toISOString().replace('T', ' ').replace('Z', ' UTC');
 
-/** Bids are sealed while the tender is a draft or open: no figure, nor anything computed from one. */
-const isSealed = (tender: Pick<Tender, 'status'>) => tender.status === 'draft' || tender.status === 'open';
+/**
+ * Bids are sealed while the tender is a draft or open, and for ever once it was cancelled before
+ * closing: no figure, nor anything computed from one.
+ */
+const isSealed = (tender: Pick<Tender, 'status'>) => tender.status === 'draft' || tender.status === 'open' || tender.status === 'cancelled';
 
 /** `nonce` only once the tender is closed: before, it would let a reader test guesses of the figures. */
 function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), document = bid.document ?? null, revealNonce = false): BidView {
@@ -58,6 +61,8 @@ function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), doc
     ...(revealNonce ? { nonce: bid.nonce ?? null } : {}),
     updatedAt: bid.updatedAt.toISOString(),
     document: document ? { id: document.id, filename: document.filename, size: document.size, digest: document.digest } : null,
+    answersAmendment: bid.answersAmendment,
+    amendmentNote: bid.amendmentNote ?? null,
   };
 }
 
@@ -77,8 +82,10 @@ export async function ownBid(em: EntityManager, user: User, tenderId: string): P
 }
 
 class BiddingClosed extends ConflictError {
-  constructor(closesAt: Date) {
-    super(`Bidding closed at ${utc(closesAt)}. Bids can no longer be saved, revised or withdrawn.`);
+  constructor(closesAt: Date, cancelled = false) {
+    super(cancelled
+      ? 'The buyer cancelled this tender. Bids can no longer be saved, revised or withdrawn; they stay sealed.'
+      : `Bidding closed at ${utc(closesAt)}. Bids can no longer be saved, revised or withdrawn.`);
   }
 }
 
@@ -105,6 +112,8 @@ interface BiddingTender {
   closesAt: Date;
   /** Region code → region id. */
   regions: Map<string, string>;
+  /** The number of the last amendment issued (0: none), which a submission answers. */
+  amendment: number;
 }
 
 /**
@@ -118,9 +127,10 @@ interface BiddingTender {
  */
 async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
   const rows = await tx.execute<{
-    status: string; reference: string; title: string; closes_at: Date | string; invited: boolean; regions: Record<string, string> | null;
+    status: string; reference: string; title: string; closes_at: Date | string; invited: boolean; regions: Record<string, string> | null; amendment: number;
   }[]>(
     `select t.status, t.reference, t.title, t.closes_at,
+            (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = t.id) as amendment,
             exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited,
             (select json_object_agg(r.code, r.id) from region r where r.tender_id = t.id) as regions
        from tender t where t.id = ? for share`,
@@ -129,8 +139,8 @@ async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: str
   const row = rows[0];
   if (!row || !row.invited || row.status === 'draft') throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
-  if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt);
-  return { id: tenderId, reference: row.reference, title: row.title, closesAt, regions: new Map(Object.entries(row.regions ?? {})) };
+  if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt, row.status === 'cancelled');
+  return { id: tenderId, reference: row.reference, title: row.title, closesAt, regions: new Map(Object.entries(row.regions ?? {})), amendment: row.amendment };
 }
 
 /** Save a draft, submit, or revise — only before closing, and only over the version loaded. */
@@ -171,6 +181,8 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       const { nonce, digest } = commitBid({ tender: bidding.reference, vendor: org.id, revision: bid.revision, ...input });
       bid.nonce = nonce;
       bid.digest = digest;
+      bid.answersAmendment = bidding.amendment;
+      bid.amendmentNote = null;
     } else {
       bid.status = 'draft';
       bid.digest = null;
@@ -190,6 +202,9 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       // JSON, not arrays: the query builder would spread an array into a list of parameters.
       [bid.id, JSON.stringify(codes.map((c) => ({ region_id: bidding.regions.get(c), unit_price: input.prices[c] }))), bid.id],
     );
+    // Prices of regions an amendment removed belonged to the receipt of an earlier submission; this
+    // save replaces every figure of the bid, so they go (the vendor's own act, not a silent loss).
+    await tx.execute('delete from bid_removed_line where bid_id = ?', [bid.id]);
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
     return { bid, tender: bidding };
   });
@@ -250,6 +265,7 @@ async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid
     revision: bid.revision,
     at: utcMs(deps.arrivedAt),
     digest: bid.digest ?? '',
+    answersAmendment: bid.answersAmendment,
     closesAt: utc(tender.closesAt),
     link: `${deps.publicUrl}/tenders/${tender.id}`,
   });
@@ -275,12 +291,13 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
   const rows = await em.execute<{
     vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
     submitted_at: Date | string; digest: string; nonce: string | null; revision: number; reference: string; document_id: string | null;
-    prices: Record<string, number | string> | null;
+    prices: Record<string, number | string> | null; removed: Record<string, number | string> | null;
   }[]>(
     `select o.id as vendor_id, o.name as vendor_name, o.sme, b.fixed_fee, b.capacity, b.submitted_at, b.digest, b.nonce, b.revision,
             (select t.reference from tender t where t.id = b.tender_id) as reference, b.document_id,
             (select json_object_agg(r.code, l.unit_price order by r.position)
-               from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices
+               from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices,
+            (select json_object_agg(x.region_code, x.unit_price order by x.region_code) from bid_removed_line x where x.bid_id = b.id) as removed
        from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
       where b.tender_id = ? and b.status in ('submitted', 'revised')
       order by o.name asc, o.id asc`,
@@ -290,7 +307,10 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
     const fixedFee = Number(b.fixed_fee);
     const capacity = b.capacity === null ? null : Number(b.capacity);
     const prices = recordByCode(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)] as const));
-    const recomputed = b.nonce ? bidCommitment(b.nonce, { tender: b.reference, vendor: b.vendor_id, revision: b.revision, fixedFee, capacity, prices }) : null;
+    // The receipt commits to the prices as submitted, those of regions an amendment removed since included.
+    const removedPrices = b.removed ? recordByCode(Object.entries(b.removed).map(([code, price]) => [code, Number(price)] as const)) : null;
+    const committed = removedPrices ? recordByCode([...Object.entries(prices), ...Object.entries(removedPrices)]) : prices;
+    const recomputed = b.nonce ? bidCommitment(b.nonce, { tender: b.reference, vendor: b.vendor_id, revision: b.revision, fixedFee, capacity, prices: committed }) : null;
     return {
       vendor: { id: b.vendor_id, name: b.vendor_name, sme: b.sme },
       fixedFee,
@@ -300,6 +320,7 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
       revision: b.revision,
       digest: b.digest,
       nonce: b.nonce,
+      ...(removedPrices ? { removedPrices } : {}),
       receiptVerified: recomputed !== null && recomputed === b.digest,
       documentId: b.document_id,
     };

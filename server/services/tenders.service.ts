@@ -3,7 +3,7 @@ import type PgBoss from 'pg-boss';
 import type { z } from 'zod';
 import type { RegionInput } from '@shared/bids';
 import type { BidStatus, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
-import { Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../entities';
+import { Amendment, Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
@@ -103,6 +103,9 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
     bidValidityDays: tender.bidValidityDays,
     clarificationsCloseAt: clarificationsCloseAt(tender).toISOString(),
     abnormallyLowPercent: tender.abnormallyLowPercent,
+    amendments: (await em.find(Amendment, { tender }, { orderBy: { number: 'asc' } }))
+      .map((a) => ({ number: a.number, issuedAt: a.createdAt.toISOString(), reason: a.reason, changes: a.changes })),
+    cancellation: tender.cancelledAt ? { at: tender.cancelledAt.toISOString(), reason: tender.cancellationReason ?? '' } : null,
   };
   if (user.role !== 'vendor') view.estimatedValue = tender.estimatedValue ?? null;
   if (user.role === 'vendor') {
