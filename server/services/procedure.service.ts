@@ -81,7 +81,18 @@ export async function askQuestion(deps: ProcedureDeps, user: User, tenderId: str
     await audit(tx, { tenderId, actor: user, action: 'question.asked', subject: `question ${q.id}`, detail: { vendorOrganisation: user.vendorOrganisation!.name } });
     return q.id;
   });
-  const saved = await em.fork().findOneOrFail(Question, { id }, { populate: ['vendorOrganisation', 'askedBy'] });
+  const saved = await em.fork().findOneOrFail(Question, { id }, { populate: ['vendorOrganisation', 'askedBy', 'tender.createdBy'] });
+  // The buyer who owns the tender is told at once (the asker's name is for the buyer only).
+  const owner = saved.tender.createdBy;
+  if (owner.active) {
+    await sendAfterCommit(deps.boss, [{
+      to: owner.email,
+      ...renderMail('question-asked', `New clarification question on tender ${saved.tender.reference}`, {
+        name: owner.name, organisation: saved.vendorOrganisation.name, reference: saved.tender.reference, title: saved.tender.title,
+        question: saved.text, link: `${deps.publicUrl}/tenders/${tenderId}`,
+      }),
+    }]);
+  }
   return questionView(saved, user);
 }
 
@@ -214,12 +225,14 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
       const added = changes.regionsAdded;
       const note = `Amendment ${number} added ${added.length === 1 ? 'region' : 'regions'} ${names(added)}: add your ${added.length === 1 ? 'price' : 'prices'} (or leave ${added.length === 1 ? 'it' : 'them'} unpriced to decline) and submit again. Until you do, your bid is a draft and will not be opened.`;
       // Guarded by the tender's lock: a bid being saved holds it FOR SHARE, so none is in flight.
-      const rows = await tx.execute<{ id: string }[]>(
+      const rows = await tx.execute<{ id: string; revision: number }[]>(
         `update bid set status = 'draft', digest = null, nonce = null, version = version + 1, updated_at = now()
-          where tender_id = ? and status in ('submitted', 'revised') returning id`,
+          where tender_id = ? and status in ('submitted', 'revised') returning id, revision`,
         [tenderId],
       );
       for (const r of rows) {
+        // As every bid entry: which bid and its revision, never its vendor or figures (the trail is read before closing).
+        await audit(tx, { tenderId, actor: user, action: 'bid.returned-to-draft', subject: `bid ${r.id}`, detail: { revision: r.revision, amendment: number } });
         returned.push(r.id);
         notes.set(r.id, notes.has(r.id) ? `${note} ${notes.get(r.id)!.replace(' Your bid stays submitted.', '')}` : note);
       }

@@ -12,6 +12,7 @@ import { drainQueue, waitFor } from '../support/wait';
  */
 let t: TestApp;
 let buyer: Browser;
+let buyerEmail: string;
 let otherBuyer: Browser;
 let compliance: Browser;
 interface Vendor { b: Browser; org: string; orgName: string; email: string }
@@ -19,7 +20,9 @@ const vendors: Vendor[] = [];
 
 beforeAll(async () => {
   t = await startTestApp();
-  buyer = await signedIn(t, await makeUser(t, 'buyer'));
+  const buyerUser = await makeUser(t, 'buyer');
+  buyerEmail = buyerUser.email;
+  buyer = await signedIn(t, buyerUser);
   otherBuyer = await signedIn(t, await makeUser(t, 'buyer'));
   compliance = await signedIn(t, await makeUser(t, 'compliance'));
   for (let i = 0; i < 3; i++) {
@@ -47,6 +50,9 @@ describe('clarifications', () => {
     expect(asked.status).toBe(201);
     expect(asked.body).toMatchObject({ status: 'asked', number: null, answer: null, mine: true });
     expect(asked.body.askedBy).toBeUndefined();
+    const toBuyer = await waitForMail(t, buyerEmail, 'New clarification question on tender');
+    expect(toBuyer.text).toContain('Is delivery to Depot 2 by articulated lorry possible?');
+    expect(toBuyer.text).toContain(asker.orgName);
 
     // Before the answer: the other vendor sees nothing, the asker its own question awaiting an answer.
     expect((await other.b.get(`/api/tenders/${id}/questions`)).body).toEqual([]);
@@ -202,6 +208,8 @@ describe('amendments', () => {
     expect(again.body).toMatchObject({ status: 'revised', revision: 2, answersAmendment: 1, amendmentNote: null });
     const entry = await t.em().findOneOrFail(AuditEntry, { tender: id, action: 'tender.amended' });
     expect(entry.detail).toMatchObject({ number: 1, reason: 'A third depot joins the partnership.', bidsReturnedToDraft: 1 });
+    const returned = await t.em().findOneOrFail(AuditEntry, { tender: id, action: 'bid.returned-to-draft' });
+    expect(returned.detail).toEqual({ revision: 1, amendment: 1 });
   });
 
   test('a region removed keeps the bid submitted and its price with the receipt: after closing the receipt still verifies and the price is shown apart', async () => {

@@ -7,6 +7,9 @@ import { RouterLink } from '@angular/router';
 import { ApiError } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { localClosingTime, minuteClock, timeLeft } from '../../tenders/closing-time';
+import { AmendmentsPanel } from '../../tenders/amendments-panel/amendments-panel';
+import { CancelTender } from '../../tenders/cancel-tender/cancel-tender';
+import { QuestionsPanel } from '../../tenders/questions-panel/questions-panel';
 import { RegionTable } from '../../tenders/region-table/region-table';
 import { TenderApi } from '../../tenders/tender-api';
 import { TENDER_STATUS_LABELS } from '../../tenders/tender-status';
@@ -16,7 +19,7 @@ import { BidForm } from '../bid-form/bid-form';
 @Component({
   selector: 'app-bid-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm],
+  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm, QuestionsPanel, AmendmentsPanel, CancelTender],
   templateUrl: './bid-page.html',
   styleUrl: './bid-page.scss',
 })

@@ -11,9 +11,12 @@ import { Auth } from '../../core/auth/auth';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { AmendmentsPanel } from '../amendments-panel/amendments-panel';
 import { BidTabulation } from '../bid-tabulation/bid-tabulation';
+import { CancelTender } from '../cancel-tender/cancel-tender';
 import { hasClosed, localClosingTime, minuteClock, timeLeft } from '../closing-time';
 import { InvitationsPanel } from '../invitations-panel/invitations-panel';
+import { QuestionsPanel } from '../questions-panel/questions-panel';
 import { RegionTable } from '../region-table/region-table';
 import { TenderApi } from '../tender-api';
 import { TENDER_STATUS_LABELS } from '../tender-status';
@@ -22,7 +25,7 @@ import { TENDER_STATUS_LABELS } from '../tender-status';
 @Component({
   selector: 'app-tender-detail',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, QuestionsPanel, AmendmentsPanel, CancelTender],
   templateUrl: './tender-detail.html',
   styleUrl: './tender-detail.scss',
 })
@@ -49,12 +52,12 @@ export class TenderDetail {
   protected readonly canEvaluate = computed(() => {
     const role = this.auth.user()?.role;
     const status = this.tender()?.status;
-    return (role === 'buyer' || role === 'compliance') && !!status && status !== 'draft' && status !== 'open';
+    return (role === 'buyer' || role === 'compliance') && !!status && status !== 'draft' && status !== 'open' && status !== 'cancelled';
   });
-  /** Sealed while draft or open (the server decides; a passed closing time is closed at the next load). */
+  /** Sealed while draft or open, and for ever once cancelled (the server decides; a passed closing time is closed at the next load). */
   protected readonly sealed = computed(() => {
     const t = this.tender();
-    return !t || t.status === 'draft' || t.status === 'open';
+    return !t || t.status === 'draft' || t.status === 'open' || t.status === 'cancelled';
   });
   protected readonly timeLeft = computed(() => {
     const t = this.tender();
