@@ -118,7 +118,7 @@ export async function answerQuestion(deps: ProcedureDeps, user: User, questionId
   const number = await em.transactional(async (tx) => {
     await lockTender(tx, user, tenderId, ['open'], 'Questions can be answered only while the tender is open for bids.');
     const [next] = await tx.execute<{ n: number }[]>('select coalesce(max(number), 0)::int + 1 as n from question where tender_id = ?', [tenderId]);
-    const n = next!.n;
+    const n = next.n;
     await transition(tx, Question, questionId, ['asked'], { status: 'answered', number: n, answer: input.text, answeredAt: deps.arrivedAt, answeredBy: user.id },
       'This question is already answered; its answer is published.');
     await audit(tx, { tenderId, actor: user, action: 'question.answered', subject: `question ${questionId}`, detail: { number: n } });
@@ -192,7 +192,7 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
       throw new ValidationError([{ field: 'changes', message: 'This amendment changes nothing: extend the closing time, change the description or change the regions.' }]);
     }
     const [last] = await tx.execute<{ n: number }[]>('select coalesce(max(number), 0)::int as n from amendment where tender_id = ?', [tenderId]);
-    const number = last!.n + 1;
+    const number = last.n + 1;
     const before = { closesAt: t.closesAt.toISOString(), description: t.description, regions: regions.map((r) => ({ code: r.code, name: r.name, forecast: r.forecast })) };
 
     const notes = new Map<string, string>();

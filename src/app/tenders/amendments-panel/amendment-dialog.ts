@@ -64,7 +64,7 @@ export class AmendmentDialog {
     if (v.description !== this.tender.description) out.description = v.description;
     const regions = v.regions.map((r) => ({ code: r.code.trim(), name: r.name.trim(), forecast: r.forecast ?? 0 }) satisfies RegionInput);
     const same = regions.length === this.tender.regions.length
-      && regions.every((r, i) => r.code === this.tender.regions[i]!.code && r.name === this.tender.regions[i]!.name && r.forecast === this.tender.regions[i]!.forecast);
+      && regions.every((r, i) => r.code === this.tender.regions[i].code && r.name === this.tender.regions[i].name && r.forecast === this.tender.regions[i].forecast);
     if (!same) out.regions = regions;
     return out;
   }
