@@ -196,6 +196,8 @@ export interface BidView {
   answersAmendment: number;
   /** What an amendment did to this bid ("Amendment 2 added region …"), until the vendor submits again. */
   amendmentNote: string | null;
+  /** The vendor's own prices for regions an amendment removed after it submitted (part of its receipt, never evaluated). */
+  removedPrices?: Record<string, number>;
 }
 
 export interface TabulatedBid {

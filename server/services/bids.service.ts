@@ -4,7 +4,7 @@ import type PgBoss from 'pg-boss';
 import { recordByCode, type BidFigures } from '@shared/bids';
 import type { BidSave, BidStatus, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
 import { wrap } from '@mikro-orm/core';
-import { Bid, BidDocument, Tender, type User } from '../entities';
+import { Bid, BidDocument, BidRemovedLine, Tender, type User } from '../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
@@ -78,7 +78,12 @@ function vendorOf(user: User) {
 export async function ownBid(em: EntityManager, user: User, tenderId: string): Promise<BidView | null> {
   const tender = await findVisibleTender(em, user, tenderId);
   const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user) }, { populate: ['lines.region', 'document'] });
-  return bid ? bidView(bid, undefined, undefined, !isSealed(tender)) : null;
+  if (!bid) return null;
+  const view = bidView(bid, undefined, undefined, !isSealed(tender));
+  // Its own prices for regions an amendment removed: part of its receipt, shown apart.
+  const removed = await em.find(BidRemovedLine, { bid }, { orderBy: { regionCode: 'asc' } });
+  if (removed.length) view.removedPrices = recordByCode(removed.map((r) => [r.regionCode, r.unitPrice] as const));
+  return view;
 }
 
 class BiddingClosed extends ConflictError {

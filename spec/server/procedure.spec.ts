@@ -154,7 +154,8 @@ describe('amendments', () => {
       `select start_after from pgboss.job where name = ? and singleton_key = ?`, [QUEUES.tenderClose, `close-${id}-amendment-1`],
     );
     expect(new Date(job.start_after).getTime()).toBe(newCloses.getTime() + CLOSING_GRACE_MS);
-    const receipt = await waitForMail(t, v.email, 'Receipt: your bid');
+    const { reference } = (await buyer.get(`/api/tenders/${id}`)).body as { reference: string };
+    const receipt = await waitForMail(t, v.email, `Receipt: your bid on ${reference}`);
     expect(receipt.text).toContain('amendment 1');
   });
 
@@ -220,7 +221,7 @@ describe('amendments', () => {
     const regions = [{ code: 'R01', name: 'Depot 1', forecast: 1000 }, { code: 'R03', name: 'Depot 3', forecast: 3000 }];
     expect((await buyer.post(`/api/tenders/${id}/amendments`, { reason: 'Depot 2 closes for rebuilding.', regions })).status).toBe(201);
     const own = (await a.b.get(`/api/tenders/${id}/bid`)).body.bid;
-    expect(own).toMatchObject({ status: 'submitted', digest: sub.body.digest, prices: { R01: 31.5, R03: 33 } });
+    expect(own).toMatchObject({ status: 'submitted', digest: sub.body.digest, prices: { R01: 31.5, R03: 33 }, removedPrices: { R02: 32.25 } });
     expect(own.amendmentNote).toContain('Amendment 1 removed region R02 (Depot 2)');
     expect(await t.em().count(Region, { tender: id })).toBe(2);
 
@@ -229,6 +230,25 @@ describe('amendments', () => {
     expect(bids).toHaveLength(1);
     expect(bids[0]).toMatchObject({ prices: { R01: 31.5, R03: 33 }, removedPrices: { R02: 32.25 }, digest: sub.body.digest, receiptVerified: true });
   });
+});
+
+test('once the closing time has passed, no question, amendment or cancellation is accepted (409), and nothing is stored', async () => {
+  const [v] = vendors;
+  const body = tenderBody(2, TEN_DAYS);
+  const id = await openTender(buyer, [v.org], body);
+  // Answered by the original documents: the bid's receipt says so.
+  const bid = await put(v.b, id, { fixedFee: 10, capacity: null, prices: { R01: 1 }, submit: true, version: null });
+  expect(bid.body.answersAmendment).toBe(0);
+  expect((await waitForMail(t, v.email, `Receipt: your bid on ${body.reference}`)).text).toContain('the original tender documents (no amendment)');
+  await t.em().nativeUpdate(Tender, { id }, { clarificationsCloseAt: new Date(Date.now() + 86_400_000) });
+  await passClosingTime(t, id);
+  const asked = await v.b.post(`/api/tenders/${id}/questions`, { text: 'Still there?' });
+  const amended = await buyer.post(`/api/tenders/${id}/amendments`, { reason: 'Too late', closesAt: new Date(Date.now() + 9_000_000).toISOString() });
+  const cancelled = await buyer.post(`/api/tenders/${id}/cancel`, { reason: 'Too late' });
+  expect([asked.status, amended.status, cancelled.status]).toEqual([409, 409, 409]);
+  expect(await t.em().count(Question, { tender: id })).toBe(0);
+  expect(await t.em().count(Amendment, { tender: id })).toBe(0);
+  expect((await buyer.get(`/api/tenders/${id}`)).body.status).toBe('closed');
 });
 
 describe('cancellation', () => {

@@ -54,6 +54,8 @@ export class BidForm {
     const t = this.tender();
     return t.status !== 'open' || hasClosed(t.closesAt, this.now());
   });
+  protected readonly removedList = (prices: Record<string, number>) =>
+    Object.entries(prices).map(([code, price]) => `${code}: ${price}`).join(', ');
   protected readonly live = computed(() => ['submitted', 'revised'].includes(this.bid()?.status ?? ''));
   protected readonly statusText = computed(() => {
     const bid = this.bid();
