@@ -4,8 +4,9 @@ import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, si
 /**
  * Clarifications and amendments on the demo data: the closed salt tender NHP-2026-014 has two
  * published clarifications and amendment 1 (closing extended); on the open grit-bin tender
- * NHP-2027-002 a vendor asks, the buyer answers, and the buyer's amendment and cancellation dialogs
- * open and close without changing anything.
+ * NHP-2027-002 a vendor asks, the buyer answers and issues amendment 1 (the description only, so that
+ * the other browser tests find the tender as they expect it), and looks at the cancellation dialog
+ * without cancelling.
  */
 let b: Awaited<ReturnType<typeof openBrowser>>;
 beforeAll(async () => {
@@ -40,7 +41,7 @@ test('a vendor reads the amendment notice and the numbered clarifications of the
   expect(await seriousViolations(page)).toEqual([]);
 });
 
-test('a vendor asks a question; the buyer sees who asked and publishes the answer; the vendor reads clarification 1', async () => {
+test('a vendor asks a question; the buyer sees who asked, publishes the answer and issues an amendment; the vendor reads clarification 1 and the amendment notice', async () => {
   const { page } = b;
   const question = 'Are the grit bins of the West district reachable by a 7.5 t lorry?';
   await signIn(page, 'vendor6@demo.tendara.test');
@@ -81,8 +82,15 @@ test('a vendor asks a question; the buyer sees who asked and publishes the answe
   await page.locator('mat-dialog-content').evaluate((el) => el.scrollTo(0, el.scrollHeight));
   await expect(page.getByRole('button', { name: /^Remove region / }).count()).resolves.toBe(5);
   await screenshot(page, 'procedure-amendment-dialog-regions-1280');
-  await page.getByRole('button', { name: 'Back' }).click();
+  // Issued: only the description changes (closing time, regions and forecasts stay as other tests expect them).
+  const dialog = page.getByRole('dialog', { name: 'Issue amendment 1' });
+  await dialog.getByLabel('Reason').fill('Vendors asked how the bins are filled.');
+  await dialog.getByLabel('Description').fill('Refilling of roadside grit bins across five districts of the fictional Northvale area. Bins are filled by hand from 25 kg bags.');
+  await dialog.getByRole('button', { name: 'Issue amendment' }).click();
   await page.getByRole('dialog').waitFor({ state: 'detached' });
+  const notices = page.getByRole('region', { name: 'Amendments' });
+  await notices.getByRole('heading', { name: /^Amendment 1/ }).waitFor();
+  await notices.getByText('Description changed.').waitFor();
   await page.getByRole('button', { name: 'Cancel tender…' }).click();
   await page.getByRole('dialog', { name: 'Cancel NHP-2027-002?' }).waitFor();
   await waitForDialogFocus(page);
@@ -102,4 +110,11 @@ test('a vendor asks a question; the buyer sees who asked and publishes the answe
   await animationsDone(page);
   await screenshot(page, 'procedure-vendor-published-1280');
   expect(await seriousViolations(page)).toEqual([]);
+  // The amendment notice, with its reason, on the vendor's page.
+  const amendments = page.getByRole('region', { name: 'Amendments' });
+  await amendments.getByText('Vendors asked how the bins are filled.').waitFor();
+  await expect(page.getByText(/Bins are filled by hand from 25 kg bags\./).count()).resolves.toBe(1);
+  await amendments.scrollIntoViewIfNeeded();
+  await animationsDone(page);
+  await screenshot(page, 'procedure-vendor-amendment-notice-1280');
 });
