@@ -159,6 +159,12 @@ function regionChanges(current: Region[], next: RegionInput[]): Pick<AmendmentCh
   };
 }
 
+/** `value` is a whole multiple of `step` (to 1e-9 of a step: forecasts have at most 4 decimals). */
+function isWholeMultiple(value: number, step: number): boolean {
+  const ratio = value / step;
+  return Math.abs(ratio - Math.round(ratio)) < 1e-9;
+}
+
 const names = (regions: { code: string; name: string }[]) => regions.map((r) => `${r.code} (${r.name})`).join(', ');
 
 /**
@@ -187,6 +193,14 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     }
     if (input.description !== undefined && input.description !== t.description) changes.description = { from: t.description, to: input.description };
     const regions = t.regions.getItems();
+    const increment = t.awardBasis.awardIncrement;
+    if (input.regions && increment) {
+      // The published award increment stays: every forecast must remain a whole multiple of it.
+      const off = input.regions.flatMap((r, i) => (isWholeMultiple(r.forecast, increment) ? [] : [{
+        field: `regions[${i}].forecast`, message: `Forecast must be a whole multiple of the award increment (${increment} ${t.unit}).`,
+      }]));
+      if (off.length) throw new ValidationError(off);
+    }
     if (input.regions) Object.assign(changes, regionChanges(regions, input.regions));
     if (!Object.keys(changes).length) {
       throw new ValidationError([{ field: 'changes', message: 'This amendment changes nothing: extend the closing time, change the description or change the regions.' }]);

@@ -173,6 +173,13 @@ describe('amendments', () => {
     expect(noReason.body.errors.map((e: { field: string }) => e.field)).toEqual(['reason']);
     expect(await t.em().count(Amendment, { tender: id })).toBe(0);
     expect((await t.em().findOneOrFail(Tender, { id })).closesAt.toISOString()).toBe(new Date(body.closesAt).toISOString());
+    // With a published award increment of 250 t, a forecast of 1100 t is refused, naming the region's field.
+    await t.em().nativeUpdate(Tender, { id }, { awardBasis: { sourcing: 'split', soleRegions: [], awardIncrement: 250 } });
+    const offStep = await buyer.post(`/api/tenders/${id}/amendments`, {
+      reason: 'New forecasts', regions: [{ code: 'R01', name: 'Depot 1', forecast: 1000 }, { code: 'R02', name: 'Depot 2', forecast: 1100 }],
+    });
+    expect(offStep.status).toBe(400);
+    expect(offStep.body.errors).toEqual([{ field: 'regions[1].forecast', message: 'Forecast must be a whole multiple of the award increment (250 t).' }]);
     expect((await otherBuyer.post(`/api/tenders/${id}/amendments`, { reason: 'Intruder', description: 'x' })).status).toBe(404);
     expect(await auditActions(id)).not.toContain('tender.amended');
   });
