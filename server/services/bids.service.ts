@@ -132,9 +132,9 @@ interface BiddingTender {
  */
 async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
   const rows = await tx.execute<{
-    status: string; reference: string; title: string; closes_at: Date | string; invited: boolean; regions: Record<string, string> | null; amendment: number;
+    status: string; reference: string; title: string; closes_at: Date | string; published: boolean; invited: boolean; regions: Record<string, string> | null; amendment: number;
   }[]>(
-    `select t.status, t.reference, t.title, t.closes_at,
+    `select t.status, t.reference, t.title, t.closes_at, t.published_at is not null as published,
             (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = t.id) as amendment,
             exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited,
             (select json_object_agg(r.code, r.id) from region r where r.tender_id = t.id) as regions
@@ -142,7 +142,7 @@ async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: str
     [vendorId, tenderId],
   );
   const row = rows[0];
-  if (!row || !row.invited || row.status === 'draft') throw new NotFoundError('The tender');
+  if (!row || !row.invited || row.status === 'draft' || !row.published) throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
   if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt, row.status === 'cancelled');
   return { id: tenderId, reference: row.reference, title: row.title, closesAt, regions: new Map(Object.entries(row.regions ?? {})), amendment: row.amendment };

@@ -48,7 +48,7 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
   const params: unknown[] = [];
   const vendor = user.role === 'vendor' ? user.vendorOrganisation!.id : null;
   if (vendor) {
-    where.push(`t.status <> 'draft'`, 'exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?)');
+    where.push(`t.status <> 'draft' and t.published_at is not null`, 'exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?)');
     params.push(vendor);
   }
   const owner = tenderOwnerScope(user);

@@ -292,12 +292,15 @@ describe('cancellation', () => {
     expect(await t.em().count(Bid, { tender: id, status: 'submitted' })).toBe(1);
   });
 
-  test('a draft can be cancelled too, without e-mail to anyone', async () => {
+  test('a draft can be cancelled too, without e-mail to anyone, and its invited vendors never see it', async () => {
     const [a] = vendors;
     const created = await buyer.post('/api/tenders', tenderBody());
     await buyer.post(`/api/tenders/${created.body.id}/invitations`, { vendorOrganisationIds: [a.org] });
     const res = await buyer.post(`/api/tenders/${created.body.id}/cancel`, { reason: 'Prepared by mistake.' });
     expect(res.body.status).toBe('cancelled');
+    // Never published, so its invited vendor never sees it.
+    expect((await a.b.get(`/api/tenders/${created.body.id}`)).status).toBe(404);
+    expect((await a.b.get('/api/tenders')).body.map((x: { id: string }) => x.id)).not.toContain(created.body.id);
     await drainQueue(t, QUEUES.mail);
     expect(await t.em().count(MailMessage, { subject: `Tender ${created.body.reference} is cancelled` })).toBe(0);
   });
