@@ -118,3 +118,44 @@ test('a vendor asks a question; the buyer sees who asked, publishes the answer a
   await animationsDone(page);
   await screenshot(page, 'procedure-vendor-amendment-notice-1280');
 });
+
+test('a buyer cancels a draft with a reason: the page names it cancelled with the reason, and the list filters it under Cancelled', async () => {
+  const { page } = b;
+  await signIn(page, 'buyer@demo.tendara.test');
+  // A draft of its own (through the API, as the editor would save it), so the demo's tenders stay as they are.
+  const xsrf = (await page.context().cookies()).find((c) => c.name === 'XSRF-TOKEN')?.value ?? '';
+  const created = await page.request.post(`${baseUrl()}/api/tenders`, {
+    headers: { 'X-XSRF-TOKEN': xsrf },
+    data: {
+      reference: 'NHP-2027-009', title: 'Footway grit, spring top-up', commodity: 'Grit', unit: 't', currency: 'EUR',
+      closesAt: new Date(Date.now() + 20 * 86_400_000).toISOString(), standstillDays: 10,
+      regions: [{ code: 'N01', name: 'North district', forecast: 120 }],
+    },
+  });
+  expect(created.status()).toBe(201);
+  await openTender(page, 'NHP-2027-009');
+  await page.getByRole('button', { name: 'Cancel tender…' }).click();
+  const dialog = page.getByRole('dialog', { name: 'Cancel NHP-2027-009?' });
+  await dialog.waitFor();
+  // The reason is required: nothing is sent without it.
+  await dialog.getByRole('button', { name: 'Cancel tender' }).click();
+  await dialog.getByText('Reason is required.').waitFor();
+  await dialog.getByLabel('Reason for cancelling').fill('Drafted twice; the spring top-up is part of NHP-2027-002.');
+  await dialog.getByRole('button', { name: 'Cancel tender' }).click();
+  await page.getByRole('dialog').waitFor({ state: 'detached' });
+  await page.getByRole('note').filter({ hasText: 'Drafted twice; the spring top-up is part of NHP-2027-002.' }).waitFor();
+  await expect(page.locator('.eyebrow .badge').textContent()).resolves.toBe('Cancelled');
+  await expect(page.getByRole('button', { name: 'Cancel tender…' }).count()).resolves.toBe(0);
+  await page.getByText('The tender was cancelled before its closing time: its bids stay sealed and are never opened.').waitFor();
+  await expect(page.getByText(/closes in/).count()).resolves.toBe(0);
+  await animationsDone(page);
+  await screenshot(page, 'procedure-buyer-cancelled-1280');
+  expect(await seriousViolations(page)).toEqual([]);
+
+  await page.goto(`${baseUrl()}/tenders`);
+  await page.getByRole('listbox', { name: 'Filter by status' }).getByRole('option', { name: 'Cancelled' }).click();
+  await page.getByRole('row', { name: /NHP-2027-009/ }).getByText('cancelled before closing').waitFor();
+  await expect(page.getByRole('row', { name: /NHP-2027-002/ }).count()).resolves.toBe(0);
+  await screenshot(page, 'procedure-tender-list-cancelled-1280');
+  expect(await seriousViolations(page)).toEqual([]);
+});

@@ -38,7 +38,8 @@ export class BidPage {
   protected readonly now = minuteClock();
   protected readonly timeLeft = computed(() => {
     const t = this.tender.value();
-    return t ? timeLeft(t.closesAt, this.now()) : '';
+    // A cancelled tender has no time left, whatever its closing time said.
+    return t && t.status !== 'cancelled' ? timeLeft(t.closesAt, this.now()) : '';
   });
   protected readonly statusLabel = TENDER_STATUS_LABELS;
   protected readonly closingTime = localClosingTime;

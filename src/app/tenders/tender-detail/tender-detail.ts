@@ -61,7 +61,8 @@ export class TenderDetail {
   });
   protected readonly timeLeft = computed(() => {
     const t = this.tender();
-    return t ? timeLeft(t.closesAt, this.now()) : '';
+    // A cancelled tender has no time left, whatever its closing time said.
+    return t && t.status !== 'cancelled' ? timeLeft(t.closesAt, this.now()) : '';
   });
   protected readonly pastClosing = computed(() => {
     const t = this.tender();
