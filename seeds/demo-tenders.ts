@@ -1,12 +1,13 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { Bid, BidLine, Invitation, Region, Tender, type User, type VendorOrganisation } from '../server/entities';
+import { Amendment, Bid, BidLine, Invitation, Question, Region, Tender, type User, type VendorOrganisation } from '../server/entities';
 import { audit } from '../server/services/audit.service';
 import { commitBid } from '../server/services/bid-commitment';
 import { writeOpeningRecord } from '../server/services/opening';
 
 /**
  * The demo's tenders — all invented: a highways partnership buying de-icing salt for twelve depots
- * (closed, with bids from all seven demo vendors), and a second, open tender for grit bins.
+ * (closed, with bids from all seven demo vendors, two answered clarifications and one amendment that
+ * extended its closing), and a second, open tender for grit bins.
  */
 const DEPOTS: [string, string, number][] = [
   ['ASH', 'Ashby Cross depot', 1500], ['BRH', 'Brindle Hill depot', 2400], ['CDG', 'Calder Gate depot', 3100],
@@ -53,7 +54,9 @@ export const DEMO_LOW_PRICE = {
   note: 'Explanation received: the firm stores salt at its own yard two kilometres from the Garrow Moor depot, so its haulage cost there is far lower; the price is sustainable and accepted.',
 };
 
-export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string, VendorOrganisation>, now = new Date()): Tender {
+export function loadDemoTenders(
+  em: EntityManager, buyer: User, orgs: Map<string, VendorOrganisation>, now = new Date(), vendorPeople = new Map<string, User>(),
+): Tender {
   // 1. Closed: de-icing salt, twelve depots, seven bids.
   const salt = em.create(Tender, {
     reference: 'NHP-2026-014',
@@ -87,7 +90,8 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
     });
     const bid = em.create(Bid, {
       tender: salt, vendorOrganisation: org, status: 'submitted', fixedFee: offer.fee, capacity: offer.cap,
-      revision: 1, submittedAt: new Date(now.getTime() - (5 + Number(key.slice(1))) * 3_600_000 - 3 * DAY),
+      // Every bid came in after amendment 1 (below), so each answers it.
+      answersAmendment: 1, revision: 1, submittedAt: new Date(now.getTime() - (5 + Number(key.slice(1))) * 3_600_000 - 3 * DAY),
       // Each bid's receipt commitment with its own nonce, as a submission makes them.
       ...commitBid({ tender: salt.reference, vendor: org.id, revision: 1, fixedFee: offer.fee, capacity: offer.cap, prices }),
     });
@@ -95,6 +99,30 @@ export function loadDemoTenders(em: EntityManager, buyer: User, orgs: Map<string
   }
 
   const saltTender = salt;
+  // Two clarifications asked and answered before the deadline, and amendment 1, which gave vendors
+  // two more days (the original closing time was five days ago).
+  const clarifications: [string, number, string, string][] = [
+    ['v3', 18, 'May a vendor deliver to a depot from more than one stockpile during the season?',
+      'Yes. The unit price is per tonne delivered to the depot, wherever the salt comes from; each delivery must meet the 6 mm grade.'],
+    ['v5', 15, 'Is the forecast for Fernhollow depot a firm quantity or an estimate?',
+      'Every forecast is the expected tonnage for the season, not a commitment: call-offs follow the weather. Awards are made on the forecasts.'],
+  ];
+  clarifications.forEach(([key, daysAgo, text, answer], i) => {
+    const asker = vendorPeople.get(key);
+    if (!asker) return;
+    const askedAt = new Date(now.getTime() - daysAgo * DAY);
+    em.create(Question, {
+      tender: salt, vendorOrganisation: orgs.get(key)!, askedBy: asker, text, status: 'answered', number: i + 1, answer,
+      answeredAt: new Date(askedAt.getTime() + DAY), answeredBy: buyer, createdAt: askedAt, updatedAt: new Date(askedAt.getTime() + DAY),
+    });
+  });
+  const amendedAt = new Date(now.getTime() - 8 * DAY);
+  em.create(Amendment, {
+    tender: salt, number: 1, issuedBy: buyer, createdAt: amendedAt, updatedAt: amendedAt,
+    reason: 'Two depots were closed by flooding for a week; vendors asked for more time to confirm their supply routes.',
+    changes: { closesAt: { from: new Date(now.getTime() - 5 * DAY).toISOString(), to: salt.closesAt.toISOString() } },
+  });
+
   // 2. Open for two more weeks: grit bins, five districts, bids still coming in.
   const bins = em.create(Tender, {
     reference: 'NHP-2027-002',

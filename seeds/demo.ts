@@ -15,6 +15,7 @@ export async function loadDemo(em: EntityManager): Promise<void> {
   }
   const hash = await hashPassword(DEMO_PASSWORD);
   let buyer: User | undefined;
+  const vendorPeople = new Map<string, User>();
   for (const p of DEMO_PEOPLE) {
     const user = em.create(User, {
       email: p.email,
@@ -24,7 +25,8 @@ export async function loadDemo(em: EntityManager): Promise<void> {
       passwordHash: hash,
     });
     if (p.role === 'buyer') buyer = user;
+    if (p.organisation && !vendorPeople.has(p.organisation)) vendorPeople.set(p.organisation, user);
   }
-  const salt = loadDemoTenders(em, buyer!, orgs);
+  const salt = loadDemoTenders(em, buyer!, orgs, new Date(), vendorPeople);
   await completeDemoOpening(em, salt, buyer!, orgs);
 }

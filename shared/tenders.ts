@@ -3,10 +3,11 @@ import { emailSchema } from './auth';
 import { awardRulesSchema } from './award';
 import type { AbnormallyLowView, BidFlags, ComplianceView } from './compliance';
 import { bidInputSchema, regionListSchema } from './bids';
+import type { AmendmentView } from './procedure';
 import { plainText } from './text';
 
-/** A tender's life: draft → open (published) → closed (bids unsealed) → awarded → notified. */
-export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified'] as const;
+/** A tender's life: draft → open (published) → closed (bids unsealed) → awarded → notified; draft or open → cancelled. */
+export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified', 'cancelled'] as const;
 export type TenderStatus = (typeof TENDER_STATUSES)[number];
 
 /** A bid's life: draft → submitted → revised (submitted again) / withdrawn; locked at closing. */
@@ -21,17 +22,21 @@ export type BidStatus = (typeof BID_STATUSES)[number];
 export const LIVE_BID_STATUSES = ['submitted', 'revised'] as const satisfies readonly BidStatus[];
 export const isLiveBid = (status: BidStatus): boolean => (LIVE_BID_STATUSES as readonly BidStatus[]).includes(status);
 
-/** Bids are sealed while the tender is in one of these: no figure, nor anything computed from one, leaves the server. */
-export const SEALED_TENDER_STATUSES = ['draft', 'open'] as const satisfies readonly TenderStatus[];
+/**
+ * Bids are sealed while the tender is in one of these: no figure, nor anything computed from one,
+ * leaves the server. A cancelled tender never opens its bids.
+ */
+export const SEALED_TENDER_STATUSES = ['draft', 'open', 'cancelled'] as const satisfies readonly TenderStatus[];
 export const isSealed = (status: TenderStatus): boolean => (SEALED_TENDER_STATUSES as readonly TenderStatus[]).includes(status);
 
 /** Every move a tender may make (from → to); each is a guarded transition on the server. */
 export const TENDER_TRANSITIONS = {
-  draft: ['open'],
-  open: ['closed'],
+  draft: ['open', 'cancelled'],
+  open: ['closed', 'cancelled'],
   closed: ['awarded'],
   awarded: ['notified'],
   notified: [],
+  cancelled: [],
 } as const satisfies Record<TenderStatus, readonly TenderStatus[]>;
 
 /** The statuses a tender may move to `to` from. */
@@ -192,6 +197,10 @@ export interface TenderView extends TenderSummary {
   /** When vendors' questions close (the stored one, or 5 days before closing). */
   clarificationsCloseAt: string;
   abnormallyLowPercent: number;
+  /** The amendments issued while the tender was open, in order (everyone who sees the tender). */
+  amendments: AmendmentView[];
+  /** When and why the buyer cancelled the procedure, if it did. */
+  cancellation: { at: string; reason: string } | null;
   /** Buyer, compliance and admin only: the pre-tender estimate. */
   estimatedValue?: number | null;
   /** Buyer, compliance and admin only. */
@@ -217,6 +226,12 @@ export interface BidView {
   document: { id: string; filename: string; size: number; digest: string } | null;
   /** After closing: until when the bid must stay valid (closing + bid validity), and the vendor's confirmed extension. */
   validity?: { validUntil: string; extendedUntil: string | null };
+  /** The amendment the last submission answered (0: the original documents). */
+  answersAmendment: number;
+  /** What an amendment did to this bid ("Amendment 2 added region …"), until the vendor submits again. */
+  amendmentNote: string | null;
+  /** The vendor's own prices for regions an amendment removed after it submitted (part of its receipt, never evaluated). */
+  removedPrices?: Record<string, number>;
 }
 
 export interface TabulatedBid {
@@ -233,7 +248,12 @@ export interface TabulatedBid {
   digest: string;
   /** The 256-bit key of the commitment, hex; revealed at opening. */
   nonce: string | null;
-  /** The server recomputed the commitment from the stored figures and `nonce`, and it equals `digest`. */
+  /**
+   * Prices this bid gave for regions an amendment removed after it was submitted: part of what its
+   * receipt commits to, never evaluated. Absent when there are none.
+   */
+  removedPrices?: Record<string, number>;
+  /** The server recomputed the commitment from the stored figures (`prices` and `removedPrices`) and `nonce`, and it equals `digest`. */
   receiptVerified: boolean;
   documentId: string | null;
   /** The buyer's compliance check (decision null: not yet checked). */

@@ -48,6 +48,14 @@ export class Bid extends BaseEntity {
   @Property({ type: 'integer', version: true })
   version!: number & Opt;
 
+  /** The number of the last amendment issued when the bid was submitted (0: the original documents). */
+  @Property({ type: 'integer', default: 0 })
+  answersAmendment: number & Opt = 0;
+
+  /** What an amendment did to this bid, for the vendor ("Amendment 2 added region …"); cleared when it submits again. */
+  @Property({ type: 'text', nullable: true })
+  amendmentNote?: string | null;
+
   @ManyToOne({ entity: 'BidDocument', nullable: true, deleteRule: 'set null' })
   document?: BidDocument | null;
 

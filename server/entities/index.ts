@@ -1,12 +1,15 @@
 import { AccountToken } from './account-token.entity';
+import { Amendment } from './amendment.entity';
 import { AuditEntry } from './audit-entry.entity';
 import { Bid } from './bid.entity';
 import { BidDocument } from './bid-document.entity';
 import { BidLine } from './bid-line.entity';
+import { BidRemovedLine } from './bid-removed-line.entity';
 import { Invitation } from './invitation.entity';
 import { MailMessage } from './mail-message.entity';
 import { Notice } from './notice.entity';
 import { OpeningRecord } from './opening-record.entity';
+import { Question } from './question.entity';
 import { Recommendation } from './recommendation.entity';
 import { Region } from './region.entity';
 import { Run } from './run.entity';
@@ -18,7 +21,7 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
-  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord];
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine];
 export {
-  AccountToken, AuditEntry, Notice, OpeningRecord, Recommendation, Run, RunAward, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, Amendment, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

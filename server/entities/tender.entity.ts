@@ -50,6 +50,13 @@ export class Tender extends BaseEntity {
   @Property({ type: 'datetime', nullable: true })
   closedAt?: Date | null;
 
+  /** When the buyer cancelled the procedure before closing, and why. */
+  @Property({ type: 'datetime', nullable: true })
+  cancelledAt?: Date | null;
+
+  @Property({ type: 'text', nullable: true })
+  cancellationReason?: string | null;
+
   /** The award rules published with the tender (engine field names); locked at publish. */
   @Property({ type: 'json' })
   awardBasis: AwardBasis & Opt = { sourcing: 'split', soleRegions: [] };

@@ -1,3 +1,4 @@
+import { SEALED_TENDER_STATUSES } from '@shared/tenders';
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
@@ -92,7 +93,7 @@ export async function auditTrail(em: EntityManager, tenderId: string | null): Pr
   // unsalted digest, which a reader could test guesses of the figures against: withheld while the
   // tender is sealed. The stored entry is unchanged, so the chain still verifies.
   const sealed = entries.some((e) => e.action.startsWith('bid.') && 'digest' in e.detail)
-    && (await em.count(Tender, { id: tenderId, status: { $in: ['draft', 'open'] } })) > 0;
+    && (await em.count(Tender, { id: tenderId, status: { $in: [...SEALED_TENDER_STATUSES] } })) > 0;
   return entries.map((e) => ({
     seq: Number(e.seq),
     at: e.at.toISOString(),

@@ -7,7 +7,7 @@ import { describeAwardBasis } from '@shared/award-basis';
 import { formatInZone } from '@shared/time-zone';
 import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
 import { wrap } from '@mikro-orm/core';
-import { Bid, BidDocument, Tender, type User } from '../entities';
+import { Bid, BidDocument, BidRemovedLine, Tender, type User } from '../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
@@ -62,6 +62,8 @@ function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), doc
     ...(revealNonce ? { nonce: bid.nonce ?? null } : {}),
     updatedAt: bid.updatedAt.toISOString(),
     document: document ? { id: document.id, filename: document.filename, size: document.size, digest: document.digest } : null,
+    answersAmendment: bid.answersAmendment,
+    amendmentNote: bid.amendmentNote ?? null,
   };
 }
 
@@ -79,14 +81,19 @@ export async function ownBid(em: EntityManager, user: User, tenderId: string): P
   const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user) }, { populate: ['lines.region', 'document'] });
   if (!bid) return null;
   const view = bidView(bid, undefined, undefined, !isSealed(tender.status));
+  // Its own prices for regions an amendment removed: part of its receipt, shown apart.
+  const removed = await em.find(BidRemovedLine, { bid }, { orderBy: { regionCode: 'asc' } });
+  if (removed.length) view.removedPrices = recordByCode(removed.map((r) => [r.regionCode, r.unitPrice] as const));
   if (isSealed(tender.status) || !isLiveBid(bid.status)) return view;
   const validUntil = bidsValidUntil(tender.closesAt, tender.bidValidityDays);
   return { ...view, validity: { validUntil: validUntil.toISOString(), extendedUntil: bid.validityExtendedUntil?.toISOString() ?? null } };
 }
 
 class BiddingClosed extends ConflictError {
-  constructor(closesAt: Date) {
-    super(`Bidding closed at ${utc(closesAt)}. Bids can no longer be saved, revised or withdrawn.`);
+  constructor(closesAt: Date, cancelled = false) {
+    super(cancelled
+      ? 'The buyer cancelled this tender. Bids can no longer be saved, revised or withdrawn; they stay sealed.'
+      : `Bidding closed at ${utc(closesAt)}. Bids can no longer be saved, revised or withdrawn.`);
   }
 }
 
@@ -115,6 +122,8 @@ interface BiddingTender {
   timeZone: string;
   /** Region code → region id. */
   regions: Map<string, string>;
+  /** The number of the last amendment issued (0: none), which a submission answers. */
+  amendment: number;
 }
 
 /**
@@ -128,19 +137,20 @@ interface BiddingTender {
  */
 async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
   const rows = await tx.execute<{
-    status: string; reference: string; title: string; closes_at: Date | string; time_zone: string; invited: boolean; regions: Record<string, string> | null;
+    status: string; reference: string; title: string; closes_at: Date | string; time_zone: string; published: boolean; invited: boolean; regions: Record<string, string> | null; amendment: number;
   }[]>(
-    `select t.status, t.reference, t.title, t.closes_at, t.time_zone,
+    `select t.status, t.reference, t.title, t.closes_at, t.time_zone, t.published_at is not null as published,
+            (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = t.id) as amendment,
             exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited,
             (select json_object_agg(r.code, r.id) from region r where r.tender_id = t.id) as regions
        from tender t where t.id = ? for share`,
     [vendorId, tenderId],
   );
   const row = rows[0];
-  if (!row || !row.invited || row.status === 'draft') throw new NotFoundError('The tender');
+  if (!row || !row.invited || row.status === 'draft' || !row.published) throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
-  if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt);
-  return { id: tenderId, reference: row.reference, title: row.title, closesAt, timeZone: row.time_zone, regions: new Map(Object.entries(row.regions ?? {})) };
+  if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt, row.status === 'cancelled');
+  return { id: tenderId, reference: row.reference, title: row.title, closesAt, timeZone: row.time_zone, regions: new Map(Object.entries(row.regions ?? {})), amendment: row.amendment };
 }
 
 /** Save a draft, submit, or revise — only before closing, and only over the version loaded. */
@@ -181,6 +191,8 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       const { nonce, digest } = commitBid({ tender: bidding.reference, vendor: org.id, revision: bid.revision, ...input });
       bid.nonce = nonce;
       bid.digest = digest;
+      bid.answersAmendment = bidding.amendment;
+      bid.amendmentNote = null;
     } else {
       bid.status = 'draft';
       bid.digest = null;
@@ -200,6 +212,9 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
       // JSON, not arrays: the query builder would spread an array into a list of parameters.
       [bid.id, JSON.stringify(codes.map((c) => ({ region_id: bidding.regions.get(c), unit_price: input.prices[c] }))), bid.id],
     );
+    // Prices of regions an amendment removed belonged to the receipt of an earlier submission; this
+    // save replaces every figure of the bid, so they go (the vendor's own act, not a silent loss).
+    await tx.execute('delete from bid_removed_line where bid_id = ?', [bid.id]);
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
     return { bid, tender: bidding };
   });
@@ -260,6 +275,7 @@ async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid
     revision: bid.revision,
     at: utcMs(deps.arrivedAt),
     digest: bid.digest ?? '',
+    answersAmendment: bid.answersAmendment,
     closesAt: tender.timeZone === 'UTC' ? utc(tender.closesAt) : `${formatInZone(tender.closesAt.toISOString(), tender.timeZone)}, ${utc(tender.closesAt)}`,
     link: `${deps.publicUrl}/tenders/${tender.id}`,
   });
@@ -285,7 +301,7 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
   const rows = await em.execute<{
     id: string; vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
     submitted_at: Date | string; digest: string; nonce: string | null; revision: number; reference: string; document_id: string | null;
-    prices: Record<string, number | string> | null;
+    prices: Record<string, number | string> | null; removed: Record<string, number | string> | null;
     compliance_decision: ComplianceDecision | null; compliance_ground: ExclusionGround | null; compliance_note: string | null; compliance_decided_at: Date | string | null;
     low_price_explanation_requested_at: Date | string | null; low_price_accepted: boolean | null; low_price_note: string | null; low_price_decided_at: Date | string | null;
   }[]>(
@@ -293,6 +309,7 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
             (select t.reference from tender t where t.id = b.tender_id) as reference, b.document_id,
             (select json_object_agg(r.code, l.unit_price order by r.position)
                from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices,
+            (select json_object_agg(x.region_code, x.unit_price order by x.region_code) from bid_removed_line x where x.bid_id = b.id) as removed,
             b.compliance_decision, b.compliance_ground, b.compliance_note, b.compliance_decided_at,
             b.low_price_explanation_requested_at, b.low_price_accepted, b.low_price_note, b.low_price_decided_at
        from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
@@ -309,7 +326,10 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
     const fixedFee = Number(b.fixed_fee);
     const capacity = b.capacity === null ? null : Number(b.capacity);
     const prices = recordByCode(Object.entries(b.prices ?? {}).map(([code, price]) => [code, Number(price)] as const));
-    const recomputed = b.nonce ? bidCommitment(b.nonce, { tender: b.reference, vendor: b.vendor_id, revision: b.revision, fixedFee, capacity, prices }) : null;
+    // The receipt commits to the prices as submitted, those of regions an amendment removed since included.
+    const removedPrices = b.removed ? recordByCode(Object.entries(b.removed).map(([code, price]) => [code, Number(price)] as const)) : null;
+    const committed = removedPrices ? recordByCode([...Object.entries(prices), ...Object.entries(removedPrices)]) : prices;
+    const recomputed = b.nonce ? bidCommitment(b.nonce, { tender: b.reference, vendor: b.vendor_id, revision: b.revision, fixedFee, capacity, prices: committed }) : null;
     return {
       id: b.id,
       vendor: { id: b.vendor_id, name: b.vendor_name, sme: b.sme },
@@ -320,6 +340,7 @@ export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): P
       revision: b.revision,
       digest: b.digest,
       nonce: b.nonce,
+      ...(removedPrices ? { removedPrices } : {}),
       receiptVerified: recomputed !== null && recomputed === b.digest,
       documentId: b.document_id,
       compliance: { decision: b.compliance_decision, ground: b.compliance_ground, note: b.compliance_note, decidedAt: iso(b.compliance_decided_at) },

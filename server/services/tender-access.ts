@@ -112,7 +112,8 @@ export async function findVisibleTender(em: EntityManager, user: User, id: strin
   }
   if (!tender) throw new NotFoundError('The tender');
   if (user.role === 'vendor') {
-    const invited = tender.status !== 'draft' && user.vendorOrganisation
+    // Published ones only: a draft cancelled before publication was never shown to its vendors.
+    const invited = tender.status !== 'draft' && tender.publishedAt && user.vendorOrganisation
       ? await em.count(Invitation, { tender, vendorOrganisation: user.vendorOrganisation })
       : 0;
     if (!invited) throw new NotFoundError('The tender');

@@ -4,7 +4,7 @@ import type { z } from 'zod';
 import { describeAwardBasis } from '@shared/award-basis';
 import type { RegionInput } from '@shared/bids';
 import type { BidStatus, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
-import { Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../entities';
+import { Amendment, Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
@@ -51,7 +51,7 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
   const params: unknown[] = [];
   const vendor = user.role === 'vendor' ? user.vendorOrganisation!.id : null;
   if (vendor) {
-    where.push(`t.status <> 'draft'`, 'exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?)');
+    where.push(`t.status <> 'draft' and t.published_at is not null`, 'exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?)');
     params.push(vendor);
   }
   const owner = tenderOwnerScope(user);
@@ -105,6 +105,9 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
     bidValidityDays: tender.bidValidityDays,
     clarificationsCloseAt: clarificationsCloseAt(tender).toISOString(),
     abnormallyLowPercent: tender.abnormallyLowPercent,
+    amendments: (await em.find(Amendment, { tender }, { orderBy: { number: 'asc' } }))
+      .map((a) => ({ number: a.number, issuedAt: a.createdAt.toISOString(), reason: a.reason, changes: a.changes })),
+    cancellation: tender.cancelledAt ? { at: tender.cancelledAt.toISOString(), reason: tender.cancellationReason ?? '' } : null,
   };
   if (user.role !== 'vendor') view.estimatedValue = tender.estimatedValue ?? null;
   if (user.role === 'vendor') {

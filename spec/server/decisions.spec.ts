@@ -1,11 +1,11 @@
 import { Client } from 'pg';
 import type { Response } from 'supertest';
 import type { User } from '../../server/entities';
-import { AuditEntry, Notice, Recommendation, Run, Tender } from '../../server/entities';
+import { AuditEntry, Notice, Question, Recommendation, Run, Tender } from '../../server/entities';
 import { auditLockKey } from '../../server/services/audit.service';
 import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
-import { openTender, passClosingTime } from '../support/tenders';
+import { openTender, passClosingTime, tenderBody } from '../support/tenders';
 import { waitFor } from '../support/wait';
 
 /**
@@ -201,4 +201,42 @@ test('excluding an awarded bid racing the recommendation of that run: exactly on
   expect({ excluded: await auditCount(tenderId, 'bid.excluded'), made: await auditCount(tenderId, 'recommendation.made') }).toEqual(
     excludedWon ? { excluded: 1, made: 0 } : { excluded: 0, made: 1 },
   );
+});
+
+test('two answers to one question at once: one is published as clarification 1 (200), the other is 409 and nothing of it is stored', async () => {
+  const tenderId = await openTender(buyers[0], vendors.map((v) => v.user.vendorOrganisation!.id), tenderBody(3, 10 * 24 * 60));
+  const asked = await vendors[0].browser.post(`/api/tenders/${tenderId}/questions`, { text: 'Is the salt to be covered at the depot?' });
+  expect(asked.status).toBe(201);
+  const answers = await race(tenderId, buyers.map((b, i) => () => b.post(`/api/questions/${asked.body.id}/answer`, { text: `Answer ${i + 1}` })));
+  expect(statuses(answers)).toEqual([200, 409]);
+  const winner = answers.find((a) => a.status === 200)!;
+  expect(winner.body.number).toBe(1);
+  const stored = await t.em().findOneOrFail(Question, { id: asked.body.id });
+  expect({ answer: stored.answer, number: stored.number }).toEqual({ answer: winner.body.answer, number: 1 });
+  expect(await auditCount(tenderId, 'question.answered')).toBe(1);
+});
+
+test('two cancellations at once: one cancels (200), the other is 409; one audit entry', async () => {
+  const tenderId = await openTender(buyers[0], vendors.map((v) => v.user.vendorOrganisation!.id));
+  const answers = await race(tenderId, buyers.map((b, i) => () => b.post(`/api/tenders/${tenderId}/cancel`, { reason: `Reason ${i + 1}` })));
+  expect(statuses(answers)).toEqual([200, 409]);
+  expect((await t.em().findOneOrFail(Tender, { id: tenderId })).status).toBe('cancelled');
+  expect(await auditCount(tenderId, 'tender.cancelled')).toBe(1);
+});
+
+test('an amendment racing a cancellation never lands on a cancelled tender', async () => {
+  const tenderId = await openTender(buyers[0], vendors.map((v) => v.user.vendorOrganisation!.id));
+  const later = new Date(Date.now() + 5 * 3_600_000).toISOString();
+  const [amended, cancelled] = await race(tenderId, [
+    () => buyers[0].post(`/api/tenders/${tenderId}/amendments`, { reason: 'More time', closesAt: later }),
+    () => buyers[1].post(`/api/tenders/${tenderId}/cancel`, { reason: 'No longer needed' }),
+  ]);
+  expect(cancelled.status).toBe(200);
+  const trail = (await t.em().find(AuditEntry, { tender: tenderId }, { orderBy: { seq: 'asc' } })).map((e) => e.action);
+  // Either the amendment came first and is recorded before the cancellation, or it was refused.
+  const outcome = amended.status === 201
+    ? { status: 201, amendedFirst: trail.indexOf('tender.amended') < trail.indexOf('tender.cancelled') }
+    : { status: amended.status, amendedFirst: trail.includes('tender.amended') };
+  expect([{ status: 201, amendedFirst: true }, { status: 409, amendedFirst: false }]).toContainEqual(outcome);
+  expect(trail.filter((a) => a === 'tender.cancelled')).toHaveLength(1);
 });

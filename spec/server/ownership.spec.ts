@@ -1,7 +1,7 @@
 import XlsxPopulate from 'xlsx-populate';
 import { createHash } from 'node:crypto';
 import { apiRoutes } from '../../server/app';
-import { AuditEntry, Bid, BidDocument, Invitation, Notice, Recommendation, Run, Scenario, Tender, type User } from '../../server/entities';
+import { AuditEntry, Bid, BidDocument, Invitation, Notice, Question, Recommendation, Run, Scenario, Tender, type User } from '../../server/entities';
 import type { AnyRoute } from '../../server/http/route';
 import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
@@ -73,6 +73,11 @@ beforeAll(async () => {
   expect((await compliance.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: '' })).status).toBe(200);
   expect((await owner.post(`/api/tenders/${tenderId}/notices`)).status).toBe(202);
   ids['notice'] = (await t.em().findOneOrFail(Notice, { tender: tenderId })).id;
+  // A clarification question on the owner's tender, still awaiting its answer.
+  const qem = t.em();
+  const question = qem.create(Question, { tender: tenderId, vendorOrganisation: ids['organisation'], askedBy: vendorUser.id, text: 'Which grade?' });
+  await qem.flush();
+  ids['question'] = question.id;
   // Once the letter is out the tender is notified: wait for that, so that its status stays put below.
   await waitFor('the notice to be sent (tender notified)', async () => (await t.em().findOneOrFail(Tender, { id: tenderId })).status === 'notified');
 });
@@ -81,7 +86,9 @@ afterAll(() => t.close());
 /** The route's path with the owner's ids in place of its parameters. */
 function concrete(r: AnyRoute): string {
   const prefix = r.path.split('/')[1];
-  const byPrefix: Record<string, string | undefined> = { tenders: ids['tender'], scenarios: ids['scenario'], runs: ids['run'], notices: ids['notice'] };
+  const byPrefix: Record<string, string | undefined> = {
+    tenders: ids['tender'], scenarios: ids['scenario'], runs: ids['run'], notices: ids['notice'], questions: ids['question'],
+  };
   return '/api' + r.path.replace(/:([A-Za-z]+)/g, (_m, name: string) => {
     const named: Record<string, string | undefined> = { documentId: ids['document'], organisationId: ids['organisation'], bidId: ids['bid'] };
     const id = name === 'id' ? byPrefix[prefix] : named[name];
@@ -99,6 +106,9 @@ const BODIES: Record<string, object> = {
   'POST /tenders/:id/recommendation': { runId: '', justification: 'Intruder' },
   'PUT /tenders/:id/bids/:bidId/compliance': { decision: 'excluded', ground: 'other', note: 'Intruder' },
   'PUT /tenders/:id/bids/:bidId/abnormally-low': { accepted: true, note: 'Intruder' },
+  'POST /questions/:id/answer': { text: 'Intruder' },
+  'POST /tenders/:id/amendments': { reason: 'Intruder', description: 'Intruder' },
+  'POST /tenders/:id/cancel': { reason: 'Intruder' },
 };
 const QUERIES: Record<string, () => Record<string, string>> = {
   'GET /tenders/:id/compare': () => ({ runs: `${ids['run']},${ids['run']}` }),
@@ -138,6 +148,7 @@ test("another buyer gets 404 on every route that takes the owner's tender or som
   expect(await t.em().count(Recommendation, { tender: tenderId })).toBe(1);
   expect(await t.em().count(Invitation, { tender: tenderId })).toBe(1);
   expect(await t.em().count(Notice, { tender: tenderId })).toBe(1);
+  expect((await t.em().findOneOrFail(Question, { id: ids['question'] })).status).toBe('asked');
 });
 
 test('the tender list and the notice list show a buyer only its own tenders; compliance and admin see every tender', async () => {

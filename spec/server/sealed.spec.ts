@@ -144,6 +144,62 @@ test('before closing, the audit trail records that a bid arrived, with no digest
   }
 });
 
+describe('a cancelled tender', () => {
+  // Figures of their own, so that finding them anywhere means this bid leaked.
+  const C_FEE = 876543.21;
+  const C_CAP = 32109.5;
+  const C_PRICE = 66.6123;
+  let cancelledId: string;
+  let cancelledNonce: string;
+
+  beforeAll(async () => {
+    const vendor = await makeUser(t, 'vendor');
+    const v = await signedIn(t, vendor);
+    cancelledId = await openTender(readers['buyer'], [vendor.vendorOrganisation!.id]);
+    const saved = await v.send('put', `/api/tenders/${cancelledId}/bid`, { fixedFee: C_FEE, capacity: C_CAP, prices: { R01: C_PRICE }, submit: true, version: null });
+    expect(saved.status).toBe(200);
+    await waitForMail(t, vendor.email, 'Receipt:');
+    const cancelled = await readers['buyer'].post(`/api/tenders/${cancelledId}/cancel`, { reason: 'The requirement lapsed.' });
+    expect(cancelled.status).toBe(200);
+    await waitForMail(t, vendor.email, 'Tender ');
+    // Past its closing time too: nothing may open it.
+    await passClosingTime(t, cancelledId);
+    const [row] = await t.em().getConnection().execute<{ nonce: string }[]>('select nonce from bid where tender_id = ?', [cancelledId]);
+    cancelledNonce = row.nonce;
+  });
+
+  test.each(['buyer', 'compliance', 'admin'])('after cancelling, even past the closing time, no GET route shows %s a figure of its bids or their nonce', async (who) => {
+    const b = readers[who];
+    const gets = apiRoutes(t.deps).filter((r) => r.method === 'get' && !r.path.includes(':documentId') && !r.path.includes(':token') && !r.path.startsWith('/outbox/'));
+    expect(gets.length).toBeGreaterThan(10);
+    expect((await b.get(`/api/tenders/${cancelledId}`)).body.status).toBe('cancelled');
+    for (const r of gets) {
+      const path = '/api' + r.path.replace(':id', cancelledId);
+      const res = await b.get(path).buffer(true);
+      const body = text(res.body) + text(res.text);
+      if (res.status === 200) expect({ path, text: ['application/json', 'text/csv'].includes(res.type) }).toEqual({ path, text: true });
+      for (const secret of [String(C_FEE), String(C_CAP), String(C_PRICE), cancelledNonce]) {
+        expect({ path, secret, leaked: body.includes(secret) }).toEqual({ path, secret, leaked: false });
+      }
+    }
+  });
+
+  test('after cancelling, no e-mail (the cancellation notice included) and no outbox entry carries a figure of its bids or their nonce', async () => {
+    const mails = await t.em().find(MailMessage, {}, { populate: ['raw'] });
+    expect(mails.some((m) => m.subject.endsWith(' is cancelled'))).toBe(true);
+    for (const m of mails) {
+      const all = [m.subject, m.text, m.html ?? '', m.raw.toString('latin1')].join('\n');
+      for (const secret of [String(C_FEE), String(C_CAP), String(C_PRICE), cancelledNonce]) {
+        expect({ mail: m.subject, secret, leaked: all.includes(secret) }).toEqual({ mail: m.subject, secret, leaked: false });
+      }
+      const shown = await readers['admin'].get(`/api/outbox/${m.id}`);
+      for (const secret of [String(C_FEE), String(C_CAP), String(C_PRICE), cancelledNonce]) {
+        expect({ mail: m.subject, secret, leaked: text(shown.body).includes(secret) }).toEqual({ mail: m.subject, secret, leaked: false });
+      }
+    }
+  });
+});
+
 test('at opening, anyone can recompute each receipt from the revealed figures and nonce; the server checks it too', async () => {
   const mail = await waitForMail(t, vendorEmail, 'Receipt:');
   const parsed = await simpleParser((await t.em().findOneOrFail(MailMessage, { id: mail.id }, { populate: ['raw'] })).raw);

@@ -81,3 +81,17 @@ test('the demo salt tender has an opening record whose digest is in its trail, e
   expect(flagged[0].abnormallyLow).toMatchObject({ accepted: true, note: DEMO_LOW_PRICE.note });
   expect(trail.filter((e) => e.action === 'bid.abnormally-low-accepted')).toHaveLength(1);
 });
+
+test('the demo salt tender shows two answered clarifications, without the asker to vendors, and amendment 1 that extended its closing', async () => {
+  await seed(t.em(), 'demo'); // loads the data unless an earlier test has
+  const salt = await t.em().findOneOrFail(Tender, { reference: 'NHP-2026-014' });
+  const vendor = await new Browser(t.app).init();
+  expect((await vendor.signIn('vendor1@demo.tendara.test', DEMO_PASSWORD)).status).toBe(200);
+  const questions = (await vendor.get(`/api/tenders/${salt.id}/questions`)).body as { number: number; status: string; askedBy?: unknown }[];
+  expect(questions.map((q) => [q.number, q.status, q.askedBy])).toEqual([[1, 'answered', undefined], [2, 'answered', undefined]]);
+  const view = (await vendor.get(`/api/tenders/${salt.id}`)).body as { closesAt: string; amendments: { number: number; changes: { closesAt?: { from: string; to: string } } }[] };
+  expect(view.amendments).toHaveLength(1);
+  expect(view.amendments[0].changes.closesAt?.to).toBe(view.closesAt);
+  expect(new Date(view.amendments[0].changes.closesAt!.from).getTime()).toBeLessThan(new Date(view.closesAt).getTime());
+  expect((await vendor.get(`/api/tenders/${salt.id}/bid`)).body.bid).toMatchObject({ status: 'submitted', answersAmendment: 1 });
+});

@@ -48,6 +48,9 @@ export const FROZEN = 'This tender is awarded: its scenarios and bids are frozen
 /** Evaluation happens on closed tenders; once awarded, scenarios and runs are frozen. */
 export async function evaluableTender(em: EntityManager, user: User, tenderId: string, forChange = false): Promise<Tender> {
   const tender = await findVisibleTender(em, user, tenderId);
+  if (tender.status === 'cancelled') {
+    throw new ConflictError('This tender was cancelled before closing: its bids stay sealed and are never evaluated.');
+  }
   if (isSealed(tender.status)) {
     throw new ConflictError('Award scenarios can be built only after the closing time, when the bids are unsealed.');
   }

@@ -32,6 +32,8 @@ const tender: TenderView = {
   bidValidityDays: 90,
   clarificationsCloseAt: '2026-11-15T12:00:00Z',
   abnormallyLowPercent: 20,
+  amendments: [],
+  cancellation: null,
   regions: [
     { code: 'HVN', name: 'Harrowven depot', forecast: 400 },
     { code: 'QSL', name: 'Quillstead depot', forecast: 300 },
@@ -40,7 +42,7 @@ const tender: TenderView = {
 
 const draft: BidView = {
   id: 'b1', status: 'draft', fixedFee: 500, capacity: null, prices: { HVN: 12.5 }, revision: 0, version: 3,
-  submittedAt: null, digest: null, updatedAt: '2026-11-02T10:00:00Z', document: null,
+  submittedAt: null, digest: null, updatedAt: '2026-11-02T10:00:00Z', document: null, answersAmendment: 0, amendmentNote: null,
 };
 
 describe('totalAtForecast', () => {

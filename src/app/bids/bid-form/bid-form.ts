@@ -55,6 +55,8 @@ export class BidForm {
     const t = this.tender();
     return t.status !== 'open' || hasClosed(t.closesAt, this.now());
   });
+  protected readonly removedList = (prices: Record<string, number>) =>
+    Object.entries(prices).map(([code, price]) => `${code}: ${price}`).join(', ');
   protected readonly live = computed(() => { const status = this.bid()?.status; return !!status && isLiveBid(status); });
   protected readonly statusText = computed(() => {
     const bid = this.bid();

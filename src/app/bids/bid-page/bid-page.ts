@@ -8,6 +8,9 @@ import { ApiError } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { AwardBasisPanel } from '../../tenders/award-basis-panel/award-basis-panel';
 import { localClosingTime, minuteClock, timeLeft } from '../../tenders/closing-time';
+import { AmendmentsPanel } from '../../tenders/amendments-panel/amendments-panel';
+import { CancelTender } from '../../tenders/cancel-tender/cancel-tender';
+import { QuestionsPanel } from '../../tenders/questions-panel/questions-panel';
 import { RegionTable } from '../../tenders/region-table/region-table';
 import { TenderApi } from '../../tenders/tender-api';
 import { TENDER_STATUS_LABELS } from '../../tenders/tender-status';
@@ -18,7 +21,7 @@ import { BidValidity } from '../bid-validity/bid-validity';
 @Component({
   selector: 'app-bid-page',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm, BidValidity, AwardBasisPanel],
+  imports: [RouterLink, MatButtonModule, MatIconModule, RegionTable, BidForm, BidValidity, AwardBasisPanel, QuestionsPanel, AmendmentsPanel, CancelTender],
   templateUrl: './bid-page.html',
   styleUrl: './bid-page.scss',
 })
@@ -37,7 +40,8 @@ export class BidPage {
   protected readonly now = minuteClock();
   protected readonly timeLeft = computed(() => {
     const t = this.tender.value();
-    return t ? timeLeft(t.closesAt, this.now()) : '';
+    // A cancelled tender has no time left, whatever its closing time said.
+    return t && t.status !== 'cancelled' ? timeLeft(t.closesAt, this.now()) : '';
   });
   protected readonly statusLabel = TENDER_STATUS_LABELS;
   protected readonly closingTime = localClosingTime;

@@ -33,6 +33,8 @@ function tender(status: TenderStatus): TenderView {
     bidValidityDays: 90,
     clarificationsCloseAt: '2026-11-15T12:00:00Z',
     abnormallyLowPercent: 20,
+    amendments: [],
+    cancellation: null,
     closesAt: '2026-11-20T12:00:00Z',
     regionCount: 2,
     totalForecast: 7200,

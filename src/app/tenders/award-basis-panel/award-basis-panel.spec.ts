@@ -25,6 +25,8 @@ const tender: TenderView = {
   bidValidityDays: 120,
   clarificationsCloseAt: '2031-06-26T11:00:00.000Z',
   abnormallyLowPercent: 20,
+  amendments: [],
+  cancellation: null,
   regions: [
     { code: 'HVN', name: 'Harrowven depot', forecast: 500 },
     { code: 'QSL', name: 'Quillstead depot', forecast: 750 },

@@ -12,10 +12,13 @@ import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
 import { money } from '../../ui/number-format';
-import { BidTabulation } from '../bid-tabulation/bid-tabulation';
+import { AmendmentsPanel } from '../amendments-panel/amendments-panel';
 import { AwardBasisPanel } from '../award-basis-panel/award-basis-panel';
+import { BidTabulation } from '../bid-tabulation/bid-tabulation';
+import { CancelTender } from '../cancel-tender/cancel-tender';
 import { hasClosed, localClosingTime, minuteClock, timeLeft } from '../closing-time';
 import { InvitationsPanel } from '../invitations-panel/invitations-panel';
+import { QuestionsPanel } from '../questions-panel/questions-panel';
 import { RegionTable } from '../region-table/region-table';
 import { TenderApi } from '../tender-api';
 import { TENDER_STATUS_LABELS } from '../tender-status';
@@ -24,7 +27,7 @@ import { TENDER_STATUS_LABELS } from '../tender-status';
 @Component({
   selector: 'app-tender-detail',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel, QuestionsPanel, AmendmentsPanel, CancelTender],
   templateUrl: './tender-detail.html',
   styleUrl: './tender-detail.scss',
 })
@@ -54,14 +57,15 @@ export class TenderDetail {
     const status = this.tender()?.status;
     return (role === 'buyer' || role === 'compliance') && !!status && !isSealed(status);
   });
-  /** Sealed while draft or open (the server decides; a passed closing time is closed at the next load). */
+  /** Sealed while draft or open, and for ever once cancelled (the server decides; a passed closing time is closed at the next load). */
   protected readonly sealed = computed(() => {
     const t = this.tender();
     return !t || isSealed(t.status);
   });
   protected readonly timeLeft = computed(() => {
     const t = this.tender();
-    return t ? timeLeft(t.closesAt, this.now()) : '';
+    // A cancelled tender has no time left, whatever its closing time said.
+    return t && t.status !== 'cancelled' ? timeLeft(t.closesAt, this.now()) : '';
   });
   protected readonly pastClosing = computed(() => {
     const t = this.tender();

@@ -28,6 +28,8 @@ const draft: TenderView = {
   clarificationsCloseAt: '2031-06-26T11:00:00.000Z',
   abnormallyLowPercent: 25,
   estimatedValue: 98000,
+  amendments: [],
+  cancellation: null,
   regions: [
     { code: 'HVN', name: 'Harrowven depot', forecast: 500 },
     { code: 'QSL', name: 'Quillstead depot', forecast: 750 },

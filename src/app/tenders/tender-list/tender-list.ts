@@ -94,7 +94,8 @@ export class TenderList {
   }
 
   protected timeLeft(t: TenderSummary): string {
-    return timeLeft(t.closesAt, this.now());
+    // A cancelled tender never closes: no countdown.
+    return t.status === 'cancelled' ? 'cancelled before closing' : timeLeft(t.closesAt, this.now());
   }
 
   protected statusText(t: TenderSummary): string {

@@ -1,0 +1,110 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { FormControl, FormGroup, ReactiveFormsModule, type FormGroupDirective } from '@angular/forms';
+import { MatButtonModule } from '@angular/material/button';
+import { MatFormFieldModule } from '@angular/material/form-field';
+import { MatIconModule } from '@angular/material/icon';
+import { MatInputModule } from '@angular/material/input';
+import { answerInputSchema, questionInputSchema, type QuestionView } from '@shared/procedure';
+import type { TenderView } from '@shared/tenders';
+import { Auth } from '../../core/auth/auth';
+import { ApiError } from '../../core/http/api-error';
+import { fieldMessage, zodValidator } from '../../ui/zod-validator';
+import { localClosingTime, minuteClock } from '../closing-time';
+import { ProcedureApi } from '../procedure-api';
+
+/**
+ * Clarifications of a tender. Vendors: the published questions and answers (numbered, no asker),
+ * their own questions awaiting an answer, and a form to ask until the clarification deadline. Buyer,
+ * compliance and admin: every question with who asked; the buyer answers while the tender is open.
+ */
+@Component({
+  selector: 'app-questions-panel',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule],
+  templateUrl: './questions-panel.html',
+  styleUrl: './questions-panel.scss',
+})
+export class QuestionsPanel {
+  private readonly api = inject(ProcedureApi);
+  private readonly auth = inject(Auth);
+  private readonly destroyRef = inject(DestroyRef);
+
+  readonly tender = input.required<TenderView>();
+
+  protected readonly questions = rxResource({ params: () => this.tender().id, stream: ({ params }) => this.api.questions(params) });
+  protected readonly published = computed(() => (this.questions.value() ?? []).filter((q) => q.status === 'answered'));
+  protected readonly waiting = computed(() => (this.questions.value() ?? []).filter((q) => q.status === 'asked'));
+  protected readonly isVendor = computed(() => this.auth.user()?.role === 'vendor');
+  protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
+  private readonly now = minuteClock();
+  protected readonly deadline = computed(() => localClosingTime(this.tender().clarificationsCloseAt));
+  protected readonly canAsk = computed(() =>
+    this.isVendor() && this.tender().status === 'open' && new Date(this.tender().clarificationsCloseAt).getTime() > this.now());
+  protected readonly canAnswer = computed(() => this.isBuyer() && this.tender().status === 'open');
+
+  protected readonly question = new FormControl('', { nonNullable: true, validators: zodValidator(questionInputSchema.shape.text) });
+  protected readonly askForm = new FormGroup({ text: this.question });
+  /** One answer draft (a form of its own) per question id. */
+  private readonly answers = new Map<string, FormGroup<{ text: FormControl<string> }>>();
+  protected readonly busy = signal(false);
+  protected readonly failure = signal<string | null>(null);
+  protected readonly status = signal('');
+  protected readonly fieldMessage = fieldMessage;
+  protected readonly when = (iso: string) => new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' }).format(new Date(iso));
+
+  protected answerForm(q: QuestionView): FormGroup<{ text: FormControl<string> }> {
+    let form = this.answers.get(q.id);
+    if (!form) {
+      form = new FormGroup({ text: new FormControl('', { nonNullable: true, validators: zodValidator(answerInputSchema.shape.text) }) });
+      this.answers.set(q.id, form);
+    }
+    return form;
+  }
+
+  protected ask(directive: FormGroupDirective): void {
+    if (this.busy()) return;
+    if (this.question.invalid) {
+      this.question.markAsTouched();
+      return;
+    }
+    this.busy.set(true);
+    this.failure.set(null);
+    this.api.ask(this.tender().id, this.question.value).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
+      next: () => {
+        this.busy.set(false);
+        // Through the directive: a plain reset would leave the form "submitted", its field in error.
+        directive.resetForm();
+        this.status.set('Your question was sent to the buyer. Its answer will be published to every invited vendor.');
+        this.questions.reload();
+      },
+      error: (error: unknown) => this.fail(error, 'The question could not be sent.'),
+    });
+  }
+
+  protected answer(q: QuestionView): void {
+    const control = this.answerForm(q).controls.text;
+    if (this.busy()) return;
+    if (control.invalid) {
+      control.markAsTouched();
+      return;
+    }
+    this.busy.set(true);
+    this.failure.set(null);
+    this.api.answer(q.id, control.value).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
+      next: (answered) => {
+        this.busy.set(false);
+        this.answers.delete(q.id);
+        this.status.set(`Clarification ${answered.number} is published and e-mailed to every invited vendor.`);
+        this.questions.reload();
+      },
+      error: (error: unknown) => this.fail(error, 'The answer could not be published.'),
+    });
+  }
+
+  private fail(error: unknown, fallback: string): void {
+    this.busy.set(false);
+    this.failure.set(error instanceof ApiError ? error.userMessage : fallback);
+    this.questions.reload();
+  }
+}
