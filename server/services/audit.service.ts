@@ -1,7 +1,7 @@
-import { SEALED_TENDER_STATUSES } from '@shared/tenders';
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
+import { SEALED_TENDER_STATUSES } from '@shared/tenders';
 import { AuditEntry, Tender, type User } from '../entities';
 import { csvCell } from '../workbooks/spreadsheet-text';
 
