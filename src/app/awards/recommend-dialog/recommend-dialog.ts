@@ -1,5 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
@@ -7,10 +6,10 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { recommendationInputSchema, type RecommendationView } from '@shared/evaluation';
-import { ApiError } from '../../core/http/api-error';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { AwardApi } from '../award-api';
 import { AwardCaution } from '../award-caution';
+import { formSubmission } from '../../ui/form-submission';
 
 export interface RecommendDialogData {
   tenderId: string;
@@ -58,7 +57,6 @@ export interface RecommendDialogData {
 export class RecommendDialog {
   private readonly api = inject(AwardApi);
   private readonly dialogRef = inject<MatDialogRef<RecommendDialog, RecommendationView>>(MatDialogRef);
-  private readonly destroyRef = inject(DestroyRef);
   protected readonly data = inject<RecommendDialogData>(MAT_DIALOG_DATA);
   protected readonly justification = new FormControl('', {
     nonNullable: true,
@@ -69,30 +67,16 @@ export class RecommendDialog {
    * ngSubmit, and the browser would post the page itself (a reload that closes the dialog unsaved).
    */
   protected readonly form = new FormGroup({ justification: this.justification });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  private readonly submission = formSubmission(this.form);
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
   protected submit(): void {
-    if (this.busy()) return;
-    if (this.justification.invalid) {
-      this.justification.markAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api
-      .recommend(this.data.tenderId, this.data.runId, this.justification.value.trim())
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (recommendation) => this.dialogRef.close(recommendation),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (!(error instanceof ApiError)) throw error;
-          const justification = error.fieldErrors.find((e) => e.field === 'justification');
-          if (justification) this.justification.setErrors({ server: justification.message });
-          this.failure.set(error.userMessage);
-        },
-      });
+    this.submission.send(
+      () => this.api.recommend(this.data.tenderId, this.data.runId, this.justification.value.trim()),
+      (recommendation) => this.dialogRef.close(recommendation),
+    );
   }
+
 }

@@ -1,5 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
@@ -12,10 +11,9 @@ import {
   EXCLUSION_GROUND_LABELS, EXCLUSION_GROUNDS, complianceInputSchema, type ComplianceDecision, type ExclusionGround,
 } from '@shared/compliance';
 import type { TabulatedBid } from '@shared/tenders';
-import { ApiError } from '../../core/http/api-error';
-import { applyServerErrors } from '../../ui/server-errors';
 import { fieldMessage, zodFieldOf } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
+import { formSubmission } from '../../ui/form-submission';
 
 export interface BidCheckDialogData {
   tenderId: string;
@@ -90,7 +88,6 @@ export interface BidCheckDialogData {
 export class BidCheckDialog {
   private readonly api = inject(TenderApi);
   private readonly dialogRef = inject<MatDialogRef<BidCheckDialog, TabulatedBid>>(MatDialogRef);
-  private readonly destroyRef = inject(DestroyRef);
   protected readonly data = inject<BidCheckDialogData>(MAT_DIALOG_DATA);
   protected readonly grounds = EXCLUSION_GROUNDS;
   protected readonly groundLabels = EXCLUSION_GROUND_LABELS;
@@ -99,8 +96,9 @@ export class BidCheckDialog {
     ground: new FormControl<ExclusionGround | null>(this.data.bid.compliance.ground, { validators: zodFieldOf(complianceInputSchema, 'ground') }),
     note: new FormControl(this.data.bid.compliance.note ?? '', { nonNullable: true, validators: zodFieldOf(complianceInputSchema, 'note') }),
   });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  private readonly submission = formSubmission(this.form);
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
   protected decisionChanged(): void {
@@ -109,27 +107,11 @@ export class BidCheckDialog {
   }
 
   protected submit(): void {
-    if (this.busy()) return;
-    this.form.controls.ground.updateValueAndValidity();
-    this.form.controls.note.updateValueAndValidity();
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
     const value = this.form.getRawValue();
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api
-      .checkBid(this.data.tenderId, this.data.bid.id, { decision: value.decision, ground: value.decision === 'excluded' ? value.ground : null, note: value.note.trim() })
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (bid) => this.dialogRef.close(bid),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (!(error instanceof ApiError)) throw error;
-          const unplaced = applyServerErrors(this.form, error.fieldErrors);
-          this.failure.set([error.userMessage, ...unplaced].join(' '));
-        },
-      });
+    this.submission.send(
+      () => this.api.checkBid(this.data.tenderId, this.data.bid.id, { decision: value.decision, ground: value.decision === 'excluded' ? value.ground : null, note: value.note.trim() }),
+      (bid) => this.dialogRef.close(bid),
+    );
   }
+
 }

@@ -1,5 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
@@ -9,10 +8,9 @@ import { MatInputModule } from '@angular/material/input';
 import { MatRadioModule } from '@angular/material/radio';
 import { abnormallyLowInputSchema } from '@shared/compliance';
 import type { TabulatedBid } from '@shared/tenders';
-import { ApiError } from '../../core/http/api-error';
-import { applyServerErrors } from '../../ui/server-errors';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
+import { formSubmission } from '../../ui/form-submission';
 
 export interface LowPriceDialogData {
   tenderId: string;
@@ -97,7 +95,6 @@ function localInput(date: Date): string {
 export class LowPriceDialog {
   private readonly api = inject(TenderApi);
   private readonly dialogRef = inject<MatDialogRef<LowPriceDialog, TabulatedBid>>(MatDialogRef);
-  private readonly destroyRef = inject(DestroyRef);
   protected readonly data = inject<LowPriceDialogData>(MAT_DIALOG_DATA);
   private readonly previous = this.data.bid.abnormallyLow;
   protected readonly form = new FormGroup({
@@ -108,32 +105,19 @@ export class LowPriceDialog {
     accepted: new FormControl<boolean>(this.previous?.accepted ?? true, { nonNullable: true }),
     note: new FormControl(this.previous?.note ?? '', { nonNullable: true, validators: zodValidator(abnormallyLowInputSchema.shape.note) }),
   });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  private readonly submission = formSubmission(this.form);
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
   protected submit(): void {
-    if (this.busy()) return;
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
     const value = this.form.getRawValue();
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api
-      .decideLowPrice(this.data.tenderId, this.data.bid.id, {
+    this.submission.send(
+      () => this.api.decideLowPrice(this.data.tenderId, this.data.bid.id, {
         explanationRequestedAt: new Date(value.explanationRequestedAt).toISOString(), accepted: value.accepted, note: value.note.trim(),
-      })
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (bid) => this.dialogRef.close(bid),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (!(error instanceof ApiError)) throw error;
-          const unplaced = applyServerErrors(this.form, error.fieldErrors);
-          this.failure.set([error.userMessage, ...unplaced].join(' '));
-        },
-      });
+      }),
+      (bid) => this.dialogRef.close(bid),
+    );
   }
+
 }

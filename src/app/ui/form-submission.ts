@@ -1,0 +1,52 @@
+import { DestroyRef, inject, signal } from '@angular/core';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import type { FormGroup } from '@angular/forms';
+import type { Observable } from 'rxjs';
+import { ApiError } from '../core/http/api-error';
+import { applyServerErrors } from './server-errors';
+
+/**
+ * The one way a form sends what it holds: nothing while it is already sending or while a field is
+ * invalid (every field then shows its message); `busy` while the request is in flight; on a
+ * refusal, the server's field errors under their fields and the rest, with the problem's own
+ * message, in `failure` for the form-level line. Create it in a field initialiser (it needs the
+ * component's injection context): `protected readonly submission = formSubmission(this.form);`.
+ */
+export class FormSubmission {
+  readonly busy = signal(false);
+  readonly failure = signal<string | null>(null);
+  private readonly destroyRef = inject(DestroyRef);
+
+  constructor(private readonly form: FormGroup) {}
+
+  /** Sends `request()` if the form is valid; `done` gets the answer. Returns whether it sent. */
+  send<T>(request: () => Observable<T>, done: (answer: T) => void): boolean {
+    if (this.busy()) return false;
+    this.form.updateValueAndValidity();
+    if (this.form.invalid) {
+      this.form.markAllAsTouched();
+      return false;
+    }
+    this.busy.set(true);
+    this.failure.set(null);
+    request()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (answer) => {
+          this.busy.set(false);
+          done(answer);
+        },
+        error: (error: unknown) => {
+          this.busy.set(false);
+          if (!(error instanceof ApiError)) throw error;
+          const unplaced = applyServerErrors(this.form, error.fieldErrors);
+          this.failure.set([error.userMessage, ...unplaced].join(' '));
+        },
+      });
+    return true;
+  }
+}
+
+export function formSubmission(form: FormGroup): FormSubmission {
+  return new FormSubmission(form);
+}
