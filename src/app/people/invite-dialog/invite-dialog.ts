@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, linkedSignal, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, linkedSignal } from '@angular/core';
 import { rxResource, takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
 import { FormControl, NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -9,11 +9,10 @@ import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
 import { ROLES, ROLE_LABELS, type Role } from '@shared/auth';
 import { inviteUserSchema, type PersonView, type VendorOrganisationView } from '@shared/people';
-import { ApiError } from '../../core/http/api-error';
-import { applyServerErrors } from '../../ui/server-errors';
 import { fieldMessage, zodFieldOf, zodValidator } from '../../ui/zod-validator';
 import { OrganisationDialog } from '../organisation-dialog/organisation-dialog';
 import { PeopleApi } from '../people-api';
+import { formSubmission } from '../../ui/form-submission';
 
 const fields = inviteUserSchema.shape;
 
@@ -60,8 +59,9 @@ export class InviteDialog {
     [...(this.loadedOrganisations.value() ?? [])].sort(byName),
   );
   protected readonly organisationsFailed = computed(() => this.loadedOrganisations.error() !== undefined);
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  private readonly submission = formSubmission(this.form);
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
   constructor() {
@@ -91,27 +91,14 @@ export class InviteDialog {
   }
 
   protected submit(): void {
-    if (this.busy()) return;
     this.form.controls.vendorOrganisationId.updateValueAndValidity();
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
     const parsed = inviteUserSchema.safeParse(this.form.getRawValue());
-    if (!parsed.success) return;
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api
-      .invite(parsed.data)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (person) => this.dialogRef.close(person),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (!(error instanceof ApiError)) throw error;
-          const unplaced = applyServerErrors(this.form, error.fieldErrors);
-          this.failure.set([error.userMessage, ...unplaced].join(' '));
-        },
-      });
+    // The form's own validators say what is wrong, field by field; the schema is the last word.
+    if (!parsed.success && this.form.valid) return;
+    this.submission.send(
+      () => this.api.invite(inviteUserSchema.parse(this.form.getRawValue())),
+      (person) => this.dialogRef.close(person),
+    );
   }
+
 }

@@ -1,5 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
@@ -8,10 +7,9 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { vendorOrganisationSchema, type VendorOrganisationView } from '@shared/people';
-import { ApiError } from '../../core/http/api-error';
-import { applyServerErrors } from '../../ui/server-errors';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { PeopleApi } from '../people-api';
+import { formSubmission } from '../../ui/form-submission';
 
 const fields = vendorOrganisationSchema.shape;
 
@@ -33,7 +31,6 @@ const fields = vendorOrganisationSchema.shape;
 export class OrganisationDialog {
   private readonly api = inject(PeopleApi);
   private readonly dialogRef = inject<MatDialogRef<OrganisationDialog, VendorOrganisationView>>(MatDialogRef);
-  private readonly destroyRef = inject(DestroyRef);
 
   protected readonly form = inject(NonNullableFormBuilder).group({
     name: ['', zodValidator(fields.name)],
@@ -41,29 +38,16 @@ export class OrganisationDialog {
     contactEmail: ['', zodValidator(fields.contactEmail)],
     sme: [false],
   });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  private readonly submission = formSubmission(this.form);
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
   protected submit(): void {
-    if (this.busy()) return;
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api
-      .addOrganisation(vendorOrganisationSchema.parse(this.form.getRawValue()))
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (organisation) => this.dialogRef.close(organisation),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (!(error instanceof ApiError)) throw error;
-          const unplaced = applyServerErrors(this.form, error.fieldErrors);
-          this.failure.set([error.userMessage, ...unplaced].join(' '));
-        },
-      });
+    this.submission.send(
+      () => this.api.addOrganisation(vendorOrganisationSchema.parse(this.form.getRawValue())),
+      (organisation) => this.dialogRef.close(organisation),
+    );
   }
+
 }

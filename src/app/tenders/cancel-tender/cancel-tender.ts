@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, output, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, output } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -9,9 +9,9 @@ import { MatInputModule } from '@angular/material/input';
 import { cancelInputSchema } from '@shared/procedure';
 import type { TenderView } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
-import { ApiError } from '../../core/http/api-error';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { ProcedureApi } from '../procedure-api';
+import { formSubmission } from '../../ui/form-submission';
 
 /** Asks for the reason and names what cancelling does; closes with the cancelled tender. */
 @Component({
@@ -67,26 +67,18 @@ export class CancelTenderDialog {
   private readonly destroyRef = inject(DestroyRef);
   protected readonly reason = new FormControl('', { nonNullable: true, validators: zodValidator(cancelInputSchema.shape.reason) });
   protected readonly form = new FormGroup({ reason: this.reason });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  private readonly submission = formSubmission(this.form);
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
   protected submit(): void {
-    if (this.busy()) return;
-    if (this.reason.invalid) {
-      this.reason.markAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api.cancel(this.tender.id, this.reason.value).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
-      next: (tender) => this.ref.close(tender),
-      error: (error: unknown) => {
-        this.busy.set(false);
-        this.failure.set(error instanceof ApiError ? error.userMessage : 'The tender could not be cancelled.');
-      },
-    });
+    this.submission.send(
+      () => this.api.cancel(this.tender.id, this.reason.value),
+      (tender) => this.ref.close(tender),
+    );
   }
+
 }
 
 /** The buyer's "Cancel tender…" button (draft or open tenders) and, once cancelled, the notice with the reason. */
