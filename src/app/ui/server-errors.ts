@@ -1,4 +1,5 @@
 import { FormGroup } from '@angular/forms';
+import { controlPath } from '@shared/field-path';
 import type { FieldProblem } from '../core/http/api-error';
 
 /**
@@ -10,7 +11,8 @@ import type { FieldProblem } from '../core/http/api-error';
 export function applyServerErrors(form: FormGroup, problems: readonly FieldProblem[]): string[] {
   const unplaced: string[] = [];
   for (const problem of problems) {
-    const control = form.get(problem.field);
+    // The server names fields as `regions[1].forecast`; the form's path is `regions.1.forecast`.
+    const control = problem.field ? form.get(controlPath(problem.field)) : null;
     if (control) {
       control.setErrors({ ...control.errors, server: problem.message });
       control.markAsTouched();

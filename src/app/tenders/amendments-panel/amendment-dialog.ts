@@ -1,5 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
 import { FormArray, NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
@@ -9,11 +8,11 @@ import { MatInputModule } from '@angular/material/input';
 import type { RegionInput } from '@shared/bids';
 import { amendmentInputSchema, type AmendmentInput } from '@shared/procedure';
 import type { TenderView } from '@shared/tenders';
-import { ApiError } from '../../core/http/api-error';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { localClosingTime } from '../closing-time';
 import { ProcedureApi } from '../procedure-api';
 import { regionGroup, zonedInstant, zonedParts, type RegionGroup } from '../tender-editor/tender-form';
+import { formSubmission } from '../../ui/form-submission';
 
 /** The buyer's "Issue amendment" form: reason, a later closing time, description, regions and forecasts. */
 @Component({
@@ -28,7 +27,6 @@ export class AmendmentDialog {
   private readonly api = inject(ProcedureApi);
   private readonly fb = inject(NonNullableFormBuilder);
   private readonly ref = inject<MatDialogRef<AmendmentDialog, number>>(MatDialogRef);
-  private readonly destroyRef = inject(DestroyRef);
 
   /** Closing times are entered and shown in the procedure's time zone. */
   private readonly current = zonedParts(this.tender.closesAt, this.tender.timeZone);
@@ -39,8 +37,9 @@ export class AmendmentDialog {
     description: [this.tender.description],
     regions: this.fb.array<RegionGroup>(this.tender.regions.map((r) => regionGroup(this.fb, r))),
   });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  private readonly submission = formSubmission(this.form);
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
   protected readonly closingTime = localClosingTime(this.tender.closesAt, this.tender.timeZone);
 
@@ -71,20 +70,7 @@ export class AmendmentDialog {
   }
 
   protected submit(): void {
-    if (this.busy()) return;
-    this.failure.set(null);
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.api.amend(this.tender.id, this.amendment()).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
-      next: ({ number }) => this.ref.close(number),
-      error: (error: unknown) => {
-        this.busy.set(false);
-        const problem = error instanceof ApiError ? error : null;
-        this.failure.set(problem?.fieldErrors.length ? problem.fieldErrors.map((e) => e.message).join(' ') : problem?.userMessage ?? 'The amendment could not be issued.');
-      },
-    });
+    this.submission.send(() => this.api.amend(this.tender.id, this.amendment()), ({ number }) => this.ref.close(number));
   }
+
 }
