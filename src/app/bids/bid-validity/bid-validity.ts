@@ -57,7 +57,7 @@ export class BidValidity {
   protected readonly busy = signal(false);
   protected readonly status = signal('');
   protected time(iso: string): string {
-    return localClosingTime(iso);
+    return localClosingTime(iso, this.tender().timeZone);
   }
 
   protected extend(): void {
@@ -68,7 +68,7 @@ export class BidValidity {
       .subscribe({
         next: (answer) => {
           this.busy.set(false);
-          this.status.set(`Recorded: your bid stays valid until ${localClosingTime(answer.extendedUntil)}.`);
+          this.status.set(`Recorded: your bid stays valid until ${localClosingTime(answer.extendedUntil, this.tender().timeZone)}.`);
           this.bid.reload();
         },
         error: (error: unknown) => {

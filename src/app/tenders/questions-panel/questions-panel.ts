@@ -38,7 +38,7 @@ export class QuestionsPanel {
   protected readonly isVendor = computed(() => this.auth.user()?.role === 'vendor');
   protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
   private readonly now = minuteClock();
-  protected readonly deadline = computed(() => localClosingTime(this.tender().clarificationsCloseAt));
+  protected readonly deadline = computed(() => localClosingTime(this.tender().clarificationsCloseAt, this.tender().timeZone));
   protected readonly canAsk = computed(() =>
     this.isVendor() && this.tender().status === 'open' && new Date(this.tender().clarificationsCloseAt).getTime() > this.now());
   protected readonly canAnswer = computed(() => this.isBuyer() && this.tender().status === 'open');
