@@ -7,6 +7,7 @@ import { describeChanges } from '@shared/procedure';
 import type { TenderView } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
 import { AmendmentDialog } from './amendment-dialog';
+import { localClosingTime } from '../closing-time';
 
 /** The tender's amendment notices, in order; the buyer of an open tender issues the next one here. */
 @Component({
@@ -28,7 +29,8 @@ export class AmendmentsPanel {
   protected readonly canAmend = computed(() => this.auth.user()?.role === 'buyer' && this.tender().status === 'open');
   protected readonly amendments = computed(() =>
     this.tender().amendments.map((a) => ({ ...a, lines: describeChanges(a.changes, this.tender().unit) })).reverse());
-  protected readonly when = (iso: string) => new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' }).format(new Date(iso));
+  /** Times of the procedure are shown in its time zone, named. */
+  protected readonly when = (iso: string) => localClosingTime(iso, this.tender().timeZone);
 
   protected issue(): void {
     this.dialog

@@ -51,7 +51,8 @@ export class QuestionsPanel {
   protected readonly failure = signal<string | null>(null);
   protected readonly status = signal('');
   protected readonly fieldMessage = fieldMessage;
-  protected readonly when = (iso: string) => new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' }).format(new Date(iso));
+  /** Times of the procedure are shown in its time zone, named. */
+  protected readonly when = (iso: string) => localClosingTime(iso, this.tender().timeZone);
 
   protected answerForm(q: QuestionView): FormGroup<{ text: FormControl<string> }> {
     let form = this.answers.get(q.id);
