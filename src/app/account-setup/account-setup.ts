@@ -15,6 +15,7 @@ import { Logo } from '../ui/logo';
 import { applyServerErrors } from '../ui/server-errors';
 import { fieldMessage, zodValidator } from '../ui/zod-validator';
 import { AccountSetupApi } from './account-setup-api';
+import { apiProblem, loadErrorMessage } from '../ui/load-error';
 
 /** A typing slip is caught here; the server only ever sees one password. */
 function sameAsPassword(control: AbstractControl): ValidationErrors | null {
@@ -69,10 +70,10 @@ export class AccountSetup {
 
   protected invitationProblem(): string {
     const error = this.invitation.error();
-    if (error instanceof ApiError && error.status === 404) {
+    if (apiProblem(error)?.status === 404) {
       return 'This link is unknown, already used or expired. Ask your administrator to send a new invitation.';
     }
-    return error instanceof ApiError ? error.userMessage : 'The invitation could not be loaded.';
+    return loadErrorMessage(error, 'The invitation could not be loaded.') ?? '';
   }
 
   protected submit(): void {

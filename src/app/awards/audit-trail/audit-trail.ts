@@ -11,6 +11,7 @@ import { ROLE_LABELS, type Role } from '@shared/roles';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { localDateTime, shortDigest } from '../award-format';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** tenders/:id/evaluation/audit — every state change and decision, hash-chained, with a check of the chain. */
 @Component({
@@ -27,12 +28,7 @@ export class AuditTrail {
   readonly id = input.required<string>();
 
   protected readonly entries = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.audit(params) });
-  protected readonly loadError = computed(() => {
-    const error = this.entries.error();
-    if (!error) return null;
-    const cause = error instanceof ApiError ? error : (error as { cause?: unknown }).cause;
-    return cause instanceof ApiError ? cause.userMessage : 'The audit trail could not be loaded.';
-  });
+  protected readonly loadError = computed(() => loadErrorMessage(this.entries.error(), 'The audit trail could not be loaded.'));
   protected readonly columns = ['seq', 'at', 'actor', 'action', 'subject', 'digests'];
   protected readonly verification = signal<AuditVerification | null>(null);
   protected readonly verifyError = signal<string | null>(null);

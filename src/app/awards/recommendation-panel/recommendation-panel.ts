@@ -15,10 +15,10 @@ import { AwardApi } from '../award-api';
 import { AwardCaution } from '../award-caution';
 import { localDateTime, money } from '../award-format';
 import { RECOMMENDATION_STATUS_LABELS } from '../run-status';
+import { loadErrorMessage } from '../../ui/load-error';
 
 function message(error: unknown, fallback: string): string {
-  const cause = error instanceof ApiError ? error : (error as { cause?: unknown } | undefined)?.cause;
-  return cause instanceof ApiError ? cause.userMessage : fallback;
+  return loadErrorMessage(error, fallback) ?? fallback;
 }
 
 /** tenders/:id/evaluation/recommendation — the recommended award and the compliance decision on it. */

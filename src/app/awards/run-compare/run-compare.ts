@@ -6,11 +6,11 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { ComparedRun, Comparison } from '@shared/evaluation';
 import { of } from 'rxjs';
-import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { AwardCaution } from '../award-caution';
 import { fractionPercent, money, percent } from '../award-format';
 import { RUN_STATUS_LABELS } from '../run-status';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** One line of the side-by-side table: a measure, written for each run. */
 interface Measure {
@@ -68,12 +68,7 @@ export class RunCompare {
     stream: ({ params }) => (params.runIds.length < 2 ? of(null) : this.api.compare(params.tenderId, params.runIds)),
   });
   protected readonly tooFew = computed(() => this.runIds().length < 2);
-  protected readonly error = computed(() => {
-    const error = this.comparison.error();
-    if (!error) return null;
-    const cause = (error as { cause?: unknown }).cause ?? error;
-    return cause instanceof ApiError ? cause.userMessage : 'The comparison could not be loaded.';
-  });
+  protected readonly error = computed(() => loadErrorMessage(this.comparison.error(), 'The comparison could not be loaded.'));
   protected readonly measures = MEASURES;
   protected hasWhatIf(c: Comparison): boolean {
     return c.runs.some((r) => !r.awardable);

@@ -6,12 +6,12 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import { Auth } from '../../core/auth/auth';
-import { ApiError } from '../../core/http/api-error';
 import { LetterFrame } from '../letter-frame/letter-frame';
 import { LetterPrint } from '../letter-print/letter-print';
 import { NoticeApi } from '../notice-api';
 import { NOTICE_KIND_LABELS } from '../notice-labels';
 import { NoticeStatusBadge } from '../notice-status-badge';
+import { apiProblem, loadErrorMessage } from '../../ui/load-error';
 
 /**
  * /notices/:noticeId — one letter. On screen it sits in a sandboxed frame; on paper LetterPrint
@@ -45,7 +45,7 @@ export class NoticeReader {
 
   protected problem(): string {
     const error = this.notice.error();
-    if (error instanceof ApiError && error.status === 404) return 'There is no such notice, or it is not addressed to you.';
-    return error instanceof ApiError ? error.userMessage : 'The notice could not be loaded.';
+    if (apiProblem(error)?.status === 404) return 'There is no such notice, or it is not addressed to you.';
+    return loadErrorMessage(error, 'The notice could not be loaded.') ?? '';
   }
 }

@@ -10,6 +10,7 @@ import { ApiError } from '../../core/http/api-error';
 import { switchMap } from 'rxjs';
 import { type ConfirmData, whenConfirmed } from '../../ui/confirm-dialog';
 import { OrganisationApi } from '../organisation-api';
+import { loadErrorMessage } from '../../ui/load-error';
 
 type Member = MemberView['people'][number];
 
@@ -33,12 +34,7 @@ export class Members {
   private readonly destroyRef = inject(DestroyRef);
 
   protected readonly view = rxResource({ stream: () => this.api.members() });
-  protected readonly loadError = computed(() => {
-    const error = this.view.error();
-    if (!error) return null;
-    const cause = error instanceof ApiError ? error : (error as { cause?: unknown }).cause;
-    return cause instanceof ApiError ? cause.userMessage : 'Your organisation could not be loaded.';
-  });
+  protected readonly loadError = computed(() => loadErrorMessage(this.view.error(), 'Your organisation could not be loaded.'));
   protected readonly pending = computed(() => (this.view.value()?.people ?? []).filter((p) => p.membership === 'pending'));
   protected readonly columns = ['name', 'email', 'state'];
   protected readonly status = signal('');

@@ -8,8 +8,8 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import { map } from 'rxjs';
-import { ApiError } from '../../core/http/api-error';
 import { OutboxApi } from '../outbox-api';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** /outbox — every e-mail Tendara sent, newest first. */
 @Component({
@@ -30,7 +30,6 @@ export class OutboxList {
   protected readonly columns = computed(() => (this.narrow() ? ['subject'] : ['date', 'to', 'subject']));
 
   protected problem(): string {
-    const error = this.messages.error();
-    return error instanceof ApiError ? error.userMessage : 'The outbox could not be loaded.';
+    return loadErrorMessage(this.messages.error(), 'The outbox could not be loaded.') ?? '';
   }
 }

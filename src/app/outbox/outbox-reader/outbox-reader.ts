@@ -6,8 +6,8 @@ import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { DomSanitizer, SafeHtml } from '@angular/platform-browser';
 import { RouterLink } from '@angular/router';
-import { ApiError } from '../../core/http/api-error';
 import { OutboxApi } from '../outbox-api';
+import { apiProblem, loadErrorMessage } from '../../ui/load-error';
 
 /**
  * Fetches are refused inside the message (no remote images, fonts or tracking pixels); inline
@@ -54,7 +54,7 @@ export class OutboxReader {
 
   protected problem(): string {
     const error = this.message.error();
-    if (error instanceof ApiError && error.status === 404) return 'There is no such message in the outbox.';
-    return error instanceof ApiError ? error.userMessage : 'The message could not be loaded.';
+    if (apiProblem(error)?.status === 404) return 'There is no such message in the outbox.';
+    return loadErrorMessage(error, 'The message could not be loaded.') ?? '';
   }
 }

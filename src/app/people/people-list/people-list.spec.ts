@@ -81,6 +81,8 @@ describe('PeopleList', () => {
     fixture = TestBed.createComponent(PeopleList);
     loader = TestbedHarnessEnvironment.loader(fixture);
     documentLoader = TestbedHarnessEnvironment.documentRootLoader(fixture);
+    // The list is a resource: it asks once the component is first checked.
+    fixture.detectChanges();
     http.expectOne({ method: 'GET', url: '/api/users' }).flush(people);
     await fixture.whenStable();
   });

@@ -9,7 +9,7 @@ import {
   viewChild,
 } from '@angular/core';
 import { BreakpointObserver } from '@angular/cdk/layout';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { rxResource, takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -30,6 +30,7 @@ import { AdminAudit } from '../admin-audit/admin-audit';
 import { InviteDialog } from '../invite-dialog/invite-dialog';
 import { PeopleApi } from '../people-api';
 import { STATUS_LABELS, personStatus } from '../person-status';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** The text a row is sorted and filtered by, per column. */
 function cellText(person: PersonView, column: string): string {
@@ -91,13 +92,14 @@ export class PeopleList {
       : ['name', 'email', 'role', 'organisation', 'status', 'actions'],
   );
   protected readonly people = new MatTableDataSource<PersonView>([]);
-  protected readonly loading = signal(true);
-  protected readonly loadError = signal<string | null>(null);
+  private readonly list = rxResource({ stream: () => this.api.list() });
+  protected readonly loading = this.list.isLoading;
+  protected readonly loadError = computed(() => loadErrorMessage(this.list.error(), 'People could not be loaded.'));
   /** Announced politely after each action ("Invitation sent to …"). */
   protected readonly status = signal('');
   protected readonly filter = signal('');
   private readonly normalisedFilter = computed(() => this.filter().trim().toLocaleLowerCase());
-  private readonly rows = signal<PersonView[]>([]);
+  private readonly rows = computed(() => (this.list.hasValue() ? this.list.value() : []));
   protected readonly count = computed(() => this.rows().length);
   protected readonly shown = computed(() => {
     const filter = this.normalisedFilter();
@@ -121,7 +123,6 @@ export class PeopleList {
       this.people.filter = this.normalisedFilter();
       this.people.paginator?.firstPage();
     });
-    this.load();
   }
 
   protected roleText(person: PersonView): string {
@@ -137,22 +138,9 @@ export class PeopleList {
   }
 
   protected load(): void {
-    this.loading.set(true);
-    this.loadError.set(null);
-    this.api
-      .list()
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (people) => {
-          this.rows.set(people);
-          this.loading.set(false);
-        },
-        error: (error: unknown) => {
-          this.loading.set(false);
-          this.loadError.set(error instanceof ApiError ? error.userMessage : 'People could not be loaded.');
-        },
-      });
+    this.list.reload();
   }
+
 
   protected invite(): void {
     this.dialog
@@ -161,7 +149,7 @@ export class PeopleList {
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe((person) => {
         if (!person) return;
-        this.rows.update((rows) => [...rows, person]);
+        this.list.update((rows) => [...(rows ?? []), person]);
         this.audit()?.reload();
         this.status.set(
           person.membership === 'pending'
@@ -233,7 +221,7 @@ export class PeopleList {
       .pipe(switchMap(action), takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: (updated) => {
-          this.rows.update((rows) => rows.map((row) => (row.id === updated.id ? updated : row)));
+          this.list.update((rows) => (rows ?? []).map((row) => (row.id === updated.id ? updated : row)));
           this.audit()?.reload();
           this.status.set(done);
         },

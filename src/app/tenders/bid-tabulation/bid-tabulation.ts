@@ -10,12 +10,12 @@ import { byCode, recordByCode } from '@shared/bids';
 import { EXCLUSION_GROUND_LABELS } from '@shared/compliance';
 import type { TabulatedBid, TenderView } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
-import { ApiError } from '../../core/http/api-error';
 import { BidCheckDialog, type BidCheckDialogData } from '../bid-check-dialog/bid-check-dialog';
 import { LowPriceDialog, type LowPriceDialogData } from '../low-price-dialog/low-price-dialog';
 import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
 import { TenderApi } from '../tender-api';
 import { money, quantity } from '../tender-status';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** The lowest unit price bid for each region among the bids not excluded (regions nobody bid are left out). */
 export function lowestPrices(bids: readonly TabulatedBid[]): Record<string, number> {
@@ -60,11 +60,7 @@ export class BidTabulation {
 
   private readonly answer = rxResource({ params: () => this.tender().id, stream: ({ params }) => this.api.bids(params) });
   protected readonly loading = this.answer.isLoading;
-  protected readonly loadError = computed(() => {
-    const error = this.answer.error();
-    if (!error) return null;
-    return error instanceof ApiError ? error.userMessage : 'The bids could not be loaded.';
-  });
+  protected readonly loadError = computed(() => loadErrorMessage(this.answer.error(), 'The bids could not be loaded.'));
   protected readonly bids = computed(() => {
     const answer = this.answer.value();
     return answer && 'bids' in answer ? answer.bids : [];

@@ -12,10 +12,10 @@ import { RouterLink } from '@angular/router';
 import { TENDER_STATUSES, type TenderStatus, type TenderSummary } from '@shared/tenders';
 import { debounceTime } from 'rxjs';
 import { Auth } from '../../core/auth/auth';
-import { ApiError } from '../../core/http/api-error';
 import { localClosingTime, minuteClock, timeLeft } from '../closing-time';
 import { TenderApi } from '../tender-api';
 import { BID_STATUS_LABELS, TENDER_STATUS_LABELS, quantity } from '../tender-status';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** /tenders — every tender the person may see, filtered by status and searched on the server. */
 @Component({
@@ -56,11 +56,7 @@ export class TenderList {
     stream: ({ params }) => this.api.list(params),
   });
   protected readonly loading = this.tenders.isLoading;
-  protected readonly loadError = computed(() => {
-    const error = this.tenders.error();
-    if (!error) return null;
-    return error instanceof ApiError ? error.userMessage : 'Tenders could not be loaded.';
-  });
+  protected readonly loadError = computed(() => loadErrorMessage(this.tenders.error(), 'Tenders could not be loaded.'));
   protected readonly rows = new MatTableDataSource<TenderSummary>([]);
   protected readonly count = computed(() => this.tenders.value()?.length ?? 0);
   protected readonly columns = computed(() => [
