@@ -1,4 +1,4 @@
-import type { Role } from '../shared/auth';
+import type { Role } from '../shared/roles';
 
 /**
  * The demo's people and vendor organisations. Every name here is invented for the demo; any

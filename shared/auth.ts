@@ -3,7 +3,6 @@ import { z } from 'zod';
 import { ROLES } from './roles';
 import { plainText } from './text';
 
-export { ROLES, ROLE_LABELS, type Role, type SessionUser } from './roles';
 
 /** The four roles of Tendara. A person has exactly one. */
 export const roleSchema = z.enum(ROLES, { error: 'Choose a role.' });

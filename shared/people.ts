@@ -1,5 +1,6 @@
 import { z } from 'zod';
-import { emailSchema, passwordSchema, roleSchema, type Role } from './auth';
+import { emailSchema, passwordSchema, roleSchema } from './auth';
+import type { Role } from './roles';
 import { plainText } from './text';
 
 const uuid = z.uuid({ error: 'Must be a valid id.' });

@@ -1,5 +1,5 @@
 import type { EntityManager } from '@mikro-orm/core';
-import type { Role } from '@shared/auth';
+import type { Role } from '@shared/roles';
 import { User, VendorOrganisation } from '../entities';
 import type { SessionUserRow } from './session-store';
 

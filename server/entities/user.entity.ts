@@ -1,5 +1,5 @@
 import { Check, Entity, Enum, ManyToOne, Property, Unique, type Opt } from '@mikro-orm/core';
-import { ROLES, type Role } from '@shared/auth';
+import { ROLES, type Role } from '@shared/roles';
 import { BaseEntity } from './base.entity';
 import { VendorOrganisation } from './vendor-organisation.entity';
 

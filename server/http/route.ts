@@ -3,7 +3,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { RequestContext } from '@mikro-orm/core';
 import multer from 'multer';
 import { z } from 'zod';
-import type { Role } from '@shared/auth';
+import type { Role } from '@shared/roles';
 import type { User } from '../entities';
 import { ForbiddenError, UnauthorizedError } from './errors';
 import { parseOr400 } from './validate';

@@ -2,7 +2,7 @@ import { createHash, randomBytes } from 'node:crypto';
 import { LockMode } from '@mikro-orm/core';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
-import { ROLE_LABELS } from '@shared/auth';
+import { ROLE_LABELS } from '@shared/roles';
 import type {
   AccountSetupView, InviteUser, MemberView, PersonView, VendorOrganisationInput, VendorOrganisationView,
 } from '@shared/people';

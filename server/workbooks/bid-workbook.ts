@@ -8,8 +8,6 @@ import {
   FORMATS, HEADER_STYLE, INPUT_STYLE, NOTE_STYLE, READ_ONLY_STYLE, TITLE_STYLE, quantityFormat, sizeColumns,
 } from './workbook-style';
 
-export { BID_LAYOUT, type BidWorkbookView, type BidWorkbookResult, type BidCellError } from './bid-layout';
-export { parseBidWorkbook } from './bid-workbook-parse';
 
 const { columns: COL } = BID_LAYOUT;
 

@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto';
-import { ROLES, type Role } from '@shared/auth';
+import { ROLES, type Role } from '@shared/roles';
 import { apiRoutes } from '../../server/app';
 import type { AnyRoute } from '../../server/http/route';
 import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';

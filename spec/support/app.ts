@@ -4,7 +4,7 @@ import type { Express } from 'express';
 import { Pool } from 'pg';
 import type PgBoss from 'pg-boss';
 import request from 'supertest';
-import type { Role } from '@shared/auth';
+import type { Role } from '@shared/roles';
 import { createApp } from '../../server/app';
 import type { AppDeps } from '../../server/context';
 import { loadConfig, type Config } from '../../server/config';

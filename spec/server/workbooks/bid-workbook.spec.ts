@@ -1,5 +1,7 @@
 import XlsxPopulate from 'xlsx-populate';
-import { BID_LAYOUT, buildBidWorkbook, parseBidWorkbook, type BidWorkbookView } from '../../../server/workbooks/bid-workbook';
+import { buildBidWorkbook } from '../../../server/workbooks/bid-workbook';
+import { BID_LAYOUT, type BidWorkbookView } from '../../../server/workbooks/bid-layout';
+import { parseBidWorkbook } from '../../../server/workbooks/bid-workbook-parse';
 import type { BidWorkbookResult } from '../../../server/workbooks/bid-layout';
 import { cellFormat, editWorkbook, readZipText } from './zip-fixtures';
 

@@ -1,4 +1,5 @@
-import { buildBidWorkbook, parseBidWorkbook } from '../../../server/workbooks/bid-workbook';
+import { buildBidWorkbook } from '../../../server/workbooks/bid-workbook';
+import { parseBidWorkbook } from '../../../server/workbooks/bid-workbook-parse';
 import { UnsafeWorkbookError, assertSafeXlsx, inspectXlsx } from '../../../server/workbooks/xlsx-guard';
 import { buildZip, xlsxLikeParts } from './zip-fixtures';
 

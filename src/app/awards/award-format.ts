@@ -3,7 +3,6 @@
  * time zone, amounts in the tender's currency (numbers: ui/number-format.ts).
  */
 
-export { fractionPercent, money, quantity } from '../ui/number-format';
 import { fractionPercent } from '../ui/number-format';
 
 /**

@@ -1,6 +1,6 @@
 import type { AwardRules } from '@shared/award';
 import { byCode } from '@shared/bids';
-import { fractionPercent, quantity } from './award-format';
+import { fractionPercent, quantity } from '../ui/number-format';
 
 /** Names for the ids a rule mentions; an id without a name is shown as it is. */
 export interface RuleNames {

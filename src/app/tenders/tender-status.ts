@@ -16,4 +16,3 @@ export const BID_STATUS_LABELS: Record<BidStatus, string> = {
   withdrawn: 'Withdrawn',
 };
 
-export { money, quantity } from '../ui/number-format';

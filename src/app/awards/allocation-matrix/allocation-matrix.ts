@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
 import type { VendorAward } from '@shared/award';
 import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
-import { quantity } from '../award-format';
+import { quantity } from '../../ui/number-format';
 
 export interface MatrixRegion {
   code: string;

@@ -13,7 +13,8 @@ import { Auth } from '../../core/auth/auth';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { AwardCaution } from '../award-caution';
-import { localDateTime, money } from '../award-format';
+import { localDateTime } from '../award-format';
+import { money } from '../../ui/number-format';
 import { RECOMMENDATION_STATUS_LABELS } from '../run-status';
 import { loadErrorMessage } from '../../ui/load-error';
 

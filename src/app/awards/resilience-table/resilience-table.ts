@@ -9,7 +9,8 @@ import type { ResilienceView, RunStatus } from '@shared/evaluation';
 import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
-import { money, percent } from '../award-format';
+import { percent } from '../award-format';
+import { money } from '../../ui/number-format';
 import { RUN_STATUS_LABELS, isFinished } from '../run-status';
 
 /** Re-solves take a while each; every two seconds is enough to see them land. */

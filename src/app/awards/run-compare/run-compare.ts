@@ -8,7 +8,8 @@ import type { ComparedRun, Comparison } from '@shared/evaluation';
 import { of } from 'rxjs';
 import { AwardApi } from '../award-api';
 import { AwardCaution } from '../award-caution';
-import { fractionPercent, money, percent } from '../award-format';
+import { percent } from '../award-format';
+import { fractionPercent, money } from '../../ui/number-format';
 import { RUN_STATUS_LABELS } from '../run-status';
 import { loadErrorMessage } from '../../ui/load-error';
 

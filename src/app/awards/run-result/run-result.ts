@@ -13,7 +13,7 @@ import { ApiError } from '../../core/http/api-error';
 import { AllocationMatrix, type MatrixRegion } from '../allocation-matrix/allocation-matrix';
 import { AwardApi } from '../award-api';
 import { AwardCaution } from '../award-caution';
-import { fractionPercent, money, quantity } from '../award-format';
+import { fractionPercent, money, quantity } from '../../ui/number-format';
 import { RecommendDialog, type RecommendDialogData } from '../recommend-dialog/recommend-dialog';
 import { RUN_STATUS_LABELS, hasAward, isFinished } from '../run-status';
 import { ShareChart, type ChartItem } from '../share-chart/share-chart';

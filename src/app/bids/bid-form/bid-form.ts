@@ -11,7 +11,8 @@ import { bidSaveSchema, isLiveBid, type BidView, type TenderView } from '@shared
 import { startWith } from 'rxjs';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { hasClosed, localClosingTime, minuteClock } from '../../tenders/closing-time';
-import { BID_STATUS_LABELS, money, quantity } from '../../tenders/tender-status';
+import { BID_STATUS_LABELS } from '../../tenders/tender-status';
+import { money, quantity } from '../../ui/number-format';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
 import { fieldMessage } from '../../ui/zod-validator';
 import { BidApi } from '../bid-api';

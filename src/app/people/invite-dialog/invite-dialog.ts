@@ -7,7 +7,7 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
-import { ROLES, ROLE_LABELS, type Role } from '@shared/auth';
+import { ROLES, ROLE_LABELS, type Role } from '@shared/roles';
 import { inviteUserSchema, type PersonView, type VendorOrganisationView } from '@shared/people';
 import { fieldMessage, zodFieldOf, zodValidator } from '../../ui/zod-validator';
 import { OrganisationDialog } from '../organisation-dialog/organisation-dialog';

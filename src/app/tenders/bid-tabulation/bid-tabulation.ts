@@ -14,7 +14,7 @@ import { BidCheckDialog, type BidCheckDialogData } from '../bid-check-dialog/bid
 import { LowPriceDialog, type LowPriceDialogData } from '../low-price-dialog/low-price-dialog';
 import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
 import { TenderApi } from '../tender-api';
-import { money, quantity } from '../tender-status';
+import { money, quantity } from '../../ui/number-format';
 import { loadErrorMessage } from '../../ui/load-error';
 
 /** The lowest unit price bid for each region among the bids not excluded (regions nobody bid are left out). */

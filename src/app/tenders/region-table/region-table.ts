@@ -1,7 +1,7 @@
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { MatTableModule } from '@angular/material/table';
 import type { RegionView } from '@shared/tenders';
-import { quantity } from '../tender-status';
+import { quantity } from '../../ui/number-format';
 
 /** A tender's regions with their forecast quantities, read-only, with the total underneath. */
 @Component({

@@ -17,7 +17,7 @@ import { startWith } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { fieldMessage } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
-import { quantity } from '../tender-status';
+import { quantity } from '../../ui/number-format';
 import { clearServerProblems, controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm, zonedInstant } from './tender-form';
 
 /** Every IANA zone the browser knows. */

@@ -14,7 +14,8 @@ import { debounceTime } from 'rxjs';
 import { Auth } from '../../core/auth/auth';
 import { localClosingTime, minuteClock, timeLeft } from '../closing-time';
 import { TenderApi } from '../tender-api';
-import { BID_STATUS_LABELS, TENDER_STATUS_LABELS, quantity } from '../tender-status';
+import { BID_STATUS_LABELS, TENDER_STATUS_LABELS } from '../tender-status';
+import { quantity } from '../../ui/number-format';
 import { loadErrorMessage } from '../../ui/load-error';
 
 /** /tenders — every tender the person may see, filtered by status and searched on the server. */
