@@ -1,7 +1,7 @@
 import type { NextFunction, Request, RequestHandler, Response } from 'express';
 import type passport from 'passport';
 import { signInSchema } from '@shared/auth';
-import { type SessionUser } from '@shared/roles';
+import type { SessionUser } from '@shared/roles';
 import { SESSION_COOKIE } from '../context';
 import type { User } from '../entities';
 import { AppError, UnauthorizedError } from '../http/errors';
