@@ -199,8 +199,9 @@ export class TenderEditor {
     if (this.form.invalid || !parsed.success || duplicates.length) {
       this.form.markAllAsTouched();
       const issues = parsed.success ? [] : parsed.error.issues.map((i) => ({ field: controlPath(i.path), message: i.message }));
+      // A control its own validator refuses already says why in the form's terms (a share in %, not the API's fraction).
       const unplaced = placeProblems(this.form, [
-        ...issues.filter((i) => i.field !== 'closesDate'),
+        ...issues.filter((i) => i.field !== 'closesDate' && !this.form.get(i.field)?.errors),
         ...duplicates.map((d) => ({ field: `regions.${d.index}.code`, message: d.message })),
       ]);
       this.failure.set(['Some fields need attention; each is marked below.', ...unplaced].join(' '));

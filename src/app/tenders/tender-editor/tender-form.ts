@@ -114,7 +114,8 @@ export function tenderForm(fb: NonNullableFormBuilder) {
       title: ['', zodValidator(fields.title)],
       commodity: ['', zodValidator(fields.commodity)],
       unit: ['t', zodValidator(fields.unit)],
-      currency: ['EUR', zodValidator(fields.currency)],
+      // Sent in capitals (formBody) and shown in capitals (class "upper"), so "eur" is as good as "EUR".
+      currency: ['EUR', zodValidator(z.string().transform((v) => v.trim().toUpperCase()).pipe(fields.currency))],
       closesDate: [''],
       closesTime: ['12:00'],
       standstillDays: new FormControl<number | null>(10, zodValidator(fields.standstillDays)),
