@@ -27,6 +27,8 @@ export function tenderView(overrides: Partial<TenderView> = {}): TenderView {
     bidValidityDays: 90,
     clarificationsCloseAt: '2026-11-15T11:00:00Z',
     abnormallyLowPercent: 20,
+    amendments: [],
+    cancellation: null,
     regions: [
       { code: 'R01', name: 'Cranby depot', forecast: 4200 },
       { code: 'R02', name: 'Wexcombe depot', forecast: 3000 },
