@@ -127,15 +127,15 @@ test('a buyer cancels a draft with a reason: the page names it cancelled with th
   const created = await page.request.post(`${baseUrl()}/api/tenders`, {
     headers: { 'X-XSRF-TOKEN': xsrf },
     data: {
-      reference: 'NHP-2027-009', title: 'Footway grit, spring top-up', commodity: 'Grit', unit: 't', currency: 'EUR',
+      reference: 'NHP-2027-019', title: 'Footway grit, spring top-up', commodity: 'Grit', unit: 't', currency: 'EUR',
       closesAt: new Date(Date.now() + 20 * 86_400_000).toISOString(), standstillDays: 10,
       regions: [{ code: 'N01', name: 'North district', forecast: 120 }],
     },
   });
   expect(created.status()).toBe(201);
-  await openTender(page, 'NHP-2027-009');
+  await openTender(page, 'NHP-2027-019');
   await page.getByRole('button', { name: 'Cancel tender…' }).click();
-  const dialog = page.getByRole('dialog', { name: 'Cancel NHP-2027-009?' });
+  const dialog = page.getByRole('dialog', { name: 'Cancel NHP-2027-019?' });
   await dialog.waitFor();
   // The reason is required: nothing is sent without it.
   await dialog.getByRole('button', { name: 'Cancel tender' }).click();
@@ -154,7 +154,7 @@ test('a buyer cancels a draft with a reason: the page names it cancelled with th
 
   await page.goto(`${baseUrl()}/tenders`);
   await page.getByRole('listbox', { name: 'Filter by status' }).getByRole('option', { name: 'Cancelled' }).click();
-  await page.getByRole('row', { name: /NHP-2027-009/ }).getByText('cancelled before closing').waitFor();
+  await page.getByRole('row', { name: /NHP-2027-019/ }).getByText('cancelled before closing').waitFor();
   await expect(page.getByRole('row', { name: /NHP-2027-002/ }).count()).resolves.toBe(0);
   await screenshot(page, 'procedure-tender-list-cancelled-1280');
   expect(await seriousViolations(page)).toEqual([]);
