@@ -43,6 +43,8 @@ describe('BidPage (vendor view of a tender)', () => {
     loader = TestbedHarnessEnvironment.loader(fixture);
     await answerWhenAsked(`/api/tenders/${TENDER_UUID}`, served, () => fixture.detectChanges());
     await answerWhenAsked(`/api/tenders/${TENDER_UUID}/bid`, { bid: null }, () => fixture.detectChanges());
+    // The clarifications panel lists the tender's questions.
+    await answerWhenAsked(`/api/tenders/${TENDER_UUID}/questions`, [], () => fixture.detectChanges());
     await fixture.whenStable();
   });
 

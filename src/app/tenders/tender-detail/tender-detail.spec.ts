@@ -47,6 +47,8 @@ describe('TenderDetail', () => {
     loader = TestbedHarnessEnvironment.loader(fixture);
     fixture.detectChanges();
     http.expectOne({ method: 'GET', url: tenderUrl }).flush(tender);
+    // The clarifications panel lists the tender's questions, whatever its status.
+    await answerWhenAsked(`${tenderUrl}/questions`, [], () => fixture.detectChanges());
     if (follow) await answerWhenAsked(follow.url, follow.body, () => fixture.detectChanges());
     await fixture.whenStable();
   }
@@ -93,6 +95,8 @@ describe('TenderDetail', () => {
     const request = http.expectOne({ method: 'POST', url: `${tenderUrl}/publish` });
     expect(request.request.body).toEqual({});
     request.flush(open);
+    // The page shows the published tender afresh, its clarifications panel included.
+    await answerWhenAsked(`${tenderUrl}/questions`, [], () => fixture.detectChanges());
     await fixture.whenStable();
     expect((fixture.nativeElement as HTMLElement).querySelector('.eyebrow')?.textContent).toContain('Open for bids');
     expect((fixture.nativeElement as HTMLElement).querySelector('[role=status]')?.textContent).toBe('GRT-2027-014 is published; invited vendors are being e-mailed.');
