@@ -1,6 +1,6 @@
 import { DestroyRef, inject, signal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
-import type { FormGroup } from '@angular/forms';
+import { FormArray, FormGroup, type AbstractControl } from '@angular/forms';
 import type { Observable } from 'rxjs';
 import { ApiError } from '../core/http/api-error';
 import { applyServerErrors } from './server-errors';
@@ -22,7 +22,7 @@ export class FormSubmission {
   /** Sends `request()` if the form is valid; `done` gets the answer. Returns whether it sent. */
   send<T>(request: () => Observable<T>, done: (answer: T) => void): boolean {
     if (this.busy()) return false;
-    this.form.updateValueAndValidity();
+    revalidate(this.form);
     if (this.form.invalid) {
       this.form.markAllAsTouched();
       return false;
@@ -45,6 +45,18 @@ export class FormSubmission {
       });
     return true;
   }
+}
+
+/**
+ * Runs every control's validators again, leaves first: a status can be stale (a rule that reads
+ * another field, or the validator of a field a template has just removed), and a new attempt also
+ * clears the server's refusals of the last one.
+ */
+function revalidate(control: AbstractControl): void {
+  if (control instanceof FormGroup || control instanceof FormArray) {
+    for (const child of Object.values(control.controls as Record<string, AbstractControl>)) revalidate(child);
+  }
+  control.updateValueAndValidity({ onlySelf: true, emitEvent: false });
 }
 
 export function formSubmission(form: FormGroup): FormSubmission {

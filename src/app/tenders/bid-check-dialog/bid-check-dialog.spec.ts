@@ -65,4 +65,22 @@ describe('BidCheckDialog', () => {
     expect(closed).toEqual([stored]);
     http.verify();
   });
+
+  it('after choosing "excluded" and then "compliant" again, a compliant check is sent without a ground (the removed ground field leaves no stale error)', () => {
+    const { fixture, closed, http, page } = open();
+    const radios = page.querySelectorAll('mat-radio-button input');
+    (radios[1] as HTMLInputElement).click();
+    fixture.detectChanges();
+    (radios[0] as HTMLInputElement).click();
+    fixture.detectChanges();
+    type(page, 'Re-checked: insurance and haulage licence on file.');
+    fixture.detectChanges();
+    page.querySelector('form')!.dispatchEvent(new Event('submit', { cancelable: true }));
+    const request = http.expectOne(`/api/tenders/${TENDER_ID}/bids/${bid.id}/compliance`);
+    expect(request.request.body).toEqual({ decision: 'compliant', ground: null, note: 'Re-checked: insurance and haulage licence on file.' });
+    const stored = { ...bid, compliance: { decision: 'compliant', ground: null, note: 'Re-checked: insurance and haulage licence on file.', decidedAt: '2026-12-01T09:00:00Z' } };
+    request.flush(stored);
+    expect(closed).toEqual([stored]);
+    http.verify();
+  });
 });
