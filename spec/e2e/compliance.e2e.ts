@@ -1,5 +1,5 @@
 import type { Page } from 'playwright-core';
-import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
+import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn, waitForDialogFocus } from './support/browser';
 import { closedTender } from './support/closed-tender';
 
 /**
@@ -36,10 +36,6 @@ async function openTabulation(page: Page): Promise<void> {
   await page.getByRole('link', { name: TENDER }).click();
   await page.getByRole('heading', { name: 'Bids', level: 2 }).waitFor();
   await page.getByRole('row', { name: /Kestrelway Road Services/ }).waitFor();
-}
-
-async function waitForDialogFocus(page: Page): Promise<void> {
-  await page.waitForFunction(() => document.activeElement?.closest('mat-dialog-container') != null);
 }
 
 test('the buyer sees each bid\'s compliance check and the flagged price with its median and threshold, and records a check through the dialog by keyboard', async () => {

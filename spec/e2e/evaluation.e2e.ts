@@ -1,5 +1,5 @@
 import type { Page } from 'playwright-core';
-import { SHOTS, animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
+import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, SHOTS, signIn, waitForDialogFocus } from './support/browser';
 
 /**
  * The evaluation of the closed demo tender NHP-2026-014 (seven bids), end to end in the browser:
@@ -32,10 +32,6 @@ async function openEvaluation(page: Page): Promise<void> {
   await page.getByRole('link', { name: 'Evaluation' }).click();
   await page.getByRole('heading', { name: 'Award scenarios', level: 1 }).waitFor();
   await page.getByRole('row', { name: /All regions split/ }).first().waitFor();
-}
-
-async function waitForDialogFocus(page: Page): Promise<void> {
-  await page.waitForFunction(() => document.activeElement?.closest('mat-dialog-container') != null);
 }
 
 /** Lets animations settle before a picture (pictures are for people, not compared). */

@@ -1,5 +1,4 @@
-import type { Page } from 'playwright-core';
-import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
+import { animationsDone, baseUrl, openBrowser, openTender, screenshot, seriousViolations, signIn, waitForDialogFocus } from './support/browser';
 
 /**
  * Clarifications and amendments on the demo data: the closed salt tender NHP-2026-014 has two
@@ -13,16 +12,6 @@ beforeAll(async () => {
   b = await openBrowser();
 });
 afterAll(() => b.close());
-
-async function openTender(page: Page, reference: string): Promise<void> {
-  await page.goto(`${baseUrl()}/tenders`);
-  await page.getByRole('link', { name: reference }).click();
-  await page.getByRole('heading', { level: 1 }).waitFor();
-}
-
-async function waitForDialogFocus(page: Page): Promise<void> {
-  await page.waitForFunction(() => document.activeElement?.closest('mat-dialog-container') != null);
-}
 
 test('a vendor reads the amendment notice and the numbered clarifications of the salt tender, without who asked', async () => {
   const { page } = b;

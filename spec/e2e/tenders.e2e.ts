@@ -1,9 +1,8 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import type { Page } from 'playwright-core';
 import XlsxPopulate from 'xlsx-populate';
-import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
+import { animationsDone, baseUrl, openBrowser, openTender, screenshot, seriousViolations, signIn, waitForDialogFocus } from './support/browser';
 
 /**
  * The tender and bid screens against the demo data: the closed salt tender NHP-2026-014 (seven bids)
@@ -14,16 +13,6 @@ beforeAll(async () => {
   b = await openBrowser();
 });
 afterAll(() => b.close());
-
-async function openTender(page: Page, reference: string): Promise<void> {
-  await page.goto(`${baseUrl()}/tenders`);
-  await page.getByRole('link', { name: reference }).click();
-  await page.getByRole('heading', { level: 1 }).waitFor();
-}
-
-async function waitForDialogFocus(page: Page): Promise<void> {
-  await page.waitForFunction(() => document.activeElement?.closest('mat-dialog-container') != null);
-}
 
 test('a vendor bids by form: sees the live total, submits, and gets the receipt digest', async () => {
   const { page } = b;

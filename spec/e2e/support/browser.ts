@@ -74,3 +74,15 @@ export async function animationsDone(page: Page): Promise<void> {
   await page.waitForFunction(() => document.getAnimations().every((a) => a.playState !== 'running' || a.effect?.getComputedTiming().iterations === Infinity));
   await page.evaluate(() => new Promise<void>((resolve) => requestAnimationFrame(() => resolve())));
 }
+
+/** Opens a tender from the tender list by its reference and waits for its page. */
+export async function openTender(page: Page, reference: string): Promise<void> {
+  await page.goto(`${baseUrl()}/tenders`);
+  await page.getByRole('link', { name: reference }).click();
+  await page.getByRole('heading', { level: 1 }).waitFor();
+}
+
+/** Waits until the focus is inside the open dialog (Material moves it there once the dialog is shown). */
+export async function waitForDialogFocus(page: Page): Promise<void> {
+  await page.waitForFunction(() => document.activeElement?.closest('mat-dialog-container') != null);
+}
