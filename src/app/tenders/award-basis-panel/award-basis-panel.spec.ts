@@ -1,37 +1,24 @@
 import { TestBed } from '@angular/core/testing';
-import type { TenderView } from '@shared/tenders';
+import { tenderView } from '../testing/tender-fixtures';
 import { AwardBasisPanel } from './award-basis-panel';
 
 /** A fictional open tender whose basis lists one sole region, a vendor cap and lorry loads. */
-const tender: TenderView = {
-  id: '0d6f4b9e-93a1-4d1f-8a55-1c2f7b3e9a10',
+const tender = tenderView({
   reference: 'WCX-2031-004',
   title: 'Brine for the coastal depots',
-  commodity: 'Brine, 23 %',
-  unit: 't',
-  currency: 'EUR',
-  locale: 'en-GB',
   status: 'open',
   closesAt: '2031-07-01T11:00:00.000Z',
   timeZone: 'Europe/Dublin',
-  regionCount: 2,
-  totalForecast: 1250,
-  description: '',
-  standstillDays: 10,
-  publishedAt: '2031-06-01T09:00:00.000Z',
-  closedAt: null,
   awardBasis: { sourcing: 'split', soleRegions: ['QSL'], maxVendors: 2, maxVendorShare: 0.45, awardIncrement: 25 },
   buyingBody: { name: 'Harrowven Port Authority', address: '2 Pier Lane, Harrowven', email: 'tenders@harrowven.tendara.test', country: 'IE' },
   bidValidityDays: 120,
-  clarificationsCloseAt: '2031-06-26T11:00:00.000Z',
-  abnormallyLowPercent: 20,
-  amendments: [],
-  cancellation: null,
+  regionCount: 2,
+  totalForecast: 1250,
   regions: [
     { code: 'HVN', name: 'Harrowven depot', forecast: 500 },
     { code: 'QSL', name: 'Quillstead depot', forecast: 750 },
   ],
-};
+});
 
 describe('AwardBasisPanel', () => {
   it('states the published basis in the buyer words, with bid validity and the buying body', async () => {
