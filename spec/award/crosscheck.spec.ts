@@ -46,6 +46,25 @@ function randomProblem(seed: number): AwardProblem {
   return { regions, vendors, rules, options: { timeLimitSeconds: 30 } };
 }
 
+/**
+ * The engine and HiGHS on the independently written model (support/reference-lp.ts) agree: both
+ * infeasible (the engine then says why), or both optimal with the same objective and an award the
+ * verifier (server/award/verify.ts) accepts.
+ */
+async function expectAgreesWithHighs(highs: Awaited<ReturnType<typeof loadHighs>>, problem: AwardProblem): Promise<void> {
+  const reference = highs.solve(referenceLp(problem), { output_flag: false, mip_rel_gap: 0 });
+  const result = await solveAward(problem);
+  if (reference.Status === 'Infeasible') {
+    expect(result.status).toBe('infeasible');
+    expect(result.diagnosis.length).toBeGreaterThan(0);
+  } else {
+    expect(reference.Status).toBe('Optimal');
+    expect(result.status).toBe('optimal');
+    expect(result.objective!).toBeCloseTo(reference.ObjectiveValue, 4);
+    expect(verifyAward(validateProblem(problem), result.awards, result.objective!)).toEqual([]);
+  }
+}
+
 describe('random problems with every rule and mixes of rules agree with HiGHS used directly', () => {
   let highs: Awaited<ReturnType<typeof loadHighs>>;
   beforeAll(async () => { highs = await loadHighs(); });
@@ -53,17 +72,7 @@ describe('random problems with every rule and mixes of rules agree with HiGHS us
   const seeds = Array.from({ length: 40 }, (_, k) => k);
   test.each(seeds)('random problem, seed %i', async (seed) => {
     const problem = randomProblem(seed);
-    const reference = highs.solve(referenceLp(problem), { output_flag: false, mip_rel_gap: 0 });
-    const result = await solveAward(problem);
-    if (reference.Status === 'Infeasible') {
-      expect(result.status).toBe('infeasible');
-      expect(result.diagnosis.length).toBeGreaterThan(0);
-    } else {
-      expect(reference.Status).toBe('Optimal');
-      expect(result.status).toBe('optimal');
-      expect(result.objective!).toBeCloseTo(reference.ObjectiveValue, 4);
-      expect(verifyAward(validateProblem(problem), result.awards, result.objective!)).toEqual([]);
-    }
+    await expectAgreesWithHighs(highs, problem);
   });
 
   test('the random set covers both feasible and infeasible problems', () => {
@@ -95,18 +104,8 @@ describe('random problems with an award increment agree with HiGHS on the plain 
   const seeds = Array.from({ length: 30 }, (_, k) => k);
   test.each(seeds)('random problem with an award increment, seed %i: same status and optimum, every quantity a whole multiple', async (seed) => {
     const problem = randomIncrementProblem(seed);
-    const reference = highs.solve(referenceLp(problem), { output_flag: false, mip_rel_gap: 0 });
-    const result = await solveAward(problem);
-    if (reference.Status === 'Infeasible') {
-      expect(result.status).toBe('infeasible');
-      expect(result.diagnosis.length).toBeGreaterThan(0);
-    } else {
-      expect(reference.Status).toBe('Optimal');
-      expect(result.status).toBe('optimal');
-      expect(result.objective!).toBeCloseTo(reference.ObjectiveValue, 4);
-      // The independent verifier (server/award/verify.ts) refuses any quantity that is not a whole multiple.
-      expect(verifyAward(validateProblem(problem), result.awards, result.objective!)).toEqual([]);
-    }
+    // The independent verifier (server/award/verify.ts) refuses any quantity that is not a whole multiple.
+    await expectAgreesWithHighs(highs, problem);
   });
 
   test('the increment set covers feasible and infeasible problems, optima the increment raises above the plain ones and problems it makes infeasible', () => {

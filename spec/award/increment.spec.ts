@@ -8,6 +8,7 @@ import { toInstance, validateProblem } from '../../server/award/instance';
 import { costOf } from '../../server/award/reduced-model';
 import { LNS_WORKER, runInWorker, type EngineOutcome } from '../../server/award/solve';
 import { verifyAward } from '../../server/award/verify';
+import { quantities, solved } from './support/solved';
 import { baseProblem, largeSoleProblem } from './support/problems';
 
 // The award increment (rules.awardIncrement): every quantity awarded to a vendor in a region is a
@@ -16,14 +17,6 @@ import { baseProblem, largeSoleProblem } from './support/problems';
 jest.setTimeout(120_000);
 afterAll(() => closeSolverPool());
 
-async function solved(problem: AwardProblem): Promise<AwardResult> {
-  const result = await solveAward(problem);
-  expect(result.status).toBe('optimal');
-  expect(verifyAward(validateProblem(problem), result.awards, result.objective!)).toEqual([]);
-  expect(result.objective).toBeCloseTo(result.fixedCost! + result.variableCost!, 6);
-  return result;
-}
-const quantities = (r: AwardResult) => Object.fromEntries(r.awards.map((a) => [a.vendor, Object.fromEntries(a.lines.map((l) => [l.region, l.quantity]))]));
 
 /**
  * Two regions, two vendors. A 100 t, B 50 t. V1: fee 10, cap 110 t, A @1, B @2. V2: fee 20, no

@@ -1,20 +1,11 @@
-import type { AwardProblem, AwardResult } from '../../shared/award';
+import type { AwardProblem } from '../../shared/award';
 import { closeSolverPool, solveAward } from '../../server/award/index';
-import { validateProblem } from '../../server/award/instance';
-import { verifyAward } from '../../server/award/verify';
+import { quantities, solved } from './support/solved';
 import { baseProblem } from './support/problems';
 
 afterAll(() => closeSolverPool());
 
 // Every expected value below is worked out by hand in the comment beside it (see baseProblem).
-async function solved(problem: AwardProblem): Promise<AwardResult> {
-  const result = await solveAward(problem);
-  expect(result.status).toBe('optimal');
-  expect(verifyAward(validateProblem(problem), result.awards, result.objective!)).toEqual([]);
-  expect(result.objective).toBeCloseTo(result.fixedCost! + result.variableCost!, 6);
-  return result;
-}
-const quantities = (r: AwardResult) => Object.fromEntries(r.awards.map((a) => [a.vendor, Object.fromEntries(a.lines.map((l) => [l.region, l.quantity]))]));
 
 describe('hand-solvable awards, one per rule', () => {
   test('without rules each region goes to its cheapest vendor: 50 + 50 + 100·1 + 100·1 = 300', async () => {
