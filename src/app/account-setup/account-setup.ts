@@ -1,5 +1,5 @@
 import { DatePipe } from '@angular/common';
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, input, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, inject, input } from '@angular/core';
 import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { AbstractControl, NonNullableFormBuilder, ReactiveFormsModule, ValidationErrors } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
@@ -10,9 +10,8 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { Router, RouterLink } from '@angular/router';
 import { PASSWORD_MIN_LENGTH } from '@shared/auth';
 import { setPasswordSchema } from '@shared/people';
-import { ApiError } from '../core/http/api-error';
 import { Logo } from '../ui/logo';
-import { applyServerErrors } from '../ui/server-errors';
+import { formSubmission } from '../ui/form-submission';
 import { fieldMessage, zodValidator } from '../ui/zod-validator';
 import { AccountSetupApi } from './account-setup-api';
 import { apiProblem, loadErrorMessage } from '../ui/load-error';
@@ -44,7 +43,6 @@ function sameAsPassword(control: AbstractControl): ValidationErrors | null {
 export class AccountSetup {
   private readonly api = inject(AccountSetupApi);
   private readonly router = inject(Router);
-  private readonly destroyRef = inject(DestroyRef);
 
   /** Route parameter. */
   readonly token = input.required<string>();
@@ -57,8 +55,7 @@ export class AccountSetup {
     password: ['', zodValidator(setPasswordSchema.shape.password)],
     confirm: ['', sameAsPassword],
   });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  protected readonly submission = formSubmission(this.form);
   protected readonly minLength = PASSWORD_MIN_LENGTH;
   protected readonly fieldMessage = fieldMessage;
 
@@ -77,27 +74,9 @@ export class AccountSetup {
   }
 
   protected submit(): void {
-    if (this.busy()) return;
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api
-      .setPassword(this.token(), this.form.controls.password.value)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: () => void this.router.navigate(['/sign-in'], { queryParams: { passwordSet: 1 } }),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (error instanceof ApiError) {
-            const unplaced = applyServerErrors(this.form, error.fieldErrors);
-            this.failure.set([error.userMessage, ...unplaced].join(' '));
-          } else {
-            this.failure.set('The password could not be set. Please try again.');
-          }
-        },
-      });
+    this.submission.send(
+      () => this.api.setPassword(this.token(), this.form.controls.password.value),
+      () => void this.router.navigate(['/sign-in'], { queryParams: { passwordSet: 1 } }),
+    );
   }
 }

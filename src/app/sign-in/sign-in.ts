@@ -1,5 +1,4 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, inject, input, signal } from '@angular/core';
 import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -9,9 +8,8 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { Router } from '@angular/router';
 import { signInSchema } from '@shared/auth';
 import { Auth } from '../core/auth/auth';
-import { ApiError } from '../core/http/api-error';
 import { Logo } from '../ui/logo';
-import { applyServerErrors } from '../ui/server-errors';
+import { formSubmission } from '../ui/form-submission';
 import { fieldMessage, zodValidator } from '../ui/zod-validator';
 
 /** Only paths inside the app, so a crafted link cannot send someone elsewhere after sign-in. */
@@ -37,7 +35,6 @@ function safeReturnUrl(url: string | undefined): string {
 export class SignIn {
   private readonly auth = inject(Auth);
   private readonly router = inject(Router);
-  private readonly destroyRef = inject(DestroyRef);
 
   /** Query parameters: where to go afterwards, and the notice after a password was set. */
   readonly returnUrl = input<string>();
@@ -47,33 +44,14 @@ export class SignIn {
     email: ['', zodValidator(signInSchema.shape.email)],
     password: ['', zodValidator(signInSchema.shape.password)],
   });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  protected readonly submission = formSubmission(this.form);
   protected readonly showPassword = signal(false);
   protected readonly fieldMessage = fieldMessage;
 
   protected submit(): void {
-    if (this.busy()) return;
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    this.auth
-      .signIn(signInSchema.parse(this.form.getRawValue()))
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: () => void this.router.navigateByUrl(safeReturnUrl(this.returnUrl())),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (error instanceof ApiError) {
-            const unplaced = applyServerErrors(this.form, error.fieldErrors);
-            this.failure.set([error.userMessage, ...unplaced].join(' '));
-          } else {
-            this.failure.set('Sign-in failed. Please try again.');
-          }
-        },
-      });
+    this.submission.send(
+      () => this.auth.signIn(signInSchema.parse(this.form.getRawValue())),
+      () => void this.router.navigateByUrl(safeReturnUrl(this.returnUrl())),
+    );
   }
 }

@@ -10,17 +10,23 @@ import { applyServerErrors } from './server-errors';
  * invalid (every field then shows its message); `busy` while the request is in flight; on a
  * refusal, the server's field errors under their fields and the rest, with the problem's own
  * message, in `failure` for the form-level line. Create it in a field initialiser (it needs the
- * component's injection context): `protected readonly submission = formSubmission(this.form);`.
+ * component's injection context): `protected readonly submission = formSubmission(this.form);`, or
+ * pass the component's `DestroyRef` for a form made later (one answer form per question).
  */
 export class FormSubmission {
   readonly busy = signal(false);
   readonly failure = signal<string | null>(null);
-  private readonly destroyRef = inject(DestroyRef);
 
-  constructor(private readonly form: FormGroup) {}
+  constructor(
+    private readonly form: FormGroup,
+    private readonly destroyRef: DestroyRef,
+  ) {}
 
-  /** Sends `request()` if the form is valid; `done` gets the answer. Returns whether it sent. */
-  send<T>(request: () => Observable<T>, done: (answer: T) => void): boolean {
+  /**
+   * Sends `request()` if the form is valid; `done` gets the answer, `refused` (if given) runs after
+   * a refusal is shown, e.g. to reload what another person may have changed. Returns whether it sent.
+   */
+  send<T>(request: () => Observable<T>, done: (answer: T) => void, refused?: () => void): boolean {
     if (this.busy()) return false;
     revalidate(this.form);
     if (this.form.invalid) {
@@ -41,6 +47,7 @@ export class FormSubmission {
           if (!(error instanceof ApiError)) throw error;
           const unplaced = applyServerErrors(this.form, error.fieldErrors);
           this.failure.set([error.userMessage, ...unplaced].join(' '));
+          refused?.();
         },
       });
     return true;
@@ -59,6 +66,6 @@ function revalidate(control: AbstractControl): void {
   control.updateValueAndValidity({ onlySelf: true, emitEvent: false });
 }
 
-export function formSubmission(form: FormGroup): FormSubmission {
-  return new FormSubmission(form);
+export function formSubmission(form: FormGroup, destroyRef: DestroyRef = inject(DestroyRef)): FormSubmission {
+  return new FormSubmission(form, destroyRef);
 }

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
-import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { FormControl, FormGroup, ReactiveFormsModule, type FormGroupDirective } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -8,7 +8,7 @@ import { MatInputModule } from '@angular/material/input';
 import { answerInputSchema, questionInputSchema, type QuestionView } from '@shared/procedure';
 import type { TenderView } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
-import { ApiError } from '../../core/http/api-error';
+import { formSubmission, type FormSubmission } from '../../ui/form-submission';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { localClosingTime, minuteClock } from '../closing-time';
 import { ProcedureApi } from '../procedure-api';
@@ -45,67 +45,52 @@ export class QuestionsPanel {
 
   protected readonly question = new FormControl('', { nonNullable: true, validators: zodValidator(questionInputSchema.shape.text) });
   protected readonly askForm = new FormGroup({ text: this.question });
-  /** One answer draft (a form of its own) per question id. */
-  private readonly answers = new Map<string, FormGroup<{ text: FormControl<string> }>>();
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  protected readonly asking = formSubmission(this.askForm);
+  /** One answer draft (a form of its own, sent on its own) per question id. */
+  private readonly answers = new Map<string, AnswerDraft>();
   protected readonly status = signal('');
   protected readonly fieldMessage = fieldMessage;
   /** Times of the procedure are shown in its time zone, named. */
   protected readonly when = (iso: string) => localClosingTime(iso, this.tender().timeZone);
 
-  protected answerForm(q: QuestionView): FormGroup<{ text: FormControl<string> }> {
-    let form = this.answers.get(q.id);
-    if (!form) {
-      form = new FormGroup({ text: new FormControl('', { nonNullable: true, validators: zodValidator(answerInputSchema.shape.text) }) });
-      this.answers.set(q.id, form);
+  protected answerDraft(q: QuestionView): AnswerDraft {
+    let draft = this.answers.get(q.id);
+    if (!draft) {
+      const form = new FormGroup({ text: new FormControl('', { nonNullable: true, validators: zodValidator(answerInputSchema.shape.text) }) });
+      draft = { form, submission: formSubmission(form, this.destroyRef) };
+      this.answers.set(q.id, draft);
     }
-    return form;
+    return draft;
   }
 
   protected ask(directive: FormGroupDirective): void {
-    if (this.busy()) return;
-    if (this.question.invalid) {
-      this.question.markAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api.ask(this.tender().id, this.question.value).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
-      next: () => {
-        this.busy.set(false);
+    this.asking.send(
+      () => this.api.ask(this.tender().id, this.question.value),
+      () => {
         // Through the directive: a plain reset would leave the form "submitted", its field in error.
         directive.resetForm();
         this.status.set('Your question was sent to the buyer. Its answer will be published to every invited vendor.');
         this.questions.reload();
       },
-      error: (error: unknown) => this.fail(error, 'The question could not be sent.'),
-    });
+      () => this.questions.reload(),
+    );
   }
 
   protected answer(q: QuestionView): void {
-    const control = this.answerForm(q).controls.text;
-    if (this.busy()) return;
-    if (control.invalid) {
-      control.markAsTouched();
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    this.api.answer(q.id, control.value).pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
-      next: (answered) => {
-        this.busy.set(false);
+    const { form, submission } = this.answerDraft(q);
+    submission.send(
+      () => this.api.answer(q.id, form.controls.text.value),
+      (answered) => {
         this.answers.delete(q.id);
         this.status.set(`Clarification ${answered.number} is published and e-mailed to every invited vendor.`);
         this.questions.reload();
       },
-      error: (error: unknown) => this.fail(error, 'The answer could not be published.'),
-    });
+      () => this.questions.reload(),
+    );
   }
+}
 
-  private fail(error: unknown, fallback: string): void {
-    this.busy.set(false);
-    this.failure.set(error instanceof ApiError ? error.userMessage : fallback);
-    this.questions.reload();
-  }
+interface AnswerDraft {
+  form: FormGroup<{ text: FormControl<string> }>;
+  submission: FormSubmission;
 }
