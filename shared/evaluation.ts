@@ -155,7 +155,12 @@ export interface RecommendationView {
 }
 
 export interface AuditEntryView {
+  /** Position in its own chain (the tender's, or the administration's): 1, 2, 3… with no gaps. */
+  number: number;
+  /** The store's global sequence, shared by every chain: for engineers, not for reading. */
   seq: number;
+  /** What happened, in words, with names (a bid's vendor only once the tender is no longer sealed). */
+  description: string;
   at: string;
   actor: { id: string; name: string; role: string } | null;
   action: string;
@@ -170,7 +175,7 @@ export interface AuditEntryView {
 export interface AuditVerification {
   ok: boolean;
   entries: number;
-  /** The first entry whose hash does not match, if any. */
+  /** The first entry whose hash does not match, if any (its `number`). */
   brokenAt: number | null;
   message: string;
 }

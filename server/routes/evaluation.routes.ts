@@ -125,7 +125,7 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'The audit trail as CSV (cells that could start a spreadsheet formula are quoted as text).',
       handler: async ({ em, user, params, res }) => {
         const tender = await findVisibleTender(em, user, params.id);
-        sendDownload(res, { filename: exportName(tender.reference, 'audit-trail.csv'), content: await auditCsv(em, params.id), type: CSV });
+        sendDownload(res, { filename: exportName(tender.reference, 'audit-trail.csv'), content: await auditCsv(em, params.id, tender.timeZone), type: CSV });
       },
     }),
   ];

@@ -1,9 +1,11 @@
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
+import { ROLE_LABELS, type Role } from '@shared/roles';
 import { SEALED_TENDER_STATUSES } from '@shared/tenders';
 import { AuditEntry, Tender, type User } from '../entities';
 import { csvCell } from '../workbooks/spreadsheet-text';
+import { auditNames, describeEntry } from './audit-words';
 
 /** The hash before the first entry of a tender's chain. */
 export const GENESIS = '0'.repeat(64);
@@ -89,17 +91,19 @@ export async function audit(em: EntityManager, input: AuditInput): Promise<void>
 /** A tender's trail, or with `null` the global one (administration: people, organisations, links). */
 export async function auditTrail(em: EntityManager, tenderId: string | null): Promise<AuditEntryView[]> {
   const entries = await em.find(AuditEntry, { tender: tenderId }, { populate: ['actor'], orderBy: { seq: 'asc' } });
-  // Bid entries written before receipts were keyed (migration 20261202170000) carry the bid's
-  // unsalted digest, which a reader could test guesses of the figures against: withheld while the
-  // tender is sealed. The stored entry is unchanged, so the chain still verifies.
-  const sealed = entries.some((e) => e.action.startsWith('bid.') && 'digest' in e.detail)
-    && (await em.count(Tender, { id: tenderId, status: { $in: [...SEALED_TENDER_STATUSES] } })) > 0;
-  return entries.map((e) => ({
+  const sealed = tenderId !== null && (await em.count(Tender, { id: tenderId, status: { $in: [...SEALED_TENDER_STATUSES] } })) > 0;
+  const names = await auditNames(em, entries, sealed);
+  return entries.map((e, i) => ({
+    number: i + 1,
     seq: Number(e.seq),
     at: e.at.toISOString(),
     actor: e.actor ? { id: e.actor.id, name: e.actor.name, role: e.actor.role } : null,
     action: e.action,
     subject: e.subject,
+    description: describeEntry(e, names),
+    // Bid entries written before receipts were keyed (migration 20261202170000) carry the bid's
+    // unsalted digest, which a reader could test guesses of the figures against: withheld while the
+    // tender is sealed. The stored entry is unchanged, so the chain still verifies.
     detail: sealed && e.action.startsWith('bid.') ? withoutDigest(e.detail) : e.detail,
     beforeDigest: e.beforeDigest ?? null,
     afterDigest: e.afterDigest ?? null,
@@ -119,26 +123,41 @@ export async function verifyTrail(em: EntityManager, tenderId: string | null): P
     detail: Record<string, unknown>; before_digest: string | null; after_digest: string | null; prev_hash: string; hash: string;
   }[]>(`select * from audit_entry where tender_id is not distinct from ?::uuid order by seq`, [tenderId]);
   let prev = GENESIS;
-  for (const r of rows) {
+  for (const [i, r] of rows.entries()) {
     const expected = entryHash(prev, {
       at: new Date(r.at), tenderId: r.tender_id, actorId: r.actor_id, action: r.action, subject: r.subject,
       detail: r.detail, beforeDigest: r.before_digest, afterDigest: r.after_digest,
     });
     if (r.prev_hash !== prev || r.hash !== expected) {
-      return { ok: false, entries: rows.length, brokenAt: Number(r.seq), message: `Entry ${r.seq} does not match its recorded hash: the trail was changed after it was written.` };
+      return { ok: false, entries: rows.length, brokenAt: i + 1, message: `Entry ${i + 1} does not match its recorded hash: the trail was changed after it was written.` };
     }
     prev = r.hash;
   }
   return { ok: true, entries: rows.length, brokenAt: null, message: `All ${rows.length} entries verify: each hash matches its content and the entry before it.` };
 }
 
-export async function auditCsv(em: EntityManager, tenderId: string): Promise<string> {
+/** The trail as a spreadsheet-friendly CSV: readable columns first, the chain's technical fields last. */
+export async function auditCsv(em: EntityManager, tenderId: string, timeZone: string): Promise<string> {
   const rows = await auditTrail(em, tenderId);
-  const header = ['seq', 'at (UTC)', 'actor', 'role', 'action', 'subject', 'detail', 'before digest', 'after digest', 'hash'];
+  const header = ['No.', `Time (${timeZone})`, 'Who', 'Role', 'What happened', 'Details', 'Time (UTC, ISO 8601)', 'Action code', 'Before digest', 'After digest', 'Hash'];
   const lines = [header.map(csvCell).join(',')];
+  // "2026-12-03 14:05:12": the procedure's wall time in a form spreadsheets sort and read as a date.
+  const sortableTime = new Intl.DateTimeFormat('sv-SE', {
+    timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit', hourCycle: 'h23',
+  });
   for (const r of rows) {
-    lines.push([r.seq, r.at, r.actor?.name ?? 'system', r.actor?.role ?? '', r.action, r.subject, r.detail, r.beforeDigest, r.afterDigest, r.hash].map(csvCell).join(','));
+    lines.push([
+      r.number, sortableTime.format(new Date(r.at)), r.actor?.name ?? 'System', r.actor ? ROLE_LABELS[r.actor.role as Role] ?? r.actor.role : '',
+      r.description, detailText(r.detail), r.at, r.action, r.beforeDigest, r.afterDigest, r.hash,
+    ].map(csvCell).join(','));
   }
   // A byte-order mark so spreadsheet programs read the file as UTF-8.
   return `\uFEFF${lines.join('\r\n')}\r\n`;
+}
+
+/** `key: value; key: value`, nested values as JSON: readable in a cell, nothing left out. */
+function detailText(detail: Record<string, unknown>): string {
+  return Object.entries(detail)
+    .map(([key, value]) => `${key}: ${typeof value === 'string' ? value : JSON.stringify(value)}`)
+    .join('; ');
 }

@@ -14,6 +14,7 @@ import { sendAfterCommit, type MailOut } from './people.service';
 import { CLOSING_GRACE_MS, findVisibleTender, lockTender } from './tender-access';
 import { clarificationsCloseAt, tenderView } from './tenders.service';
 import { transition } from './transition';
+import { uuidArray } from './sql';
 
 /**
  * The procedure between publication and closing (DEVELOPERS.md, "Clarifications, amendments,
@@ -213,7 +214,7 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     const returned: string[] = [];
     if (changes.regionsRemoved) {
       const removed = regions.filter((r) => changes.regionsRemoved!.some((x) => x.code === r.code));
-      const removedIds = `{${removed.map((r) => r.id).join(',')}}`;
+      const removedIds = uuidArray(removed.map((r) => r.id));
       // Every price given for a removed region is kept, with its code and name, before the region
       // (and by cascade its bid lines) goes: a receipt commits to it (DEVELOPERS.md, "Sealed bids").
       const priced = await tx.execute<{ bid_id: string; status: string; codes: string[] }[]>(
@@ -290,7 +291,7 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     }),
   }));
   if (returned.length) {
-    const orgs = await em.execute<{ organisation_id: string }[]>('select vendor_organisation_id as organisation_id from bid where id = any(?::uuid[])', [`{${returned.join(',')}}`]);
+    const orgs = await em.execute<{ organisation_id: string }[]>('select vendor_organisation_id as organisation_id from bid where id = any(?::uuid[])', [uuidArray(returned)]);
     const affected = new Set(orgs.map((o) => o.organisation_id));
     for (const p of people.filter((x) => affected.has(x.organisationId))) {
       mails.push({

@@ -2,3 +2,11 @@
 export function sqlList(values: readonly string[]): string {
   return values.map((v) => `'${v.replace(/'/g, "''")}'`).join(', ');
 }
+
+/**
+ * Ids as one PostgreSQL array parameter, for `where id = any(?::uuid[])` (a plain JS array would be
+ * spread into several parameters by the query builder). Ids come from the database or are checked.
+ */
+export function uuidArray(ids: readonly string[]): string {
+  return `{${ids.join(',')}}`;
+}

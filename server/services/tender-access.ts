@@ -5,7 +5,7 @@ import { ConflictError, NotFoundError } from '../http/errors';
 import { audit } from './audit.service';
 import { LIVE_BID_STATUSES } from '@shared/tenders';
 import { writeOpeningRecord } from './opening';
-import { sqlList } from './sql';
+import { sqlList, uuidArray } from './sql';
 
 /**
  * How long after its closing time a tender is closed and its bids opened. A bid is on time when its
@@ -63,7 +63,7 @@ async function closeWhere(em: EntityManager, condition: string, params: unknown[
       `update tender set status = 'closed', closed_at = closes_at, updated_at = now()
          where id = any(?::uuid[])
          returning id, (select count(*) from bid where bid.tender_id = tender.id and bid.status in (${sqlList(LIVE_BID_STATUSES)})) as bids`,
-      [`{${locked.map((r) => r.id).join(',')}}`],
+      [uuidArray(locked.map((r) => r.id))],
     );
     for (const row of rows) {
       // The opening record (and the first abnormally-low screen) in the same transaction: its

@@ -4,7 +4,7 @@ import { seed } from '../../server/ops/seed';
 import { DEMO_PASSWORD } from '../../seeds/demo-people';
 import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
-import { openTender, passClosingTime } from '../support/tenders';
+import { openTender, passClosingTime, tenderBody } from '../support/tenders';
 
 /** The buyer → compliance flow on the demo salt tender, through the API with the real engine. */
 jest.setTimeout(120_000);
@@ -178,11 +178,13 @@ test('the audit trail records every decision, verifies, refuses changes, and sho
   const conn = t.em().getConnection();
   await expect(conn.execute(`update audit_entry set action = 'x' where tender_id = ?`, [tenderId])).rejects.toThrow(/append-only/);
   // Someone with the database owner's rights switches the guard off and rewrites history:
-  const victim = trail[2].seq;
+  const victim = trail[2] as { seq: number; number: number };
   await conn.execute(`alter table audit_entry disable trigger audit_entry_no_change`);
-  await conn.execute(`update audit_entry set detail = '{"comment":"changed"}'::jsonb where seq = ?`, [victim]);
+  await conn.execute(`update audit_entry set detail = '{"comment":"changed"}'::jsonb where seq = ?`, [victim.seq]);
   await conn.execute(`alter table audit_entry enable trigger audit_entry_no_change`);
-  expect((await compliance.get(`/api/tenders/${tenderId}/audit/verify`)).body).toMatchObject({ ok: false, brokenAt: victim });
+  // Reported by its number in the tender's own trail (the third entry), as the screen shows it.
+  expect(victim.number).toBe(3);
+  expect((await compliance.get(`/api/tenders/${tenderId}/audit/verify`)).body).toMatchObject({ ok: false, brokenAt: 3 });
   expect(await t.em().count(AuditEntry, { tender: tenderId })).toBe(trail.length);
 });
 
@@ -214,4 +216,30 @@ test('before closing, a bid appears in the trail only as having arrived: its rev
   expect(entry.actor).toBeNull();
   expect(JSON.stringify(openTrail)).not.toContain('81.5');
   expect(JSON.stringify(openTrail)).not.toContain(bid.body.digest);
+  // In words, without the vendor's name while sealed; named once bidding has closed.
+  expect((entry as unknown as { description: string }).description).toBe('Bid received (revision 1)');
+  // (The invitation entry names invited firms; who actually bid is not said until closing.)
+  expect(openTrail.filter((e) => e.action.startsWith('bid.')).map((e) => JSON.stringify(e)).join()).not.toContain(firm.vendorOrganisation!.name);
+  await passClosingTime(t, open.id);
+  const closedTrail = (await buyer.get(`/api/tenders/${open.id}/audit`)).body as { action: string; description: string }[];
+  expect(closedTrail.find((e) => e.action === 'bid.submitted')!.description).toBe(`Bid received from ${firm.vendorOrganisation!.name} (revision 1)`);
+});
+
+test('a tender\'s trail is numbered 1, 2, 3… without gaps although other tenders write in between, and reads in words', async () => {
+  const firm = await makeUser(t, 'vendor');
+  const a = (await buyer.post('/api/tenders', tenderBody(3, 60, { timeZone: 'Europe/Dublin' }))).body.id as string;
+  const b = await openTender(buyer, [firm.vendorOrganisation!.id]);
+  expect((await buyer.post(`/api/tenders/${a}/invitations`, { vendorOrganisationIds: [firm.vendorOrganisation!.id] })).status).toBe(200);
+  expect((await buyer.post(`/api/tenders/${a}/publish`)).status).toBe(200);
+  const trail = (await buyer.get(`/api/tenders/${a}/audit`)).body as { number: number; seq: number; description: string }[];
+  expect(trail.map((e) => e.number)).toEqual(trail.map((_, i) => i + 1));
+  // The store's sequence is shared, so tender b's entries sit between a's: the numbers are a's own.
+  const seqs = trail.map((e) => e.seq);
+  expect(seqs[seqs.length - 1] - seqs[0]).toBeGreaterThan(trail.length - 1);
+  expect(trail.map((e) => e.description)).toEqual(expect.arrayContaining(['Tender created as a draft', 'Tender published and opened for bids']));
+  const csv = await buyer.get(`/api/tenders/${a}/audit.csv`);
+  const [header, first] = csv.text.replace(/^\uFEFF/, '').split('\r\n');
+  expect(header).toBe('"No.","Time (Europe/Dublin)","Who","Role","What happened","Details","Time (UTC, ISO 8601)","Action code","Before digest","After digest","Hash"');
+  expect(first).toMatch(/^1,"\d{4}-\d{2}-\d{2} \d{2}:\d{2}:\d{2}","[^"]+","Buyer","Tender created as a draft",/);
+  expect(b).not.toBe(a);
 });

@@ -17,7 +17,9 @@ const hash2 = '9f86d081884c7d659a2feaa0c55ad015a3bf4f1b2b0b822cd15d6c15b0f00a08'
 
 const entries: AuditEntryView[] = [
   {
-    seq: 1,
+    number: 1,
+    seq: 41,
+    description: 'Bidding closed; 3 bids opened',
     at: '2026-12-01T09:00:00Z',
     actor: { id: 'u1', name: 'Mira Okonjo', role: 'buyer' },
     action: 'tender.closed',
@@ -28,7 +30,9 @@ const entries: AuditEntryView[] = [
     hash: hash1,
   },
   {
-    seq: 2,
+    number: 2,
+    seq: 57,
+    description: 'Award calculation of “All regions split” finished',
     at: '2026-12-01T10:00:00Z',
     actor: null,
     action: 'run.finished',
@@ -68,9 +72,10 @@ describe('AuditTrail', () => {
   it('lists the entries with who did what, and shortens digests keeping the full value in a title', async () => {
     const table = await loader.getHarness(MatTableHarness);
     const rows = await table.getCellTextByColumnName();
+    // The tender's own numbers (no gaps), not the store's shared sequence (41, 57).
     expect(rows['seq'].text).toEqual(['1', '2']);
     expect(rows['actor'].text).toEqual(['Mira OkonjoBuyer', 'System']);
-    expect(rows['action'].text).toEqual(['tender.closed', 'run.finished']);
+    expect(rows['description'].text).toEqual(['Bidding closed; 3 bids opened', 'Award calculation of “All regions split” finished']);
     expect(rows['at'].text[0]).toBe(
       new Intl.DateTimeFormat(undefined, DATE_TIME).format(new Date(entries[0].at)),
     );

@@ -29,7 +29,7 @@ export class AuditTrail {
 
   protected readonly entries = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.audit(params) });
   protected readonly loadError = computed(() => loadErrorMessage(this.entries.error(), 'The audit trail could not be loaded.'));
-  protected readonly columns = ['seq', 'at', 'actor', 'action', 'subject', 'digests'];
+  protected readonly columns = ['seq', 'at', 'actor', 'description', 'digests'];
   protected readonly verification = signal<AuditVerification | null>(null);
   protected readonly verifyError = signal<string | null>(null);
   protected readonly verifying = signal(false);

@@ -4,26 +4,11 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
-import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
+import type { AuditVerification } from '@shared/evaluation';
 import { ROLE_LABELS, type Role } from '@shared/roles';
 import { localDateTime } from '../../awards/award-format';
 import { ApiError } from '../../core/http/api-error';
 import { PeopleApi } from '../people-api';
-
-/** What each admin audit action means, in words. */
-const ACTION_LABELS: Record<string, string> = {
-  'person.invited': 'Invited',
-  'membership.requested': 'Asked a firm to accept',
-  'membership.approved': 'Firm approved',
-  'membership.refused': 'Firm refused',
-  'invitation.resent': 'Invitation link resent',
-  'password.reset-sent': 'Password reset sent',
-  'password.set': 'Password set',
-  'password.reset': 'Password reset used',
-  'person.deactivated': 'Deactivated',
-  'person.reactivated': 'Reactivated',
-  'organisation.registered': 'Organisation registered',
-};
 
 /** How many of the newest entries the page shows. */
 const SHOWN = 50;
@@ -49,7 +34,7 @@ export class AdminAudit {
     const cause = error instanceof ApiError ? error : (error as { cause?: unknown }).cause;
     return cause instanceof ApiError ? cause.userMessage : 'The admin audit trail could not be loaded.';
   });
-  protected readonly columns = ['at', 'actor', 'action', 'about'];
+  protected readonly columns = ['at', 'actor', 'description'];
   protected readonly verification = signal<AuditVerification | null>(null);
   protected readonly verifyMessage = signal('');
   protected readonly when = localDateTime;
@@ -59,20 +44,8 @@ export class AdminAudit {
     this.entries.reload();
   }
 
-  protected actionLabel(action: string): string {
-    return ACTION_LABELS[action] ?? action;
-  }
-
   protected roleLabel(role: string): string {
     return ROLE_LABELS[role as Role] ?? role;
-  }
-
-  /** The person or organisation an entry is about. */
-  protected about(entry: AuditEntryView): string {
-    const d = entry.detail as { email?: string; name?: string; vendorOrganisation?: { name: string } | null };
-    const org = d.vendorOrganisation?.name ? ` · ${d.vendorOrganisation.name}` : '';
-    if (d.email) return `${d.name ? `${d.name} <${d.email}>` : d.email}${org}`;
-    return d.name ?? '';
   }
 
   protected verify(): void {
