@@ -41,6 +41,10 @@ test('a vendor bids by form: sees the live total, submits, and gets the receipt 
   await expect(page.getByText('Draft saved', { exact: true }).count()).resolves.toBeGreaterThan(0);
 
   await page.getByRole('button', { name: 'Submit bid' }).click();
+  // Submitting asks first, with the figures it commits to.
+  const confirm = page.getByRole('dialog').filter({ hasText: 'Submit your bid?' });
+  await confirm.getByText(/You offer 2 of 5 regions, €84,925\.00 at the forecast/).waitFor();
+  await confirm.getByRole('button', { name: 'Submit bid' }).click();
   await page.getByRole('heading', { name: 'Receipt' }).waitFor();
   const digest = (await page.locator('.receipt code').textContent())?.trim() ?? '';
   expect(digest).toMatch(/^[0-9a-f]{64}$/);
@@ -74,12 +78,20 @@ test('a vendor downloads the bid workbook, fills it in, uploads it, reviews the 
 
   await page.locator('input[type=file]').setInputFiles(file);
   await page.getByText('review them, then save or submit').waitFor();
-  await expect(page.getByLabel('Unit price, North district').inputValue()).resolves.toBe('91.5');
+  await expect(page.getByLabel('Unit price, North district').inputValue()).resolves.toBe('91.50');
   await expect(page.getByLabel('Unit price, Central district').inputValue()).resolves.toBe('');
   await expect(page.getByRole('checkbox', { name: 'No cap' }).isChecked()).resolves.toBe(true);
   await expect(page.getByText('Not started').count()).resolves.toBe(1);
+  // The figures from the workbook are not saved yet: leaving the page asks first.
+  await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Tenders' }).click();
+  const leave = page.getByRole('dialog').filter({ hasText: 'Leave without saving?' });
+  await leave.waitFor();
+  await leave.getByRole('button', { name: 'Cancel' }).click();
+  await leave.waitFor({ state: 'detached' });
+  await expect(page.getByLabel('Unit price, North district').inputValue()).resolves.toBe('91.50');
 
   await page.getByRole('button', { name: 'Submit bid' }).click();
+  await page.getByRole('dialog').filter({ hasText: 'Submit your bid?' }).getByRole('button', { name: 'Submit bid' }).click();
   await page.getByRole('heading', { name: 'Receipt' }).waitFor();
   await expect(page.locator('.receipt code').textContent()).resolves.toMatch(/[0-9a-f]{64}/);
   fs.rmSync(dir, { recursive: true, force: true });

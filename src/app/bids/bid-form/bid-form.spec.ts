@@ -3,10 +3,12 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { HarnessLoader } from '@angular/cdk/testing';
 import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { MatButtonHarness } from '@angular/material/button/testing';
+import { MatDialogHarness } from '@angular/material/dialog/testing';
 import { MatInputHarness } from '@angular/material/input/testing';
 import { MATERIAL_ANIMATIONS } from '@angular/material/core';
 import type { BidView, TenderView } from '@shared/tenders';
 import { provideApi } from '../../core/http/provide-api';
+import { withCents } from '../../ui/money-input';
 import { totalAtForecast } from '../bid-total';
 import { BidForm } from './bid-form';
 
@@ -51,6 +53,12 @@ describe('totalAtForecast', () => {
   });
 });
 
+describe('withCents', () => {
+  it('shows money with at least two decimals and keeps finer unit prices as they are', () => {
+    expect([58.4, 12, 0, 3.1416, 1200.05].map(withCents)).toEqual(['58.40', '12.00', '0.00', '3.1416', '1200.05']);
+  });
+});
+
 describe('BidForm', () => {
   let http: HttpTestingController;
   let loader: HarnessLoader;
@@ -78,7 +86,8 @@ describe('BidForm', () => {
 
   it('labels each unit price with its region and keeps the total at the forecast live', async () => {
     const quill = await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Quillstead depot"]' }));
-    expect(await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Harrowven depot"]' }))).getValue()).toBe('12.5');
+    // Money keeps its cents on screen: 12.5 is shown as 12.50.
+    expect(await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Harrowven depot"]' }))).getValue()).toBe('12.50');
     expect(text()).toContain('€5,500.00');
     await quill.setValue('10');
     expect(text()).toContain('€8,500.00');
@@ -96,8 +105,45 @@ describe('BidForm', () => {
     expect(fixture.nativeElement.querySelector('[role=status]').textContent).toContain('Draft saved');
   });
 
+  /** Answers the submit confirmation (it lives in the overlay, outside the component). */
+  async function confirmSubmit(answer: 'Submit bid' | 'Cancel'): Promise<void> {
+    const overlay = TestbedHarnessEnvironment.documentRootLoader(fixture);
+    const dialog = await overlay.getHarness(MatDialogHarness);
+    await (await dialog.getHarness(MatButtonHarness.with({ text: answer }))).click();
+  }
+
+  it('leaves a figure marked in error out of the running total, and says so', async () => {
+    // 500 + 12.5 × 400 = 5,500.00; a negative Quillstead price is not added.
+    await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Quillstead depot"]' }))).setValue('-3');
+    expect(text()).toContain('€5,500.00');
+    expect(text()).toContain('One figure is marked in error and not counted until corrected.');
+  });
+
+  it('asks before submitting, with the figures it commits to; cancelling sends nothing', async () => {
+    await (await loader.getHarness(MatButtonHarness.with({ text: /Submit bid/ }))).click();
+    const overlay = TestbedHarnessEnvironment.documentRootLoader(fixture);
+    const dialog = await overlay.getHarness(MatDialogHarness);
+    expect(await dialog.getTitleText()).toBe('Submit your bid?');
+    // 1 of 2 regions; 500 + 12.5 × 400 = €5,500.00; validity 90 days.
+    expect(await dialog.getContentText()).toContain('You offer 1 of 2 regions, €5,500.00 at the forecast');
+    expect(await dialog.getContentText()).toContain('binding for 90 days');
+    await confirmSubmit('Cancel');
+    http.expectNone({ method: 'PUT' });
+  });
+
+  it('counts typed figures as unsaved until they are saved', async () => {
+    expect(fixture.componentInstance.unsavedChanges()).toBe(false);
+    await (await loader.getHarness(MatInputHarness.with({ selector: '[aria-label="Unit price, Quillstead depot"]' }))).setValue('11');
+    expect(fixture.componentInstance.unsavedChanges()).toBe(true);
+    await (await loader.getHarness(MatButtonHarness.with({ text: 'Save draft' }))).click();
+    http.expectOne({ method: 'PUT', url: `/api/tenders/${tender.id}/bid` }).flush({ ...draft, prices: { HVN: 12.5, QSL: 11 }, version: 4 });
+    await fixture.whenStable();
+    expect(fixture.componentInstance.unsavedChanges()).toBe(false);
+  });
+
   it('on a 409 says the bid changed elsewhere and offers to reload', async () => {
     await (await loader.getHarness(MatButtonHarness.with({ text: /Submit bid/ }))).click();
+    await confirmSubmit('Submit bid');
     http.expectOne({ method: 'PUT', url: `/api/tenders/${tender.id}/bid` }).flush(
       { type: 'about:blank', title: 'Conflict', status: 409, detail: 'This bid was changed elsewhere (another tab or a colleague) since you loaded it. Reload it to see the current figures; nothing was saved.' },
       { status: 409, statusText: 'Conflict' },
@@ -110,7 +156,7 @@ describe('BidForm', () => {
     }
     await reloaded;
     expect(text()).not.toContain('Changed elsewhere');
-    expect(await (await loader.getHarness(MatInputHarness.with({ selector: '[formControlName=fixedFee]' }))).getValue()).toBe('750');
+    expect(await (await loader.getHarness(MatInputHarness.with({ selector: '[formControlName=fixedFee]' }))).getValue()).toBe('750.00');
   });
 
   it('refuses an invalid price with the shared schema message and sends nothing', async () => {

@@ -7,13 +7,14 @@ import { MatDialog } from '@angular/material/dialog';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
-import { bidSaveSchema, isLiveBid, type BidView, type TenderView } from '@shared/tenders';
+import { bidSaveSchema, isLiveBid, type BidSave, type BidView, type TenderView } from '@shared/tenders';
 import { startWith } from 'rxjs';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { hasClosed, localClosingTime, minuteClock } from '../../tenders/closing-time';
 import { BID_STATUS_LABELS } from '../../tenders/tender-status';
 import { money, quantity } from '../../ui/number-format';
-import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { whenConfirmed, type ConfirmData } from '../../ui/confirm-dialog';
+import { MoneyInput } from '../../ui/money-input';
 import { fieldMessage } from '../../ui/zod-validator';
 import { BidApi } from '../bid-api';
 import { totalAtForecast } from '../bid-total';
@@ -24,9 +25,11 @@ import { controlPath } from '@shared/field-path';
 @Component({
   selector: 'app-bid-form',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule],
+  imports: [ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule, MoneyInput],
   templateUrl: './bid-form.html',
   styleUrl: './bid-form.scss',
+  // Closing or reloading the tab with unsaved figures asks first (leaving within the app: the route guard).
+  host: { '(window:beforeunload)': 'warnBeforeUnload($event)' },
 })
 export class BidForm {
   private readonly api = inject(BidApi);
@@ -64,12 +67,19 @@ export class BidForm {
     return bid ? BID_STATUS_LABELS[bid.status] : 'Not started';
   });
   protected readonly submitLabel = computed(() => ((this.bid()?.revision ?? 0) > 0 ? 'Submit revision' : 'Submit bid'));
+  /** The running total counts only figures that pass their checks; those marked in error are left out and counted. */
   protected readonly total = computed(() => {
     this.formValue();
     const t = this.tender();
-    const v = this.form.getRawValue();
-    const sum = totalAtForecast(v.fixedFee, v.prices, t.regions);
-    return { ...sum, text: money(sum.total, t.currency), quantityText: quantity(sum.quantity) };
+    const fee = this.form.controls.fixedFee;
+    const prices: Record<string, number | null> = {};
+    let leftOut = fee.invalid && fee.value !== null ? 1 : 0;
+    for (const [code, control] of Object.entries(this.form.controls.prices.controls)) {
+      if (control.invalid) leftOut += 1;
+      else prices[code] = control.value;
+    }
+    const sum = totalAtForecast(fee.valid ? fee.value : null, prices, t.regions);
+    return { ...sum, leftOut, text: money(sum.total, t.currency), quantityText: quantity(sum.quantity) };
   });
   protected readonly workbookUrl = computed(() => this.api.workbookUrl(this.tender().id));
   protected readonly closingTime = localClosingTime;
@@ -137,6 +147,15 @@ export class BidForm {
     return typeof price === 'number' && price > 0 ? money(price * forecast, this.tender().currency) : '—';
   }
 
+  /** Figures typed or read from a workbook that are not saved yet (nothing to lose once bidding closed). */
+  unsavedChanges(): boolean {
+    return this.form.dirty && !this.isClosed();
+  }
+
+  protected warnBeforeUnload(event: BeforeUnloadEvent): void {
+    if (this.unsavedChanges()) event.preventDefault();
+  }
+
   protected save(submit: boolean): void {
     if (this.busy() || this.isClosed()) return;
     this.failure.set(null);
@@ -151,9 +170,32 @@ export class BidForm {
       this.status.set('Nothing was saved: some figures need attention.');
       return;
     }
+    if (submit) {
+      whenConfirmed(this.dialog, this.submitQuestion()).pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.send(parsed.data));
+    } else {
+      this.send(parsed.data);
+    }
+  }
+
+  /** What submitting commits the vendor to, in figures, before it does. */
+  private submitQuestion(): ConfirmData {
+    const t = this.tender();
+    const total = this.total();
+    const revision = (this.bid()?.revision ?? 0) + 1;
+    return {
+      title: revision > 1 ? `Submit revision ${revision}?` : 'Submit your bid?',
+      message: `You offer ${total.offered} of ${t.regions.length} regions, ${total.text} at the forecast (fixed fee included). `
+        + `Submitted bids are opened at the closing time (${localClosingTime(t.closesAt, t.timeZone)}); until then you can revise or withdraw it. `
+        + `After closing your bid stays binding for ${t.bidValidityDays} days.`,
+      confirm: revision > 1 ? 'Submit revision' : 'Submit bid',
+    };
+  }
+
+  private send(body: BidSave): void {
+    const submit = body.submit;
     this.busy.set(true);
     this.api
-      .save(this.tender().id, parsed.data)
+      .save(this.tender().id, body)
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: (bid) => {
@@ -175,20 +217,14 @@ export class BidForm {
   protected withdraw(): void {
     const bid = this.bid();
     if (!bid || this.busy()) return;
-    this.dialog
-      .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, {
-        maxWidth: '95vw',
-        data: {
-          title: 'Withdraw your bid?',
-          message: `Your bid on ${this.tender().reference} will no longer be considered. You can submit a new one until the closing time (${localClosingTime(this.tender().closesAt, this.tender().timeZone)}).`,
-          confirm: 'Withdraw bid',
-          destructive: true,
-        },
-      })
-      .afterClosed()
+    whenConfirmed(this.dialog, {
+      title: 'Withdraw your bid?',
+      message: `Your bid on ${this.tender().reference} will no longer be considered. You can submit a new one until the closing time (${localClosingTime(this.tender().closesAt, this.tender().timeZone)}).`,
+      confirm: 'Withdraw bid',
+      destructive: true,
+    })
       .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe((confirmed) => {
-        if (!confirmed) return;
+      .subscribe(() => {
         this.busy.set(true);
         this.api
           .withdraw(this.tender().id, bid.version)

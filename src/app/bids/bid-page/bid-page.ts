@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, input } from '@angular/core';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, viewChild } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
@@ -16,6 +16,7 @@ import { TenderApi } from '../../tenders/tender-api';
 import { TENDER_STATUS_LABELS } from '../../tenders/tender-status';
 import { BidForm } from '../bid-form/bid-form';
 import { BidValidity } from '../bid-validity/bid-validity';
+import { type HoldsUnsavedChanges } from '../../ui/unsaved-changes';
 
 /** /tenders/:id for a vendor: the tender it is invited to, and its own bid. */
 @Component({
@@ -25,7 +26,7 @@ import { BidValidity } from '../bid-validity/bid-validity';
   templateUrl: './bid-page.html',
   styleUrl: './bid-page.scss',
 })
-export class BidPage {
+export class BidPage implements HoldsUnsavedChanges {
   private readonly api = inject(TenderApi);
   private readonly title = inject(Title);
 
@@ -44,6 +45,7 @@ export class BidPage {
     return t && t.status !== 'cancelled' ? timeLeft(t.closesAt, this.now()) : '';
   });
   protected readonly statusLabel = TENDER_STATUS_LABELS;
+  private readonly form = viewChild(BidForm);
   protected readonly closingTime = localClosingTime;
 
   constructor() {
@@ -51,6 +53,10 @@ export class BidPage {
       const t = this.tender.value();
       if (t) this.title.setTitle(`Your bid on ${t.reference} · ${PRODUCT_NAME}`);
     });
+  }
+
+  unsavedChanges(): boolean {
+    return this.form()?.unsavedChanges() ?? false;
   }
 
   protected reloadTender(): void {
