@@ -236,8 +236,8 @@ test('compliance reads the recommendation with its caution, approves it, and ver
   await page.getByRole('link', { name: 'Recommendation' }).click();
   await page.getByRole('heading', { name: 'Award recommendation', level: 1 }).waitFor();
   await page.getByText('Awaiting compliance decision').waitFor();
-  await page.getByRole('complementary', { name: 'Caution' }).getByText(/decision support/).waitFor();
-  await page.getByRole('complementary', { name: 'Caution' }).getByText(/legal advice decide/).waitFor();
+  await page.getByRole('complementary', { name: 'Decision support' }).getByText(/decision support/).waitFor();
+  await page.getByRole('complementary', { name: 'Decision support' }).getByText(/legal advice decide/).waitFor();
   await settle(page);
   await screenshot(page, 'recommendation-1280');
   expect(await seriousViolations(page)).toEqual([]);

@@ -10,7 +10,7 @@ export const AWARD_CAUTION =
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [MatIconModule],
   template: `
-    <aside class="caution" aria-label="Caution">
+    <aside class="legal-note" aria-label="Decision support">
       <mat-icon aria-hidden="true">gavel</mat-icon>
       <p>{{ text }}</p>
     </aside>

@@ -139,7 +139,7 @@ describe('NoticeSender', () => {
     expect(page.querySelector('.pane .to')!.textContent).toBe('To: office@brinewick.example, tenders@brinewick.example');
     expect(choices[1].getAttribute('aria-current')).toBe('true');
     expect(choices[0].getAttribute('aria-current')).toBeNull();
-    expect(page.querySelector('.caution')!.textContent).toContain(NOTICE_CAUTION);
+    expect(page.querySelector('.legal-note')!.textContent).toContain(NOTICE_CAUTION);
     expect(page.querySelector<HTMLAnchorElement>('a[download]')!.getAttribute('href')).toBe(
       `/api/tenders/${TENDER_ID}/award-schedule.xlsx`,
     );

@@ -30,7 +30,7 @@ import type { TenderView } from '@shared/tenders';
           <div><dt>Buying body</dt><dd>{{ body.name }}@if (body.address) {, {{ body.address }}} ({{ body.country }}) · {{ body.email }}</dd></div>
         }
       </dl>
-      <p class="caution"><mat-icon aria-hidden="true">info</mat-icon>The tender documents and the buyer's procurement rules govern this procedure.</p>
+      <p class="legal-note"><mat-icon aria-hidden="true">info</mat-icon>The tender documents and the buyer's procurement rules govern this procedure.</p>
     </section>
   `,
   styles: `
@@ -42,13 +42,13 @@ import type { TenderView } from '@shared/tenders';
       background: var(--mat-sys-surface-container-lowest);
     }
     h2 { margin: 0 0 4px; font: var(--mat-sys-title-medium); }
-    .lead, .caution { margin: 0 0 8px; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-medium); }
+    .lead, .legal-note { margin: 0 0 8px; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-medium); }
     ul { margin: 0 0 12px; padding-inline-start: 20px; font: var(--mat-sys-body-large); }
     .terms { display: flex; flex-wrap: wrap; gap: 4px 32px; margin: 0 0 8px; }
     dt { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-label-medium); }
     dd { margin: 0; }
-    .caution { display: flex; align-items: center; gap: 6px; margin: 0; }
-    .caution mat-icon { font-size: 18px; width: 18px; height: 18px; }
+    .legal-note { margin: 0; }
+    .legal-note mat-icon { font-size: 18px; width: 18px; height: 18px; }
   `,
 })
 export class AwardBasisPanel {
