@@ -1,5 +1,6 @@
 import { Routes } from '@angular/router';
 import { authGuard, roleGuard, signedOutGuard } from './core/auth/auth-guard';
+import { validIds } from './core/valid-ids';
 
 /**
  * Public pages stand alone; every other page sits in the shell behind authGuard, and each
@@ -35,11 +36,13 @@ export const routes: Routes = [
       // Deeper tender pages owned by other areas come before 'tenders', which would match them first.
       {
         path: 'tenders/:id/evaluation',
+        canMatch: [validIds],
         canActivate: [roleGuard(['buyer', 'compliance'])],
         loadChildren: () => import('./awards/awards.routes').then((m) => m.AWARD_ROUTES),
       },
       {
         path: 'tenders/:id/notices',
+        canMatch: [validIds],
         canActivate: [roleGuard(['buyer'])],
         loadChildren: () => import('./notices/notices.routes').then((m) => m.NOTICE_SENDER_ROUTES),
       },

@@ -31,11 +31,13 @@ export const AWARD_ROUTES: Routes = [
   {
     path: 'runs/:runId',
     title: 'Run result',
+    canMatch: [validIds],
     loadComponent: () => import('./run-result/run-result').then((m) => m.RunResult),
   },
   {
     path: 'runs/:runId/resilience',
     title: 'Resilience check',
+    canMatch: [validIds],
     loadComponent: () => import('./resilience-table/resilience-table').then((m) => m.ResilienceTable),
   },
 ];

@@ -1,4 +1,5 @@
 import { Routes } from '@angular/router';
+import { validIds } from '../core/valid-ids';
 import { NoticeList } from './notice-list/notice-list';
 
 /**
@@ -11,6 +12,7 @@ export const NOTICE_ROUTES: Routes = [
   {
     path: ':noticeId',
     title: 'Notice',
+    canMatch: [validIds],
     loadComponent: () => import('./notice-reader/notice-reader').then((m) => m.NoticeReader),
   },
 ];

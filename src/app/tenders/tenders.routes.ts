@@ -3,6 +3,7 @@ import { CanMatchFn, Routes } from '@angular/router';
 import type { Role } from '@shared/roles';
 import { Auth } from '../core/auth/auth';
 import { roleGuard } from '../core/auth/auth-guard';
+import { validIds } from '../core/valid-ids';
 import { TenderList } from './tender-list/tender-list';
 
 /** Picks between routes of the same path by role, so /tenders/:id is one link for everybody. */
@@ -25,17 +26,19 @@ export const TENDERS_ROUTES: Routes = [
   {
     path: ':id/edit',
     title: 'Edit tender',
+    canMatch: [validIds],
     canActivate: [roleGuard(['buyer'])],
     loadComponent: () => import('./tender-editor/tender-editor').then((m) => m.TenderEditor),
   },
   {
     path: ':id',
-    canMatch: [forRole(['vendor'])],
+    canMatch: [validIds, forRole(['vendor'])],
     loadChildren: () => import('../bids/bids.routes').then((m) => m.BIDS_ROUTES),
   },
   {
     path: ':id',
     title: 'Tender',
+    canMatch: [validIds],
     loadComponent: () => import('./tender-detail/tender-detail').then((m) => m.TenderDetail),
   },
 ];
