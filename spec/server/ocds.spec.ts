@@ -195,6 +195,13 @@ test('once every bidder is notified an awardUpdate release says so; compliance r
   expect(JSON.parse((file.body as Buffer).toString('utf8'))).toEqual(pkg);
 });
 
+test('a malformed tender id is refused with 400 problem+json naming the id', async () => {
+  const res = await buyer.get('/api/tenders/not-a-tender/ocds');
+  expect({ status: res.status, type: res.type, fields: (res.body.errors as { field: string }[]).map((e) => e.field) }).toEqual({
+    status: 400, type: 'application/problem+json', fields: ['id'],
+  });
+});
+
 test('a draft has no open data yet: 409 problem+json; another buyer gets 404, a vendor 403', async () => {
   const created = await buyer.post('/api/tenders', tenderBody());
   expect(created.status).toBe(201);
