@@ -118,6 +118,12 @@ const settingSchemas = {
   AWARD_SOLVER_THREADS: z.coerce.number().int().min(2).max(64).default(2),
   /** The database of the command-line tools (migrate, seed, migration:create). */
   DATABASE_URL: z.string().default(''),
+  /**
+   * The ocid prefix of the open-data export (GET /api/tenders/:id/ocds): `ocds-` and six letters or
+   * digits. The Open Contracting Partnership's helpdesk registers one per publisher; the default is a
+   * placeholder for the demo, not a registered prefix: a real buyer registers its own and sets it here.
+   */
+  OCDS_OCID_PREFIX: z.string().regex(/^ocds-[a-z0-9]{6}$/, { error: 'OCDS_OCID_PREFIX must be "ocds-" and six lower-case letters or digits, e.g. ocds-abc123.' }).default('ocds-tdr000'),
   /** Set by npm for `npm run` and `npm start`; the API document's version. */
   npm_package_version: z.string().default('0.1.0'),
 } as const;

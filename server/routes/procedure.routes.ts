@@ -4,8 +4,13 @@ import { amendmentInputSchema, answerInputSchema, cancelInputSchema, questionIdP
 import { tenderIdParamSchema } from '@shared/tenders';
 import type { AppDeps } from '../context';
 import { arrivedAt } from '../http/arrival';
+import { exportName, sendDownload } from '../http/download';
 import { route, type AnyRoute } from '../http/route';
+import { ocdsPackage } from '../services/ocds/ocds.service';
 import * as procedure from '../services/procedure.service';
+
+const OCDS_READERS = ['buyer', 'compliance'] as const;
+const OCDS_SUMMARY = 'The procedure as an Open Contracting Data Standard 1.1.5 release package: one release per stage reached (tender, each amendment, opening, award, notices, each contract, or the cancellation). Nothing about the bids before closing; never the estimated value.';
 
 /** Clarifications, amendments and cancellation: the procedure between publication and closing. */
 export function procedureRoutes(deps: AppDeps): AnyRoute[] {
@@ -39,6 +44,19 @@ export function procedureRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'Cancel a draft or open tender with a reason: invited vendors are told, and its bids are never unsealed.',
       responses: { 409: 'The tender has closed' },
       handler: ({ em, user, params, body, req }) => procedure.cancelTender(ctx(em, req), user, params.id, body),
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/ocds', tag: 'Procedure', access: OCDS_READERS, params: tenderIdParamSchema,
+      summary: OCDS_SUMMARY, responses: { 409: 'The tender is a draft: nothing is published yet' },
+      handler: async ({ em, user, params }) => (await ocdsPackage(em, user, params.id, deps.config.publicUrl)).content,
+    }),
+    route({
+      method: 'get', path: '/tenders/:id/ocds.json', tag: 'Procedure', access: OCDS_READERS, params: tenderIdParamSchema, produces: 'application/json',
+      summary: `${OCDS_SUMMARY} As a file to save.`, responses: { 409: 'The tender is a draft: nothing is published yet' },
+      handler: async ({ em, user, params, res }) => {
+        const { reference, content } = await ocdsPackage(em, user, params.id, deps.config.publicUrl);
+        sendDownload(res, { filename: exportName(reference, 'ocds-release-package.json'), content: `${JSON.stringify(content, null, 2)}\n`, type: 'application/json; charset=utf-8' });
+      },
     }),
   ];
 }

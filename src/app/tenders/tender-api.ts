@@ -70,6 +70,11 @@ export class TenderApi {
     return `${this.tenderUrl(id)}/opening-record.xlsx`;
   }
 
+  /** The procedure as an OCDS 1.1.5 release package, a JSON file to save (buyer and compliance, once published). */
+  openDataUrl(id: string): string {
+    return `${this.tenderUrl(id)}/ocds.json`;
+  }
+
   /** The compliance check of one bid (buyer): compliant, or excluded with a ground and a note. */
   checkBid(id: string, bidId: string, input: ComplianceInput): Observable<TabulatedBid> {
     return this.http.put<TabulatedBid>(`${this.tenderUrl(id)}/bids/${encodeURIComponent(bidId)}/compliance`, input);

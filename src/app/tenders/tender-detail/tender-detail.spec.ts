@@ -139,4 +139,28 @@ describe('TenderDetail', () => {
     // Compliance reads; only the buyer records checks.
     expect(await loader.getAllHarnesses(MatButtonHarness.with({ text: /Check|Change/ }))).toHaveLength(0);
   });
+
+  it('offers the buyer of a published tender its open data (OCDS) as a file to save, described by the caution beside it', async () => {
+    await showAs('buyer', open, organisations);
+    const link = (fixture.nativeElement as HTMLElement).querySelector<HTMLAnchorElement>('a[download][href$="/ocds.json"]');
+    // Its name without the icon, which Material hides from assistive technology.
+    const icon = link?.querySelector('mat-icon');
+    expect(icon?.getAttribute('aria-hidden')).toBe('true');
+    expect(link?.textContent?.replace(icon?.textContent ?? '', '').replace(/\s+/g, ' ').trim()).toBe('Open data (OCDS)');
+    expect(link?.getAttribute('href')).toBe(`${tenderUrl}/ocds.json`);
+    const note = (fixture.nativeElement as HTMLElement).querySelector(`#${link?.getAttribute('aria-describedby')}`);
+    expect(note?.textContent?.replace(/\s+/g, ' ').trim()).toContain('Check it against your procurement rules and the law that applies to you before publishing it.');
+  });
+
+  it('gives no open data for a draft: nothing is published yet', async () => {
+    await showAs('buyer', { ...open, status: 'draft', publishedAt: null, submittedBids: 0 }, organisations);
+    expect((fixture.nativeElement as HTMLElement).querySelector('a[href$="/ocds.json"]')).toBeNull();
+    expect(text()).not.toContain('Open data (OCDS)');
+  });
+
+  it('gives an administrator no open-data link (the route is for buyer and compliance)', async () => {
+    await showAs('admin', open);
+    expect((fixture.nativeElement as HTMLElement).querySelector('a[href$="/ocds.json"]')).toBeNull();
+    expect(text()).not.toContain('Open data (OCDS)');
+  });
 });

@@ -57,6 +57,13 @@ export class TenderDetail {
     const status = this.tender()?.status;
     return (role === 'buyer' || role === 'compliance') && !!status && !isSealed(status);
   });
+  /** The open-data file (OCDS): buyer and compliance, once the tender has been published or cancelled. */
+  protected readonly canExportOpenData = computed(() => {
+    const role = this.auth.user()?.role;
+    const status = this.tender()?.status;
+    return (role === 'buyer' || role === 'compliance') && !!status && status !== 'draft';
+  });
+  protected readonly openDataUrl = computed(() => this.api.openDataUrl(this.id()));
   /** Sealed while draft or open, and for ever once cancelled (the server decides; a passed closing time is closed at the next load). */
   protected readonly sealed = computed(() => {
     const t = this.tender();
