@@ -20,7 +20,8 @@ export const NAV_ITEMS: readonly NavItem[] = [
   { label: 'Tenders', icon: 'request_quote', link: '/tenders', roles: ['admin', 'buyer', 'compliance'] },
   // Vendors see only the tenders they are invited to, so the label says whose they are.
   { label: 'My tenders', icon: 'request_quote', link: '/tenders', roles: ['vendor'] },
-  { label: 'Notices', icon: 'mark_email_unread', link: '/notices', roles: ['admin', 'buyer', 'compliance', 'vendor'] },
+  // A plain envelope: an icon with a dot would read as "unread" whether or not anything is.
+  { label: 'Notices', icon: 'mail', link: '/notices', roles: ['admin', 'buyer', 'compliance', 'vendor'] },
   { label: 'People', icon: 'group', link: '/people', roles: ['admin'] },
   // A vendor's own firm: its people, and the contact's approval of new ones.
   { label: 'My organisation', icon: 'domain', link: '/organisation', roles: ['vendor'] },
