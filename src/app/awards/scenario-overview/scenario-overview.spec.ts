@@ -158,3 +158,22 @@ describe('ScenarioOverview', () => {
     expect((await (await scenarioTable()).getCellTextByColumnName())['name'].text).toHaveLength(2);
   });
 });
+
+describe('ScenarioOverview while loading', () => {
+  it('says the runs are loading, not that there are none', async () => {
+    TestBed.configureTestingModule({
+      imports: [ScenarioOverview],
+      providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
+    });
+    const http = TestBed.inject(HttpTestingController);
+    await signInAs('buyer');
+    const fixture = TestBed.createComponent(ScenarioOverview);
+    fixture.componentRef.setInput('id', TENDER_ID);
+    fixture.detectChanges();
+    await fixture.whenStable();
+    const text = (fixture.nativeElement as HTMLElement).textContent;
+    expect(text).toContain('Loading runs…');
+    expect(text).not.toContain('No runs yet');
+    http.match(() => true).forEach((request) => request.flush(null));
+  });
+});
