@@ -86,7 +86,24 @@ export interface MemberView {
   people: { id: string; name: string; email: string; membership: Membership; active: boolean; createdAt: string }[];
 }
 
-/** GET /api/outbox */
+/** GET /api/outbox?q=&page=&pageSize= — a search over subject and addresses, one page at a time. */
+export const outboxQuerySchema = z.object({
+  q: plainText(z.string().trim().max(100, { error: 'Search must be at most 100 characters.' }), 'Search').optional(),
+  page: z.coerce.number({ error: 'Page must be a whole number from 1.' }).int({ error: 'Page must be a whole number from 1.' })
+    .min(1, { error: 'Page must be a whole number from 1.' }).default(1),
+  pageSize: z.coerce.number({ error: 'Page size must be a whole number from 1 to 100.' }).int({ error: 'Page size must be a whole number from 1 to 100.' })
+    .min(1, { error: 'Page size must be a whole number from 1 to 100.' }).max(100, { error: 'Page size must be a whole number from 1 to 100.' }).default(25),
+});
+export type OutboxQuery = z.infer<typeof outboxQuerySchema>;
+
+/** GET /api/outbox: one page of the messages that match, newest first, and how many match in all. */
+export interface OutboxPage {
+  messages: OutboxSummary[];
+  total: number;
+  page: number;
+  pageSize: number;
+}
+
 export interface OutboxSummary {
   id: string;
   from: string;

@@ -1,4 +1,4 @@
-import { idParamSchema } from '@shared/people';
+import { idParamSchema, outboxQuerySchema } from '@shared/people';
 import type { Config } from '../config';
 import { route, type AnyRoute } from '../http/route';
 import { listOutbox, readOutboxMessage } from '../services/outbox.service';
@@ -10,9 +10,9 @@ import { listOutbox, readOutboxMessage } from '../services/outbox.service';
 export function outboxRoutes(config: Pick<Config, 'outboxShowLinks'>): AnyRoute[] {
   return [
     route({
-      method: 'get', path: '/outbox', tag: 'Outbox', access: ['admin'],
-      summary: 'Messages received by the local mail catcher, newest first.',
-      handler: ({ em }) => listOutbox(em),
+      method: 'get', path: '/outbox', tag: 'Outbox', access: ['admin'], query: outboxQuerySchema,
+      summary: 'Messages received by the local mail catcher, newest first, one page at a time; q searches subject and addresses.',
+      handler: ({ em, query }) => listOutbox(em, query),
     }),
     route({
       method: 'get', path: '/outbox/:id', tag: 'Outbox', access: ['admin'], params: idParamSchema,

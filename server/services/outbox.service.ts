@@ -1,7 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { OutboxMessage, OutboxSummary } from '@shared/people';
+import type { OutboxMessage, OutboxPage, OutboxQuery, OutboxSummary } from '@shared/people';
 import { MailMessage } from '../entities';
 import { NotFoundError } from '../http/errors';
+import { escapeLike } from './like';
 
 function summary(m: MailMessage): OutboxSummary {
   return { id: m.id, from: m.fromAddress, to: m.toAddresses, subject: m.subject, date: m.sentAt.toISOString(), hasHtml: !!m.html };
@@ -24,10 +25,25 @@ export interface OutboxOptions {
   showLinks: boolean;
 }
 
-/** Newest first, at most `limit`. */
-export async function listOutbox(em: EntityManager, limit = 500): Promise<OutboxSummary[]> {
-  const messages = await em.find(MailMessage, {}, { orderBy: { sentAt: 'desc', createdAt: 'desc' }, limit });
-  return messages.map(summary);
+/** One page of the messages whose subject or addresses contain `q` (any case), newest first. */
+export async function listOutbox(em: EntityManager, query: OutboxQuery): Promise<OutboxPage> {
+  const where = query.q
+    ? `where m.subject ilike ? or m.from_address ilike ? or array_to_string(m.to_addresses, ' ') ilike ?`
+    : '';
+  const params = query.q ? Array<string>(3).fill(`%${escapeLike(query.q)}%`) : [];
+  const [counted] = await em.execute<{ total: string }[]>(`select count(*) as total from mail_message m ${where}`, params);
+  const ids = await em.execute<{ id: string }[]>(
+    `select m.id from mail_message m ${where} order by m.sent_at desc, m.created_at desc, m.id limit ? offset ?`,
+    [...params, query.pageSize, (query.page - 1) * query.pageSize],
+  );
+  const messages = ids.length ? await em.find(MailMessage, { id: { $in: ids.map((r) => r.id) } }) : [];
+  const byId = new Map(messages.map((m) => [m.id, m]));
+  return {
+    messages: ids.map((r) => summary(byId.get(r.id)!)),
+    total: Number(counted?.total ?? 0),
+    page: query.page,
+    pageSize: query.pageSize,
+  };
 }
 
 export async function readOutboxMessage(em: EntityManager, id: string, options: OutboxOptions): Promise<OutboxMessage> {

@@ -49,6 +49,16 @@ test('the admin invites a person from the People page; the e-mail shows in the O
   const path = await latestLinkTo('lena.hartley@northvale.test');
   await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Outbox' }).click();
   await page.getByRole('heading', { name: 'Outbox', level: 1 }).waitFor();
+  // The search is kept in the address, so a reload or a shared link shows the same messages.
+  await page.getByLabel('Search subject or address').fill('lena.hartley');
+  await page.getByRole('button', { name: 'Search' }).click();
+  await page.waitForURL((u) => u.searchParams.get('q') === 'lena.hartley');
+  await page.reload();
+  await expect(page.getByLabel('Search subject or address').inputValue()).resolves.toBe('lena.hartley');
+  await page.getByRole('row', { name: /lena\.hartley@northvale\.test/ }).first().waitFor();
+  await expect(page.getByRole('row', { name: /vendor1@demo/ }).count()).resolves.toBe(0);
+  await screenshot(page, 'outbox-search-1280');
+  expect(await seriousViolations(page)).toEqual([]);
   await page.getByText('Your Tendara account: set your password').first().click();
   await page.frameLocator('iframe').getByText('Set your password').waitFor();
   await screenshot(page, 'outbox-message-1280');
@@ -84,7 +94,7 @@ test('an admin adds a person to a vendor firm; the firm\'s contact approves them
   await dialog.getByRole('button', { name: 'Send invitation' }).click();
   await page.getByRole('row', { name: /Nadia Quarry/ }).getByText('Awaiting firm’s approval').waitFor();
   await page.getByRole('heading', { name: 'Admin audit trail' }).scrollIntoViewIfNeeded();
-  await page.getByRole('cell', { name: 'Asked a firm to accept' }).first().waitFor();
+  await page.getByRole('cell', { name: /^Asked the firm to accept Nadia Quarry/ }).first().waitFor();
   await screenshot(page, 'people-audit-1280');
   expect(await seriousViolations(page)).toEqual([]);
 

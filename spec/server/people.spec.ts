@@ -128,12 +128,30 @@ test('the outbox lists caught mail newest first and shows one message with text 
   const list = await admin.get('/api/outbox');
   expect(list.status).toBe(200);
   // Newest first (other tests' mail may still be arriving, so look the message up rather than assume it is first).
-  const dates = list.body.map((m: { date: string }) => Date.parse(m.date));
+  const dates = list.body.messages.map((m: { date: string }) => Date.parse(m.date));
   expect(dates).toEqual([...dates].sort((a, b) => b - a));
-  expect(list.body.find((m: { id: string }) => m.id === mail.id)).toMatchObject({ to: ['outbox@council.test'], hasHtml: true });
+  expect(list.body.messages.find((m: { id: string }) => m.id === mail.id)).toMatchObject({ to: ['outbox@council.test'], hasHtml: true });
   const one = await admin.get(`/api/outbox/${mail.id}`);
   expect(one.body.text).toContain('Dear Outbox Reader');
   expect(one.body.html).toContain('<html');
+});
+
+test('the outbox searches subject and addresses (wildcards taken literally) and pages its results', async () => {
+  for (const n of [1, 2, 3]) await admin.post('/api/users', { name: `Paged Reader ${n}`, email: `paged${n}@outbox-search.test`, role: 'buyer' });
+  for (const n of [1, 2, 3]) await waitForMail(t, `paged${n}@outbox-search.test`);
+  const first = await admin.get('/api/outbox?q=OUTBOX-SEARCH&pageSize=2');
+  expect(first.status).toBe(200);
+  expect(first.body).toMatchObject({ total: 3, page: 1, pageSize: 2 });
+  expect(first.body.messages).toHaveLength(2);
+  const second = await admin.get('/api/outbox?q=outbox-search&pageSize=2&page=2');
+  expect(second.body.messages).toHaveLength(1);
+  const seen = [...first.body.messages, ...second.body.messages].map((m: { to: string[] }) => m.to[0]).sort();
+  expect(seen).toEqual(['paged1@outbox-search.test', 'paged2@outbox-search.test', 'paged3@outbox-search.test']);
+  // "%" is a character to find, not "anything".
+  expect((await admin.get('/api/outbox?q=%25')).body.total).toBe(0);
+  const bad = await admin.get('/api/outbox?pageSize=500');
+  expect(bad.status).toBe(400);
+  expect(bad.body.errors[0].field).toBe('pageSize');
 });
 
 test('the API document lists every route with its roles', async () => {

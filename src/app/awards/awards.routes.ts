@@ -1,4 +1,5 @@
 import { Routes } from '@angular/router';
+import { validIds } from '../core/valid-ids';
 
 /**
  * The evaluation of one closed tender, for buyers and compliance. Mount as a componentless route
