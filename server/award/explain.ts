@@ -147,8 +147,11 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
       if (rules.maxVendors !== undefined && run.awards.length >= rules.maxVendors && f.awards.length <= run.awards.length) return 'maxVendors';
       const demand = problem.regions.find((r) => r.id === region)!.demand;
       if (rules.minAwardQuantity !== undefined && rules.minAwardQuantity > demand + EPS && forcedAll > demand + EPS) return 'minAwardQuantity';
+      // Not awarded at all: its fee is what stands between it and the region when the forced award
+      // costs no more than that fee, or its unit price undercuts a price awarded there.
       const extra = f.objective! - runObjective;
-      if (v.fixedFee > 0 && extra <= v.fixedFee + EPS * Math.max(1, v.fixedFee)) return 'fixedFee';
+      const dearestAwarded = Math.max(0, ...run.awards.flatMap((a) => a.lines.filter((l) => l.region === region && l.quantity > 0).map((l) => l.unitPrice)));
+      if (v.fixedFee > 0 && (extra <= v.fixedFee + EPS * Math.max(1, v.fixedFee) || (priceOf(vendor, region) ?? Infinity) < dearestAwarded)) return 'fixedFee';
     }
     return 'price';
   }
