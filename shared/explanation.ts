@@ -137,12 +137,16 @@ const qty = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 4 });
 const pct = new Intl.NumberFormat('en-GB', { maximumFractionDigits: 1 });
 
 /** The reason alone, in the buyer's words (rules named as the published basis names them). */
-export function reasonWords(reason: ExplanationReason, facts: { capacity?: number | null; forecast?: number; unit: string }): string {
+export function reasonWords(reason: ExplanationReason, facts: { capacity?: number | null; forecast?: number; unit: string; fullElsewhere?: boolean }): string {
   switch (reason) {
     case 'capacity':
-      return facts.capacity !== undefined && facts.capacity !== null && facts.forecast !== undefined && facts.capacity < facts.forecast
-        ? `its capacity cap (${qty.format(facts.capacity)} ${facts.unit}) is below the region's forecast (${qty.format(facts.forecast)} ${facts.unit})`
-        : 'its capacity is used in other regions where it saves more';
+      if (facts.capacity !== undefined && facts.capacity !== null && facts.forecast !== undefined && facts.capacity < facts.forecast) {
+        const cap = `its capacity cap (${qty.format(facts.capacity)} ${facts.unit})`;
+        return facts.fullElsewhere
+          ? `${cap} is used in full in other regions where it saves more, and is below this region's forecast (${qty.format(facts.forecast)} ${facts.unit})`
+          : `${cap} is below the region's forecast (${qty.format(facts.forecast)} ${facts.unit})`;
+      }
+      return 'its capacity is used in other regions where it saves more';
     case 'fixedFee':
       return 'its fixed fee would not be recovered by its lower unit price';
     case 'price':

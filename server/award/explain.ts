@@ -189,7 +189,8 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
       const exact = ok && runProven && f.status === 'optimal';
       const extraCostAtLeast = ok && !exact && f.bound !== null ? Math.max(0, f.bound - runObjective) : null;
       const v = problem.vendors.find((x) => x.id === best.vendor)!;
-      const why = reasonWords(reason, { capacity: v.capacity, forecast: r.demand, unit });
+      const fullElsewhere = v.capacity !== null && qtyOf(run, v.id) >= v.capacity - EPS * v.capacity;
+      const why = reasonWords(reason, { capacity: v.capacity, forecast: r.demand, unit, fullElsewhere });
       const figure = extraCost !== null && exact && extraCost <= EPS * Math.max(1, runObjective)
         ? 'an equally cheap award with it exists; the award kept the other'
         : extraCostWords({ extraCost, exact, extraCostAtLeast }, ctx);
@@ -209,7 +210,8 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
   function debriefWords(vendor: string, region: string, neededPrice: number | null, reason: ExplanationReason): string {
     const price = priceOf(vendor, region)!;
     const v = problem.vendors.find((x) => x.id === vendor)!;
-    if (neededPrice === null) return `No unit price would have won it this region: ${reasonWords(reason, { capacity: v.capacity, forecast: regionById.get(region)!.demand, unit })}.`;
+    const fullElsewhere = v.capacity !== null && qtyOf(run, v.id) >= v.capacity - EPS * v.capacity;
+    if (neededPrice === null) return `No unit price would have won it this region: ${reasonWords(reason, { capacity: v.capacity, forecast: regionById.get(region)!.demand, unit, fullElsewhere })}.`;
     const cut = price > 0 ? (price - neededPrice) / price : 0;
     return `It would have been awarded this region at ${moneyWords(neededPrice, ctx)} per ${unit} or less (its bid: ${moneyWords(price, ctx)}, ${percentWords(cut)} lower).`;
   }

@@ -58,7 +58,7 @@ describe('AwardExplanation', () => {
 
   it('offers to explain an award not yet explained, and asks once (no polling while not started)', async () => {
     await answer('GET', view({}));
-    const button = [...page().querySelectorAll('button')].find((b) => b.textContent!.includes('Explain this award'))!;
+    const button = [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Explain this award'))!;
     expect(button.disabled).toBe(false);
     await jest.advanceTimersByTimeAsync(EXPLANATION_POLL_MS * 5);
     http.expectNone(url);
@@ -66,7 +66,7 @@ describe('AwardExplanation', () => {
 
   it('asks for it, shows the progress while the figures are worked out, then the region table and the debrief', async () => {
     await answer('GET', view({}));
-    [...page().querySelectorAll('button')].find((b) => b.textContent!.includes('Explain this award'))!.click();
+    [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Explain this award'))!.click();
     http.expectOne({ method: 'POST', url }).flush(view({ status: 'queued' }));
     fixture.detectChanges();
     await answer('GET', view({ status: 'running', progress: { done: 1, total: 4 } }));
@@ -74,13 +74,13 @@ describe('AwardExplanation', () => {
     expect(page().querySelector('mat-progress-bar')!.getAttribute('aria-valuenow')).toBe('25');
 
     await answer('GET', view({ status: 'done', progress: { done: 4, total: 4 }, result }), EXPLANATION_POLL_MS);
-    const rows = [...page().querySelectorAll('table')[0].querySelectorAll('tbody tr')].map((tr) => [...tr.children].map((c) => c.textContent!.replace(/\s+/g, ' ').trim()));
+    const rows = [...page().querySelectorAll('table')[0].querySelectorAll('tbody tr')].map((tr) => [...tr.children].map((c) => c.textContent.replace(/\s+/g, ' ').trim()));
     expect(rows).toEqual([[
       'North depot1,000 t', 'Northfell Minerals: 1,000 t at €10.00', 'Brackwater Haulage at €7.00',
       'Brackwater Haulage bid €7.00 per t but was not awarded it: its fixed fee would not be recovered by its lower unit price; it would have cost €2,000.00 more.',
     ]]);
     expect(page().textContent).toContain('A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.');
-    const debrief = [...page().querySelectorAll('table')[1].querySelectorAll('tbody td')].map((c) => c.textContent!.trim());
+    const debrief = [...page().querySelectorAll('table')[1].querySelectorAll('tbody td')].map((c) => c.textContent.trim());
     expect(debrief.slice(0, 2)).toEqual(['€7.00', '€4.99']);
     expect(page().textContent).toContain('For the buyer and compliance only');
     // Done: no further request.
