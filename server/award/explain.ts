@@ -11,7 +11,8 @@ import { validateProblem } from './instance';
  * engine's own entry point (`solve`, normally `solveAward`): nothing here models the award itself.
  *
  * - Forced re-solve of vendor i in region j: the problem with every other vendor's bid for j set
- *   aside, so i must supply the whole region. extra = forced total − the run's total (exact when
+ *   aside, so i must supply the whole region. For a vendor with no award, one solve with it
+ *   required settles every region it supplies whole in that award (the cheapest award with it). extra = forced total − the run's total (exact when
  *   both are proven best; else the range the forced solve's bound allows). The reason is read
  *   from the forced award: i gives up quantity elsewhere with its cap (or the vendor-share rule)
  *   reached → capacity; i was not awarded and the extra is at most its fee → fee not recovered;
@@ -164,10 +165,26 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
 
   const concurrency = options.concurrency ?? 2;
   const splitPairs: { vendor: string; region: string }[] = [];
-  await pool(pairs, concurrency, async ({ vendor, region }) => {
-    await forceOne(vendor, region);
+  const settled = (vendor: string, region: string) => {
     if (isSole(region)) tick();
     else splitPairs.push({ vendor, region });
+  };
+  // A vendor with no award, required: the cheapest award that includes it. Every region it supplies
+  // whole there is settled by that one solve — any award with it in such a region includes it, so
+  // none costs less — and its own forced re-solve is saved.
+  const paired = new Set(pairs.map((p) => key(p.vendor, p.region)));
+  await pool(losers, concurrency, async (v) => {
+    const required = await solve({ ...problem, rules: { ...rules, require: [...rules.require, v.id] } });
+    if (!usable(required)) return;
+    for (const r of problem.regions) {
+      if (!paired.has(key(v.id, r.id)) || qtyOf(required, v.id, r.id) < r.demand - EPS * Math.max(1, r.demand)) continue;
+      forced.set(key(v.id, r.id), { result: required, reason: reasonFromForced(v.id, r.id, required) });
+      settled(v.id, r.id);
+    }
+  });
+  await pool(pairs.filter((p) => !forced.has(key(p.vendor, p.region))), concurrency, async ({ vendor, region }) => {
+    await forceOne(vendor, region);
+    settled(vendor, region);
   });
 
   const runProven = run.status === 'optimal';
