@@ -109,6 +109,7 @@ export const explanationViewSchema = z.object({
   progress: z.object({ done: z.number(), total: z.number() }),
   result: explanationResultSchema.nullable(),
   error: z.string().nullable(),
+  /** When it was first asked for, and when its figures were stored. */
   queuedAt: z.string().nullable(),
   computedAt: z.string().nullable(),
 });

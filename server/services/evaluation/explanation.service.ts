@@ -51,7 +51,7 @@ export async function explanationOf(em: EntityManager, user: User, runId: string
     progress: { done: row.progressDone, total: row.progressTotal },
     result: row.status === 'done' ? row.result ?? null : null,
     error: row.error ?? null,
-    queuedAt: row.updatedAt.toISOString(),
+    queuedAt: row.createdAt.toISOString(),
     computedAt: row.computedAt?.toISOString() ?? null,
   };
 }
