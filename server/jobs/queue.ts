@@ -78,8 +78,11 @@ export async function queueNotice(boss: PgBoss, noticeId: string, delaySeconds =
   await boss.send(QUEUES.notice, { noticeId }, { startAfter: delaySeconds, retryLimit: 3, retryDelay: noticeRetrySeconds(), expireInSeconds: 120 });
 }
 
-/** Seconds before the explanation job of a dead worker is handed to another (it re-solves many times). */
-const EXPLAIN_EXPIRE_SECONDS = 3600;
+/**
+ * Seconds before the explanation job of a dead worker is handed to another: it re-solves many
+ * times, and a live job past this is handed out again too (and starts over), so it is long.
+ */
+const EXPLAIN_EXPIRE_SECONDS = 6 * 3600;
 
 /** Queues the explanation of a run on the solve queue (server/jobs/explain-job.ts), so it shares the solve workers. */
 export async function queueExplanation(boss: PgBoss, runId: string): Promise<void> {
