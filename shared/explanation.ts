@@ -21,6 +21,8 @@ export const EXPLANATION_REASONS = [
   'fixedFee',
   /** All costs counted, it is dearer (its unit price is not the lowest once capacity and fees are settled). */
   'price',
+  /** The re-solve found no award within its time limit: nothing can be said. */
+  'unsettled',
   // A rule of the scenario, by the engine's own rule name (shared/award.ts).
   'maxVendors', 'minVendors', 'maxVendorShare', 'maxRegionShare', 'soleRegions', 'minAwardQuantity', 'awardIncrement', 'smeShare', 'require',
 ] as const;
@@ -152,6 +154,8 @@ export function reasonWords(reason: ExplanationReason, facts: { capacity?: numbe
       return 'its fixed fee would not be recovered by its lower unit price';
     case 'price':
       return 'all costs counted, its offer is dearer';
+    case 'unsettled':
+      return 'working the award out again with it did not finish within the time limit';
     case 'soleRegions':
       return `the region goes to one vendor (${LABEL.soleRegions}), and it cannot take the whole region`;
     case 'require':

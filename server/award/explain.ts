@@ -159,7 +159,8 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
 
   async function forceOne(vendor: string, region: string): Promise<void> {
     const result = await solve(forcedProblem(vendor, region));
-    const reason = usable(result) ? reasonFromForced(vendor, region, result) : await blockingRule(vendor, region);
+    const reason = usable(result) ? reasonFromForced(vendor, region, result)
+      : result.status === 'infeasible' ? await blockingRule(vendor, region) : 'unsettled';
     forced.set(key(vendor, region), { result, reason });
   }
 
@@ -208,7 +209,8 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
       const v = problem.vendors.find((x) => x.id === best.vendor)!;
       const fullElsewhere = v.capacity !== null && qtyOf(run, v.id) >= v.capacity - EPS * v.capacity;
       const why = reasonWords(reason, { capacity: v.capacity, forecast: r.demand, unit, fullElsewhere });
-      const figure = extraCost !== null && exact && extraCost <= EPS * Math.max(1, runObjective)
+      const figure = reason === 'unsettled' ? 'no extra cost can be stated'
+        : extraCost !== null && exact && extraCost <= EPS * Math.max(1, runObjective)
         ? 'an equally cheap award with it exists; the award kept the other'
         : extraCostWords({ extraCost, exact, extraCostAtLeast }, ctx);
       challenger = {
@@ -228,6 +230,7 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
     const price = priceOf(vendor, region)!;
     const v = problem.vendors.find((x) => x.id === vendor)!;
     const fullElsewhere = v.capacity !== null && qtyOf(run, v.id) >= v.capacity - EPS * v.capacity;
+    if (neededPrice === null && reason === 'unsettled') return 'Not worked out: working the award out again did not finish within the time limit.';
     if (neededPrice === null) return `No unit price would have won it this region: ${reasonWords(reason, { capacity: v.capacity, forecast: regionById.get(region)!.demand, unit, fullElsewhere })}.`;
     const cut = price > 0 ? (price - neededPrice) / price : 0;
     return `It would have been awarded this region at ${moneyWords(neededPrice, ctx)} per ${unit} or less (its bid: ${moneyWords(price, ctx)}, ${percentWords(cut)} lower).`;
