@@ -257,10 +257,13 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
     const demand = regionById.get(region)!.demand;
     const { step, tolerance } = priceTolerance(price);
     // Whole-region threshold: at or below it the vendor surely gets the region; a part may come at a higher price.
-    let lo = usable(f) ? Math.max(0, floorCent(price - (f.objective! - runObjective) / demand)) : 0;
+    const threshold = usable(f) ? price - (f.objective! - runObjective) / demand : 0;
+    let lo = Math.max(0, floorCent(threshold));
     let hi = price;
     let neededPrice: number | null = null;
-    if (await winsRegion(vendor, region, lo)) {
+    // Below the whole-region threshold the forced award itself beats the run, and every award
+    // without the vendor in the region costs at least the run: it wins there, no solve needed.
+    if ((lo > 0 && lo < threshold) || (await winsRegion(vendor, region, lo))) {
       // Confirm a step above first (usually the end), then bisect what remains.
       const above = Math.min(hi, lo + step);
       if (above < hi && (await winsRegion(vendor, region, above))) {
@@ -301,7 +304,9 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
     }
     let hi = Math.min(1, hint + 1e-6);
     let fraction: number | null = null;
-    let wins = await winsAny(v.id, hi);
+    // Just above the hint that forced award, cut, costs less than the run, and every award without
+    // the vendor costs at least the run: it wins there, no solve needed.
+    let wins = hint < 1 || (await winsAny(v.id, hi));
     if (!wins && hi < 1) { hi = 1; wins = await winsAny(v.id, 1); }
     if (wins) {
       let lo = 0;
