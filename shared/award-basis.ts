@@ -61,7 +61,8 @@ export function describeAwardBasis(basis: AwardBasis, ctx: BasisContext): string
 const RULES = ['sourcing', 'soleRegions', 'maxVendors', 'minVendors', 'maxVendorShare', 'maxRegionShare', 'minAwardQuantity', 'smeShare', 'awardIncrement'] as const;
 type BasisRule = (typeof RULES)[number];
 
-const LABEL: Record<BasisRule, string> = {
+/** Each rule of the basis in the buyer's words (the explanation of an award names rules with these too). */
+export const LABEL: Record<BasisRule, string> = {
   sourcing: 'sourcing',
   soleRegions: 'sole-awarded regions',
   maxVendors: 'maximum number of vendors',

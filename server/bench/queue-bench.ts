@@ -1,5 +1,6 @@
 import { performance } from 'node:perf_hooks';
 import type { RunView } from '@shared/evaluation';
+import type { ExplanationView } from '@shared/explanation';
 import { call, headersOf, signIn, type Session } from './support/http';
 import { drive, percentile, stopLoads, summarise, summaryTable, table, type Summary } from './support/measure';
 import { benchEnv, startServer, startWorker, stopAll, waitForLog, type Proc } from './support/processes';
@@ -29,6 +30,8 @@ const SETUPS = arg('workers', '1,2').split(',').map(Number);
 const RUNS = Number(arg('runs', '20'));
 const TIME_LIMIT = Number(arg('time-limit', '20'));
 const TIMEOUT_MINUTES = Number(arg('timeout-minutes', '30'));
+/** How long the explanation of the sole-award run may take before the row reports it unfinished (0: no explanation row). */
+const EXPLAIN_MINUTES = Number(arg('explain-minutes', '10'));
 /** The workers' niceness per set-up (worker.ts, WORKER_NICE), e.g. `--workers 2,2 --worker-nice 0,5`; else their default. */
 const NICE = process.argv.includes('--worker-nice') ? arg('worker-nice', '').split(',') : [];
 /** The workers' scheduling class per set-up (worker.ts, WORKER_SCHED: idle or normal); else their default. */
@@ -198,6 +201,39 @@ async function main(): Promise<void> {
   const results: SetupResult[] = [];
   for (const [k, workers] of SETUPS.entries()) results.push(await runSetup(databaseUrl, url, buyer, tenders[k].id, scenarioIds[k], workers, workerEnv(k), deadline));
   report(results);
+  if (EXPLAIN_MINUTES > 0) await explanationRow(url, buyer, results[0].runs, deadline);
+}
+
+/**
+ * The explanation of the 'Sole' run (30 × 200, every region sole-awarded) on one worker, asked for
+ * through the API and followed as the run screen does; prints the run's own solve seconds, the
+ * explanation's seconds and their ratio (target: at most 10). An explanation still running after
+ * `--explain-minutes` is reported with its progress and the time it would take at that pace.
+ */
+async function explanationRow(url: string, buyer: Session, runs: RunView[], deadline: number): Promise<void> {
+  const sole = runs.find((r) => r.scenarioName === 'Sole' && r.result?.objective !== null && r.result?.objective !== undefined);
+  if (!sole) { log('no finished Sole run: no explanation row'); return; }
+  const worker = startWorker(1, {});
+  await waitForLog(worker, 'worker ready');
+  const until = Math.min(deadline, Date.now() + EXPLAIN_MINUTES * 60_000);
+  const t0 = performance.now();
+  const asked = await call<ExplanationView>(url, buyer, 'POST', `/api/runs/${sole.id}/explanation`);
+  if (asked.status !== 202 && asked.status !== 200) throw new Error(`POST explanation: ${asked.status} ${JSON.stringify(asked.body)}`);
+  let view = asked.body;
+  while ((view.status === 'queued' || view.status === 'running') && Date.now() < until) {
+    await new Promise((resolve) => setTimeout(resolve, 2000));
+    view = (await call<ExplanationView>(url, buyer, 'GET', `/api/runs/${sole.id}/explanation`)).body;
+  }
+  const seconds = (performance.now() - t0) / 1000;
+  await worker.stop();
+  const solveSeconds = sole.result!.solveSeconds;
+  const finished = view.status === 'done';
+  const pace = view.progress.done > 0 ? (seconds * view.progress.total) / view.progress.done : NaN;
+  process.stdout.write(`\nExplanation of the 'Sole' run (30 x 200, each region to one vendor), one worker:\n${table(
+    ['run solve s', 'explanation s', 'ratio (target <= 10)', 'status', 're-solves', 'progress', 'projected s at this pace'],
+    [[fmt(solveSeconds), fmt(seconds), fmt(seconds / solveSeconds), view.status, String(view.result?.solves ?? '-'),
+      `${view.progress.done}/${view.progress.total}`, finished ? fmt(seconds) : fmt(pace, 0)]],
+  )}\n`);
 }
 
 // Ctrl-C: support/processes.ts stops the server and workers; the load stops too, or the server

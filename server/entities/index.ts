@@ -14,6 +14,7 @@ import { Recommendation } from './recommendation.entity';
 import { Region } from './region.entity';
 import { Run } from './run.entity';
 import { RunAward } from './run-award.entity';
+import { RunExplanation } from './run-explanation.entity';
 import { Scenario } from './scenario.entity';
 import { Tender } from './tender.entity';
 import { User } from './user.entity';
@@ -21,7 +22,7 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
-  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine];
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation];
 export {
-  AccountToken, Amendment, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, Amendment, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

@@ -14,6 +14,11 @@ function jsonSchema(schema: z.ZodType): object {
   return z.toJSONSchema(schema, { io: 'input', unrepresentable: 'any', target: 'draft-2020-12' });
 }
 
+/** A success body's schema, as the server sends it. */
+function responseSchema(schema: z.ZodType): object {
+  return z.toJSONSchema(schema, { io: 'output', unrepresentable: 'any', target: 'draft-2020-12' });
+}
+
 /** The OpenAPI 3.1 document, derived from the same route list that Express mounts. */
 export function openApiDocument(routes: readonly AnyRoute[], version: string): object {
   const paths: Record<string, Record<string, object>> = {};
@@ -33,7 +38,7 @@ export function openApiDocument(routes: readonly AnyRoute[], version: string): o
     const responses: Record<string, object> = {
       [status]: {
         description: r.responses?.[status] ?? (status === 204 ? 'Done' : 'Success'),
-        ...(status === 204 ? {} : { content: { [r.produces ?? 'application/json']: {} } }),
+        ...(status === 204 ? {} : { content: { [r.produces ?? 'application/json']: r.response ? { schema: responseSchema(r.response) } : {} } }),
       },
       400: { description: 'Invalid input; `errors` names each field', content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } } },
     };
@@ -45,7 +50,7 @@ export function openApiDocument(routes: readonly AnyRoute[], version: string): o
       if (Number(code) === status) continue;
       // Another success (e.g. 200 beside 202 for an idempotent request) carries the route's own body.
       responses[code] = Number(code) < 400
-        ? { description, content: { [r.produces ?? 'application/json']: {} } }
+        ? { description, content: { [r.produces ?? 'application/json']: r.response ? { schema: responseSchema(r.response) } : {} } }
         : { description, content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } } };
     }
     paths[path] ??= {};

@@ -45,6 +45,8 @@ export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
   status?: number;
   /** Response descriptions for the OpenAPI document, by status. */
   responses?: Record<number, string>;
+  /** The shape of the success body, for the OpenAPI document (a zod schema from `shared/`). */
+  response?: z.ZodType;
   /** The success body's content type when it is not JSON (exports). */
   produces?: string;
   /** A multipart upload of one file in `field` (kept in memory, at most `maxBytes`). */

@@ -77,3 +77,14 @@ export const noticeRetryLimit = () => setting('NOTICE_RETRY_LIMIT');
 export async function queueNotice(boss: PgBoss, noticeId: string, delaySeconds = 0): Promise<void> {
   await boss.send(QUEUES.notice, { noticeId }, { startAfter: delaySeconds, retryLimit: 3, retryDelay: noticeRetrySeconds(), expireInSeconds: 120 });
 }
+
+/**
+ * Seconds before the explanation job of a dead worker is handed to another: it re-solves many
+ * times, and a live job past this is handed out again too (and starts over), so it is long.
+ */
+const EXPLAIN_EXPIRE_SECONDS = 6 * 3600;
+
+/** Queues the explanation of a run on the solve queue (server/jobs/explain-job.ts), so it shares the solve workers. */
+export async function queueExplanation(boss: PgBoss, runId: string): Promise<void> {
+  await boss.send(QUEUES.solve, { runId, explain: true }, { retryLimit: 2, retryDelay: 5, expireInSeconds: EXPLAIN_EXPIRE_SECONDS });
+}

@@ -1,10 +1,12 @@
 import { z } from 'zod';
 import { compareQuerySchema, decisionInputSchema, recommendationInputSchema, returnInputSchema, scenarioInputSchema } from '@shared/evaluation';
+import { explanationViewSchema } from '@shared/explanation';
 import { tenderIdParamSchema } from '@shared/tenders';
 import type { AppDeps } from '../context';
 import { route, type AnyRoute } from '../http/route';
 import { auditCsv, auditTrail, verifyTrail } from '../services/audit.service';
 import { currentRecommendation, decide, recommend } from '../services/evaluation/recommendation.service';
+import { explanationOf, startExplanation } from '../services/evaluation/explanation.service';
 import { compareRuns, findRun, resilienceOf, runView, startResilience } from '../services/evaluation/results.service';
 import { findVisibleTender } from '../services/tender-access';
 import { cancelRun, createScenario, listRuns, listScenarios, queueRun, updateScenario } from '../services/evaluation/scenarios.service';
@@ -83,6 +85,20 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
       method: 'get', path: '/runs/:id/resilience', tag: 'Evaluation', access: EVALUATORS, params: id,
       summary: 'The cost (or infeasibility) of the award if each awarded vendor dropped out; the worst case marked.',
       handler: ({ em, user, params }) => resilienceOf(em, user, params.id),
+    }),
+    route({
+      method: 'post', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, status: 202, response: explanationViewSchema,
+      summary: "Explain the run's award, region by region, and debrief the vendors who lost (re-solves on the solve queue; poll GET). Idempotent: one per run; a failed one is queued again.",
+      responses: { 200: 'The explanation already exists (queued, running or done): nothing queued', 202: 'Queued', 409: 'The run has no award' },
+      handler: async ({ em, user, params, res }) => {
+        const { view, queued } = await startExplanation(ctx(em), user, params.id);
+        res.status(queued ? 202 : 200).json(view);
+      },
+    }),
+    route({
+      method: 'get', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, response: explanationViewSchema,
+      summary: 'Why each region went where it did (the cheapest bid not awarded there, the reason and the extra cost of forcing it), and each losing vendor\'s debrief: the unit price per region and the uniform cut it would have needed. Buyer and compliance only.',
+      handler: ({ em, user, params }) => explanationOf(em, user, params.id),
     }),
     route({
       method: 'get', path: '/tenders/:id/recommendation', tag: 'Evaluation', access: EVALUATORS, params: tenderIdParamSchema,

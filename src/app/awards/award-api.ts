@@ -12,6 +12,7 @@ import type {
   ScenarioInput,
   ScenarioView,
 } from '@shared/evaluation';
+import type { ExplanationView } from '@shared/explanation';
 import type { BidsAnswer, TenderView } from '@shared/tenders';
 import { Observable, map } from 'rxjs';
 import { API_BASE_URL } from '../core/http/api-base-url';
@@ -84,6 +85,16 @@ export class AwardApi {
 
   resilience(runId: string): Observable<ResilienceView> {
     return this.http.get<ResilienceView>(`${this.runUrl(runId)}/resilience`);
+  }
+
+  /** Why each region went where it did, and the losing vendors' debrief (status 'not-started' until asked for). */
+  explanation(runId: string): Observable<ExplanationView> {
+    return this.http.get<ExplanationView>(`${this.runUrl(runId)}/explanation`);
+  }
+
+  /** Asks for the explanation (queued on the solve queue; answered with its state). */
+  explain(runId: string): Observable<ExplanationView> {
+    return this.http.post<ExplanationView>(`${this.runUrl(runId)}/explanation`, {});
   }
 
   recommendation(tenderId: string): Observable<RecommendationView | null> {

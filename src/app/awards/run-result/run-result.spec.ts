@@ -39,6 +39,8 @@ describe('RunResult', () => {
   });
 
   afterEach(() => {
+    // The explanation section asks for its own state; its spec (award-explanation.spec.ts) checks that.
+    http.match(`${runUrl}/explanation`);
     http.verify();
     jest.useRealTimers();
     jest.restoreAllMocks();

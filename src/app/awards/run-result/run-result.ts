@@ -12,6 +12,7 @@ import { Auth } from '../../core/auth/auth';
 import { ApiError } from '../../core/http/api-error';
 import { AllocationMatrix, type MatrixRegion } from '../allocation-matrix/allocation-matrix';
 import { AwardApi } from '../award-api';
+import { AwardExplanation } from '../award-explanation/award-explanation';
 import { AwardCaution } from '../award-caution';
 import { fractionPercent, money, quantity } from '../../ui/number-format';
 import { RecommendDialog, type RecommendDialogData } from '../recommend-dialog/recommend-dialog';
@@ -33,6 +34,7 @@ export const RUN_POLL_MS = 1000;
     MatTableModule,
     AllocationMatrix,
     AwardCaution,
+    AwardExplanation,
     ShareChart,
   ],
   templateUrl: './run-result.html',

@@ -1,0 +1,57 @@
+import { randomUUID } from 'node:crypto';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { AwardResult } from '@shared/award';
+import type { ExplanationView } from '@shared/explanation';
+import { SEALED_TENDER_STATUSES, TENDER_STATUSES } from '@shared/tenders';
+import { RunExplanation, type User } from '../../entities';
+import { ConflictError } from '../../http/errors';
+import { queueExplanation } from '../../jobs/queue';
+import { audit } from '../audit.service';
+import { lockTender } from '../tender-access';
+import { findRun } from './results.service';
+import type { EvaluationDeps } from './scenarios.service';
+
+const usable = (r: AwardResult | null | undefined) => !!r && (r.status === 'optimal' || r.status === 'feasible') && r.objective !== null;
+
+/** Runs exist only after closing; an explanation is asked for on any unsealed tender (awarded ones included: it changes nothing). */
+const UNSEALED = TENDER_STATUSES.filter((s) => !(SEALED_TENDER_STATUSES as readonly string[]).includes(s));
+
+/**
+ * Queues the explanation of a run with an award (a job on the solve queue). Idempotent: one per run;
+ * a queued, running or done one is answered as it is (`queued: false`), a failed one is queued again.
+ */
+export async function startExplanation(deps: EvaluationDeps, user: User, runId: string): Promise<{ view: ExplanationView; queued: boolean }> {
+  const run = await findRun(deps.em, user, runId);
+  if (!usable(run.result)) throw new ConflictError('Only a run with an award can be explained.');
+  const queued = await deps.em.transactional(async (tx) => {
+    await lockTender(tx, user, run.tender.id, UNSEALED, 'The bids of this tender are sealed.');
+    const rows = await tx.execute<{ id: string }[]>(
+      `insert into run_explanation (id, run_id, requested_by_id, status) values (?, ?, ?, 'queued')
+         on conflict (run_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
+         where run_explanation.status = 'failed'
+       returning id`,
+      [randomUUID(), run.id, user.id],
+    );
+    if (!rows.length) return false;
+    await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.explanation-queued', subject: `run ${run.id}` });
+    return true;
+  });
+  if (queued) await queueExplanation(deps.boss, run.id);
+  return { view: await explanationOf(deps.em, user, runId), queued };
+}
+
+/** GET /api/runs/:id/explanation: where the job is, and its result once done. */
+export async function explanationOf(em: EntityManager, user: User, runId: string): Promise<ExplanationView> {
+  const run = await findRun(em, user, runId);
+  const row = await em.fork().findOne(RunExplanation, { run: run.id });
+  if (!row) return { runId: run.id, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null };
+  return {
+    runId: run.id,
+    status: row.status,
+    progress: { done: row.progressDone, total: row.progressTotal },
+    result: row.status === 'done' ? row.result ?? null : null,
+    error: row.error ?? null,
+    queuedAt: row.createdAt.toISOString(),
+    computedAt: row.computedAt?.toISOString() ?? null,
+  };
+}

@@ -1,0 +1,90 @@
+import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { MATERIAL_ANIMATIONS } from '@angular/material/core';
+import type { ExplanationResult, ExplanationView } from '@shared/explanation';
+import { provideApi } from '../../core/http/provide-api';
+import { RUN_ID } from '../testing/award-fixtures';
+import { AwardExplanation, EXPLANATION_POLL_MS } from './award-explanation';
+
+const url = `/api/runs/${RUN_ID}/explanation`;
+
+/** Fictional: North goes to Northfell Minerals; Brackwater Haulage (no award) lost it on its fee. */
+const result: ExplanationResult = {
+  currency: 'EUR', unit: 't', objective: 30000, runProven: true, solves: 4, seconds: 0.4,
+  regions: [{
+    region: 'R01', regionName: 'North depot', forecast: 1000,
+    awarded: [{ vendor: 'v-north', vendorName: 'Northfell Minerals', quantity: 1000, unitPrice: 10 }],
+    challenger: {
+      vendor: 'v-brack', vendorName: 'Brackwater Haulage', unitPrice: 7, reason: 'fixedFee', exact: true, extraCost: 2000, extraCostAtLeast: null,
+      words: 'Brackwater Haulage bid €7.00 per t but was not awarded it: its fixed fee would not be recovered by its lower unit price; it would have cost €2,000.00 more.',
+    },
+  }],
+  debrief: [{
+    vendor: 'v-brack', vendorName: 'Brackwater Haulage', awarded: false,
+    regions: [{ region: 'R01', regionName: 'North depot', unitPrice: 7, neededPrice: 4.99, tolerance: 'cent', reason: 'fixedFee', words: 'It would have been awarded this region at €4.99 per t or less (its bid: €7.00, 28.7 % lower).' }],
+    uniformReduction: { fraction: 0.167, tolerance: 'percent', words: 'A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.' },
+  }],
+};
+const view = (over: Partial<ExplanationView>): ExplanationView => ({
+  runId: RUN_ID, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, ...over,
+});
+
+describe('AwardExplanation', () => {
+  let http: HttpTestingController;
+  let fixture: ComponentFixture<AwardExplanation>;
+  const page = () => fixture.nativeElement as HTMLElement;
+
+  beforeEach(() => {
+    jest.useFakeTimers();
+    TestBed.configureTestingModule({
+      imports: [AwardExplanation],
+      providers: [provideApi(), provideHttpClientTesting(), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
+    });
+    http = TestBed.inject(HttpTestingController);
+    fixture = TestBed.createComponent(AwardExplanation);
+    fixture.componentRef.setInput('runId', RUN_ID);
+    fixture.detectChanges();
+  });
+  afterEach(() => {
+    http.verify();
+    jest.useRealTimers();
+  });
+
+  async function answer(method: 'GET' | 'POST', body: ExplanationView, advanceMs = 0): Promise<void> {
+    await jest.advanceTimersByTimeAsync(advanceMs);
+    http.expectOne({ method, url }).flush(body);
+    fixture.detectChanges();
+  }
+
+  it('offers to explain an award not yet explained, and asks once (no polling while not started)', async () => {
+    await answer('GET', view({}));
+    const button = [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Explain this award'))!;
+    expect(button.disabled).toBe(false);
+    await jest.advanceTimersByTimeAsync(EXPLANATION_POLL_MS * 5);
+    http.expectNone(url);
+  });
+
+  it('asks for it, shows the progress while the figures are worked out, then the region table and the debrief', async () => {
+    await answer('GET', view({}));
+    [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Explain this award'))!.click();
+    http.expectOne({ method: 'POST', url }).flush(view({ status: 'queued' }));
+    fixture.detectChanges();
+    await answer('GET', view({ status: 'running', progress: { done: 1, total: 4 } }));
+    expect(page().querySelector('[role=status]')!.textContent).toContain('1 of 4 done');
+    expect(page().querySelector('mat-progress-bar')!.getAttribute('aria-valuenow')).toBe('25');
+
+    await answer('GET', view({ status: 'done', progress: { done: 4, total: 4 }, result }), EXPLANATION_POLL_MS);
+    const rows = [...page().querySelectorAll('table')[0].querySelectorAll('tbody tr')].map((tr) => [...tr.children].map((c) => c.textContent.replace(/\s+/g, ' ').trim()));
+    expect(rows).toEqual([[
+      'North depot1,000 t', 'Northfell Minerals: 1,000 t at €10.00', 'Brackwater Haulage at €7.00',
+      'Brackwater Haulage bid €7.00 per t but was not awarded it: its fixed fee would not be recovered by its lower unit price; it would have cost €2,000.00 more.',
+    ]]);
+    expect(page().textContent).toContain('A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.');
+    const debrief = [...page().querySelectorAll('table')[1].querySelectorAll('tbody td')].map((c) => c.textContent.trim());
+    expect(debrief.slice(0, 2)).toEqual(['€7.00', '€4.99']);
+    expect(page().textContent).toContain('For the buyer and compliance only');
+    // Done: no further request.
+    await jest.advanceTimersByTimeAsync(EXPLANATION_POLL_MS * 5);
+    http.expectNone(url);
+  });
+});

@@ -1,0 +1,107 @@
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
+import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
+import { MatProgressBarModule } from '@angular/material/progress-bar';
+import type { ExplanationView } from '@shared/explanation';
+import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
+import { ApiError } from '../../core/http/api-error';
+import { AwardApi } from '../award-api';
+import { fractionPercent, money, quantity } from '../../ui/number-format';
+
+/** How often an explanation being computed is asked for again. */
+export const EXPLANATION_POLL_MS = 1000;
+
+const busy = (v: ExplanationView | null) => v !== null && (v.status === 'queued' || v.status === 'running');
+
+/**
+ * "Why this award" beside the allocation matrix, and the losing vendors' debrief, of one run with
+ * an award (buyer and compliance only). Asked for with a button; its progress shown while the
+ * figures are re-computed on the server.
+ */
+@Component({
+  selector: 'app-award-explanation',
+  changeDetection: ChangeDetectionStrategy.OnPush,
+  imports: [MatButtonModule, MatIconModule, MatProgressBarModule],
+  templateUrl: './award-explanation.html',
+  styleUrl: './award-explanation.scss',
+})
+export class AwardExplanation {
+  private readonly api = inject(AwardApi);
+  private readonly destroyRef = inject(DestroyRef);
+
+  readonly runId = input.required<string>();
+
+  protected readonly view = signal<ExplanationView | null>(null);
+  protected readonly error = signal<string | null>(null);
+  protected readonly asking = signal(false);
+  private readonly attempt = signal(0);
+
+  protected readonly result = computed(() => this.view()?.result ?? null);
+  protected readonly percentDone = computed(() => {
+    const p = this.view()?.progress;
+    return p && p.total > 0 ? Math.round((p.done / p.total) * 100) : 0;
+  });
+  protected readonly statusText = computed(() => {
+    const v = this.view();
+    if (!v) return '';
+    if (v.status === 'queued') return 'Waiting for a free solver…';
+    if (v.status === 'running') return `Re-computing the award with each alternative: ${v.progress.done} of ${v.progress.total} done.`;
+    if (v.status === 'done') return 'Explanation ready.';
+    return '';
+  });
+  protected readonly losers = computed(() => (this.result()?.debrief ?? []).filter((d) => !d.awarded));
+  protected readonly winners = computed(() => (this.result()?.debrief ?? []).filter((d) => d.awarded));
+
+  constructor() {
+    // Asked at once; again every second while queued or running; a new run id starts over.
+    toObservable(computed(() => ({ runId: this.runId(), attempt: this.attempt() })))
+      .pipe(
+        switchMap(({ runId }) =>
+          timer(0, EXPLANATION_POLL_MS).pipe(
+            exhaustMap(() => this.api.explanation(runId)),
+            takeWhile((v) => busy(v), true),
+            catchError((error: unknown) => {
+              this.error.set(error instanceof ApiError ? error.userMessage : 'The explanation could not be loaded.');
+              return of(null);
+            }),
+          ),
+        ),
+        takeUntilDestroyed(),
+      )
+      .subscribe((v) => {
+        if (v) this.view.set(v);
+      });
+  }
+
+  protected explain(): void {
+    this.asking.set(true);
+    this.error.set(null);
+    this.api
+      .explain(this.runId())
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (v) => {
+          this.asking.set(false);
+          this.view.set(v);
+          this.attempt.update((n) => n + 1);
+        },
+        error: (error: unknown) => {
+          this.asking.set(false);
+          this.error.set(error instanceof ApiError ? error.userMessage : 'The explanation could not be started.');
+        },
+      });
+  }
+
+  protected money(value: number | null): string {
+    return value === null ? '—' : money(value, this.result()?.currency ?? 'EUR');
+  }
+
+  protected qty(value: number): string {
+    return `${quantity(value)} ${this.result()?.unit ?? ''}`.trim();
+  }
+
+  protected percent(fraction: number): string {
+    return fractionPercent(fraction, 1);
+  }
+}
