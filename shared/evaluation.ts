@@ -87,6 +87,11 @@ export interface RunView extends RunSummary {
   /** SHA-256 of the exact problem solved (bids and rules). */
   inputDigest: string;
   result: AwardResult | null;
+  /** A re-solve of another run (drop-out or forecast sensitivity): that run's id; else null. */
+  parentRunId: string | null;
+  /** Forecast sensitivity re-solve: the change in per cent, and the one region changed (null: all). */
+  forecastChangePercent: number | null;
+  scaledRegion: string | null;
   /** Names for the ids in `result`. */
   vendors: Record<string, { name: string; sme: boolean }>;
   regions: Record<string, { name: string; forecast: number }>;

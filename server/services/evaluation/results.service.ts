@@ -43,6 +43,9 @@ export async function runView(em: EntityManager, user: User, runId: string): Pro
     unit: run.tender.unit,
     inputDigest: run.inputDigest,
     result: run.result ?? null,
+    parentRunId: run.parent?.id ?? null,
+    forecastChangePercent: run.forecastChangePercent ?? null,
+    scaledRegion: run.scaledRegion ?? null,
     ...names,
   };
 }

@@ -11,6 +11,7 @@ import type {
   RunView,
   ScenarioInput,
   ScenarioView,
+  SensitivityView,
 } from '@shared/evaluation';
 import type { BidsAnswer, TenderView } from '@shared/tenders';
 import { Observable, map } from 'rxjs';
@@ -84,6 +85,20 @@ export class AwardApi {
 
   resilience(runId: string): Observable<ResilienceView> {
     return this.http.get<ResilienceView>(`${this.runUrl(runId)}/resilience`);
+  }
+
+  /** Queues the forecast sensitivity re-solves (all regions, or one region alone); cached per run. */
+  startSensitivity(runId: string, regionCode?: string): Observable<{ queued: number }> {
+    return this.http.post<{ queued: number }>(`${this.runUrl(runId)}/sensitivity`, regionCode ? { regionCode } : {});
+  }
+
+  sensitivity(runId: string): Observable<SensitivityView> {
+    return this.http.get<SensitivityView>(`${this.runUrl(runId)}/sensitivity`);
+  }
+
+  /** The bid tabulation (after closing: every bid with its compliance check). */
+  bids(tenderId: string): Observable<BidsAnswer> {
+    return this.http.get<BidsAnswer>(`${this.tenderUrl(tenderId)}/bids`);
   }
 
   recommendation(tenderId: string): Observable<RecommendationView | null> {
