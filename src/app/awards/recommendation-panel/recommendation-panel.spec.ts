@@ -3,6 +3,7 @@ import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { MatButtonHarness } from '@angular/material/button/testing';
 import { MatDialogHarness } from '@angular/material/dialog/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { MATERIAL_ANIMATIONS } from '@angular/material/core';
 import { provideRouter } from '@angular/router';
 import type { RecommendationView } from '@shared/evaluation';
 import { provideApi } from '../../core/http/provide-api';
@@ -33,7 +34,7 @@ describe('RecommendationPanel', () => {
   async function open(role: 'buyer' | 'compliance', recommendation: RecommendationView | null, run = runView()): Promise<HTMLElement> {
     TestBed.configureTestingModule({
       imports: [RecommendationPanel],
-      providers: [provideApi(), provideHttpClientTesting(), provideRouter([])],
+      providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
     });
     http = TestBed.inject(HttpTestingController);
     await signInAs(role);
@@ -106,6 +107,7 @@ describe('RecommendationPanel', () => {
     button(page, 'Approve award').click();
     dialog = await confirmDialog();
     await (await dialog.getHarness(MatButtonHarness.with({ text: 'Approve award' }))).click();
+    await fixture.whenStable();
     const request = http.expectOne({ method: 'POST', url: `${base}/approve` });
     expect(request.request.body).toEqual({ comment: '' });
     request.flush({ ...recommended, status: 'approved', decidedBy: { id: 'user-compliance', name: 'Alba Quennell' }, decidedAt: '2026-12-01T11:00:00Z' });
@@ -117,6 +119,7 @@ describe('RecommendationPanel', () => {
     const page = await open('compliance', recommended);
     button(page, 'Approve award').click();
     await (await (await confirmDialog()).getHarness(MatButtonHarness.with({ text: 'Approve award' }))).click();
+    await fixture.whenStable();
     http.expectOne({ method: 'POST', url: `${base}/approve` }).flush(
       {
         type: 'https://tendara.test/problems/forbidden',
