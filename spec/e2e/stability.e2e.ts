@@ -36,7 +36,8 @@ test('the run page says "Best possible award (proven)", keeps the engine figures
   await page.getByRole('heading', { name: 'Award scenarios', level: 1 }).waitFor();
   await page.getByRole('button', { name: 'Run Published award basis', exact: true }).click();
   await page.waitForURL(/\/evaluation\/runs\/[0-9a-f-]+$/);
-  await page.locator('.plain-status').filter({ hasText: 'Best possible award (proven).' }).waitFor({ timeout: 150_000 });
+  await page.locator('.run-status .badge').filter({ hasText: 'Best possible award (proven)' }).waitFor({ timeout: 150_000 });
+  await page.locator('.plain-status').filter({ hasText: 'No cheaper award meets every rule: the engine proved it.' }).waitFor();
   // The engine's words only inside the collapsed panel.
   const engine = page.locator('app-engine-details mat-expansion-panel');
   await expect(engine.getAttribute('class')).resolves.not.toContain('mat-expanded');
@@ -64,8 +65,14 @@ test('the run page says "Best possible award (proven)", keeps the engine figures
   await section.getByRole('heading', { name: 'Depot S3 (S3) alone', level: 4 }).waitFor();
   await section.getByText('The same vendors win the same regions between −20 % and +10 % (tested at −20 %, −10 %, +10 % and +20 % of the forecast of Depot S3 alone', { exact: false }).waitFor({ timeout: 200_000 });
 
+  // The page scrolls inside the side navigation's content: bring each part to the top for its picture.
+  const toTop = (locator: ReturnType<typeof section.getByRole>) => locator.evaluate((el) => el.scrollIntoView({ block: 'start' }));
+  await toTop(section.getByRole('heading', { name: 'If the forecasts are off', level: 2 }));
   await animationsDone(page);
   await screenshot(page, 'run-sensitivity-1280');
+  await toTop(section.getByRole('heading', { name: 'One region alone', level: 3 }));
+  await animationsDone(page);
+  await screenshot(page, 'run-sensitivity-region-1280');
   expect(await seriousViolations(page)).toEqual([]);
 
   await engine.getByRole('button', { name: 'Engine details' }).click();

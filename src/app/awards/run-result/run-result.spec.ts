@@ -129,7 +129,8 @@ describe('RunResult', () => {
 
   it('says "Best possible award (proven)" for an optimum, and keeps the engine\'s figures in a collapsed "Engine details" panel', async () => {
     await answerPoll(runView());
-    expect(page().querySelector('.plain-status')!.textContent).toBe('Best possible award (proven).');
+    expect(page().querySelector('.run-status .badge')!.textContent).toBe('Best possible award (proven)');
+    expect(page().querySelector('.plain-status')!.textContent).toBe('No cheaper award meets every rule: the engine proved it.');
     const panel = page().querySelector('app-engine-details mat-expansion-panel')!;
     expect(panel.querySelector('mat-panel-title')!.textContent).toBe('Engine details');
     expect(panel.classList.contains('mat-expanded')).toBe(false);
@@ -146,6 +147,7 @@ describe('RunResult', () => {
       result: { ...runView().result!, status: 'feasible', objective: 1_100_000, bound: 1_000_000, gap: 100_000 / 1_100_000 },
     });
     await answerPoll(run);
+    expect(page().querySelector('.run-status .badge')!.textContent).toBe('Best award found in the time limit');
     expect(page().querySelector('.plain-status')!.textContent).toBe('Best award found in the time limit: at most 10% above the best possible.');
     [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Recommend this award'))!.click();
     fixture.detectChanges();

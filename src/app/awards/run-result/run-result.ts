@@ -127,6 +127,13 @@ export class RunResult {
   });
   /** Buyer's words for the run's status ("Best possible award (proven)", or the margin of one that is not). */
   protected readonly statusWords = computed(() => awardStatusWords(this.result(), (f) => fractionPercent(f, 2)));
+  /** The line under the status badge: what the status means for the buyer (the badge already names it). */
+  protected readonly plainStatus = computed(() => {
+    const result = this.result();
+    if (result?.status === 'optimal') return 'No cheaper award meets every rule: the engine proved it.';
+    const words = this.statusWords();
+    return words ? `${words}.` : null;
+  });
   protected readonly forecastNote = computed(() => {
     const run = this.run();
     if (!run || run.forecastChangePercent === null) return null;

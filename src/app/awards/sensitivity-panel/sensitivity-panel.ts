@@ -188,7 +188,8 @@ export class SensitivityPanel {
         labels: points.map((p) => (p.changePercent === 0 ? '0 %' : `${p.changePercent > 0 ? '+' : '−'}${Math.abs(p.changePercent)} %`)),
         datasets: [
           { label: `Total cost (${this.currency()})`, data: points.map((p) => p.objective), borderColor: cost, backgroundColor: cost, yAxisID: 'cost', spanGaps: false },
-          { label: 'Vendors awarded', data: points.map((p) => p.vendorsAwarded), borderColor: vendors, backgroundColor: vendors, yAxisID: 'vendors', borderDash: [6, 4], stepped: 'middle', pointStyle: 'rectRot' },
+          // Points only: between two tested changes nothing is known about who wins.
+          { label: 'Vendors awarded', data: points.map((p) => p.vendorsAwarded), borderColor: vendors, backgroundColor: vendors, yAxisID: 'vendors', showLine: false, pointStyle: 'rectRot', pointRadius: 7, pointHoverRadius: 8 },
         ],
       },
       options: {
@@ -198,7 +199,7 @@ export class SensitivityPanel {
         scales: {
           x: { title: { display: true, text: 'Change of all forecasts' } },
           cost: { type: 'linear', position: 'left', title: { display: true, text: 'Total cost' } },
-          vendors: { type: 'linear', position: 'right', min: 0, ticks: { stepSize: 1, precision: 0 }, grid: { drawOnChartArea: false }, title: { display: true, text: 'Vendors awarded' } },
+          vendors: { type: 'linear', position: 'right', min: 0, suggestedMax: Math.max(0, ...points.map((p) => p.vendorsAwarded ?? 0)) + 1, ticks: { stepSize: 1, precision: 0 }, grid: { drawOnChartArea: false }, title: { display: true, text: 'Vendors awarded' } },
         },
         plugins: {
           legend: { display: true, position: 'bottom' },
