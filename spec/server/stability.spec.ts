@@ -1,3 +1,4 @@
+import XlsxPopulate from 'xlsx-populate';
 import type { AwardProblem } from '@shared/award';
 import type { ResilienceView, RunView, SensitivityView } from '@shared/evaluation';
 import { solveAward } from '../../server/award';
@@ -231,5 +232,29 @@ describe('drop-out check', () => {
     expect(child.problem.rules!.require).toEqual([firms['A'].orgId]);
     await drainQueue(t, QUEUES.solve);
     expect(await t.em().count(Run, { parent: run.id, droppedVendor: firms['A'].orgId })).toBe(0);
+  });
+});
+
+describe('plain words in the award workbook', () => {
+  test('the Award sheet states the status in the buyer\'s words; bound, gap, bound source and engine are on the "Engine details" sheet only', async () => {
+    const { tenderId } = await closedTender(1, { A: { fixedFee: 0, capacity: null, prices: { R01: 10 } } });
+    const run = await builtInRun(tenderId, 'split');
+    const res = await buyer.get(`/api/runs/${run.id}/export.xlsx`).buffer(true).parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    });
+    expect(res.status).toBe(200);
+    const wb = await XlsxPopulate.fromDataAsync(res.body as Buffer);
+    const text = (name: string) => (wb.sheet(name)!.usedRange()!.value() as unknown[][]).flat().filter((v) => v !== undefined && v !== null).map(String).join('\n');
+    expect(wb.sheets().map((sh) => sh.name())).toEqual(['Award', 'Allocation', 'Engine details']);
+    const award = text('Award');
+    expect(award).toContain('Status: Best possible award (proven).');
+    for (const word of ['Best bound', 'Relative gap', 'Bound from', run.result!.engine]) expect(award).not.toContain(word);
+    const engine = text('Engine details');
+    expect(engine).toContain('Best bound (lower limit on the best possible total)');
+    expect(engine).toContain('Relative gap');
+    expect(engine).toContain(run.result!.engine);
+    expect(wb.sheet('Engine details')!.cell('B5').value()).toBe(run.result!.bound);
   });
 });
