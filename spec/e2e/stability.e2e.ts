@@ -81,4 +81,12 @@ test('the run page says "Best possible award (proven)", keeps the engine figures
   await engine.scrollIntoViewIfNeeded();
   await screenshot(page, 'run-engine-details-1280');
   expect(await seriousViolations(page)).toEqual([]);
+
+  // Each tested change opens its own re-solve, which says what was changed.
+  const runPath = new URL(page.url()).pathname;
+  await table.getByRole('link', { name: 'Open the award at +10 %' }).click();
+  await page.waitForURL((url) => url.pathname !== runPath && /\/evaluation\/runs\/[0-9a-f-]+$/.test(url.pathname));
+  await page.getByText('A forecast sensitivity re-solve: the same bids and rules, with every forecast changed by +10 %.').waitFor();
+  await page.getByRole('heading', { name: 'Totals' }).waitFor();
+  await expect(page.locator('app-sensitivity-panel').count()).resolves.toBe(0);
 });

@@ -4,6 +4,7 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { MATERIAL_ANIMATIONS } from '@angular/material/core';
 import { MatButtonHarness } from '@angular/material/button/testing';
 import { MatSelectHarness } from '@angular/material/select/testing';
+import { provideRouter } from '@angular/router';
 import type { SensitivityCheck, SensitivityView } from '@shared/evaluation';
 import { provideApi } from '../../core/http/provide-api';
 import { RUN_ID } from '../testing/award-fixtures';
@@ -37,7 +38,7 @@ describe('SensitivityPanel', () => {
     jest.spyOn(HTMLCanvasElement.prototype, 'getContext').mockReturnValue(null);
     TestBed.configureTestingModule({
       imports: [SensitivityPanel],
-      providers: [provideApi(), provideHttpClientTesting(), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
+      providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
     });
     http = TestBed.inject(HttpTestingController);
     fixture = TestBed.createComponent(SensitivityPanel);
@@ -90,6 +91,8 @@ describe('SensitivityPanel', () => {
     expect(rows[3][4]).toContain('The award changes');
     expect(rows[3][4]).toContain('Brinewick Salt Co-op would be awarded (Cranby depot)');
     expect(rows[1][4]).toBe('Same vendors, same regions');
+    // Each tested change opens its own re-solve; the run's row is the page itself.
+    expect([...table.querySelectorAll('tbody th a')].map((a) => a.getAttribute('href'))).toEqual(['/r1', '/r2', '/r3', '/r4']);
   });
 
   it('checks one region alone: the chosen region code is sent', async () => {

@@ -7,6 +7,7 @@ import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSelectModule } from '@angular/material/select';
+import { RouterLink } from '@angular/router';
 import type { SensitivityCase, SensitivityCheck, SensitivityView } from '@shared/evaluation';
 import { CategoryScale, Chart, Legend, LinearScale, LineController, LineElement, PointElement, Tooltip } from 'chart.js';
 import { Subject, catchError, exhaustMap, of, startWith, switchMap, takeWhile, timer } from 'rxjs';
@@ -33,6 +34,8 @@ export interface SensitivityRow {
   outcome: string;
   changes: string[];
   isRun: boolean;
+  /** The re-solve's own run page (null for the run itself). */
+  runId: string | null;
 }
 
 function signed(percentValue: number): string {
@@ -48,7 +51,7 @@ function signed(percentValue: number): string {
 @Component({
   selector: 'app-sensitivity-panel',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [NgTemplateOutlet, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule],
+  imports: [NgTemplateOutlet, RouterLink, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule],
   templateUrl: './sensitivity-panel.html',
   styleUrl: './sensitivity-panel.scss',
 })
@@ -159,11 +162,12 @@ export class SensitivityPanel {
         outcome: c.sameAward === true ? 'Same vendors, same regions' : c.sameAward === false ? 'The award changes' : this.statusLabels[c.status],
         changes: c.changes,
         isRun: false,
+        runId: c.runId,
       };
     };
     const runRow: SensitivityRow = {
       change: signed(0), changePercent: 0, total: base === null ? '—' : this.amount(base), difference: '—',
-      vendors: String(v.vendorsAwarded), outcome: 'The award of this run', changes: [], isRun: true,
+      vendors: String(v.vendorsAwarded), outcome: 'The award of this run', changes: [], isRun: true, runId: null,
     };
     return [...check.cases.filter((c) => c.changePercent < 0).map(row), runRow, ...check.cases.filter((c) => c.changePercent > 0).map(row)];
   }
