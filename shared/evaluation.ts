@@ -87,6 +87,11 @@ export interface RunView extends RunSummary {
   /** SHA-256 of the exact problem solved (bids and rules). */
   inputDigest: string;
   result: AwardResult | null;
+  /** A re-solve of another run (drop-out or forecast sensitivity): that run's id; else null. */
+  parentRunId: string | null;
+  /** Forecast sensitivity re-solve: the change in per cent, and the one region changed (null: all). */
+  forecastChangePercent: number | null;
+  scaledRegion: string | null;
   /** Names for the ids in `result`. */
   vendors: Record<string, { name: string; sme: boolean }>;
   regions: Record<string, { name: string; forecast: number }>;
@@ -118,9 +123,24 @@ export interface Comparison {
   runs: ComparedRun[];
   /** The plain all-split run used as the baseline (the tender's built-in split scenario, latest finished run). */
   baseline: { runId: string; objective: number } | null;
-  /** Cost of sole award: built-in sole − built-in split (never negative). */
-  /** `percent` is a fraction of the split baseline: 0.05 means 5 %. */
-  costOfSoleAward: { amount: number; percent: number } | null;
+  /**
+   * Cost of sole award: built-in sole − built-in split, never negative; a range when either run is
+   * not proven best (`soleAwardCostRange` in shared/award-wording.ts).
+   */
+  costOfSoleAward: SoleAwardCost | null;
+}
+
+/**
+ * What sole award costs over split award, as far as the two runs prove it: `low` … `high` (equal
+ * when both runs are proven best). Percentages are fractions of the split run's total.
+ */
+export interface SoleAwardCost {
+  low: number;
+  high: number;
+  lowPercent: number;
+  highPercent: number;
+  /** Both runs proven best: `low` = `high` is the exact cost. */
+  exact: boolean;
 }
 
 /** GET /api/runs/:id/resilience: the award re-solved without each awarded vendor in turn. */
@@ -138,7 +158,63 @@ export interface ResilienceView {
     increasePercent: number | null;
     diagnosis: string[];
     worst: boolean;
+    /**
+     * The scenario requires this vendor (rule `require`): it cannot be dropped, so nothing is
+     * re-solved for it (`status` is then the run's own) and it is never the worst case.
+     */
+    required: boolean;
   }[];
+}
+
+/** The forecast changes every sensitivity check tries, in per cent. */
+export const FORECAST_STEPS = [-20, -10, 10, 20] as const;
+
+/** POST /api/runs/:id/sensitivity: all regions, or one region alone (`regionCode`). */
+export const sensitivityInputSchema = z.object({
+  regionCode: plainText(z.string({ error: 'Region code must be text.' }).trim().min(1, { error: 'Choose a region.' }).max(64, { error: 'Region code must be at most 64 characters.' }), 'Region code').optional(),
+});
+export type SensitivityInput = z.input<typeof sensitivityInputSchema>;
+
+/** One re-solve of the run with the forecasts changed by `changePercent`. */
+export interface SensitivityCase {
+  changePercent: number;
+  runId: string;
+  status: RunStatus;
+  /** Total cost of the re-solved award (null while solving, or with no award). */
+  objective: number | null;
+  vendorsAwarded: number | null;
+  /** The same vendors win the same regions as in the run (null until solved). */
+  sameAward: boolean | null;
+  /** What changes, in words ("Vendor X is no longer awarded", "Vendor Y also supplies Depot 3"). */
+  changes: string[];
+}
+
+/** One scaling (all regions, or one region alone) tried at every step of FORECAST_STEPS. */
+export interface SensitivityCheck {
+  /** null: every region's forecast scaled together. */
+  regionCode: string | null;
+  regionName: string | null;
+  cases: SensitivityCase[];
+  /** The widest range of tested changes around 0 % in which the same vendors win the same regions. */
+  stableFrom: number | null;
+  stableTo: number | null;
+  /** That range in one sentence, or what is still running. */
+  summary: string;
+  /** Re-solves still queued or solving. */
+  pending: number;
+}
+
+/** GET /api/runs/:id/sensitivity */
+export interface SensitivityView {
+  runId: string;
+  objective: number | null;
+  vendorsAwarded: number;
+  steps: number[];
+  /** The award increment the scaled forecasts were rounded to (null: rounded to 4 decimals). */
+  awardIncrement: number | null;
+  /** The all-regions check first (null when not started), then each region checked alone. */
+  all: SensitivityCheck | null;
+  regions: SensitivityCheck[];
 }
 
 export interface RecommendationView {

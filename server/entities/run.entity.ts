@@ -8,7 +8,9 @@ import { User } from './user.entity';
 
 /**
  * One solve of a scenario: the exact problem (bids and rules, as the engine's problem file), its
- * SHA-256, the engine's result and the timings. A resilience run re-solves its parent without one vendor.
+ * SHA-256, the engine's result and the timings. A child run re-solves its parent's stored problem:
+ * without one vendor (drop-out check, `droppedVendor`) or with the forecasts scaled (forecast
+ * sensitivity, `forecastChangePercent`, all regions or only `scaledRegion`).
  */
 @Entity({ tableName: 'run' })
 @Index({ properties: ['tender', 'createdAt'] })
@@ -56,4 +58,12 @@ export class Run extends BaseEntity {
 
   @Property({ type: 'uuid', nullable: true })
   droppedVendor?: string | null;
+
+  /** Forecast sensitivity: every forecast (or only `scaledRegion`'s) changed by this many per cent, e.g. -10. */
+  @Property({ type: 'integer', nullable: true })
+  forecastChangePercent?: number | null;
+
+  /** Forecast sensitivity of one region alone: its code (null: all regions scaled). */
+  @Property({ type: 'string', length: 64, nullable: true })
+  scaledRegion?: string | null;
 }

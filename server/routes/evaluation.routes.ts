@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { compareQuerySchema, decisionInputSchema, recommendationInputSchema, returnInputSchema, scenarioInputSchema } from '@shared/evaluation';
+import { compareQuerySchema, decisionInputSchema, recommendationInputSchema, returnInputSchema, scenarioInputSchema, sensitivityInputSchema } from '@shared/evaluation';
 import { explanationViewSchema } from '@shared/explanation';
 import { tenderIdParamSchema } from '@shared/tenders';
 import type { AppDeps } from '../context';
@@ -9,6 +9,7 @@ import { currentRecommendation, decide, recommend } from '../services/evaluation
 import { explanationOf, startExplanation } from '../services/evaluation/explanation.service';
 import { compareRuns, findRun, resilienceOf, runView, startResilience } from '../services/evaluation/results.service';
 import { findVisibleTender } from '../services/tender-access';
+import { sensitivityOf, startSensitivity } from '../services/evaluation/sensitivity.service';
 import { cancelRun, createScenario, listRuns, listScenarios, queueRun, updateScenario } from '../services/evaluation/scenarios.service';
 import { buildAwardWorkbook } from '../workbooks/award-workbook';
 import { CSV, exportName, sendDownload, XLSX } from '../http/download';
@@ -83,7 +84,7 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'get', path: '/runs/:id/resilience', tag: 'Evaluation', access: EVALUATORS, params: id,
-      summary: 'The cost (or infeasibility) of the award if each awarded vendor dropped out; the worst case marked.',
+      summary: 'The cost (or infeasibility) of the award if each awarded vendor dropped out, re-solved on the run\'s own problem (its rules and exclusions kept); a vendor the rules require is listed as such (`required`), never re-solved nor the worst case; the worst case marked.',
       handler: ({ em, user, params }) => resilienceOf(em, user, params.id),
     }),
     route({
@@ -99,6 +100,20 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
       method: 'get', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, response: explanationViewSchema,
       summary: 'Why each region went where it did (the cheapest bid not awarded there, the reason and the extra cost of forcing it), and each losing vendor\'s debrief: the unit price per region and the uniform cut it would have needed. Buyer and compliance only.',
       handler: ({ em, user, params }) => explanationOf(em, user, params.id),
+    }),
+    route({
+      method: 'post', path: '/runs/:id/sensitivity', tag: 'Evaluation', access: EVALUATORS, params: id, body: sensitivityInputSchema, status: 202,
+      summary: "Re-solve the run's own problem (bids, rules, exclusions) with every forecast, or one region's alone (`regionCode`), at −20 %, −10 %, +10 % and +20 % (queued runs; forecasts rounded to the award increment when there is one). Cached: a case already queued, solving or solved is not solved again; when none is new the answer is 200 {queued: 0}.",
+      responses: { 200: 'Every case already exists: nothing queued', 202: 'The missing cases, queued', 409: 'The tender is awarded, or the run has no award, or it is itself a re-solve' },
+      handler: async ({ em, user, params, body, res }) => {
+        const answer = await startSensitivity(ctx(em), user, params.id, body);
+        res.status(answer.queued ? 202 : 200).json(answer);
+      },
+    }),
+    route({
+      method: 'get', path: '/runs/:id/sensitivity', tag: 'Evaluation', access: EVALUATORS, params: id,
+      summary: 'Forecast sensitivity of the run: for each tested change (all regions, and each region checked alone) the total, the number of vendors awarded, whether the same vendors win the same regions and the changes in words; and per check the range of changes in which the award stays the same ({runId, objective, vendorsAwarded, steps, awardIncrement, all, regions}).',
+      handler: ({ em, user, params }) => sensitivityOf(em, user, params.id),
     }),
     route({
       method: 'get', path: '/tenders/:id/recommendation', tag: 'Evaluation', access: EVALUATORS, params: tenderIdParamSchema,

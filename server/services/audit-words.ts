@@ -115,6 +115,14 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
     const dropped = e.detail['droppedVendor'];
     return `Drop-out check${scenarioOf(e, n)} started${dropped ? ` without ${organisation(dropped, n)}` : ''}`;
   },
+  'run.sensitivity-queued': (e, n) => {
+    const change = num(e.detail['forecastChangePercent']);
+    const region = str(e.detail['scaledRegion']);
+    const what = change === null ? '' : ` at ${change > 0 ? '+' : change < 0 ? '−' : ''}${Math.abs(change)} %${region ? ` for region ${region}` : ''}`;
+    return `Forecast check${scenarioOf(e, n)}${what} started`;
+  },
+  'run.explanation-queued': (e, n) => `Explanation and debrief of the award${scenarioOf(e, n)} requested`,
+  'run.explained': (e, n) => `Explanation and debrief of the award${scenarioOf(e, n)} worked out`,
   'run.finished': (e, n) => `Award calculation${scenarioOf(e, n)} finished`,
   'run.cancelled': (e, n) => `Award calculation${scenarioOf(e, n)} cancelled`,
   'recommendation.made': (e) => withReason('Award recommended for approval', { ...e, detail: { reason: e.detail['justification'] } }),

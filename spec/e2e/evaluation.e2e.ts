@@ -10,7 +10,7 @@ import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, SH
 jest.setTimeout(240_000);
 
 const TENDER = 'NHP-2026-014';
-const FINISHED = /Best award found|Award found, not proven best/;
+const FINISHED = /Best possible award \(proven\)|Best award found in the time limit/;
 
 let b: Awaited<ReturnType<typeof openBrowser>>;
 /** Paths of the runs made below, kept for the later steps. */
@@ -244,6 +244,16 @@ test('compliance reads the recommendation with its caution, approves it, and ver
 
   await page.getByLabel('Comment').fill('Checked the comparison and the resilience table; approved.');
   await page.getByRole('button', { name: 'Approve award' }).click();
+  // Approval reads back what is approved and asks for confirmation.
+  const confirm = page.getByRole('dialog');
+  await waitForDialogFocus(page);
+  await confirm.getByText('Published award basis').waitFor();
+  await confirm.getByText('Bids excluded by the compliance check').waitFor();
+  await confirm.getByText(/Best possible award \(proven\)|Best award found in the time limit/).waitFor();
+  await settle(page);
+  await screenshot(page, 'approve-confirm-1280');
+  expect(await seriousViolations(page)).toEqual([]);
+  await confirm.getByRole('button', { name: 'Approve award' }).click();
   await page.locator('.badge[data-status="approved"]').waitFor();
   await page.getByText('Priya Castell', { exact: false }).first().waitFor();
   await page.getByText('Checked the comparison and the resilience table; approved.').waitFor();

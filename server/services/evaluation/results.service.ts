@@ -1,11 +1,12 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { AwardResult } from '@shared/award';
+import { awardRulesSchema, type AwardProblem, type AwardResult } from '@shared/award';
+import { soleAwardCostRange } from '@shared/award-wording';
 import { recordByCode } from '@shared/bids';
 import type { Comparison, ComparedRun, ResilienceView, RunView } from '@shared/evaluation';
 import { Run, Scenario, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { lockTender } from '../tender-access';
-import { awardability, evaluableTender, findOrCreateRun, FROZEN, runInput, runSummary, sendToSolver, type EvaluationDeps, type RunInput } from './scenarios.service';
+import { awardability, childInput, evaluableTender, findOrCreateRun, FROZEN, runSummary, sendToSolver, type EvaluationDeps } from './scenarios.service';
 
 export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
   const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender'] });
@@ -42,6 +43,9 @@ export async function runView(em: EntityManager, user: User, runId: string): Pro
     unit: run.tender.unit,
     inputDigest: run.inputDigest,
     result: run.result ?? null,
+    parentRunId: run.parent?.id ?? null,
+    forecastChangePercent: run.forecastChangePercent ?? null,
+    scaledRegion: run.scaledRegion ?? null,
     ...names,
   };
 }
@@ -91,29 +95,49 @@ export async function compareRuns(em: EntityManager, user: User, tenderId: strin
       priceOverSplitPercent: over !== null && base ? over / base : null,
     };
   });
-  const soleCost = split && sole && usable(split.result) && usable(sole.result)
-    ? sole.result!.objective! - split.result!.objective!
-    : null;
   return {
     currency: tender.currency,
     runs: columns,
     baseline: split && base !== null ? { runId: split.id, objective: base } : null,
-    costOfSoleAward: soleCost === null ? null : { amount: soleCost, percent: soleCost / split!.result!.objective! },
+    costOfSoleAward: soleAwardCostRange(split?.result, sole?.result),
   };
+}
+
+/** The exact problem a run solved, as stored (lazy on the entity). */
+export async function storedProblem(em: EntityManager, runId: string): Promise<AwardProblem> {
+  const [row] = await em.execute<{ problem: AwardProblem }[]>('select problem from run where id = ?', [runId]);
+  if (!row) throw new NotFoundError('The run');
+  return row.problem;
+}
+
+/** The vendors a run's rules require (rule `require`): they cannot be dropped. */
+function requiredVendors(problem: AwardProblem): Set<string> {
+  return new Set(awardRulesSchema.parse(problem.rules ?? {}).require);
 }
 
 /**
  * Re-solves the run without each awarded vendor in turn: one queued run per vendor, all created in
- * one transaction under the tender's lock. Idempotent: a vendor whose re-solve is already queued,
- * solving or solved (same input) gets no second one; `queued` counts the new runs (0: answered 200).
+ * one transaction under the tender's lock. Each re-solve is the run's own stored problem with the
+ * vendor added to `exclude`, so it keeps every rule and exclusion the run solved with (the
+ * scenario's excludes, the compliance check's exclusions), whatever changed since. A vendor the
+ * rules require is not dropped: the award cannot exist without it by the scenario's own rules, so
+ * nothing is re-solved and the check says so. Idempotent: a vendor whose re-solve is already
+ * queued, solving or solved (same input) gets no second one; `queued` counts the new runs (0: 200).
  */
 export async function startResilience(deps: EvaluationDeps, user: User, runId: string): Promise<{ queued: number }> {
   const run = await findRun(deps.em, user, runId);
-  if (run.parent) throw new ConflictError('This is already a resilience re-solve.');
+  if (run.parent) throw new ConflictError('This is already a re-solve of another run.');
   if (!usable(run.result)) throw new ConflictError('Only a run with an award can be checked for resilience.');
   const tender = await evaluableTender(deps.em, user, run.tender.id, true);
-  const inputs: RunInput[] = [];
-  for (const award of run.result!.awards) inputs.push(await runInput(deps.em, tender, run.scenario, { parent: run, vendor: award.vendor }));
+  const problem = await storedProblem(deps.em, run.id);
+  const required = requiredVendors(problem);
+  const rules = awardRulesSchema.parse(problem.rules ?? {});
+  const inputs = run.result!.awards
+    .filter((award) => !required.has(award.vendor))
+    .map((award) => childInput(
+      { parent: run, droppedVendor: award.vendor },
+      { ...problem, rules: { ...rules, exclude: [...new Set([...rules.exclude, award.vendor])] } },
+    ));
   const created = await deps.em.transactional(async (tx) => {
     await lockTender(tx, user, tender.id, ['closed'], FROZEN);
     const fresh: Run[] = [];
@@ -130,21 +154,33 @@ export async function startResilience(deps: EvaluationDeps, user: User, runId: s
 export async function resilienceOf(em: EntityManager, user: User, runId: string): Promise<ResilienceView> {
   const run = await findRun(em, user, runId);
   // The latest re-solve per vendor (a failed or cancelled one may have been followed by another).
-  const all = await em.find(Run, { parent: run }, { orderBy: { createdAt: 'asc' } });
-  const children = [...new Map(all.map((c) => [c.droppedVendor, c])).values()];
+  const all = await em.find(Run, { parent: run, droppedVendor: { $ne: null } }, { orderBy: { createdAt: 'asc' } });
+  const children = new Map(all.map((c) => [c.droppedVendor!, c]));
   const base = run.result?.objective ?? null;
   const names = new Map(Object.entries((await namesOf(em, run.id)).vendors).map(([id, v]) => [id, v.name]));
-  const rows = children.map((c) => {
+  const awarded = usable(run.result) ? run.result!.awards.map((a) => a.vendor) : [];
+  const required = awarded.length ? requiredVendors(await storedProblem(em, run.id)) : new Set<string>();
+  type Row = ResilienceView['rows'][number];
+  const rows: Row[] = [];
+  // Awarded vendors in the award's order: a required one as such (never re-solved), the others once re-solved.
+  const vendors = [...awarded.filter((v) => required.has(v) || children.has(v)), ...[...children.keys()].filter((v) => !awarded.includes(v))];
+  for (const vendor of vendors) {
+    const vendorName = names.get(vendor) ?? vendor;
+    const c = children.get(vendor);
+    if (required.has(vendor) || !c) {
+      rows.push({ vendor, vendorName, status: run.status, objective: null, increase: null, increasePercent: null, diagnosis: [], worst: false, required: true });
+      continue;
+    }
     const obj = usable(c.result) ? c.result!.objective! : null;
     const increase = obj !== null && base !== null ? obj - base : null;
-    return {
-      vendor: c.droppedVendor!, vendorName: names.get(c.droppedVendor!) ?? c.droppedVendor!, status: c.status, objective: obj,
+    rows.push({
+      vendor, vendorName, status: c.status, objective: obj,
       increase, increasePercent: increase !== null && base ? increase / base : null,
-      diagnosis: c.result?.diagnosis ?? [], worst: false,
-    };
-  });
-  // Worst case: losing the vendor makes the award impossible, else the largest increase.
-  const done = rows.filter((r) => r.status === 'infeasible' || r.increase !== null);
+      diagnosis: c.result?.diagnosis ?? [], worst: false, required: false,
+    });
+  }
+  // Worst case among the vendors that could drop out: losing one makes the award impossible, else the largest increase.
+  const done = rows.filter((r) => !r.required && (r.status === 'infeasible' || r.increase !== null));
   const worst = done.find((r) => r.status === 'infeasible') ?? done.sort((a, b) => (b.increase ?? 0) - (a.increase ?? 0))[0];
   if (worst) worst.worst = true;
   return { runId: run.id, objective: base, rows };

@@ -9,7 +9,7 @@ import { isSealed } from '@shared/tenders';
 import { Run, Scenario, type Tender, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { QUEUES } from '../../jobs/queue';
-import { audit } from '../audit.service';
+import { audit, digestOf } from '../audit.service';
 import { findVisibleTender, lockTender } from '../tender-access';
 import { transition } from '../transition';
 import { buildProblem, plainRules } from './problem';
@@ -150,41 +150,71 @@ export async function updateScenario(deps: EvaluationDeps, user: User, scenarioI
 /** Run states that make a second solve of the same input pointless: it is waiting, solving, or solved. */
 const REUSABLE_RUN: RunStatus[] = ['queued', 'solving', 'optimal', 'feasible', 'infeasible'];
 
-/** What one run will solve: the scenario's rules (less a dropped vendor) over the live bids, and its digest. */
+/**
+ * A child run re-solves its parent's stored problem, changed one way: without one vendor (the
+ * drop-out check) or with the forecasts scaled (forecast sensitivity, all regions or one alone).
+ */
+export interface ChildOf {
+  parent: Run;
+  droppedVendor?: string;
+  forecastChangePercent?: number;
+  scaledRegion?: string;
+}
+
+/** What one run will solve: the problem (bids and rules), its digest, and for a child run what it changes. */
 export interface RunInput {
   scenario: Scenario;
   problem: AwardProblem;
   digest: string;
-  dropVendor?: { parent: Run; vendor: string };
+  timeLimitSeconds: number;
+  child?: ChildOf;
 }
 
-export async function runInput(em: EntityManager, tender: Tender, scenario: Scenario, dropVendor?: { parent: Run; vendor: string }): Promise<RunInput> {
+/** A run of the scenario's rules over the tender's live bids. */
+export async function runInput(em: EntityManager, tender: Tender, scenario: Scenario): Promise<RunInput> {
   const rules = awardRulesSchema.parse(scenario.rules);
-  if (dropVendor) rules.exclude = [...new Set([...rules.exclude, dropVendor.vendor])];
   const { problem, digest } = await buildProblem(em, tender, rules, scenario.timeLimitSeconds);
-  return { scenario, problem, digest, dropVendor };
+  return { scenario, problem, digest, timeLimitSeconds: scenario.timeLimitSeconds };
+}
+
+/**
+ * A child run over `problem`, derived from the parent's stored problem (so it keeps every rule and
+ * exclusion the parent solved with, whatever changed in the scenario or the bids since).
+ */
+export function childInput(child: ChildOf, problem: AwardProblem): RunInput {
+  return { scenario: child.parent.scenario, problem, digest: digestOf(problem), timeLimitSeconds: child.parent.timeLimitSeconds, child };
 }
 
 /**
  * Inside the caller's transaction, which holds the tender's lock (`lockTender`): the run of the same
- * scenario (and dropped vendor) over the same input digest that is queued, solving or solved, or else
- * a new queued run with its audit entry. `created` says which; queue the new one's job after commit.
+ * scenario (and the same change, for a child run) over the same input digest that is queued, solving
+ * or solved, or else a new queued run with its audit entry. `created` says which; queue the new
+ * one's job after commit.
  */
 export async function findOrCreateRun(tx: EntityManager, user: User, tenderId: string, input: RunInput): Promise<{ run: Run; created: boolean }> {
-  const { scenario, problem, digest, dropVendor } = input;
+  const { scenario, problem, digest, child } = input;
+  const change = {
+    parent: child?.parent.id ?? null, droppedVendor: child?.droppedVendor ?? null,
+    forecastChangePercent: child?.forecastChangePercent ?? null, scaledRegion: child?.scaledRegion ?? null,
+  };
   const existing = await tx.findOne(Run, {
-    scenario: scenario.id, inputDigest: digest, status: { $in: REUSABLE_RUN },
-    parent: dropVendor?.parent.id ?? null, droppedVendor: dropVendor?.vendor ?? null,
+    scenario: scenario.id, inputDigest: digest, status: { $in: REUSABLE_RUN }, ...change,
   }, { populate: ['scenario'], orderBy: { createdAt: 'desc' } });
   if (existing) return { run: existing, created: false };
   const r = tx.create(Run, {
-    tender: tenderId, scenario: scenario.id, requestedBy: user, timeLimitSeconds: scenario.timeLimitSeconds, problem, inputDigest: digest,
-    parent: dropVendor?.parent.id ?? null, droppedVendor: dropVendor?.vendor ?? null,
+    tender: tenderId, scenario: scenario.id, requestedBy: user, timeLimitSeconds: input.timeLimitSeconds, problem, inputDigest: digest, ...change,
   });
   await tx.flush();
+  const action = !child ? 'run.queued' : child.droppedVendor ? 'run.resilience-queued' : 'run.sensitivity-queued';
   await audit(tx, {
-    tenderId, actor: user, action: dropVendor ? 'run.resilience-queued' : 'run.queued', subject: `run ${r.id}`,
-    detail: { scenario: scenario.name, ...(dropVendor ? { droppedVendor: dropVendor.vendor } : {}) }, after: { inputDigest: digest },
+    tenderId, actor: user, action, subject: `run ${r.id}`,
+    detail: {
+      scenario: scenario.name,
+      ...(child ? { parentRun: child.parent.id } : {}),
+      ...(child?.droppedVendor ? { droppedVendor: child.droppedVendor } : {}),
+      ...(child?.forecastChangePercent !== undefined ? { forecastChangePercent: child.forecastChangePercent, scaledRegion: child.scaledRegion ?? null } : {}),
+    },
+    after: { inputDigest: digest },
   });
   return { run: r, created: true };
 }

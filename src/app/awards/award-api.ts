@@ -11,6 +11,7 @@ import type {
   RunView,
   ScenarioInput,
   ScenarioView,
+  SensitivityView,
 } from '@shared/evaluation';
 import type { ExplanationView } from '@shared/explanation';
 import type { BidsAnswer, TenderView } from '@shared/tenders';
@@ -95,6 +96,20 @@ export class AwardApi {
   /** Asks for the explanation (queued on the solve queue; answered with its state). */
   explain(runId: string): Observable<ExplanationView> {
     return this.http.post<ExplanationView>(`${this.runUrl(runId)}/explanation`, {});
+  }
+
+  /** Queues the forecast sensitivity re-solves (all regions, or one region alone); cached per run. */
+  startSensitivity(runId: string, regionCode?: string): Observable<{ queued: number }> {
+    return this.http.post<{ queued: number }>(`${this.runUrl(runId)}/sensitivity`, regionCode ? { regionCode } : {});
+  }
+
+  sensitivity(runId: string): Observable<SensitivityView> {
+    return this.http.get<SensitivityView>(`${this.runUrl(runId)}/sensitivity`);
+  }
+
+  /** The bid tabulation (after closing: every bid with its compliance check). */
+  bids(tenderId: string): Observable<BidsAnswer> {
+    return this.http.get<BidsAnswer>(`${this.tenderUrl(tenderId)}/bids`);
   }
 
   recommendation(tenderId: string): Observable<RecommendationView | null> {

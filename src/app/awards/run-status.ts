@@ -4,8 +4,8 @@ import { FINISHED_RUN_STATUSES, type RecommendationStatus, type RunStatus } from
 export const RUN_STATUS_LABELS: Record<RunStatus, string> = {
   queued: 'Waiting to start',
   solving: 'Solving',
-  optimal: 'Best award found',
-  feasible: 'Award found, not proven best',
+  optimal: 'Best possible award (proven)',
+  feasible: 'Best award found in the time limit',
   infeasible: 'No award meets the rules',
   failed: 'Solve failed',
   cancelled: 'Cancelled',

@@ -7,6 +7,8 @@ export interface ConfirmData {
   title: string;
   message: string;
   confirm: string;
+  /** Facts to read before confirming, shown as a list of terms and values below the message. */
+  details?: { term: string; value: string }[];
   /** Destructive actions get the error colour on their button. */
   destructive?: boolean;
 }
@@ -20,6 +22,13 @@ export interface ConfirmData {
     <h2 mat-dialog-title>{{ data.title }}</h2>
     <mat-dialog-content>
       <p>{{ data.message }}</p>
+      @if (data.details?.length) {
+        <dl class="details">
+          @for (item of data.details; track item.term) {
+            <div><dt>{{ item.term }}</dt><dd>{{ item.value }}</dd></div>
+          }
+        </dl>
+      }
     </mat-dialog-content>
     <mat-dialog-actions align="end">
       <button mat-button type="button" mat-dialog-close>Cancel</button>
@@ -36,6 +45,9 @@ export interface ConfirmData {
   `,
   styles: `
     p { margin: 0; max-width: 52ch; }
+    .details { margin: 16px 0 0; display: grid; gap: 8px; max-width: 60ch; }
+    .details dt { font-weight: 500; }
+    .details dd { margin: 0; white-space: pre-line; }
     .destructive {
       --mat-button-filled-container-color: var(--mat-sys-error);
       --mat-button-filled-label-text-color: var(--mat-sys-on-error);

@@ -22,7 +22,7 @@ const saved: RecommendationView = {
 describe('RecommendDialog', () => {
   it('submitting the form posts the recommendation itself and closes with it, never letting the browser submit the page', () => {
     const closed: unknown[] = [];
-    const data: RecommendDialogData = { tenderId: TENDER_ID, runId: RUN_ID, scenarioName: 'All regions split', total: '€1,000,000.00' };
+    const data: RecommendDialogData = { tenderId: TENDER_ID, runId: RUN_ID, scenarioName: 'All regions split', total: '€1,000,000.00', status: 'Best possible award (proven)' };
     TestBed.configureTestingModule({
       imports: [RecommendDialog],
       providers: [

@@ -16,6 +16,8 @@ export interface RecommendDialogData {
   runId: string;
   scenarioName: string;
   total: string;
+  /** The run's status in the buyer's words (with the margin when not proven best). */
+  status: string;
 }
 
 /** The buyer recommends a run's award to compliance, with a justification; closes with the recommendation. */
@@ -31,6 +33,9 @@ export interface RecommendDialogData {
           Scenario <strong>{{ data.scenarioName }}</strong>, total {{ data.total }}. Compliance will approve it
           or return it to you; someone other than you must decide.
         </p>
+        @if (data.status) {
+          <p class="run-status-words"><strong>{{ data.status }}.</strong></p>
+        }
         <app-award-caution />
         <div class="form-error" role="alert" aria-live="assertive">
           @if (failure(); as message) {

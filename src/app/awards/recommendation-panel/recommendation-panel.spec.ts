@@ -1,10 +1,15 @@
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
+import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
+import { MatButtonHarness } from '@angular/material/button/testing';
+import { MatDialogHarness } from '@angular/material/dialog/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
+import { MATERIAL_ANIMATIONS } from '@angular/material/core';
 import { provideRouter } from '@angular/router';
 import type { RecommendationView } from '@shared/evaluation';
 import { provideApi } from '../../core/http/provide-api';
 import { AWARD_CAUTION } from '../award-caution';
 import { RUN_ID, TENDER_ID, answerWhenAsked, runView, signInAs } from '../testing/award-fixtures';
+import { tenderView } from '../../tenders/testing/tender-fixtures';
 import { RecommendationPanel } from './recommendation-panel';
 
 const base = `/api/tenders/${TENDER_ID}/recommendation`;
@@ -26,10 +31,10 @@ describe('RecommendationPanel', () => {
   let http: HttpTestingController;
   let fixture: ComponentFixture<RecommendationPanel>;
 
-  async function open(role: 'buyer' | 'compliance', recommendation: RecommendationView | null): Promise<HTMLElement> {
+  async function open(role: 'buyer' | 'compliance', recommendation: RecommendationView | null, run = runView()): Promise<HTMLElement> {
     TestBed.configureTestingModule({
       imports: [RecommendationPanel],
-      providers: [provideApi(), provideHttpClientTesting(), provideRouter([])],
+      providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
     });
     http = TestBed.inject(HttpTestingController);
     await signInAs(role);
@@ -37,7 +42,18 @@ describe('RecommendationPanel', () => {
     fixture.componentRef.setInput('id', TENDER_ID);
     fixture.detectChanges();
     http.expectOne(base).flush({ recommendation });
-    if (recommendation) await answerWhenAsked(`/api/runs/${recommendation.runId}`, runView(), () => fixture.detectChanges());
+    if (recommendation) await answerWhenAsked(`/api/runs/${recommendation.runId}`, run, () => fixture.detectChanges());
+    if (role === 'compliance' && recommendation?.status === 'recommended') {
+      // What the approval reads back: the published basis and the compliance check's exclusions.
+      await answerWhenAsked(`/api/tenders/${TENDER_ID}`, tenderView({ id: TENDER_ID, awardBasis: { sourcing: 'split', soleRegions: [], maxVendors: 4 } }), () => fixture.detectChanges());
+      await answerWhenAsked(`/api/tenders/${TENDER_ID}/bids`, {
+        submitted: 2,
+        bids: [
+          { vendor: { id: 'v-north', name: 'Northfell Minerals', sme: false }, compliance: { decision: 'compliant', ground: null, note: null } },
+          { vendor: { id: 'v-grey', name: 'Greyholm Haulage', sme: false }, compliance: { decision: 'excluded', ground: 'qualification', note: 'No ISO certificate.' } },
+        ],
+      }, () => fixture.detectChanges());
+    }
     await fixture.whenStable();
     return fixture.nativeElement as HTMLElement;
   }
@@ -64,9 +80,46 @@ describe('RecommendationPanel', () => {
     expect(button(page, 'Approve award')).toBeUndefined();
   });
 
+  async function confirmDialog(): Promise<MatDialogHarness> {
+    return TestbedHarnessEnvironment.documentRootLoader(fixture).getHarness(MatDialogHarness);
+  }
+
+  it('approving first reads back the published basis, the excluded bids, the run\'s status in words and the total, and sends nothing until confirmed', async () => {
+    const notProven = runView({
+      status: 'feasible',
+      result: { ...runView().result!, status: 'feasible', objective: 1_100_000, bound: 1_000_000, gap: 100_000 / 1_100_000 },
+      objective: 1_100_000,
+    });
+    const page = await open('compliance', recommended, notProven);
+    button(page, 'Approve award').click();
+    let dialog = await confirmDialog();
+    expect(await dialog.getTitleText()).toBe('Approve this award?');
+    const text = await dialog.getContentText();
+    expect(text).toContain('A region may be shared between vendors.');
+    expect(text).toContain('Greyholm Haulage: Fails the qualification criteria');
+    expect(text).not.toContain('Northfell Minerals');
+    // 1,100,000 against a lower limit of 1,000,000: at most 10 % above the best possible.
+    expect(text).toContain('Best award found in the time limit: at most 10% above the best possible');
+    expect(text).toContain('€1,100,000.00');
+    await (await dialog.getHarness(MatButtonHarness.with({ text: 'Cancel' }))).click();
+    http.expectNone(`${base}/approve`);
+
+    button(page, 'Approve award').click();
+    dialog = await confirmDialog();
+    await (await dialog.getHarness(MatButtonHarness.with({ text: 'Approve award' }))).click();
+    await fixture.whenStable();
+    const request = http.expectOne({ method: 'POST', url: `${base}/approve` });
+    expect(request.request.body).toEqual({ comment: '' });
+    request.flush({ ...recommended, status: 'approved', decidedBy: { id: 'user-compliance', name: 'Alba Quennell' }, decidedAt: '2026-12-01T11:00:00Z' });
+    await fixture.whenStable();
+    expect(page.querySelector('h2')!.textContent).toContain('Approved');
+  });
+
   it('shows the four-eyes refusal when the approver is the person who recommended', async () => {
     const page = await open('compliance', recommended);
     button(page, 'Approve award').click();
+    await (await (await confirmDialog()).getHarness(MatButtonHarness.with({ text: 'Approve award' }))).click();
+    await fixture.whenStable();
     http.expectOne({ method: 'POST', url: `${base}/approve` }).flush(
       {
         type: 'https://tendara.test/problems/forbidden',

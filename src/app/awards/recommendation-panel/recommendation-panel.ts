@@ -14,8 +14,13 @@ import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { AwardCaution } from '../award-caution';
 import { localDateTime } from '../award-format';
-import { money } from '../../ui/number-format';
-import { RECOMMENDATION_STATUS_LABELS } from '../run-status';
+import { fractionPercent, money } from '../../ui/number-format';
+import { RECOMMENDATION_STATUS_LABELS, RUN_STATUS_LABELS } from '../run-status';
+import { MatDialog } from '@angular/material/dialog';
+import { awardStatusWords } from '@shared/award-wording';
+import { describeAwardBasis } from '@shared/award-basis';
+import { EXCLUSION_GROUND_LABELS } from '@shared/compliance';
+import { whenConfirmed } from '../../ui/confirm-dialog';
 import { loadErrorMessage } from '../../ui/load-error';
 
 function message(error: unknown, fallback: string): string {
@@ -43,6 +48,7 @@ export class RecommendationPanel {
   private readonly api = inject(AwardApi);
   private readonly destroyRef = inject(DestroyRef);
   private readonly auth = inject(Auth);
+  private readonly dialog = inject(MatDialog);
 
   readonly id = input.required<string>();
 
@@ -67,6 +73,8 @@ export class RecommendationPanel {
     return run?.objective != null ? money(run.objective, run.currency) : null;
   });
 
+  protected readonly runStatusWords = computed(() => awardStatusWords(this.run.value()?.result, (f) => fractionPercent(f, 2)));
+
   protected readonly isCompliance = computed(() => this.auth.user()?.role === 'compliance');
   protected readonly canDecide = computed(() => this.isCompliance() && this.recommendation()?.status === 'recommended');
   protected readonly comment = new FormControl('', { nonNullable: true });
@@ -77,13 +85,56 @@ export class RecommendationPanel {
   protected readonly statusLabel = RECOMMENDATION_STATUS_LABELS;
   protected readonly when = localDateTime;
 
+  /** The tender (its published award basis) and its bids (the compliance check's exclusions), for the approval's summary. */
+  private readonly tender = rxResource({
+    params: () => (this.canDecide() ? this.id() : undefined),
+    stream: ({ params }) => (params ? this.api.tender(params) : of(null)),
+  });
+  private readonly bids = rxResource({
+    params: () => (this.canDecide() ? this.id() : undefined),
+    stream: ({ params }) => (params ? this.api.bids(params) : of(null)),
+  });
+
+  /**
+   * What compliance approves, read back before the decision: the published award basis, the
+   * bids excluded by the compliance check, the run's status in words and its total.
+   */
+  protected readonly approvalFacts = computed(() => {
+    const tender = this.tender.value();
+    const bids = this.bids.value();
+    const run = this.run.value();
+    const facts: { term: string; value: string }[] = [];
+    facts.push({
+      term: 'Published award basis',
+      value: tender ? describeAwardBasis(tender.awardBasis, { unit: tender.unit, regions: tender.regions }).join('\n') : 'Not loaded',
+    });
+    const excluded = bids && 'bids' in bids ? bids.bids.filter((b) => b.compliance.decision === 'excluded') : [];
+    facts.push({
+      term: 'Bids excluded by the compliance check',
+      value: !bids ? 'Not loaded' : excluded.length
+        ? excluded.map((b) => `${b.vendor.name}: ${b.compliance.ground ? EXCLUSION_GROUND_LABELS[b.compliance.ground] : 'excluded'}`).join('\n')
+        : 'None',
+    });
+    facts.push({ term: 'Status of the run', value: awardStatusWords(run?.result, (f) => fractionPercent(f, 2)) ?? (run ? RUN_STATUS_LABELS[run.status] : 'Not loaded') });
+    facts.push({ term: 'Total cost', value: this.total() ?? '—' });
+    return facts;
+  });
+
   protected approve(): void {
     const parsed = decisionInputSchema.safeParse({ comment: this.comment.value });
     if (!parsed.success) {
       this.commentError.set(parsed.error.issues[0]?.message ?? 'Not valid.');
       return;
     }
-    this.decide('approve', parsed.data.comment);
+    whenConfirmed(this.dialog, {
+      title: 'Approve this award?',
+      message:
+        'Approving sets the tender to awarded and freezes its scenarios and bids; the buyer can then send the notices. Check what you approve:',
+      details: this.approvalFacts(),
+      confirm: 'Approve award',
+    })
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe(() => this.decide('approve', parsed.data.comment));
   }
 
   protected sendBack(): void {

@@ -34,7 +34,7 @@ const comparison: Comparison = {
     compared({ runId: SOLE, scenarioName: 'All regions sole', objective: 1042500, regionsSplit: 0, priceOverSplit: 42500, priceOverSplitPercent: 0.0425 }),
   ],
   baseline: { runId: SPLIT, objective: 1000000 },
-  costOfSoleAward: { amount: 42500, percent: 0.0425 },
+  costOfSoleAward: { low: 42500, high: 42500, lowPercent: 0.0425, highPercent: 0.0425, exact: true },
 };
 
 const eur = (value: number) => new Intl.NumberFormat(undefined, { style: 'currency', currency: 'EUR', maximumFractionDigits: 2 }).format(value);
@@ -71,6 +71,19 @@ describe('RunCompare', () => {
     expect(sole.textContent).toContain(eur(42500));
     expect(sole.textContent).toContain(pct(0.0425));
     expect(page.textContent).toContain(AWARD_CAUTION);
+  });
+
+  it('where the runs are not proven best, shows the range the bounds allow ("between €0.00 and €20,000.00"), never a negative amount', async () => {
+    // Split found €1,050,000 (lower limit €1,000,000), sole found €1,020,000 (lower limit €990,000):
+    // the server's soleAwardCostRange gives 0 … 20,000 (shared/award-wording.ts, unit-tested there).
+    const page = await open(`${SPLIT},${SOLE}`, {
+      ...comparison,
+      costOfSoleAward: { low: 0, high: 20_000, lowPercent: 0, highPercent: 20_000 / 1_050_000, exact: false },
+    });
+    const sole = page.querySelector('.sole-cost')!;
+    expect(sole.querySelector('.figure')!.textContent).toContain(`between ${eur(0)} and ${eur(20_000)}`);
+    expect(sole.textContent).toContain('the exact cost is not known');
+    expect(sole.querySelector('.figure')!.textContent).not.toContain('-');
   });
 
   it('puts the runs side by side with the price of each over the split baseline', async () => {

@@ -74,12 +74,21 @@ export class RunCompare {
   protected hasWhatIf(c: Comparison): boolean {
     return c.runs.some((r) => !r.awardable);
   }
+  /**
+   * The cost of sole award in words: one amount when both runs are proven best, else the range the
+   * runs' bounds allow ("between €a and €b"); never negative (soleAwardCostRange, shared).
+   */
   protected readonly soleCost = computed(() => {
     const c = this.comparison.value();
-    if (!c?.costOfSoleAward) return null;
-    return {
-      amount: money(c.costOfSoleAward.amount, c.currency),
-      percent: percent(c.costOfSoleAward.percent),
-    };
+    const cost = c?.costOfSoleAward;
+    if (!c || !cost) return null;
+    const amount = (value: number) => money(value, c.currency);
+    return cost.exact || cost.low === cost.high
+      ? { amount: amount(cost.low), percent: `${percent(cost.lowPercent)} over split award`, exact: true }
+      : {
+          amount: `between ${amount(cost.low)} and ${amount(cost.high)}`,
+          percent: `${percent(cost.lowPercent)} to ${percent(cost.highPercent)} over the split award found`,
+          exact: false,
+        };
   });
 }

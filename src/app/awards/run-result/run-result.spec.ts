@@ -13,6 +13,8 @@ const runUrl = `/api/runs/${RUN_ID}`;
 /** Same formatter as the page, so the test does not depend on the machine's locale. */
 const eur = (value: number) => new Intl.NumberFormat(undefined, { style: 'currency', currency: 'EUR', maximumFractionDigits: 2 }).format(value);
 
+const emptySensitivity = { runId: RUN_ID, objective: 1234567.5, vendorsAwarded: 2, steps: [-20, -10, 10, 20], awardIncrement: null, all: null, regions: [] };
+
 describe('RunResult', () => {
   let http: HttpTestingController;
   let fixture: ComponentFixture<RunResult>;
@@ -41,6 +43,8 @@ describe('RunResult', () => {
   afterEach(() => {
     // The explanation section asks for its own state; its spec (award-explanation.spec.ts) checks that.
     http.match(`${runUrl}/explanation`);
+    // The forecast check section asks for its own figures (its spec is sensitivity-panel.spec.ts).
+    for (const request of http.match({ method: 'GET', url: `${runUrl}/sensitivity` })) request.flush(emptySensitivity);
     http.verify();
     jest.useRealTimers();
     jest.restoreAllMocks();
@@ -69,7 +73,7 @@ describe('RunResult', () => {
     expect(page().textContent).toContain('Cancel run');
 
     await answerPoll(runView(), RUN_POLL_MS);
-    expect(page().querySelector('.run-status')!.textContent).toContain('Best award found');
+    expect(page().querySelector('.run-status')!.textContent).toContain('Best possible award (proven)');
 
     // Finished: no further request, however long the page stays open.
     await jest.advanceTimersByTimeAsync(RUN_POLL_MS * 10);
@@ -123,6 +127,42 @@ describe('RunResult', () => {
     expect(page().querySelector('.run-status')!.textContent).toContain('No award meets the rules');
     expect(page().textContent).not.toContain('Recommend this award');
     expect(page().querySelector('.totals')).toBeNull();
+  });
+
+  it('says "Best possible award (proven)" for an optimum, and keeps the engine\'s figures in a collapsed "Engine details" panel', async () => {
+    await answerPoll(runView());
+    expect(page().querySelector('.run-status .badge')!.textContent).toBe('Best possible award (proven)');
+    expect(page().querySelector('.plain-status')!.textContent).toBe('No cheaper award meets every rule: the engine proved it.');
+    const panel = page().querySelector('app-engine-details mat-expansion-panel')!;
+    expect(panel.querySelector('mat-panel-title')!.textContent).toBe('Engine details');
+    expect(panel.classList.contains('mat-expanded')).toBe(false);
+    expect(panel.textContent).toContain('test engine 1.0');
+    // No solver words outside the panel.
+    const outside = page().textContent.replace(panel.textContent, '');
+    for (const word of ['Best bound', 'Bound from', 'Gap', 'Engine:', 'branch-and-bound']) expect(outside).not.toContain(word);
+  });
+
+  it('a run stopped at the time limit at €1,100,000 with a lower limit of €1,000,000 is "at most 10% above the best possible"; recommending it asks first and sends nothing when cancelled', async () => {
+    const run = runView({
+      status: 'feasible',
+      objective: 1_100_000,
+      result: { ...runView().result!, status: 'feasible', objective: 1_100_000, bound: 1_000_000, gap: 100_000 / 1_100_000 },
+    });
+    await answerPoll(run);
+    expect(page().querySelector('.run-status .badge')!.textContent).toBe('Best award found in the time limit');
+    expect(page().querySelector('.plain-status')!.textContent).toBe('Best award found in the time limit: at most 10% above the best possible.');
+    [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Recommend this award'))!.click();
+    fixture.detectChanges();
+    const dialog = document.querySelector('mat-dialog-container')!;
+    expect(dialog.querySelector('h2')!.textContent).toBe('Recommend an award not proven best?');
+    expect(dialog.textContent).toContain('costs at most 10% more than the best possible');
+    expect(dialog.textContent).toContain(eur(1_100_000));
+    [...dialog.querySelectorAll('button')].find((b) => b.textContent.includes('Cancel'))!.click();
+    await jest.advanceTimersByTimeAsync(500);
+    fixture.detectChanges();
+    // No justification form opened, nothing sent.
+    expect(document.querySelector('app-recommend-dialog')).toBeNull();
+    http.expectNone({ method: 'POST', url: `/api/tenders/${TENDER_ID}/recommendation` });
   });
 
   it('cancels a solving run and stops asking once the server says it is cancelled', async () => {

@@ -17,7 +17,11 @@ import { AwardCaution } from '../award-caution';
 import { fractionPercent, money, quantity } from '../../ui/number-format';
 import { RecommendDialog, type RecommendDialogData } from '../recommend-dialog/recommend-dialog';
 import { RUN_STATUS_LABELS, hasAward, isFinished } from '../run-status';
+import { SensitivityPanel } from '../sensitivity-panel/sensitivity-panel';
 import { ShareChart, type ChartItem } from '../share-chart/share-chart';
+import { EngineDetails } from '../engine-details/engine-details';
+import { awardStatusWords, marginAboveBest } from '@shared/award-wording';
+import { whenConfirmed } from '../../ui/confirm-dialog';
 
 /** How often an unfinished run is asked for again. */
 export const RUN_POLL_MS = 1000;
@@ -35,6 +39,8 @@ export const RUN_POLL_MS = 1000;
     AllocationMatrix,
     AwardCaution,
     AwardExplanation,
+    EngineDetails,
+    SensitivityPanel,
     ShareChart,
   ],
   templateUrl: './run-result.html',
@@ -121,6 +127,22 @@ export class RunResult {
       text: fractionPercent(award.share),
     }));
   });
+  /** Buyer's words for the run's status ("Best possible award (proven)", or the margin of one that is not). */
+  protected readonly statusWords = computed(() => awardStatusWords(this.result(), (f) => fractionPercent(f, 2)));
+  /** The line under the status badge: what the status means for the buyer (the badge already names it). */
+  protected readonly plainStatus = computed(() => {
+    const result = this.result();
+    if (result?.status === 'optimal') return 'No cheaper award meets every rule: the engine proved it.';
+    const words = this.statusWords();
+    return words ? `${words}.` : null;
+  });
+  protected readonly forecastNote = computed(() => {
+    const run = this.run();
+    if (!run || run.forecastChangePercent === null) return null;
+    const change = `${run.forecastChangePercent > 0 ? '+' : '−'}${Math.abs(run.forecastChangePercent)} %`;
+    const where = run.scaledRegion ? `the forecast of ${run.regions[run.scaledRegion]?.name ?? run.scaledRegion} changed by ${change}` : `every forecast changed by ${change}`;
+    return `A forecast sensitivity re-solve: the same bids and rules, with ${where}.`;
+  });
   protected readonly droppedVendorName = computed(() => {
     const run = this.run();
     return run?.droppedVendor ? (run.vendors[run.droppedVendor]?.name ?? run.droppedVendor) : null;
@@ -159,10 +181,6 @@ export class RunResult {
     return this.api.exportUrl(this.runId());
   }
 
-  protected percentOf(fraction: number | null): string {
-    return fraction === null ? '—' : fractionPercent(fraction, 2);
-  }
-
   protected retry(): void {
     this.loadError.set(null);
     this.attempt.update((n) => n + 1);
@@ -196,12 +214,33 @@ export class RunResult {
       });
   }
 
+  /**
+   * Recommending asks first when the award is not proven best: the margin is what the buyer
+   * accepts (at most that much above the best possible award).
+   */
   protected recommend(): void {
     const run = this.run();
     if (!run) return;
+    if (run.status === 'optimal') {
+      this.openRecommend(run);
+      return;
+    }
+    const margin = marginAboveBest(run.result);
+    whenConfirmed(this.dialog, {
+      title: 'Recommend an award not proven best?',
+      message: `Total ${this.money(run.objective)}. ${this.statusWords() ?? 'This award was not proven best'}. ${
+        margin === null ? 'How much a cheaper award could save is not known.' : `A cheaper award may exist; this one costs at most ${fractionPercent(margin, 2)} more than the best possible.`
+      } Running the scenario again with a longer time limit can narrow the margin.`,
+      confirm: 'Recommend it anyway',
+    })
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe(() => this.openRecommend(run));
+  }
+
+  private openRecommend(run: RunView): void {
     this.dialog
       .open<RecommendDialog, RecommendDialogData, RecommendationView>(RecommendDialog, {
-        data: { tenderId: this.id(), runId: run.id, scenarioName: run.scenarioName, total: this.money(run.objective) },
+        data: { tenderId: this.id(), runId: run.id, scenarioName: run.scenarioName, total: this.money(run.objective), status: this.statusWords() ?? '' },
         width: '640px',
         maxWidth: '95vw',
       })

@@ -37,7 +37,7 @@ export interface ChartItem {
 const THEME_COLOURS = ['--mat-sys-primary', '--mat-sys-tertiary', '--mat-sys-secondary', '--mat-sys-error', '--mat-sys-outline'];
 const FALLBACK_COLOURS = ['#1f5c4a', '#a0522d', '#4a6360', '#8c1d18', '#6f7975'];
 
-function palette(host: HTMLElement, count: number): string[] {
+export function palette(host: HTMLElement, count: number): string[] {
   const style = getComputedStyle(host);
   const base = THEME_COLOURS.map((name, i) => style.getPropertyValue(name).trim() || FALLBACK_COLOURS[i]);
   return Array.from({ length: count }, (_, i) => base[i % base.length]);
