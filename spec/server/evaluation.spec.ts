@@ -164,6 +164,18 @@ test('four-eyes: the person who recommended can never approve, even with the com
   expect(ret.body.errors[0].field).toBe('comment');
 });
 
+test('a returned recommendation stays in the history when the buyer recommends again', async () => {
+  const returned = await compliance.post(`/api/tenders/${tenderId}/recommendation/return`, { comment: 'Please say why the fee of the smallest vendor was accepted.' });
+  expect(returned.status).toBe(200);
+  const again = await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: runs['published'].id, justification: 'Least total cost on the published award basis; the fee is below the median.' });
+  expect(again.status).toBe(201);
+  const answer = (await compliance.get(`/api/tenders/${tenderId}/recommendation`)).body;
+  expect(answer.recommendation).toMatchObject({ id: again.body.id, status: 'recommended' });
+  expect(answer.history).toEqual([
+    expect.objectContaining({ status: 'returned', justification: 'Least total cost on the published award basis.', comment: 'Please say why the fee of the smallest vendor was accepted.', decidedBy: expect.objectContaining({ name: 'Priya Castell' }) }),
+  ]);
+});
+
 test('approval by compliance awards the tender and freezes its scenarios', async () => {
   const res = await compliance.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: 'Checked against the rules.' });
   expect(res.status).toBe(200);

@@ -22,14 +22,12 @@ function view(r: Recommendation): RecommendationView {
   };
 }
 
-async function current(em: EntityManager, tenderId: string): Promise<Recommendation | null> {
-  return em.findOne(Recommendation, { tender: tenderId }, { populate: ['recommendedBy', 'decidedBy', 'run', 'tender'], orderBy: { createdAt: 'desc' } });
-}
-
-export async function currentRecommendation(em: EntityManager, user: User, tenderId: string): Promise<{ recommendation: RecommendationView | null }> {
+/** The latest recommendation and every earlier round (returned, then recommended again), newest first. */
+export async function currentRecommendation(em: EntityManager, user: User, tenderId: string): Promise<{ recommendation: RecommendationView | null; history: RecommendationView[] }> {
   await evaluableTender(em, user, tenderId);
-  const r = await current(em, tenderId);
-  return { recommendation: r ? view(r) : null };
+  const rounds = await em.find(Recommendation, { tender: tenderId }, { populate: ['recommendedBy', 'decidedBy', 'run', 'tender'], orderBy: { createdAt: 'desc', id: 'desc' } });
+  const [latest, ...earlier] = rounds.map(view);
+  return { recommendation: latest ?? null, history: earlier };
 }
 
 /**

@@ -112,10 +112,9 @@ export class AwardApi {
     return this.http.get<BidsAnswer>(`${this.tenderUrl(tenderId)}/bids`);
   }
 
-  recommendation(tenderId: string): Observable<RecommendationView | null> {
-    return this.http
-      .get<{ recommendation: RecommendationView | null }>(this.recommendationUrl(tenderId))
-      .pipe(map((answer) => answer.recommendation));
+  /** The latest recommendation, and the earlier rounds (each returned by compliance), newest first. */
+  recommendation(tenderId: string): Observable<{ recommendation: RecommendationView | null; history: RecommendationView[] }> {
+    return this.http.get<{ recommendation: RecommendationView | null; history: RecommendationView[] }>(this.recommendationUrl(tenderId));
   }
 
   recommend(tenderId: string, runId: string, justification: string): Observable<RecommendationView> {

@@ -18,6 +18,8 @@ export interface RecommendDialogData {
   total: string;
   /** The run's status in the buyer's words (with the margin when not proven best). */
   status: string;
+  /** A revision after a return starts from the earlier justification. */
+  justification?: string;
 }
 
 /** The buyer recommends a run's award to compliance, with a justification; closes with the recommendation. */
@@ -63,7 +65,7 @@ export class RecommendDialog {
   private readonly api = inject(AwardApi);
   private readonly dialogRef = inject<MatDialogRef<RecommendDialog, RecommendationView>>(MatDialogRef);
   protected readonly data = inject<RecommendDialogData>(MAT_DIALOG_DATA);
-  protected readonly justification = new FormControl('', {
+  protected readonly justification = new FormControl(this.data.justification ?? '', {
     nonNullable: true,
     validators: zodValidator(recommendationInputSchema.shape.justification),
   });

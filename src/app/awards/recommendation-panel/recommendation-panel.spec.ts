@@ -31,7 +31,7 @@ describe('RecommendationPanel', () => {
   let http: HttpTestingController;
   let fixture: ComponentFixture<RecommendationPanel>;
 
-  async function open(role: 'buyer' | 'compliance', recommendation: RecommendationView | null, run = runView()): Promise<HTMLElement> {
+  async function open(role: 'buyer' | 'compliance', recommendation: RecommendationView | null, run = runView(), history: RecommendationView[] = []): Promise<HTMLElement> {
     TestBed.configureTestingModule({
       imports: [RecommendationPanel],
       providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
@@ -41,7 +41,7 @@ describe('RecommendationPanel', () => {
     fixture = TestBed.createComponent(RecommendationPanel);
     fixture.componentRef.setInput('id', TENDER_ID);
     fixture.detectChanges();
-    http.expectOne(base).flush({ recommendation });
+    http.expectOne(base).flush({ recommendation, history });
     if (recommendation) await answerWhenAsked(`/api/runs/${recommendation.runId}`, run, () => fixture.detectChanges());
     if (role === 'compliance' && recommendation?.status === 'recommended') {
       // What the approval reads back: the published basis and the compliance check's exclusions.
@@ -160,6 +160,22 @@ describe('RecommendationPanel', () => {
     expect(page.textContent).toContain('Returned by');
     expect(page.querySelector('[role=status]')!.textContent).toContain('Returned to the buyer with your comment.');
     expect(button(page, 'Approve award')).toBeUndefined();
+  });
+
+  it('keeps every round after a return, and the buyer revises with the returned justification pre-filled', async () => {
+    const returned: RecommendationView = {
+      ...recommended, status: 'returned', decidedBy: { id: 'user-compliance', name: 'Alba Quennell' }, decidedAt: '2026-12-01T12:00:00Z',
+      comment: 'Say why the Garrow Moor price was accepted.',
+    };
+    const firstRound: RecommendationView = { ...returned, id: 'e1e1e1e1-0000-4000-8000-000000000000', justification: 'First attempt.', comment: 'Too short.' };
+    const page = await open('buyer', returned, runView(), [firstRound]);
+    expect(page.querySelector('#history-heading')!.textContent).toBe('Earlier rounds');
+    expect(page.querySelector('.history')!.textContent).toContain('First attempt.');
+    expect(page.querySelector('.history')!.textContent).toContain('Too short.');
+    button(page, 'Revise and recommend again').click();
+    await fixture.whenStable();
+    const textarea = document.querySelector<HTMLTextAreaElement>('mat-dialog-container textarea')!;
+    expect(textarea.value).toBe(recommended.justification);
   });
 
   it('says how a recommendation is made when there is none', async () => {

@@ -20,6 +20,7 @@ import { MatDialog } from '@angular/material/dialog';
 import { awardStatusWords } from '@shared/award-wording';
 import { describeAwardBasis } from '@shared/award-basis';
 import { EXCLUSION_GROUND_LABELS } from '@shared/compliance';
+import { RecommendDialog, type RecommendDialogData } from '../recommend-dialog/recommend-dialog';
 import { whenConfirmed } from '../../ui/confirm-dialog';
 import { loadErrorMessage } from '../../ui/load-error';
 
@@ -55,8 +56,10 @@ export class RecommendationPanel {
   private readonly loaded = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.recommendation(params) });
   /** Replaced by the answer of a decision, so the page shows the new state without a reload. */
   protected readonly recommendation = computed<RecommendationView | null>(
-    () => this.decided() ?? this.loaded.value() ?? null,
+    () => this.decided() ?? this.loaded.value()?.recommendation ?? null,
   );
+  /** Earlier rounds (each returned by compliance), newest first: the whole history stays on the page. */
+  protected readonly history = computed(() => this.loaded.value()?.history ?? []);
   private readonly decided = signal<RecommendationView | null>(null);
   protected readonly loading = this.loaded.isLoading;
   protected readonly loadError = computed(() =>
@@ -77,6 +80,8 @@ export class RecommendationPanel {
 
   protected readonly isCompliance = computed(() => this.auth.user()?.role === 'compliance');
   protected readonly canDecide = computed(() => this.isCompliance() && this.recommendation()?.status === 'recommended');
+  /** After a return the buyer revises: the same run, the justification pre-filled (another run: from its result page). */
+  protected readonly canRevise = computed(() => this.auth.user()?.role === 'buyer' && this.recommendation()?.status === 'returned');
   protected readonly comment = new FormControl('', { nonNullable: true });
   protected readonly commentError = signal<string | null>(null);
   protected readonly failure = signal<string | null>(null);
@@ -135,6 +140,26 @@ export class RecommendationPanel {
     })
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe(() => this.decide('approve', parsed.data.comment));
+  }
+
+  protected revise(): void {
+    const rec = this.recommendation();
+    const run = this.run.value();
+    if (!rec || !run) return;
+    this.dialog
+      .open<RecommendDialog, RecommendDialogData, RecommendationView>(RecommendDialog, {
+        data: { tenderId: this.id(), runId: rec.runId, scenarioName: run.scenarioName, total: this.total() ?? '—', status: this.runStatusWords() ?? '', justification: rec.justification },
+        width: '640px',
+        maxWidth: '95vw',
+      })
+      .afterClosed()
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe((revised) => {
+        if (!revised) return;
+        this.decided.set(null);
+        this.done.set('Recommended again: compliance has been asked to decide.');
+        this.loaded.reload();
+      });
   }
 
   protected sendBack(): void {
