@@ -28,7 +28,9 @@ export function notice(overrides: Partial<NoticeSummary> & Pick<NoticeSummary, '
     lastError: null,
     queuedAt: '2026-12-01T10:00:00Z',
     sentAt: '2026-12-01T10:00:05Z',
-    standstillEndsAt: '2026-12-15T00:00:00Z',
+    standstillEndsAt: '2026-12-15T23:59:00Z',
+    timeZone: 'Europe/Dublin',
+    locale: 'en-IE',
     ...overrides,
   };
 }
