@@ -58,8 +58,8 @@ export const PREVIEWS: NoticePreview[] = [
     kind: 'regret',
     to: ['office@brinewick.example', 'tenders@brinewick.example'],
     subject: 'Outcome of tender HWP-2026-07',
-    html: '<p>Your bid ranked 3rd of 5. The awarded total is €1,234,567.50.</p>',
-    text: 'Your bid ranked 3rd of 5.',
+    html: '<p>Successful vendor: Northfell Minerals. The awarded total is €1,234,567.50.</p>',
+    text: 'Successful vendor: Northfell Minerals.',
   },
 ];
 
