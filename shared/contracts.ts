@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { hasAtMostDecimals, MAX_AMOUNT, regionCodeSchema, unitPriceSchema } from './bids';
-import { isoDateSchema } from './tenders';
+import { isoDateSchema, type TenderStatus } from './tenders';
 
 /**
  * The contract step: after the standstill, the buyer records each awarded vendor's signed contract
@@ -43,7 +43,7 @@ export interface AwardedContractView {
 /** GET /api/tenders/:id/contracts */
 export interface ContractsView {
   tenderId: string;
-  status: string;
+  status: TenderStatus;
   timeZone: string;
   standstillEndsAt: string | null;
   /** The first signature date the server accepts (the day after the standstill's last day, in the procedure's zone). */

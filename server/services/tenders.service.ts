@@ -257,7 +257,7 @@ export async function updateTender(em: EntityManager, user: User, id: string, in
  */
 export async function setClosureDays(em: EntityManager, user: User, id: string, closureDays: string[]): Promise<TenderView> {
   await em.transactional(async (tx) => {
-    await lockTender(tx, user, id, statusesBefore('awarded').concat(['draft', 'open']), 'The award is approved: its standstill end is fixed and closure days can no longer change.');
+    await lockTender(tx, user, id, ['draft', 'open', 'closed'], 'The award is approved: its standstill end is fixed and closure days can no longer change.');
     const tender = await tx.findOneOrFail(Tender, { id });
     const before = { closureDays: tender.closureDays };
     await tx.nativeUpdate(Tender, { id }, { closureDays, updatedAt: new Date() });

@@ -77,6 +77,29 @@ describe('letters at phone width (390 × 844)', () => {
   });
 });
 
+describe('standstill settings in the tender editor', () => {
+  let b: Awaited<ReturnType<typeof openBrowser>>;
+  beforeAll(async () => { b = await openBrowser(); });
+  afterAll(() => b.close());
+
+  test('0 standstill days asks for the exemption ground; closure days and the letter locale list sit beside it; axe-clean', async () => {
+    const { page } = b;
+    await signIn(page, 'buyer@demo.tendara.test');
+    await page.goto(`${baseUrl()}/tenders/new`);
+    await page.getByRole('heading', { name: 'New tender', level: 1 }).waitFor();
+    expect(await page.getByLabel('Ground for no standstill').count()).toBe(0);
+    await page.getByLabel('Standstill period (days)').fill('0');
+    await page.getByLabel('Ground for no standstill').waitFor();
+    await page.getByLabel('Closure days of the buying body').fill('2026-12-29, 2026-12-30');
+    await page.getByRole('combobox', { name: 'Letter locale' }).click();
+    await page.getByRole('option', { name: 'en-IE' }).click();
+    await page.getByLabel('Standstill period (days)').scrollIntoViewIfNeeded();
+    await animationsDone(page);
+    await screenshot(page, 'tender-editor-standstill-1280');
+    expect(await seriousViolations(page)).toEqual([]);
+  });
+});
+
 describe('the contract step', () => {
   let b: Awaited<ReturnType<typeof openBrowser>>;
   // Tall enough to show the section below the tender's facts in one picture.
