@@ -76,6 +76,8 @@ export function loadDemoTenders(
     awardBasis: { sourcing: 'split', soleRegions: [], maxVendors: 4, maxVendorShare: 0.45 },
     buyingBody: NORTHVALE,
     timeZone: TIME_ZONE,
+    // The partnership's offices close between Christmas and New Year: no standstill ends then.
+    closureDays: ['2026-12-29', '2026-12-30', '2026-12-31'],
     estimatedValue: 3_150_000,
     publishedAt: new Date(now.getTime() - 24 * DAY),
     closedAt: new Date(now.getTime() - 3 * DAY),

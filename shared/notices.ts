@@ -25,7 +25,11 @@ export interface NoticeSummary {
   lastError: string | null;
   queuedAt: string;
   sentAt: string | null;
+  /** The standstill end fixed at approval (the same on every letter of the tender). */
   standstillEndsAt: string;
+  /** The procedure's IANA zone and the letters' locale: the reader shows the letter's own dates in them. */
+  timeZone: string;
+  locale: string;
 }
 
 /** GET /api/notices/:id: the letter itself. */

@@ -6,8 +6,12 @@ import { bidInputSchema, regionListSchema } from './bids';
 import type { AmendmentView } from './procedure';
 import { plainText } from './text';
 
-/** A tender's life: draft → open (published) → closed (bids unsealed) → awarded → notified; draft or open → cancelled. */
-export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified', 'cancelled'] as const;
+/**
+ * A tender's life: draft → open (published) → closed (bids unsealed) → awarded (approved; standstill
+ * end fixed) → notified (letters sent) → contracted (every awarded vendor's contract recorded after
+ * the standstill); draft or open → cancelled.
+ */
+export const TENDER_STATUSES = ['draft', 'open', 'closed', 'awarded', 'notified', 'contracted', 'cancelled'] as const;
 export type TenderStatus = (typeof TENDER_STATUSES)[number];
 
 /** A bid's life: draft → submitted → revised (submitted again) / withdrawn; locked at closing. */
@@ -35,9 +39,18 @@ export const TENDER_TRANSITIONS = {
   open: ['closed', 'cancelled'],
   closed: ['awarded'],
   awarded: ['notified'],
-  notified: [],
+  notified: ['contracted'],
+  contracted: [],
   cancelled: [],
 } as const satisfies Record<TenderStatus, readonly TenderStatus[]>;
+
+/** Every status a tender reaches after `from`, by any path (not `from` itself). */
+export function statusesAfter(from: TenderStatus): TenderStatus[] {
+  const seen = new Set<TenderStatus>();
+  const walk = (s: TenderStatus) => { for (const next of TENDER_TRANSITIONS[s] as readonly TenderStatus[]) if (!seen.has(next)) { seen.add(next); walk(next); } };
+  walk(from);
+  return [...seen];
+}
 
 /** The statuses a tender may move to `to` from. */
 export function statusesBefore(to: TenderStatus): TenderStatus[] {
@@ -66,6 +79,31 @@ export const buyingBodySchema = z.object({
 });
 export type BuyingBody = z.output<typeof buyingBodySchema>;
 
+/**
+ * Locales a letter may be written with: they give its number and date formats (Intl); the text
+ * itself is English and says so. A short list on purpose: each is checked by a test.
+ */
+export const LETTER_LOCALES = ['en-IE', 'en-GB', 'en-US', 'de-DE', 'fr-FR', 'nl-NL', 'es-ES', 'it-IT', 'pl-PL'] as const;
+export type LetterLocale = (typeof LETTER_LOCALES)[number];
+
+/** A calendar date, "2026-03-17", that exists. */
+export const isoDateSchema = z
+  .string({ error: 'Date must be text (YYYY-MM-DD).' })
+  .regex(/^\d{4}-\d{2}-\d{2}$/, { error: 'Date must be written YYYY-MM-DD.', abort: true })
+  .refine((d) => { const t = new Date(`${d}T00:00:00Z`); return !Number.isNaN(t.getTime()) && t.toISOString().slice(0, 10) === d; }, { error: 'This date does not exist.' });
+
+/** Days the buying body is closed beyond public holidays (a standstill never ends on one). */
+export const closureDaysSchema = z
+  .array(isoDateSchema, { error: 'Closure days must be a list of dates.' })
+  .max(60, { error: 'At most 60 closure days.' })
+  .refine((days) => new Set(days).size === days.length, { error: 'Each closure day may be listed once.' })
+  .transform((days) => [...days].sort());
+
+/** Why no standstill period applies (required when the standstill is 0 days). */
+export const standstillExemptionSchema = plainText(
+  z.string({ error: 'Exemption ground must be text.' }).trim().max(500, { error: 'Exemption ground must be at most 500 characters.' }), 'Exemption ground',
+).nullable().default(null);
+
 /** An IANA time zone name the runtime knows (Europe/Dublin, UTC…). */
 export const timeZoneSchema = z
   .string({ error: 'Time zone must be text.' })
@@ -93,12 +131,12 @@ export const tenderInputSchema = z.object({
     .int({ error: 'Standstill period must be a whole number of days.' })
     .min(0, { error: 'Standstill period cannot be negative.' })
     .max(90, { error: 'Standstill period must be at most 90 days.' }),
-  /** Locale of the letters (money and dates), e.g. en-GB or de-DE. */
-  locale: z
-    .string({ error: 'Locale must be text.' })
-    .regex(/^[a-z]{2,3}(-[A-Z]{2})?$/, { error: 'Locale must look like en-GB or de-DE.' })
-    .refine((l) => { try { return Intl.NumberFormat.supportedLocalesOf([l]).length === 1; } catch { return false; } }, { error: 'This locale is not supported.' })
-    .default('en-GB'),
+  /** Locale of the letters (number and date formats), one of LETTER_LOCALES. */
+  locale: z.enum(LETTER_LOCALES, { error: `Letter locale must be one of ${LETTER_LOCALES.join(', ')}.` }).default('en-GB'),
+  /** Required when standstillDays is 0 (checked by the server: 400 naming it). */
+  standstillExemption: standstillExemptionSchema,
+  /** The buying body's own closure days: a standstill moves past them. */
+  closureDays: closureDaysSchema.default([]),
   description: plainText(z.string({ error: 'Description must be text.' }).max(5000, { error: 'Description must be at most 5000 characters.' }), 'Description', true).default(''),
   regions: regionListSchema,
   /** The award rules vendors bid against; locked at publish. */
@@ -161,6 +199,9 @@ export type InvitationInput = z.infer<typeof invitationInputSchema>;
 
 export const tenderIdParamSchema = z.object({ id: z.uuid({ error: 'Must be a valid id.' }) });
 
+/** PUT /api/tenders/:id/closure-days: the buying body's closure days, until the award is approved. */
+export const closureDaysInputSchema = z.object({ closureDays: closureDaysSchema });
+
 export interface RegionView {
   code: string;
   name: string;
@@ -188,6 +229,11 @@ export interface TenderView extends TenderSummary {
   description: string;
   locale: string;
   standstillDays: number;
+  /** Why no standstill applies, when standstillDays is 0. */
+  standstillExemption: string | null;
+  closureDays: string[];
+  /** Fixed at approval: the end of the standstill (23:59 in the tender's zone), null before. */
+  standstillEndsAt: string | null;
   publishedAt: string | null;
   closedAt: string | null;
   regions: RegionView[];

@@ -5,6 +5,8 @@ import { Bid } from './bid.entity';
 import { BidDocument } from './bid-document.entity';
 import { BidLine } from './bid-line.entity';
 import { BidRemovedLine } from './bid-removed-line.entity';
+import { Contract } from './contract.entity';
+import { ContractLine } from './contract-line.entity';
 import { Invitation } from './invitation.entity';
 import { MailMessage } from './mail-message.entity';
 import { Notice } from './notice.entity';
@@ -22,7 +24,7 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
-  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation];
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, Contract, ContractLine];
 export {
-  AccountToken, Amendment, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, Amendment, Contract, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

@@ -35,6 +35,18 @@ export class Tender extends BaseEntity {
   @Property({ type: 'integer', default: 10 })
   standstillDays: number & Opt = 10;
 
+  /** Why no standstill applies (required when standstillDays is 0). */
+  @Property({ type: 'text', nullable: true })
+  standstillExemption?: string | null;
+
+  /** The buying body's closure days ("2026-12-29"), sorted; a standstill never ends on one. */
+  @Property({ type: 'json', default: '[]' })
+  closureDays: string[] & Opt = [];
+
+  /** Fixed once, in the approval's transaction: 23:59 in the tender's zone of the standstill's last day. */
+  @Property({ type: 'datetime', nullable: true })
+  standstillEndsAt?: Date | null;
+
   @Property({ type: 'text', default: '' })
   description: string & Opt = '';
 

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { invitationInputSchema, tenderIdParamSchema, tenderInputSchema, tenderListQuerySchema } from '@shared/tenders';
+import { closureDaysInputSchema, invitationInputSchema, tenderIdParamSchema, tenderInputSchema, tenderListQuerySchema } from '@shared/tenders';
 import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
@@ -30,6 +30,12 @@ export function tenderRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'Edit a draft tender (its regions are replaced).',
       responses: { 409: 'The tender is published' },
       handler: ({ em, user, params, body }) => tenders.updateTender(em, user, params.id, body),
+    }),
+    route({
+      method: 'put', path: '/tenders/:id/closure-days', tag: 'Tenders', access: ['buyer'], params: tenderIdParamSchema, body: closureDaysInputSchema,
+      summary: "Set the buying body's closure days (a standstill never ends on one), until compliance approves the award and its standstill end is fixed.",
+      responses: { 409: 'The award is approved: the standstill end is fixed' },
+      handler: ({ em, user, params, body }) => tenders.setClosureDays(em, user, params.id, body.closureDays),
     }),
     route({
       method: 'post', path: '/tenders/regions/import', tag: 'Tenders', access: ['buyer'], upload: { field: 'file', maxBytes: UPLOAD_MAX_BYTES },

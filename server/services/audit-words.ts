@@ -84,6 +84,17 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
     return bids === null ? 'Bidding closed; bids opened' : `Bidding closed; ${bids} ${bids === 1 ? 'bid' : 'bids'} opened`;
   },
   'tender.notified': () => 'Every notice sent: bidders informed of the outcome',
+  'tender.closure-days': () => 'Closure days for the standstill changed',
+  'tender.contracted': (e) => {
+    const n = num(e.detail['contracts']);
+    return n === null ? 'Every contract recorded: the procedure is complete' : `Every contract recorded (${n}): the procedure is complete`;
+  },
+  'contract.recorded': (e, n) => {
+    const id = subjectId(e, 'vendor');
+    const vendor = id ? n.organisations.get(id) ?? null : null;
+    const signed = str(e.detail['signedOn']);
+    return `Contract${vendor ? ` with ${vendor}` : ''} recorded${signed ? `, signed on ${signed}` : ''}`;
+  },
   'invitations.added': (e) => {
     const vendors = Array.isArray(e.detail['vendors']) ? (e.detail['vendors'] as unknown[]).filter((v) => typeof v === 'string') : [];
     return vendors.length ? `Invited ${vendors.join(', ')}` : 'Vendors invited';
@@ -163,7 +174,7 @@ const ids = (entries: readonly Entry[], kind: string) =>
 export async function auditNames(em: EntityManager, entries: readonly Entry[], sealed: boolean): Promise<AuditNames> {
   const bidIds = sealed ? [] : ids(entries, 'bid');
   const runIds = ids(entries, 'run');
-  const orgIds = [...new Set(entries.flatMap((e) => [e.detail['vendorOrganisation'], e.detail['droppedVendor']])
+  const orgIds = [...new Set(entries.flatMap((e) => [e.detail['vendorOrganisation'], e.detail['droppedVendor'], subjectId(e, 'vendor')])
     .filter((v): v is string => typeof v === 'string' && UUID.test(v)))];
   type Named = { id: string; name: string }[];
   const bids = bidIds.length

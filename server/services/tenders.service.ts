@@ -4,7 +4,7 @@ import type { z } from 'zod';
 import { describeAwardBasis } from '@shared/award-basis';
 import type { RegionInput } from '@shared/bids';
 import type { BidStatus, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
-import { Amendment, Bid, Invitation, Region, Tender, User, VendorOrganisation } from '../entities';
+import { Amendment, Bid, Invitation, Notice, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
@@ -13,7 +13,8 @@ import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from '
 import { audit } from './audit.service';
 import { escapeLike } from './like';
 import { CLOSING_GRACE_MS, closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
-import { LIVE_BID_STATUSES, statusesBefore } from '@shared/tenders';
+import { LIVE_BID_STATUSES, statusesAfter, statusesBefore } from '@shared/tenders';
+import { sqlList } from './sql';
 import { isWholeMultiple } from '@shared/award';
 
 export interface TenderDeps {
@@ -60,8 +61,8 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
     params.push(owner);
   }
   if (query.status) {
-    where.push(`${CURRENT_STATUS} = ?`);
-    params.push(query.status);
+    where.push(`${vendor ? VENDOR_STATUS : CURRENT_STATUS} = ?`);
+    params.push(...(vendor ? [vendor] : []), query.status);
   }
   if (query.q) {
     where.push(`(t.reference ilike ? or t.title ilike ? or t.commodity ilike ?)`);
@@ -72,14 +73,14 @@ export async function listTenders(em: EntityManager, user: User, query: z.infer<
     id: string; reference: string; title: string; commodity: string; unit: string; currency: string;
     status: TenderStatus; closes_at: Date | string; time_zone: string; region_count: number; total_forecast: string; my_bid_status: BidStatus | null;
   }[]>(
-    `select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${CURRENT_STATUS} as status, t.closes_at, t.time_zone,
+    `select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${vendor ? VENDOR_STATUS : CURRENT_STATUS} as status, t.closes_at, t.time_zone,
             coalesce(r.n, 0)::int as region_count, coalesce(r.total, 0) as total_forecast,
             ${vendor ? '(select b.status from bid b where b.tender_id = t.id and b.vendor_organisation_id = ?)' : 'null'} as my_bid_status
        from tender t
        left join lateral (select count(*) as n, sum(forecast) as total from region where region.tender_id = t.id) r on true
       ${where.length ? `where ${where.join(' and ')}` : ''}
       order by t.closes_at desc, t.id`,
-    vendor ? [vendor, ...params] : params,
+    vendor ? [vendor, vendor, ...params] : params,
   );
   return rows.map((t) => ({
     id: t.id, reference: t.reference, title: t.title, commodity: t.commodity, unit: t.unit, currency: t.currency,
@@ -97,6 +98,9 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
     description: tender.description,
     locale: tender.locale,
     standstillDays: tender.standstillDays,
+    standstillExemption: tender.standstillExemption ?? null,
+    closureDays: tender.closureDays,
+    standstillEndsAt: tender.standstillEndsAt?.toISOString() ?? null,
     publishedAt: tender.publishedAt?.toISOString() ?? null,
     closedAt: tender.closedAt?.toISOString() ?? null,
     regions: regions.map((r) => ({ code: r.code, name: r.name, forecast: r.forecast })),
@@ -113,6 +117,10 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
   if (user.role === 'vendor') {
     const bid = await em.findOne(Bid, { tender, vendorOrganisation: user.vendorOrganisation! });
     view.myBidStatus = bid?.status ?? null;
+    view.status = await vendorStatus(em, tender, user.vendorOrganisation!.id);
+    // The procedure's internal dates and ground are the buyer's; a vendor reads them in its letter.
+    view.closureDays = [];
+    view.standstillEndsAt = view.status === 'closed' ? null : view.standstillEndsAt;
   } else {
     const invitations = await em.find(Invitation, { tender }, { populate: ['vendorOrganisation'], orderBy: { vendorOrganisation: { name: 'asc' } } });
     view.invitations = invitations.map((i) => ({
@@ -122,6 +130,27 @@ export async function tenderView(em: EntityManager, user: User, id: string): Pro
     view.submittedBids = await em.count(Bid, { tender, status: { $in: [...LIVE_BID_STATUSES] } });
   }
   return view;
+}
+
+/**
+ * A vendor sees the outcome once its own letter has been sent: until then an approved award reads
+ * as closed (the status is the SQL of `VENDOR_STATUS` in lists).
+ */
+async function vendorStatus(em: EntityManager, tender: Tender, vendorId: string): Promise<TenderStatus> {
+  if (!AFTER_AWARD.includes(tender.status)) return tender.status;
+  return (await em.count(Notice, { tender, vendorOrganisation: vendorId, status: 'sent' })) ? tender.status : 'closed';
+}
+const AFTER_AWARD: TenderStatus[] = ['awarded', ...statusesAfter('awarded')];
+/** `VENDOR_STATUS(vendorParam)` over `tender t`: the status a vendor sees (see vendorStatus). */
+const VENDOR_STATUS = `(case when ${CURRENT_STATUS} in (${sqlList(AFTER_AWARD)})
+    and not exists (select 1 from notice n where n.tender_id = t.id and n.vendor_organisation_id = ? and n.status = 'sent')
+  then 'closed'::tender_status else ${CURRENT_STATUS} end)`;
+
+/** A standstill of 0 days needs its exemption ground (400 naming `standstillExemption`). */
+function checkStandstill(input: TenderInput): void {
+  if (input.standstillDays === 0 && !input.standstillExemption?.trim()) {
+    throw new ValidationError([{ field: 'standstillExemption', message: 'A standstill of 0 days needs the ground of its exemption.' }]);
+  }
 }
 
 function checkClosingTime(input: TenderInput): Date {
@@ -167,8 +196,12 @@ function checkAwardBasis(input: TenderInput): void {
 
 /** The tender's own columns from the input (regions are rows of their own). */
 function tenderFields(input: TenderInput) {
-  const { regions: _regions, clarificationsCloseAt, ...fields } = input;
-  return { ...fields, clarificationsCloseAt: clarificationsCloseAt ? new Date(clarificationsCloseAt) : null };
+  const { regions: _regions, clarificationsCloseAt, standstillExemption, ...fields } = input;
+  return {
+    ...fields, clarificationsCloseAt: clarificationsCloseAt ? new Date(clarificationsCloseAt) : null,
+    // The ground is kept only where it applies.
+    standstillExemption: input.standstillDays === 0 ? standstillExemption?.trim() ?? null : null,
+  };
 }
 
 /** Vendors' questions close at the stored deadline, else 5 days before closing. */
@@ -182,6 +215,7 @@ function writeRegions(em: EntityManager, tender: Tender, regions: RegionInput[])
 
 export async function createTender(em: EntityManager, user: User, input: TenderInput): Promise<TenderView> {
   const closesAt = checkClosingTime(input);
+  checkStandstill(input);
   checkAwardBasis(input);
   const id = await em.transactional(async (tx) => {
     if (await tx.count(Tender, { reference: input.reference })) {
@@ -199,6 +233,7 @@ export async function createTender(em: EntityManager, user: User, input: TenderI
 /** Drafts only: once published, vendors price what they were shown. */
 export async function updateTender(em: EntityManager, user: User, id: string, input: TenderInput): Promise<TenderView> {
   const closesAt = checkClosingTime(input);
+  checkStandstill(input);
   checkAwardBasis(input);
   await em.transactional(async (tx) => {
     await lockTender(tx, user, id, ['draft'], 'Only a draft tender can be edited; this one is published.');
@@ -212,6 +247,21 @@ export async function updateTender(em: EntityManager, user: User, id: string, in
     writeRegions(tx, tender, input.regions);
     await tx.flush();
     await audit(tx, { tenderId: tender.id, actor: user, action: 'tender.updated', subject: 'tender', before, after: input });
+  });
+  return tenderView(em.fork(), user, id);
+}
+
+/**
+ * The buying body's closure days, editable until the award is approved (the approval fixes the
+ * standstill end from them). Under the tender's lock, with its audit entry.
+ */
+export async function setClosureDays(em: EntityManager, user: User, id: string, closureDays: string[]): Promise<TenderView> {
+  await em.transactional(async (tx) => {
+    await lockTender(tx, user, id, ['draft', 'open', 'closed'], 'The award is approved: its standstill end is fixed and closure days can no longer change.');
+    const tender = await tx.findOneOrFail(Tender, { id });
+    const before = { closureDays: tender.closureDays };
+    await tx.nativeUpdate(Tender, { id }, { closureDays, updatedAt: new Date() });
+    await audit(tx, { tenderId: id, actor: user, action: 'tender.closure-days', subject: 'tender', before, after: { closureDays } });
   });
   return tenderView(em.fork(), user, id);
 }

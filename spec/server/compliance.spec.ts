@@ -260,7 +260,7 @@ test("after the bids' validity has ended, approval is refused until each awarded
   expect(await actions(tenderId)).toEqual(expect.arrayContaining(['bid.validity-extended', 'recommendation.approved']));
   expect((await t.em().find(AuditEntry, { tender: tenderId, action: 'bid.validity-extended' })).map((e) => e.detail['vendor']).sort()).toEqual([first.name, second.name].sort());
 
-  // Notices: award letters to A and C, a regret letter to B (ranked among the 3 bids evaluated), an exclusion notice to D.
+  // Notices: award letters to A and C, a regret letter to B (naming A and C as successful, no rank), an exclusion notice to D.
   const preview = await buyer.get(`/api/tenders/${tenderId}/notices/preview`);
   expect((preview.body as { vendor: { id: string }; kind: string }[]).map((l) => [l.vendor.id, l.kind]).sort()).toEqual([
     [vendors['A'].orgId, 'award'], [vendors['B'].orgId, 'regret'], [vendors['C'].orgId, 'award'], [vendors['D'].orgId, 'exclusion'],
@@ -274,7 +274,8 @@ test("after the bids' validity has ended, approval is refused until each awarded
   expect(parsed.text).toContain("follow the\nbuyer's procurement rules and the law that applies to this tender");
   expect(parsed.html).toContain('<strong>Conflict of interest</strong>');
   const regret = await waitForMail(t, vendors['B'].user.vendorOrganisation!.contactEmail, 'Outcome of tender');
-  expect(regret.text).toMatch(/ranked \d(st|nd|rd|th) of 3/);
+  expect(regret.text).toContain(`Successful vendors: ${[vendors['A'].name, vendors['C'].name].sort((x, y) => x.localeCompare(y)).join(' and ')}.`);
+  expect(regret.text).not.toMatch(/rank/i);
   await waitFor('every notice sent', async () => (await t.em().findOneOrFail(Tender, { id: tenderId })).status === 'notified');
   expect(await t.em().count(MailMessage, { toAddresses: { $contains: [vendors['D'].user.vendorOrganisation!.contactEmail] } })).toBe(1);
 });

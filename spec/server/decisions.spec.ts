@@ -1,12 +1,10 @@
-import { Client } from 'pg';
 import type { Response } from 'supertest';
 import type { User } from '../../server/entities';
 import { AuditEntry, Notice, Question, Recommendation, Run, Tender } from '../../server/entities';
-import { auditLockKey } from '../../server/services/audit.service';
 import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
 import { openTender, passClosingTime, tenderBody } from '../support/tenders';
-import { waitFor } from '../support/wait';
+import { race as raceOn } from '../support/race';
 
 /**
  * Decisions cannot contradict: two decisions on one tender sent at the same moment never both win.
@@ -36,34 +34,8 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-/** Runs `requests` at once while the tender's audit-chain lock is held; releases it once all are waiting or done. */
-async function race(tenderId: string, requests: (() => PromiseLike<Response>)[]): Promise<Response[]> {
-  const hold = new Client({ connectionString: t.config.databaseUrl });
-  await hold.connect();
-  try {
-    await hold.query('begin');
-    await hold.query('select pg_advisory_xact_lock(hashtext($1))', [auditLockKey(tenderId)]);
-    let answered = 0;
-    const pending = requests.map((r) => Promise.resolve(r()).then((res) => { answered += 1; return res; }));
-    let waiting = 0;
-    await waitFor('every request to wait for the lock or to have answered', async () => {
-      // pg_stat_activity is read once per transaction and then kept: clear that snapshot each time.
-      await hold.query('select pg_stat_clear_snapshot()');
-      const { rows } = await hold.query<{ n: number }>(
-        `select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and pid <> pg_backend_pid()`,
-      );
-      waiting = rows[0].n;
-      return waiting + answered >= requests.length;
-    }, { timeoutMs: 30_000, everyMs: 10 }).catch(async (error: Error) => {
-      const activity = await hold.query(`select state, wait_event_type, wait_event, left(query, 120) as query from pg_stat_activity where datname = current_database() and pid <> pg_backend_pid()`);
-      throw new Error(`${error.message}: only ${waiting} waiting and ${answered} answered of ${requests.length}: ${JSON.stringify(activity.rows)}`);
-    });
-    await hold.query('commit');
-    return await Promise.all(pending);
-  } finally {
-    await hold.end();
-  }
-}
+/** Races `requests` on the tender (spec/support/race.ts). */
+const race = (tenderId: string, requests: (() => PromiseLike<Response>)[]): Promise<Response[]> => raceOn(t, tenderId, requests);
 
 async function auditCount(tenderId: string, action: string): Promise<number> {
   return t.em().count(AuditEntry, { tender: tenderId, action });

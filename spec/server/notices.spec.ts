@@ -1,6 +1,8 @@
 import { simpleParser } from 'mailparser';
 import type { RunView } from '@shared/evaluation';
-import { MailMessage, Notice, Tender } from '../../server/entities';
+import { utcToWallTime } from '@shared/time-zone';
+import { MailMessage, Notice, Recommendation, Tender } from '../../server/entities';
+import { standstillEnd } from '../../server/services/standstill';
 import { startMailCatcher } from '../../server/mail/catcher';
 import { seed } from '../../server/ops/seed';
 import { DEMO_PASSWORD } from '../../seeds/demo-people';
@@ -58,27 +60,73 @@ describe('with the mail server up', () => {
     const stored = await t.em().count(Notice, {});
     const res = await buyer.get(`/api/tenders/${tenderId}/notices/preview`);
     expect(res.status).toBe(200);
-    const letters = res.body as { vendor: { id: string }; kind: string; html: string; text: string }[];
+    const letters = res.body as { vendor: { id: string; name: string }; kind: string; html: string; text: string }[];
     expect(letters).toHaveLength(7);
     const awards = run.result!.awards;
     expect(letters.filter((l) => l.kind === 'award').map((l) => l.vendor.id).sort()).toEqual(awards.map((a) => a.vendor).sort());
+    // The demo tender's letter locale is the default, en-GB.
     const eur = new Intl.NumberFormat('en-GB', { style: 'currency', currency: 'EUR' });
+    const unitEur = new Intl.NumberFormat('en-GB', { style: 'currency', currency: 'EUR', maximumFractionDigits: 4 });
     for (const a of awards) {
       const letter = letters.find((l) => l.vendor.id === a.vendor)!;
-      // The lines add up to the contract value (fee + Σ quantity × unit price), which the letter states.
+      // The lines add up to the contract value (fee + Σ quantity × unit price), which the letter states as an estimate.
       const sum = a.fixedFee + a.lines.reduce((s, l) => s + l.quantity * l.unitPrice, 0);
       expect(sum).toBeCloseTo(a.value, 6);
-      expect(letter.text).toContain(`Contract value: ${eur.format(a.value)}`);
+      expect(letter.text).toContain(`Estimated contract value: ${eur.format(a.value)}`);
+      expect(letter.text).toContain('not a commitment to buy any');
       for (const l of a.lines) expect(letter.text).toContain(`= ${eur.format(l.cost)}`);
     }
-    // A regret letter names its own rank and the awarded total, never another vendor's prices.
-    const allPrices = awards.flatMap((a) => a.lines.map((l) => new Intl.NumberFormat('en-GB', { style: 'currency', currency: 'EUR', maximumFractionDigits: 4 }).format(l.unitPrice)));
+    // A regret letter names the successful vendors and the criterion, gives the bidder's own total and
+    // its prices against the awarded ones — and no rank anywhere.
+    const awardedNames = awards.map((a) => letters.find((l) => l.vendor.id === a.vendor)!.vendor.name);
     for (const regret of letters.filter((l) => l.kind === 'regret')) {
-      expect(regret.text).toMatch(/ranked \d+(st|nd|rd|th) of 7/);
-      expect(regret.text).toContain(eur.format(run.result!.objective!));
-      for (const p of allPrices) expect(regret.text).not.toContain(`at ${p}`);
+      for (const name of awardedNames) expect(regret.text).toContain(name);
+      expect(regret.text).toContain('Award criterion: the lowest total cost');
+      expect(regret.text).toContain('- At most 4 vendors will be awarded.');
+      expect(regret.text).toContain(`The awarded contract's total cost, all regions and fixed fees included: ${eur.format(run.result!.objective!)}`);
+      expect(regret.text).toMatch(/your unit price €[\d.,]+; awarded €[\d.,]+ \(/);
+      expect(regret.text).not.toMatch(/rank/i);
     }
+    // Every letter names the buying body (name, address, country) and states its language.
+    for (const l of letters) {
+      expect(l.text).toContain('From: Northvale Highways Partnership, Unit 4, Harbour Road, Northvale, Ireland (procurement@northvale.tendara.test)');
+      expect(l.text).toContain('This notice is written in English.');
+      expect(l.html).toContain('This notice is written in English.');
+    }
+    expect(unitEur.format(61.5)).toBe('€61.50');
     expect(await t.em().count(Notice, {})).toBe(stored); // a preview stores nothing
+  });
+
+  test('the standstill end was fixed at approval (10 days in Europe/Dublin, next working day, 23:59) and every letter carries that same end', async () => {
+    const tender = await t.em().findOneOrFail(Tender, { id: tenderId });
+    const rec = await t.em().findOneOrFail(Recommendation, { tender: tenderId, status: 'approved' });
+    const expected = standstillEnd({ approvedAt: rec.decidedAt!, days: 10, timeZone: 'Europe/Dublin', country: 'IE', closureDays: tender.closureDays });
+    expect(tender.standstillEndsAt?.toISOString()).toBe(expected.endsAt.toISOString());
+    expect(utcToWallTime(expected.endsAt.toISOString(), 'Europe/Dublin').slice(11)).toBe('23:59');
+    const end = new Intl.DateTimeFormat('en-GB', {
+      timeZone: 'Europe/Dublin', weekday: 'long', day: 'numeric', month: 'long', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short',
+    }).format(expected.endsAt);
+    const preview = (await buyer.get(`/api/tenders/${tenderId}/notices/preview`)).body as { text: string }[];
+    expect(preview.map((l) => l.text.includes(`${end} (Europe/Dublin)`))).toEqual(Array(7).fill(true));
+  });
+
+  test('the preview is byte for byte what is sent: each letter as previewed equals the mail the catcher received', async () => {
+    const preview = (await buyer.get(`/api/tenders/${tenderId}/notices/preview`)).body as { vendor: { id: string }; subject: string; html: string; text: string; to: string[] }[];
+    expect((await sendOnce()).status).toBe(202);
+    await waitForStatus(t, tenderId, 'notified');
+    const tender = await t.em().findOneOrFail(Tender, { id: tenderId });
+    const notices = await t.em().find(Notice, { tender: tenderId });
+    expect(notices).toHaveLength(7);
+    const mails = await t.em().find(MailMessage, { subject: { $like: '%NHP-2026-014%' } });
+    expect(mails).toHaveLength(7);
+    for (const letter of preview) {
+      const notice = notices.find((n) => n.vendorOrganisation.id === letter.vendor.id)!;
+      expect(notice.standstillEndsAt.toISOString()).toBe(tender.standstillEndsAt!.toISOString());
+      const mail = mails.find((m) => m.toAddresses.join(',') === letter.to.join(','))!;
+      expect({ subject: mail.subject, html: mail.html, text: mail.text.trimEnd() }).toEqual({ subject: letter.subject, html: letter.html, text: letter.text.trimEnd() });
+    }
+    // A later preview still gives the same letters: nothing in them depends on when they are made.
+    expect((await buyer.get(`/api/tenders/${tenderId}/notices/preview`)).body).toEqual(preview);
   });
 
   test('sending queues one notice per bidder, the mail really arrives, and sending twice is refused without duplicating', async () => {
@@ -95,7 +143,7 @@ describe('with the mail server up', () => {
     expect(mails).toHaveLength(7);
     const parsed = await simpleParser(mails.find((m) => m.subject.startsWith('Notice of award'))!.raw);
     expect(parsed.text).toContain('Standstill period');
-    expect(parsed.html).toContain('Contract value');
+    expect(parsed.html).toContain('Estimated contract value');
   });
 
   test('a vendor reads only its own notice', async () => {
@@ -137,9 +185,17 @@ test('with the mail server down, notices stay queued and go out when it returns'
     expect(waiting.map((n) => n.status)).toEqual(Array(7).fill('queued'));
     expect(waiting.every((n) => n.attempts > 0 && n.lastError)).toBe(true);
     expect((await t.em().findOneOrFail(Tender, { id: tenderId })).status).toBe('awarded');
+    // Approved but no letter sent: a vendor sees the tender closed, not its outcome.
+    const vendor = await demo(t, 'vendor1');
+    expect((await vendor.get(`/api/tenders/${tenderId}`)).body.status).toBe('closed');
+    expect((await vendor.get('/api/tenders')).body.find((x: { id: string }) => x.id === tenderId).status).toBe('closed');
+    expect((await vendor.get('/api/notices')).body).toEqual([]);
     const back = await startMailCatcher(t.orm, port);
     try {
       await waitForStatus(t, tenderId, 'notified');
+      // Its letter sent, the vendor sees the outcome.
+      expect((await vendor.get(`/api/tenders/${tenderId}`)).body.status).toBe('notified');
+      expect((await vendor.get('/api/tenders')).body.find((x: { id: string }) => x.id === tenderId).status).toBe('notified');
       expect(await t.em().count(MailMessage, {})).toBeGreaterThanOrEqual(7);
     } finally {
       await back.close();

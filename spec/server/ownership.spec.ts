@@ -109,6 +109,8 @@ const BODIES: Record<string, object> = {
   'POST /questions/:id/answer': { text: 'Intruder' },
   'POST /tenders/:id/amendments': { reason: 'Intruder', description: 'Intruder' },
   'POST /tenders/:id/cancel': { reason: 'Intruder' },
+  'PUT /tenders/:id/closure-days': { closureDays: ['2026-12-29'] },
+  'POST /tenders/:id/contracts': { vendorId: '00000000-0000-4000-8000-000000000001', signedOn: '2026-01-05', lines: [{ region: 'R01', quantity: 1, unitPrice: 1 }] },
 };
 const QUERIES: Record<string, () => Record<string, string>> = {
   'GET /tenders/:id/compare': () => ({ runs: `${ids['run']},${ids['run']}` }),

@@ -10,6 +10,7 @@ import { lockTender } from '../tender-access';
 import { transition } from '../transition';
 import { evaluableTender, FROZEN } from './scenarios.service';
 import { statusesBefore } from '@shared/tenders';
+import { standstillEnd } from '../standstill';
 
 const AWAITING = 'A recommendation is awaiting compliance; it must be approved or returned first.';
 
@@ -93,13 +94,21 @@ export async function decide(em: EntityManager, user: User, tenderId: string, de
       throw new AppError(403, 'Not allowed', 'You made this recommendation: someone else must approve or return it (four-eyes rule).');
     }
     if (decision === 'approved') await assertBidsValid(tx, tenderId, r.run);
-    await transition(tx, Recommendation, r.id, ['recommended'], { status: decision, decidedBy: user.id, decidedAt: new Date(), comment: comment || null }, 'This recommendation has already been decided.');
+    const decidedAt = new Date();
+    await transition(tx, Recommendation, r.id, ['recommended'], { status: decision, decidedBy: user.id, decidedAt, comment: comment || null }, 'This recommendation has already been decided.');
+    let standstill: ReturnType<typeof standstillEnd> | null = null;
     if (decision === 'approved') {
-      await transition(tx, Tender, tenderId, statusesBefore('awarded'), { status: 'awarded' }, 'The tender is no longer open to an award decision.');
+      // The standstill end is fixed here, once: every letter of the tender carries this stored end.
+      const tender = await tx.findOneOrFail(Tender, { id: tenderId });
+      standstill = standstillEnd({
+        approvedAt: decidedAt, days: tender.standstillDays, timeZone: tender.timeZone, country: tender.buyingBody?.country, closureDays: tender.closureDays,
+      });
+      await transition(tx, Tender, tenderId, statusesBefore('awarded'), { status: 'awarded', standstillEndsAt: standstill.endsAt }, 'The tender is no longer open to an award decision.');
     }
     await audit(tx, {
       tenderId, actor: user, action: `recommendation.${decision}`, subject: `recommendation ${r.id}`,
-      detail: { comment }, before: { status: 'recommended' }, after: { status: decision },
+      detail: { comment, ...(standstill ? { standstillEndsAt: standstill.endsAt.toISOString(), standstillLastDay: standstill.lastDay, standstillSkipped: standstill.skipped } : {}) },
+      before: { status: 'recommended' }, after: { status: decision },
     });
     return r.id;
   });

@@ -1,5 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AwardResult } from '@shared/award';
+import { describeAwardBasis } from '@shared/award-basis';
 import { EXCLUSION_GROUND_LABELS } from '@shared/compliance';
 import type { NoticeKind } from '@shared/notices';
 import { Bid, Recommendation, Region, User, type Run, type Tender } from '../../entities';
@@ -7,8 +8,7 @@ import { ConflictError } from '../../http/errors';
 import { renderMail } from '../../mail/templates';
 import { normaliseEmail } from '@shared/auth';
 import { LIVE_BID_STATUSES } from '@shared/tenders';
-
-const DAY = 86_400_000;
+import { standstillEnd } from '../standstill';
 
 export interface Letter {
   vendor: { id: string; name: string };
@@ -20,83 +20,134 @@ export interface Letter {
   standstillEndsAt: Date;
 }
 
-/** The approved recommendation's run: the award the letters announce. */
-export async function approvedRun(em: EntityManager, tender: Tender): Promise<Run> {
-  if (tender.status !== 'awarded' && tender.status !== 'notified') {
+/** Tender statuses in which the approved award's letters exist. */
+const LETTER_STATUSES = ['awarded', 'notified', 'contracted'];
+
+/** The approved recommendation: its run is the award the letters announce, its decision date theirs. */
+export async function approvedRecommendation(em: EntityManager, tender: Tender): Promise<Recommendation> {
+  if (!LETTER_STATUSES.includes(tender.status)) {
     throw new ConflictError('Notices go out once compliance has approved an award for this tender.');
   }
   const rec = await em.findOne(Recommendation, { tender, status: 'approved' }, { populate: ['run'], orderBy: { decidedAt: 'desc' } });
-  if (!rec) throw new ConflictError('This tender has no approved award.');
-  return rec.run;
+  if (!rec?.decidedAt) throw new ConflictError('This tender has no approved award.');
+  return rec;
 }
 
-function ordinal(n: number): string {
-  const s = ['th', 'st', 'nd', 'rd'];
-  const v = n % 100;
-  return `${n}${s[(v - 20) % 10] ?? s[v] ?? s[0]}`;
+export async function approvedRun(em: EntityManager, tender: Tender): Promise<Run> {
+  return (await approvedRecommendation(em, tender)).run;
 }
 
 /**
- * Every bidder's letter, rendered from view models: the awarded vendors' award letters (their
- * lines, which add up to the contract value), the excluded bidders' exclusion notices (ground, note,
- * date, remedies) and the others' regret letters (their own rank among the bids evaluated and the
- * awarded total — never another vendor's prices).
+ * The stored standstill end (fixed by the approval). A tender approved before it was stored gets the
+ * same computation from the approval's own date, so its letters are still the same each time.
  */
-export async function composeLetters(em: EntityManager, tender: Tender, sentAt = new Date()): Promise<Letter[]> {
-  const run = await approvedRun(em, tender);
-  const result = run.result as AwardResult;
-  const regions = new Map((await em.find(Region, { tender })).map((r) => [r.code, r]));
+export function storedStandstillEnd(tender: Tender, approvedAt: Date): Date {
+  return tender.standstillEndsAt ?? standstillEnd({
+    approvedAt, days: tender.standstillDays, timeZone: tender.timeZone, country: tender.buyingBody?.country, closureDays: tender.closureDays,
+  }).endsAt;
+}
+
+/** Formats of one tender's letters: its locale's numbers and dates, in its time zone. */
+export function letterFormats(tender: Tender) {
+  const locale = tender.locale;
+  const long = new Intl.DateTimeFormat(locale, { dateStyle: 'long', timeZone: tender.timeZone });
+  const endFormat = new Intl.DateTimeFormat(locale, {
+    timeZone: tender.timeZone, weekday: 'long', day: 'numeric', month: 'long', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short',
+  });
+  return {
+    money: new Intl.NumberFormat(locale, { style: 'currency', currency: tender.currency }),
+    price: new Intl.NumberFormat(locale, { style: 'currency', currency: tender.currency, maximumFractionDigits: 4 }),
+    qty: new Intl.NumberFormat(locale, { maximumFractionDigits: 3 }),
+    date: (d: Date) => long.format(d),
+    /** "Wednesday 18 March 2026 at 23:59 GMT (Europe/Dublin)": the zone named. */
+    moment: (d: Date) => `${endFormat.format(d)} (${tender.timeZone})`,
+  };
+}
+
+/** "This notice is written in English. Figures and dates are written as in English (Ireland)." */
+export function languageStatement(locale: string): string {
+  const name = new Intl.DisplayNames(['en'], { type: 'language' }).of(locale) ?? locale;
+  return `This notice is written in English. Figures and dates are written as in ${name} (${locale}); times are in the procedure's time zone.`;
+}
+
+function names(list: string[]): string {
+  return list.length <= 1 ? list.join('') : `${list.slice(0, -1).join(', ')} and ${list[list.length - 1]}`;
+}
+
+/**
+ * Every bidder's letter, rendered from stored inputs only — the approved run, the bids, the
+ * compliance decisions, the tender (its buying body, locale, zone and the standstill end fixed at
+ * approval) and the approval's date, which is the letters' date. Nothing depends on when it is
+ * called: the preview, the send and any later read give the same bytes.
+ *
+ * Award letters list the vendor's lines and the estimated contract value at the forecast; regret
+ * letters name the successful vendors, the award criterion (lowest total cost under the published
+ * basis), the bidder's own total and unit prices against the awarded ones in the regions it bid —
+ * no rank; exclusion notices give the ground and note.
+ */
+export async function composeLetters(em: EntityManager, tender: Tender): Promise<Letter[]> {
+  const rec = await approvedRecommendation(em, tender);
+  const approvedAt = rec.decidedAt!;
+  const result = rec.run.result as AwardResult;
+  const regionList = await em.find(Region, { tender }, { orderBy: { position: 'asc' } });
+  const regions = new Map(regionList.map((r) => [r.code, r]));
   const bids = await em.find(Bid, { tender, status: { $in: [...LIVE_BID_STATUSES] } }, { populate: ['lines.region', 'vendorOrganisation'] });
   const contact = await em.findOneOrFail(User, { id: tender.createdBy.id });
-  const money = new Intl.NumberFormat(tender.locale, { style: 'currency', currency: tender.currency });
-  const qty = new Intl.NumberFormat(tender.locale, { maximumFractionDigits: 3 });
-  const price = new Intl.NumberFormat(tender.locale, { style: 'currency', currency: tender.currency, maximumFractionDigits: 4 });
-  const longDate = new Intl.DateTimeFormat(tender.locale, { dateStyle: 'long', timeZone: 'UTC' });
-  const standstillEndsAt = new Date(sentAt.getTime() + tender.standstillDays * DAY);
-
-  // Rank: cost per unit of each bid at the forecast of the regions it covered, fee included; among
-  // the bids evaluated (an excluded bid was not: its vendor gets an exclusion notice, unranked).
-  const evaluated = bids.filter((b) => b.complianceDecision !== 'excluded');
-  const perUnit = evaluated.map((b) => {
-    const lines = b.lines.getItems();
-    const volume = lines.reduce((s, l) => s + l.region.forecast, 0);
-    const cost = b.fixedFee + lines.reduce((s, l) => s + l.unitPrice * l.region.forecast, 0);
-    return { id: b.vendorOrganisation.id, value: volume > 0 ? cost / volume : Infinity };
-  }).sort((a, b) => a.value - b.value);
+  const f = letterFormats(tender);
+  const standstillEndsAt = storedStandstillEnd(tender, approvedAt);
+  const body = tender.buyingBody;
+  const country = body?.country ? new Intl.DisplayNames(['en'], { type: 'region' }).of(body.country) ?? body.country : '';
+  const vendorName = new Map(bids.map((b) => [b.vendorOrganisation.id, b.vendorOrganisation.name]));
+  const awardedNames = result.awards.map((a) => vendorName.get(a.vendor) ?? a.vendor).sort((a, b) => a.localeCompare(b));
 
   const common = {
     reference: tender.reference, title: tender.title, commodity: tender.commodity, unit: tender.unit,
-    date: longDate.format(sentAt), standstillEnds: longDate.format(standstillEndsAt),
+    date: f.date(approvedAt),
+    buyingBody: { name: body?.name ?? 'The buying body', address: body?.address ?? '', country, email: body?.email ?? contact.email },
+    standstill: tender.standstillDays > 0,
+    standstillDays: tender.standstillDays,
+    standstillEnds: f.moment(standstillEndsAt),
+    exemption: tender.standstillExemption ?? '',
+    language: languageStatement(tender.locale),
     contactName: contact.name, contactEmail: contact.email,
   };
   const letters: Letter[] = [];
-  for (const bid of bids) {
+  for (const bid of [...bids].sort((a, b) => a.vendorOrganisation.name.localeCompare(b.vendorOrganisation.name))) {
     const org = bid.vendorOrganisation;
     // Only people the organisation has approved: one an admin added and its contact has not
     // accepted sees nothing of it, letters included.
-    const people = await em.find(User, { vendorOrganisation: org, active: true, membership: 'approved' });
+    const people = await em.find(User, { vendorOrganisation: org, active: true, membership: 'approved' }, { orderBy: { email: 'asc' } });
     const to = [...new Set([org.contactEmail, ...people.map((p) => p.email)].map(normaliseEmail))];
     const award = result.awards.find((a) => a.vendor === org.id);
     if (bid.complianceDecision === 'excluded') {
       const view = {
         ...common, vendorName: org.name, ground: EXCLUSION_GROUND_LABELS[bid.complianceGround ?? 'other'], note: bid.complianceNote ?? '',
-        decidedOn: longDate.format(bid.complianceDecidedAt ?? sentAt),
+        decidedOn: f.date(bid.complianceDecidedAt ?? approvedAt),
       };
       const mail = renderMail('exclusion-notice', `Exclusion of your bid: ${tender.reference}`, view);
       letters.push({ vendor: { id: org.id, name: org.name }, kind: 'exclusion', to, ...mail, standstillEndsAt });
     } else if (award) {
       const view = {
         ...common, vendorName: org.name,
-        lines: award.lines.map((l) => ({ region: l.region, regionName: regions.get(l.region)?.name ?? l.region, quantity: qty.format(l.quantity), unitPrice: price.format(l.unitPrice), cost: money.format(l.cost) })),
-        fixedFee: money.format(award.fixedFee), contractValue: money.format(award.value), totalQuantity: qty.format(award.quantity),
+        lines: award.lines.map((l) => ({ region: l.region, regionName: regions.get(l.region)?.name ?? l.region, quantity: f.qty.format(l.quantity), unitPrice: f.price.format(l.unitPrice), cost: f.money.format(l.cost) })),
+        fixedFee: f.money.format(award.fixedFee), contractValue: f.money.format(award.value), totalQuantity: f.qty.format(award.quantity),
       };
       const mail = renderMail('award-letter', `Notice of award: ${tender.reference}`, view);
       letters.push({ vendor: { id: org.id, name: org.name }, kind: 'award', to, ...mail, standstillEndsAt });
     } else {
+      // The bidder's own prices against the awarded ones, region by region (the regions it bid).
+      const own = bid.lines.getItems().sort((a, b) => a.region.position - b.region.position);
+      const total = bid.fixedFee + own.reduce((s, l) => s + l.unitPrice * l.region.forecast, 0);
       const view = {
         ...common, vendorName: org.name,
-        rank: ordinal(perUnit.findIndex((p) => p.id === org.id) + 1), bidders: evaluated.length,
-        awardedTotal: money.format(result.objective ?? 0), awardedVendors: result.awards.length, oneAwarded: result.awards.length === 1,
+        successful: names(awardedNames), oneAwarded: awardedNames.length === 1,
+        basis: describeAwardBasis(tender.awardBasis, { unit: tender.unit, regions: regionList.map((r) => ({ code: r.code, name: r.name })) }),
+        ownTotal: f.money.format(total), ownFee: f.money.format(bid.fixedFee),
+        awardedTotal: f.money.format(result.objective ?? 0),
+        regions: own.map((l) => ({
+          region: l.region.code, regionName: l.region.name, ownPrice: f.price.format(l.unitPrice),
+          awarded: result.awards.flatMap((a) => a.lines.filter((x) => x.region === l.region.code).map((x) => `${f.price.format(x.unitPrice)} (${vendorName.get(a.vendor) ?? a.vendor})`)).join('; '),
+        })),
       };
       const mail = renderMail('regret-letter', `Outcome of tender ${tender.reference}`, view);
       letters.push({ vendor: { id: org.id, name: org.name }, kind: 'regret', to, ...mail, standstillEndsAt });

@@ -21,7 +21,7 @@ function summary(n: Notice): NoticeSummary {
     id: n.id, tenderId: n.tender.id, tenderReference: n.tender.reference, tenderTitle: n.tender.title,
     vendor: { id: n.vendorOrganisation.id, name: n.vendorOrganisation.name }, kind: n.kind, subject: n.subject, status: n.status,
     attempts: n.attempts, lastError: n.lastError ?? null, queuedAt: n.createdAt.toISOString(), sentAt: n.sentAt?.toISOString() ?? null,
-    standstillEndsAt: n.standstillEndsAt.toISOString(),
+    standstillEndsAt: n.standstillEndsAt.toISOString(), timeZone: n.tender.timeZone, locale: n.tender.locale,
   };
 }
 
@@ -32,6 +32,9 @@ export async function previewNotices(em: EntityManager, user: User, tenderId: st
 }
 
 /**
+ * The letters are composed from stored inputs only (see composeLetters), so what is queued here is
+ * byte for byte what the preview showed; the job then sends the stored letter, however late.
+ *
  * Queues one notice per bidder of the approved award, in one transaction under the tender's lock:
  * a notice is never duplicated (also a unique row per tender and vendor). Sending again, or two sends
  * racing, gets 409 for the second: its notices are already queued.

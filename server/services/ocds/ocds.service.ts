@@ -1,18 +1,20 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { describeAwardBasis } from '@shared/award-basis';
 import { isSealed, LIVE_BID_STATUSES } from '@shared/tenders';
-import { Amendment, AuditEntry, Bid, Notice, Question, Recommendation, RunAward, type Tender, type User } from '../../entities';
+import { Amendment, AuditEntry, Bid, Contract, Notice, Question, Recommendation, RunAward, type Tender, type User } from '../../entities';
 import { setting } from '../../config';
 import { ConflictError } from '../../http/errors';
 import { findVisibleTender } from '../tender-access';
 import { buildReleasePackage, type ContractInput, type OcdsInput, type OcdsParty } from './release-package';
 
-/**
- * The contracts recorded after the standstill, as the release package takes them.
- */
-// contracts: filled once the contract step lands
-export function loadContracts(_em: EntityManager, _tender: Tender): Promise<ContractInput[]> {
-  return Promise.resolve([]);
+/** The contracts recorded after the standstill (the contract step), as the release package takes them. */
+export async function loadContracts(em: EntityManager, tender: Tender): Promise<ContractInput[]> {
+  const contracts = await em.find(Contract, { tender }, { populate: ['lines', 'lines.region'], orderBy: { signedOn: 'asc', createdAt: 'asc' } });
+  return contracts.map((c) => ({
+    vendorId: c.vendorOrganisation.id,
+    signedOn: c.signedOn,
+    lines: c.lines.getItems().map((l) => ({ regionCode: l.region.code, quantity: l.quantity, unitPrice: l.unitPrice })),
+  }));
 }
 
 /**
@@ -50,9 +52,10 @@ export async function ocdsPackage(em: EntityManager, user: User, tenderId: strin
       award = { approvedAt: approved.decidedAt, vendors: [...vendors.values()].sort((a, b) => a.name.localeCompare(b.name)) };
       const done = await em.findOne(AuditEntry, { tender, action: 'tender.notified' }, { orderBy: { seq: 'desc' } });
       if (done) {
-        const notices = await em.find(Notice, { tender }, { fields: ['standstillEndsAt'] });
+        // Fixed once at approval on the tender; tenders approved before that carry it on their notices.
+        const notices = tender.standstillEndsAt ? [] : await em.find(Notice, { tender }, { fields: ['standstillEndsAt'] });
         const ends = notices.map((n) => n.standstillEndsAt.getTime());
-        notified = { at: done.at, standstillEndsAt: ends.length ? new Date(Math.max(...ends)) : null };
+        notified = { at: done.at, standstillEndsAt: tender.standstillEndsAt ?? (ends.length ? new Date(Math.max(...ends)) : null) };
       }
       contracts = await loadContracts(em, tender);
     }

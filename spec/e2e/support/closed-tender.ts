@@ -2,7 +2,7 @@ import { Client } from 'pg';
 import { baseUrl } from './browser';
 
 /** A signed-in API session of the browser tests' server (cookies and the XSRF header by hand). */
-class ApiSession {
+export class ApiSession {
   private cookies = new Map<string, string>();
 
   private keep(res: Response): void {

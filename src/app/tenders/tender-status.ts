@@ -6,6 +6,7 @@ export const TENDER_STATUS_LABELS: Record<TenderStatus, string> = {
   closed: 'Closed',
   awarded: 'Awarded',
   notified: 'Notices sent',
+  contracted: 'Contracts recorded',
   cancelled: 'Cancelled',
 };
 

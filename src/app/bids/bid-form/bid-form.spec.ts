@@ -25,7 +25,7 @@ const tender: TenderView = {
   regionCount: 2,
   totalForecast: 700,
   description: '',
-  standstillDays: 10,
+  standstillDays: 10, standstillExemption: null, closureDays: [], standstillEndsAt: null,
   publishedAt: '2026-11-01T09:00:00Z',
   closedAt: null,
   awardBasis: { sourcing: 'split', soleRegions: [] },

@@ -59,6 +59,18 @@ describe('NoticeReader', () => {
     expect(page.querySelector('details pre')!.textContent).toBe(letter.text);
   });
 
+  it("gives the letter's own times in the procedure's zone, named, whatever the viewer's zone", async () => {
+    // Stored end 2026-12-15T23:59Z is 23:59 in Dublin (GMT in December); the sending 10:00:05 UTC likewise.
+    const page = await show(noticeView({ standstillEndsAt: '2026-12-15T23:59:00Z', timeZone: 'Europe/Dublin', locale: 'en-IE' }));
+    const facts = page.querySelector('.facts')!.textContent;
+
+    expect(facts).toContain('Standstill period ends');
+    expect(facts).toContain('23:59 GMT (Europe/Dublin)');
+    expect(facts).toContain('Tue 15 Dec 2026');
+    expect(facts).toContain('10:00 GMT (Europe/Dublin)');
+    expect(page.querySelector('.zone-note')!.textContent).toContain('Europe/Dublin');
+  });
+
   it('keeps a printable copy with the letter and its tables, but without scripts, handlers or styles', async () => {
     const page = await show(letter);
     const copy = page.querySelector('app-letter-print')!;

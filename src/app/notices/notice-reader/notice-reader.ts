@@ -1,4 +1,6 @@
-import { DOCUMENT, DatePipe } from '@angular/common';
+import { DOCUMENT } from '@angular/common';
+import { formatInZone } from '@shared/time-zone';
+import type { NoticeSummary } from '@shared/notices';
 import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
@@ -20,7 +22,7 @@ import { apiProblem, loadErrorMessage } from '../../ui/load-error';
 @Component({
   selector: 'app-notice-reader',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, LetterFrame, LetterPrint, NoticeStatusBadge],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, LetterFrame, LetterPrint, NoticeStatusBadge],
   templateUrl: './notice-reader.html',
   styleUrl: './notice-reader.scss',
 })
@@ -38,6 +40,11 @@ export class NoticeReader {
   });
   protected readonly isVendor = computed(() => this.auth.user()?.role === 'vendor');
   protected readonly kindLabel = NOTICE_KIND_LABELS;
+
+  /** A time of the letter as the letter writes it: the procedure's zone (named) and the letter's locale. */
+  protected inZone(iso: string, letter: Pick<NoticeSummary, 'timeZone' | 'locale'>): string {
+    return formatInZone(iso, letter.timeZone, letter.locale);
+  }
 
   protected print(): void {
     this.window?.print();

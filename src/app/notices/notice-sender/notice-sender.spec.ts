@@ -40,7 +40,7 @@ function tender(status: TenderStatus): TenderView {
     totalForecast: 7200,
     description: '',
     locale: 'en-GB',
-    standstillDays: 10,
+    standstillDays: 10, standstillExemption: null, closureDays: [], standstillEndsAt: null,
     publishedAt: '2026-11-01T09:00:00Z',
     closedAt: '2026-11-20T12:00:00Z',
     regions: [],

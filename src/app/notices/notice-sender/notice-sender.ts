@@ -75,7 +75,7 @@ export class NoticeSender {
   protected readonly sendBlocked = computed(() => {
     const status = this.tender.value()?.status;
     if (!status || this.sending()) return null;
-    if (status === 'notified') return 'Every notice of this tender has been sent.';
+    if (status === 'notified' || status === 'contracted') return 'Every notice of this tender has been sent.';
     if (status !== 'awarded') return 'Notices can be sent once compliance has approved the award.';
     if (this.counts().total === 0) return 'There is no letter to send.';
     return null;

@@ -28,7 +28,9 @@ export function notice(overrides: Partial<NoticeSummary> & Pick<NoticeSummary, '
     lastError: null,
     queuedAt: '2026-12-01T10:00:00Z',
     sentAt: '2026-12-01T10:00:05Z',
-    standstillEndsAt: '2026-12-15T00:00:00Z',
+    standstillEndsAt: '2026-12-15T23:59:00Z',
+    timeZone: 'Europe/Dublin',
+    locale: 'en-IE',
     ...overrides,
   };
 }
@@ -56,8 +58,8 @@ export const PREVIEWS: NoticePreview[] = [
     kind: 'regret',
     to: ['office@brinewick.example', 'tenders@brinewick.example'],
     subject: 'Outcome of tender HWP-2026-07',
-    html: '<p>Your bid ranked 3rd of 5. The awarded total is €1,234,567.50.</p>',
-    text: 'Your bid ranked 3rd of 5.',
+    html: '<p>Successful vendor: Northfell Minerals. The awarded total is €1,234,567.50.</p>',
+    text: 'Successful vendor: Northfell Minerals.',
   },
 ];
 

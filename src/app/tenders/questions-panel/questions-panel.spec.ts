@@ -13,7 +13,7 @@ function tender(clarificationsCloseAt: string): TenderView {
   return {
     id: 'a3c9e2f0-5b1d-4c7e-9f2a-6d8b0e1c3a57', reference: 'WCX-2027-004', title: 'Brine for the coastal depots', commodity: 'Brine',
     unit: 'm3', currency: 'EUR', locale: 'en-GB', status: 'open', closesAt: new Date(Date.now() + 10 * DAY).toISOString(),
-    regionCount: 1, totalForecast: 400, description: '', standstillDays: 10, publishedAt: '2026-11-01T09:00:00Z', closedAt: null,
+    regionCount: 1, totalForecast: 400, description: '', standstillDays: 10, standstillExemption: null, closureDays: [], standstillEndsAt: null, publishedAt: '2026-11-01T09:00:00Z', closedAt: null,
     awardBasis: { sourcing: 'split', soleRegions: [] }, buyingBody: null, timeZone: 'UTC', bidValidityDays: 90,
     clarificationsCloseAt, abnormallyLowPercent: 20, amendments: [], cancellation: null,
     regions: [{ code: 'HVN', name: 'Harrowven depot', forecast: 400 }],

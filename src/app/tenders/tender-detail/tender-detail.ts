@@ -15,6 +15,7 @@ import { money } from '../../ui/number-format';
 import { AmendmentsPanel } from '../amendments-panel/amendments-panel';
 import { AwardBasisPanel } from '../award-basis-panel/award-basis-panel';
 import { BidTabulation } from '../bid-tabulation/bid-tabulation';
+import { ContractsPanel } from '../contracts-panel/contracts-panel';
 import { CancelTender } from '../cancel-tender/cancel-tender';
 import { hasClosed, localClosingTime, minuteClock, timeLeft } from '../closing-time';
 import { InvitationsPanel } from '../invitations-panel/invitations-panel';
@@ -27,7 +28,7 @@ import { TENDER_STATUS_LABELS } from '../tender-status';
 @Component({
   selector: 'app-tender-detail',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel, QuestionsPanel, AmendmentsPanel, CancelTender],
+  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel, QuestionsPanel, AmendmentsPanel, CancelTender, ContractsPanel],
   templateUrl: './tender-detail.html',
   styleUrl: './tender-detail.scss',
 })

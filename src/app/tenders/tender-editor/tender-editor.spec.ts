@@ -30,6 +30,8 @@ const expectedBody = {
   currency: 'EUR',
   closesAt: '2031-07-01T11:00:00.000Z',
   standstillDays: 10,
+  standstillExemption: null,
+  closureDays: [],
   locale: 'en-GB',
   description: 'Two depots on the coast.',
   regions: [
@@ -140,6 +142,31 @@ describe('TenderEditor', () => {
     request.flush(tenderView({ id: '5b6c7d8e-0000-4000-8000-000000000031', status: 'draft' }), { status: 201, statusText: 'Created' });
     await fixture.whenStable();
     expect(TestBed.inject(Router).url).toBe('/tenders/5b6c7d8e-0000-4000-8000-000000000031');
+  });
+
+  it('with 0 standstill days asks for the exemption ground and sends it, with the closure days as a sorted list and the chosen letter locale', async () => {
+    await fillCompleteDraft();
+    expect(await loader.getAllHarnesses(MatInputHarness.with({ selector: '[formControlName=standstillExemption]' }))).toEqual([]);
+    await fill('[formControlName=standstillDays]', '0');
+    await fill('[formControlName=standstillExemption]', 'Call-off under a framework agreement.');
+    await fill('[formControlName=closureDays]', '2031-12-30, 2031-12-29');
+    const locale = await loader.getHarness(MatSelectHarness.with({ selector: '[formControlName=locale]' }));
+    await locale.clickOptions({ text: 'en-IE' });
+    await save();
+    const request = http.expectOne({ method: 'POST', url: '/api/tenders' });
+    expect(request.request.body).toEqual({
+      ...expectedBody, standstillDays: 0, standstillExemption: 'Call-off under a framework agreement.', closureDays: ['2031-12-29', '2031-12-30'], locale: 'en-IE',
+    });
+    request.flush(tenderView({ id: '5b6c7d8e-0000-4000-8000-000000000032', status: 'draft' }), { status: 201, statusText: 'Created' });
+    await fixture.whenStable();
+  });
+
+  it('refuses a closure day that is not a date, under its field, and sends nothing', async () => {
+    await fillCompleteDraft();
+    await fill('[formControlName=closureDays]', '2031-02-30');
+    await save();
+    expect(await errorsUnder('[formControlName=closureDays]')).toEqual(['This date does not exist.']);
+    http.expectNone({ method: 'POST', url: '/api/tenders' });
   });
 
   it('takes a currency typed in small letters (shown in capitals) and refuses one that is not three letters', async () => {

@@ -12,7 +12,7 @@ import { describeAwardBasis } from '@shared/award-basis';
 import { formatInZone } from '@shared/time-zone';
 import { Router, RouterLink } from '@angular/router';
 import { findDuplicateRegionCodes } from '@shared/bids';
-import { tenderInputSchema, type TenderView } from '@shared/tenders';
+import { LETTER_LOCALES, tenderInputSchema, type TenderView } from '@shared/tenders';
 import { startWith } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { fieldMessage } from '../../ui/zod-validator';
@@ -64,6 +64,7 @@ export class TenderEditor {
   protected readonly importErrors = signal<{ field: string; message: string }[]>([]);
   protected readonly status = signal('');
   protected readonly fieldMessage = fieldMessage;
+  protected readonly letterLocales = LETTER_LOCALES;
 
   private readonly value = toSignal(this.form.valueChanges.pipe(startWith(null)), { initialValue: null });
   protected readonly currencyHint = computed(() => {

@@ -18,7 +18,7 @@ const draft: TenderView = {
   regionCount: 2,
   totalForecast: 1250,
   description: '',
-  standstillDays: 10,
+  standstillDays: 10, standstillExemption: null, closureDays: [], standstillEndsAt: null,
   publishedAt: null,
   closedAt: null,
   awardBasis: { sourcing: 'split', soleRegions: ['QSL'], maxVendors: 2, maxVendorShare: 0.45, awardIncrement: 25 },
@@ -53,7 +53,7 @@ describe('tender form', () => {
     expect(form.controls.clarificationsDate.value).toBe('');
     expect(formBody(form)).toEqual({
       reference: 'WCX-2031-004', title: 'Brine for the coastal depots', commodity: 'Brine, 23 %', unit: 't', currency: 'EUR',
-      closesAt: '2031-07-01T11:00:00.000Z', standstillDays: 10, locale: 'en-GB', description: '',
+      closesAt: '2031-07-01T11:00:00.000Z', standstillDays: 10, locale: 'en-GB', standstillExemption: null, closureDays: [], description: '',
       regions: draft.regions,
       awardBasis: { sourcing: 'split', soleRegions: ['QSL'], maxVendors: 2, maxVendorShare: 0.45, awardIncrement: 25 },
       buyingBody: draft.buyingBody, timeZone: 'Europe/Dublin', estimatedValue: 98000, bidValidityDays: 120,

@@ -1,6 +1,6 @@
 import { AbstractControl, FormArray, FormControl, FormGroup, NonNullableFormBuilder, ValidatorFn } from '@angular/forms';
 import { regionInputSchema, type RegionInput } from '@shared/bids';
-import { buyingBodySchema, tenderInputSchema, timeZoneSchema, type AwardBasis, type TenderInput, type TenderView } from '@shared/tenders';
+import { buyingBodySchema, closureDaysSchema, tenderInputSchema, timeZoneSchema, type AwardBasis, type TenderInput, type TenderView } from '@shared/tenders';
 import { utcToWallTime, wallTimeToUtc } from '@shared/time-zone';
 import { z, type ZodType } from 'zod';
 import type { FieldProblem } from '../../core/http/api-error';
@@ -97,6 +97,11 @@ function bodyField(schema: ZodType, upperCase = false): ValidatorFn {
   };
 }
 
+/** "2026-12-29, 2026-12-30" (commas, spaces or lines) → the list the API takes. */
+export function splitDates(text: string): string[] {
+  return text.split(/[\s,;]+/).filter((d) => d !== '');
+}
+
 export function tenderForm(fb: NonNullableFormBuilder) {
   const buyingBody = fb.group({
     name: ['', bodyField(bodyFields.name)],
@@ -120,6 +125,8 @@ export function tenderForm(fb: NonNullableFormBuilder) {
       closesTime: ['12:00'],
       standstillDays: new FormControl<number | null>(10, zodValidator(fields.standstillDays)),
       locale: ['en-GB', zodValidator(fields.locale)],
+      standstillExemption: ['', zodValidator(fields.standstillExemption)],
+      closureDays: ['', zodValidator(z.string().transform(splitDates).pipe(closureDaysSchema))],
       description: ['', zodValidator(fields.description)],
       regions: fb.array<RegionGroup>([regionGroup(fb)]),
       awardBasis: awardBasisGroup(),
@@ -175,6 +182,8 @@ export function fillForm(fb: NonNullableFormBuilder, form: TenderForm, tender: T
     closesTime: time,
     standstillDays: tender.standstillDays,
     locale: tender.locale ?? 'en-GB',
+    standstillExemption: tender.standstillExemption ?? '',
+    closureDays: (tender.closureDays ?? []).join(', '),
     description: tender.description,
   });
   setRegions(fb, form.controls.regions, tender.regions);
@@ -212,6 +221,8 @@ export function formBody(form: TenderForm): unknown {
     closesAt: zonedInstant(v.closesDate, v.closesTime, v.timeZone) ?? '',
     standstillDays: v.standstillDays,
     locale: v.locale.trim(),
+    standstillExemption: v.standstillDays === 0 ? v.standstillExemption : null,
+    closureDays: splitDates(v.closureDays),
     description: v.description,
     regions: v.regions,
     awardBasis: basisBody(v.awardBasis),
@@ -234,6 +245,7 @@ export function controlPath(field: string | readonly PropertyKey[]): string {
   const path = toControlPath(field);
   if (path === 'closesAt') return 'closesDate';
   if (path === 'clarificationsCloseAt') return 'clarificationsDate';
+  if (path.startsWith('closureDays')) return 'closureDays';
   // One control holds the list of sole-awarded regions.
   if (path.startsWith('awardBasis.soleRegions.')) return 'awardBasis.soleRegions';
   return path;
