@@ -5,8 +5,7 @@ import { recordByCode } from '@shared/bids';
 import type { Comparison, ComparedRun, ResilienceView, RunView } from '@shared/evaluation';
 import { Run, Scenario, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
-import { lockTender } from '../tender-access';
-import { awardability, childInput, evaluableTender, findOrCreateRun, FROZEN, runSummary, sendToSolver, type EvaluationDeps } from './scenarios.service';
+import { awardability, childInput, evaluableTender, queueChildRuns, runSummary, type EvaluationDeps } from './scenarios.service';
 
 export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
   const run = await em.findOne(Run, { id: runId }, { populate: ['scenario', 'tender'] });
@@ -138,17 +137,7 @@ export async function startResilience(deps: EvaluationDeps, user: User, runId: s
       { parent: run, droppedVendor: award.vendor },
       { ...problem, rules: { ...rules, exclude: [...new Set([...rules.exclude, award.vendor])] } },
     ));
-  const created = await deps.em.transactional(async (tx) => {
-    await lockTender(tx, user, tender.id, ['closed'], FROZEN);
-    const fresh: Run[] = [];
-    for (const input of inputs) {
-      const child = await findOrCreateRun(tx, user, tender.id, input);
-      if (child.created) fresh.push(child.run);
-    }
-    return fresh;
-  });
-  for (const child of created) await sendToSolver(deps.boss, child);
-  return { queued: created.length };
+  return queueChildRuns(deps, user, tender.id, inputs);
 }
 
 export async function resilienceOf(em: EntityManager, user: User, runId: string): Promise<ResilienceView> {

@@ -219,6 +219,24 @@ export async function findOrCreateRun(tx: EntityManager, user: User, tenderId: s
   return { run: r, created: true };
 }
 
+/**
+ * Queues the re-solves of a run (drop-out or forecast checks) under the tender's lock, each found or
+ * created once (cached), and hands the new ones to the solver after the transaction commits.
+ */
+export async function queueChildRuns(deps: EvaluationDeps, user: User, tenderId: string, inputs: readonly RunInput[]): Promise<{ queued: number }> {
+  const created = await deps.em.transactional(async (tx) => {
+    await lockTender(tx, user, tenderId, ['closed'], FROZEN);
+    const fresh: Run[] = [];
+    for (const input of inputs) {
+      const child = await findOrCreateRun(tx, user, tenderId, input);
+      if (child.created) fresh.push(child.run);
+    }
+    return fresh;
+  });
+  for (const child of created) await sendToSolver(deps.boss, child);
+  return { queued: created.length };
+}
+
 /** Hands a new run to the solve queue: a pg-boss job any worker process may take. */
 export async function sendToSolver(boss: PgBoss, run: Run): Promise<void> {
   await boss.send(QUEUES.solve, { runId: run.id }, {

@@ -3,9 +3,8 @@ import { awardRulesSchema, type AwardProblem, type AwardResult } from '@shared/a
 import { FINISHED_RUN_STATUSES, FORECAST_STEPS, type SensitivityCase, type SensitivityCheck, type SensitivityInput, type SensitivityView } from '@shared/evaluation';
 import { Run, type User } from '../../entities';
 import { ConflictError, ValidationError } from '../../http/errors';
-import { lockTender } from '../tender-access';
 import { findRun, storedProblem } from './results.service';
-import { childInput, evaluableTender, findOrCreateRun, FROZEN, sendToSolver, type EvaluationDeps } from './scenarios.service';
+import { childInput, evaluableTender, queueChildRuns, type EvaluationDeps } from './scenarios.service';
 
 /**
  * Forecast sensitivity: how stable a run's award is if the forecasts are off. The run's stored
@@ -146,17 +145,7 @@ export async function startSensitivity(deps: EvaluationDeps, user: User, runId: 
   }
   const inputs = FORECAST_STEPS.map((percent) =>
     childInput({ parent: run, forecastChangePercent: percent, scaledRegion: regionCode }, scaledProblem(problem, percent, regionCode)));
-  const created = await deps.em.transactional(async (tx) => {
-    await lockTender(tx, user, tender.id, ['closed'], FROZEN);
-    const fresh: Run[] = [];
-    for (const one of inputs) {
-      const child = await findOrCreateRun(tx, user, tender.id, one);
-      if (child.created) fresh.push(child.run);
-    }
-    return fresh;
-  });
-  for (const child of created) await sendToSolver(deps.boss, child);
-  return { queued: created.length };
+  return queueChildRuns(deps, user, tender.id, inputs);
 }
 
 /** The run's sensitivity checks so far: each case's total and changes, and each check's summary. */
