@@ -1,6 +1,7 @@
 import { Client } from 'pg';
 import { hashPassword } from '../../auth/password';
 import { commitBid } from '../../services/bid-commitment';
+import { DEFAULT_AWARD_BASIS } from '@shared/tenders';
 
 /**
  * Fictional data for the benchmarks, written with plain SQL (thousands of rows in a second or two,
@@ -49,15 +50,18 @@ export function prng(seed: number): () => number {
   };
 }
 
+/** The award basis of a tender whose buyer sets no rule (a constant, so written into the SQL). */
+const AWARD_BASIS = `'${JSON.stringify(DEFAULT_AWARD_BASIS)}'::jsonb`;
+
 const pad = (n: number, w = 3) => String(n).padStart(w, '0');
 
 async function createTender(
   db: Client, buyerId: string, o: { reference: string; title: string; status: 'open' | 'closed'; closesInMinutes: number; regions: number; invite: string[] },
 ): Promise<SeededTender> {
   const { rows } = await db.query<{ id: string }>(
-    `insert into tender (id, reference, title, commodity, unit, currency, closes_at, status, created_by_id, published_at, closed_at)
+    `insert into tender (id, reference, title, commodity, unit, currency, closes_at, status, created_by_id, published_at, closed_at, award_basis)
      values (gen_random_uuid(), $1, $2, 'Road salt', 't', 'EUR', now() + make_interval(mins => $3::int), $4::tender_status, $5, now() - interval '10 days',
-             case when $4::text = 'closed' then now() + make_interval(mins => $3::int) end)
+             case when $4::text = 'closed' then now() + make_interval(mins => $3::int) end, ${AWARD_BASIS})
      returning id`,
     [o.reference, o.title, o.closesInMinutes, o.status, buyerId],
   );
@@ -176,11 +180,11 @@ export async function seedBenchData(databaseUrl: string, options: SeedOptions = 
 async function seedBuyerBulk(db: Client, buyerId: string, count: number): Promise<void> {
   if (!count) return;
   await db.query(
-    `insert into tender (id, reference, title, commodity, unit, currency, closes_at, status, created_by_id, published_at, closed_at)
+    `insert into tender (id, reference, title, commodity, unit, currency, closes_at, status, created_by_id, published_at, closed_at, award_basis)
      select gen_random_uuid(), 'BENCH-B' || lpad(i::text, 4, '0'), 'Salt for district ' || i, 'Road salt', 't', 'EUR',
             now() + make_interval(days => case when i % 3 = 0 then -(i % 300) - 1 else (i % 300) + 1 end), s.status::tender_status, $1,
             case when s.status = 'draft' then null else now() - interval '400 days' end,
-            case when s.status = 'closed' then now() - make_interval(days => (i % 300) + 1) end
+            case when s.status = 'closed' then now() - make_interval(days => (i % 300) + 1) end, ${AWARD_BASIS}
        from generate_series(1, $2::int) i,
             lateral (select case when i % 3 = 0 then 'closed' when i % 7 = 0 then 'draft' else 'open' end as status) s`,
     [buyerId, count],
