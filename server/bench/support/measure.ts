@@ -103,13 +103,17 @@ export function joinPhases(label: string, parts: Phase[]): Phase {
 /** Linux's clock ticks per second for /proc/PID/stat times (USER_HZ, 100 on every common build). */
 const TICKS_PER_SECOND = 100;
 
-/** User plus system CPU time of a process so far, in ms (0 once it has gone). */
-function processCpuMs(pid: number): number {
+/**
+ * User plus system CPU time of a process so far, in ms (0 once it has gone); with `reaped`, also
+ * that of its children that have exited (PostgreSQL backends whose pool connection was closed).
+ */
+function processCpuMs(pid: number, reaped = false): number {
   try {
     const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
-    // Fields after the command name (which may hold spaces, inside parentheses): utime and stime are the 12th and 13th.
-    const fields = stat.slice(stat.lastIndexOf(')') + 2).split(' ');
-    return ((Number(fields[11]) + Number(fields[12])) * 1000) / TICKS_PER_SECOND;
+    // Fields after the command name (which may hold spaces, inside parentheses): utime, stime,
+    // cutime and cstime are the 12th to the 15th.
+    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ').map(Number);
+    return ((f[11] + f[12] + (reaped ? f[13] + f[14] : 0)) * 1000) / TICKS_PER_SECOND;
   } catch {
     return 0;
   }
@@ -132,10 +136,11 @@ function clusterPids(pgDir: string): number[] {
 /**
  * CPU time per request, which a machine shared with other work changes far less than requests/s:
  * user + system time of the measured server process and of the PostgreSQL cluster's processes over
- * a phase. Backends that exit during a phase take their time with them (the pools keep theirs open).
+ * a phase (a backend that exits meanwhile is counted through its parent, the postmaster).
  */
 export function cpuMeter(serverPid: number, pgDir: string | null): <T extends Phase>(run: () => Promise<T>) => Promise<T> {
-  const db = () => (pgDir ? clusterPids(pgDir).reduce((sum, pid) => sum + processCpuMs(pid), 0) : 0);
+  // The postmaster first, with the time of the backends it has reaped, then the live ones.
+  const db = () => (pgDir ? clusterPids(pgDir).reduce((sum, pid, k) => sum + processCpuMs(pid, k === 0), 0) : 0);
   return async (run) => {
     const before = { server: processCpuMs(serverPid), db: db() };
     const phase = await run();
