@@ -1,21 +1,20 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { randomUUID } from 'node:crypto';
 import { RequestContext } from '@mikro-orm/postgresql';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import session from 'express-session';
 import helmet from 'helmet';
-import { pinoHttp } from 'pino-http';
 import { setting } from './config';
 import { configurePassport } from './auth/passport';
-import { createSessionStore } from './auth/session-store';
+import { createSessionStore, slideSessionCookie } from './auth/session-store';
 import { signInLimits } from './auth/sign-in-limits';
 import { stampArrival } from './http/arrival';
 import { noStore } from './http/cache-control';
 import { SESSION_COOKIE, type AppDeps } from './context';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
+import { requestLog } from './http/request-log';
 import { mountRoutes, route, type AnyRoute } from './http/route';
 import { xsrf, xsrfSessionBinding } from './http/xsrf';
 import { logger } from './logger';
@@ -75,24 +74,7 @@ export function createApp(deps: AppDeps): Express {
       strictTransportSecurity: config.trustProxy,
     }),
   );
-  app.use(
-    pinoHttp({
-      logger,
-      genReqId: (req, res) => {
-        const id = (req.headers['x-request-id'] as string | undefined)?.slice(0, 64) || randomUUID();
-        res.setHeader('X-Request-Id', id);
-        return id;
-      },
-      autoLogging: { ignore: (req) => !req.url?.startsWith('/api') },
-      // Method, path and status only: headers carry cookies and tokens.
-      serializers: {
-        req: (req: { id: string; method: string; url: string }) => ({ id: req.id, method: req.method, url: req.url.split('?')[0] }),
-        res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
-      },
-      // A 4xx is the client's business (a 401 on GET /api/session is how the page learns it is signed out).
-      customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : 'info'),
-    }),
-  );
+  app.use(requestLog(logger));
 
   const api = express.Router();
   api.use(noStore());
@@ -104,15 +86,17 @@ export function createApp(deps: AppDeps): Express {
     session({
       name: SESSION_COOKIE,
       secret: sessionSecret,
-      // Reads the person with the session; writes the expiry back at most once a minute.
+      // Reads the person with the session; writes the expiry back at most once a minute, and only
+      // then sends the cookie again (slideSessionCookie).
       store: createSessionStore(deps.sessionPool),
       resave: false,
       saveUninitialized: false,
-      rolling: true,
+      rolling: false,
       proxy: config.trustProxy,
       cookie: { httpOnly: true, sameSite: 'lax', secure: 'auto', maxAge: SESSION_HOURS * 3600_000, path: '/' },
     }),
   );
+  api.use(slideSessionCookie(SESSION_COOKIE, sessionSecret));
   const auth = configurePassport(orm);
   api.use(auth.initialize());
   api.use(auth.session());

@@ -12,7 +12,7 @@ export interface AppDeps {
   config: Config;
   orm: MikroORM;
   boss: PgBoss;
-  /** Pool for the session store. */
+  /** Pool of plain pg connections: the session store, the sign-in limits and the tender lists (services/queries). */
   sessionPool: Pool;
   /** Test hooks around a bid's transaction (spec/server/bid-arrival.spec.ts); none in production. */
   bidHooks?: BidHooks;

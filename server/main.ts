@@ -29,7 +29,8 @@ export async function start(config: Config): Promise<Running> {
     await orm.close();
     throw new Error(`The database needs ${pending.length} migration(s): run node dist/server/ops/migrate.js (npm start does).`);
   }
-  const sessionPool = new Pool({ connectionString: config.databaseUrl, max: 5 });
+  // The session store, the sign-in limits and the tender lists (prepared statements, see services/queries).
+  const sessionPool = new Pool({ connectionString: config.databaseUrl, max: 10 });
   const boss = createBoss(config.databaseUrl);
   await boss.start();
   let catcher: MailCatcher | undefined;

@@ -2,6 +2,8 @@ import type { MembershipState } from '../entities/user.entity';
 import connectPgSimple from 'connect-pg-simple';
 import session from 'express-session';
 import type { Pool } from 'pg';
+import type { RequestHandler } from 'express';
+import { createHmac } from 'node:crypto';
 
 /** A session's expiry in the store moves forward at most this often (and its row is written no more). */
 export const TOUCH_EVERY_MS = 60_000;
@@ -59,6 +61,41 @@ export function loadedSessionUser(sess: unknown, id: string): SessionUserRow | n
 }
 
 /**
+ * Whether the session's stored expiry is a minute or more behind the one its cookie now gives
+ * (true too for a session the store did not read, whose stored expiry is unknown).
+ */
+function touchDue(sess: session.SessionData): boolean {
+  const loaded = (sess as WithLoaded)[LOADED];
+  const next = sess.cookie?.expires ? new Date(sess.cookie.expires).getTime() : undefined;
+  return !loaded || next === undefined || next - loaded.expireMs >= TOUCH_EVERY_MS;
+}
+
+/**
+ * The session cookie slides with the session's stored expiry: it is sent again, with the new expiry,
+ * when the store moves that expiry (`touch`, at most once a minute), not with every answer (signing
+ * and writing it was a measurable share of GET /api/session, bench:api phase d). Mount it right
+ * after `express-session` with `rolling: false`, which still sets the cookie itself for a new or
+ * changed session (sign-in). The cookie's value is express-session's: `s:` and the session id
+ * signed with the secret as its `cookie-signature` dependency does (HMAC-SHA-256, base64 without
+ * padding) — that package is not ours to import, and this is one line.
+ */
+export function slideSessionCookie(name: string, secret: string): RequestHandler {
+  return (req, res, next) => {
+    const sess = req.session as (session.Session & Partial<session.SessionData>) | undefined;
+    if (!sess || !(sess as WithLoaded)[LOADED] || !req.sessionID) return next();
+    sess.touch();
+    if (touchDue(sess)) {
+      const signature = createHmac('sha256', secret).update(req.sessionID).digest('base64').replace(/=+$/, '');
+      const c = sess.cookie;
+      res.cookie(name, `s:${req.sessionID}.${signature}`, {
+        expires: c.expires ?? undefined, httpOnly: c.httpOnly, sameSite: c.sameSite, secure: c.secure === true, path: c.path, domain: c.domain,
+      });
+    }
+    next();
+  };
+}
+
+/**
  * connect-pg-simple's store for `http_session`, with two changes: `get` reads the person with the
  * session (above), and `touch` — called by express-session after every request that did not change
  * the session — moves the expiry forward only when the stored one is a minute or more behind.
@@ -87,9 +124,7 @@ export function createSessionStore(pool: Pool, options: { pruneSessionInterval?:
     }
 
     override touch(sid: string, sess: session.SessionData, callback?: () => void): void {
-      const loaded = (sess as WithLoaded)[LOADED];
-      const next = sess.cookie?.expires ? new Date(sess.cookie.expires).getTime() : undefined;
-      if (loaded && next !== undefined && next - loaded.expireMs < TOUCH_EVERY_MS) return callback?.();
+      if (!touchDue(sess)) return callback?.();
       super.touch(sid, sess, callback);
     }
   }

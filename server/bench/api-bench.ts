@@ -2,7 +2,7 @@ import type autocannon from 'autocannon';
 import { deadlineRush, rushHolds, rushTable, RUSH_REGIONS, RUSH_VENDORS } from './rush';
 import { benchEnv, startBare, startServer, stopAll } from './support/processes';
 import { call, headersOf, signIn, signInAll, type Session } from './support/http';
-import { drive, driveMany, joinPhases, summarise, summaryTable, type DriveOptions, type Phase, type Summary } from './support/measure';
+import { cpuMeter, drive, driveMany, joinPhases, summarise, summaryTable, type DriveOptions, type Phase, type Summary } from './support/measure';
 import { BENCH_PASSWORD, seedBenchData } from './support/seed';
 
 /**
@@ -59,7 +59,7 @@ async function main(): Promise<void> {
   const skipRush = process.argv.includes('--skip-rush');
   const onlyAt = process.argv.indexOf('--only');
   const only = onlyAt > 0 ? new Set(['0', 'd', ...(process.argv[onlyAt + 1] ?? '').split(',')]) : new Set(['0', 'a', 'b', 'c', 'd', 'e']);
-  const { databaseUrl } = benchEnv();
+  const { databaseUrl, dir: benchDir } = benchEnv();
   const seeded = await seedBenchData(databaseUrl, { vendors: skipRush ? 200 : RUSH_VENDORS, rushRegions: RUSH_REGIONS, buyerBulk: BUYER_BULK });
   const bare = await startBare();
   const { proc, url } = await startServer();
@@ -71,16 +71,19 @@ async function main(): Promise<void> {
   const twenty = vendors.slice(0, CONNECTIONS);
   process.stdout.write('[bench] signed in; warming up\n');
 
-  const barePhase = (label: string) => drive(label, { url: `${bare.url}/api/session`, connections: CONNECTIONS, amount: PHASE_REQUESTS, maxSeconds: MAX_SECONDS });
-  const sessionPhase = (label: string) => drive(label, rotating(`${url}/api/session`, twenty));
-  const listPhase = (label: string) => drive(label, rotating(`${url}/api/tenders`, twenty));
-  const buyerListPhase = (label: string) => drive(label, rotating(`${url}/api/tenders`, [buyer]));
+  // CPU per request besides requests/s: on a machine shared with other work, far steadier.
+  const onBare = cpuMeter(bare.proc.child.pid!, null);
+  const onServer = cpuMeter(proc.child.pid!, `${benchDir}/pg`);
+  const barePhase = (label: string) => onBare(() => drive(label, { url: `${bare.url}/api/session`, connections: CONNECTIONS, amount: PHASE_REQUESTS, maxSeconds: MAX_SECONDS }));
+  const sessionPhase = (label: string) => onServer(() => drive(label, rotating(`${url}/api/session`, twenty)));
+  const listPhase = (label: string) => onServer(() => drive(label, rotating(`${url}/api/tenders`, twenty)));
+  const buyerListPhase = (label: string) => onServer(() => drive(label, rotating(`${url}/api/tenders`, [buyer])));
   const versions = new Map<string, number | null>();
   const ownTender = new Map(fifty.map((s, k) => [s.email, seeded.own[k]]));
   const bidPhase = async (label: string) => {
     // Each vendor saves over the version it loaded, then over the one each save returns, as the client does.
     for (const s of fifty) versions.set(s.email, (await call<{ bid: { version: number } | null }>(url, s, 'GET', `/api/tenders/${ownTender.get(s.email)!.id}/bid`)).body.bid?.version ?? null);
-    return driveMany(label, perVendor(url, fifty, (s) => {
+    return onServer(() => driveMany(label, perVendor(url, fifty, (s) => {
       const tender = ownTender.get(s.email)!;
       let version = versions.get(s.email) ?? null;
       let fee = 30_000;
@@ -94,10 +97,10 @@ async function main(): Promise<void> {
           },
         }],
       };
-    }));
+    })));
   };
   const tabulationPhase = (label: string) =>
-    drive(label, { url: `${url}/api/tenders/${seeded.big.id}/bids`, connections: 5, amount: 250, maxSeconds: MAX_SECONDS * 2, headers: headersOf(buyer) });
+    onServer(() => drive(label, { url: `${url}/api/tenders/${seeded.big.id}/bids`, connections: 5, amount: 250, maxSeconds: MAX_SECONDS * 2, headers: headersOf(buyer) }));
 
   const phases = [
     { key: '0', run: barePhase, label: '(0) bare Express 5, one route' },

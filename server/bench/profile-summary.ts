@@ -37,7 +37,7 @@ const PARTS: [string, RegExp][] = [
   ['user lookup (passport)', /^(passport|passport-strategy|passport-local|tendara:server\/auth\/(passport|session-user)\.js)$/],
   ['ORM (MikroORM, knex, tarn)', /^(@mikro-orm\/.*|knex|tarn|dataloader|mikro-orm)$/],
   ['PostgreSQL driver (pg, all queries)', /^(pg|pg-pool|pg-protocol|pg-types|pg-connection-string|postgres-.*|buffer-writer|packet-reader)$/],
-  ['request logging (pino, pino-http)', /^(pino|pino-http|pino-std-serializers|sonic-boom|fast-redact|quick-format-unescaped|atomic-sleep|safe-stable-stringify|on-exit-leak-free|thread-stream|get-caller-file)$/],
+  ['request logging (pino, request-log)', /^(tendara:server\/http\/request-log\.js|tendara:server\/logger\.js|@pinojs\/redact|pino|pino-http|pino-std-serializers|sonic-boom|fast-redact|quick-format-unescaped|atomic-sleep|safe-stable-stringify|on-exit-leak-free|thread-stream|get-caller-file)$/],
   ['security headers (helmet)', /^helmet$/],
   ['XSRF (cookie-parser, xsrf)', /^(cookie-parser|tendara:server\/http\/xsrf\.js)$/],
   ['rate limiter', /^express-rate-limit$/],

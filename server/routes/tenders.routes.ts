@@ -12,7 +12,7 @@ export function tenderRoutes(deps: AppDeps): AnyRoute[] {
     route({
       method: 'get', path: '/tenders', tag: 'Tenders', access: ['admin', 'buyer', 'compliance', 'vendor'], query: tenderListQuerySchema,
       summary: 'Tenders, newest closing first; filter by status, search reference/title/commodity. A vendor sees only published tenders it is invited to.',
-      handler: ({ em, user, query }) => tenders.listTenders(em, user, query),
+      handler: ({ user, query }) => tenders.listTenders(deps.sessionPool, user, query),
     }),
     route({
       method: 'post', path: '/tenders', tag: 'Tenders', access: ['buyer'], body: tenderInputSchema, status: 201,

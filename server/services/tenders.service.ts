@@ -1,9 +1,10 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
+import type { Pool } from 'pg';
 import type { z } from 'zod';
 import { describeAwardBasis } from '@shared/award-basis';
 import type { RegionInput } from '@shared/bids';
-import type { BidStatus, InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
+import type { InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
 import { Amendment, Bid, Invitation, Notice, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
@@ -11,10 +12,9 @@ import { renderMail } from '../mail/templates';
 import { formatInZone } from '@shared/time-zone';
 import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from './people.service';
 import { audit } from './audit.service';
-import { escapeLike } from './like';
-import { CLOSING_GRACE_MS, closeIfDue, CURRENT_STATUS, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
-import { LIVE_BID_STATUSES, statusesAfter, statusesBefore } from '@shared/tenders';
-import { sqlList } from './sql';
+import { AFTER_AWARD, tenderListRows } from './queries/tenders.queries';
+import { CLOSING_GRACE_MS, closeIfDue, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
+import { LIVE_BID_STATUSES, statusesBefore } from '@shared/tenders';
 import { isWholeMultiple } from '@shared/award';
 
 export interface TenderDeps {
@@ -43,45 +43,12 @@ export function regionInputs(tender: Tender): RegionInput[] {
   return tender.regions.getItems().map((r) => ({ code: r.code, name: r.name, forecast: r.forecast }));
 }
 
-export async function listTenders(em: EntityManager, user: User, query: z.infer<typeof tenderListQuerySchema>): Promise<TenderSummary[]> {
+export async function listTenders(pool: Pool, user: User, query: z.infer<typeof tenderListQuerySchema>): Promise<TenderSummary[]> {
   // No write here: closing (and its audit entry) is the close job's and the bid save's. Until the
   // job has run, a tender past its closing time is listed as closed all the same (CURRENT_STATUS).
-  // One query, counts and totals by PostgreSQL: a vendor's list was the slowest vendor request
-  // (bench:api, phase a) while it hydrated tenders, invitations and bids as entities.
-  const where: string[] = [];
-  const params: unknown[] = [];
+  // One prepared statement, counts and totals by PostgreSQL (queries/tenders.queries.ts).
   const vendor = user.role === 'vendor' ? user.vendorOrganisation!.id : null;
-  if (vendor) {
-    where.push(`t.status <> 'draft' and t.published_at is not null`, 'exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?)');
-    params.push(vendor);
-  }
-  const owner = tenderOwnerScope(user);
-  if (owner) {
-    where.push('t.created_by_id = ?');
-    params.push(owner);
-  }
-  if (query.status) {
-    where.push(`${vendor ? VENDOR_STATUS : CURRENT_STATUS} = ?`);
-    params.push(...(vendor ? [vendor] : []), query.status);
-  }
-  if (query.q) {
-    where.push(`(t.reference ilike ? or t.title ilike ? or t.commodity ilike ?)`);
-    const like = `%${escapeLike(query.q)}%`;
-    params.push(like, like, like);
-  }
-  const rows = await em.execute<{
-    id: string; reference: string; title: string; commodity: string; unit: string; currency: string;
-    status: TenderStatus; closes_at: Date | string; time_zone: string; region_count: number; total_forecast: string; my_bid_status: BidStatus | null;
-  }[]>(
-    `select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${vendor ? VENDOR_STATUS : CURRENT_STATUS} as status, t.closes_at, t.time_zone,
-            coalesce(r.n, 0)::int as region_count, coalesce(r.total, 0) as total_forecast,
-            ${vendor ? '(select b.status from bid b where b.tender_id = t.id and b.vendor_organisation_id = ?)' : 'null'} as my_bid_status
-       from tender t
-       left join lateral (select count(*) as n, sum(forecast) as total from region where region.tender_id = t.id) r on true
-      ${where.length ? `where ${where.join(' and ')}` : ''}
-      order by t.closes_at desc, t.id`,
-    vendor ? [vendor, vendor, ...params] : params,
-  );
+  const rows = await tenderListRows(pool, { vendorOrganisationId: vendor, ownerId: tenderOwnerScope(user), status: query.status, q: query.q });
   return rows.map((t) => ({
     id: t.id, reference: t.reference, title: t.title, commodity: t.commodity, unit: t.unit, currency: t.currency,
     status: t.status, closesAt: new Date(t.closes_at).toISOString(), timeZone: t.time_zone,
@@ -140,11 +107,6 @@ async function vendorStatus(em: EntityManager, tender: Tender, vendorId: string)
   if (!AFTER_AWARD.includes(tender.status)) return tender.status;
   return (await em.count(Notice, { tender, vendorOrganisation: vendorId, status: 'sent' })) ? tender.status : 'closed';
 }
-const AFTER_AWARD: TenderStatus[] = ['awarded', ...statusesAfter('awarded')];
-/** `VENDOR_STATUS(vendorParam)` over `tender t`: the status a vendor sees (see vendorStatus). */
-const VENDOR_STATUS = `(case when ${CURRENT_STATUS} in (${sqlList(AFTER_AWARD)})
-    and not exists (select 1 from notice n where n.tender_id = t.id and n.vendor_organisation_id = ? and n.status = 'sent')
-  then 'closed'::tender_status else ${CURRENT_STATUS} end)`;
 
 /** A standstill of 0 days needs its exemption ground (400 naming `standstillExemption`). */
 function checkStandstill(input: TenderInput): void {

@@ -1,4 +1,4 @@
-import { Amendment, AuditEntry, Bid, MailMessage, Question, Region, Tender } from '../../server/entities';
+import { Amendment, AuditEntry, Bid, BidRemovedLine, MailMessage, Question, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { CLOSING_GRACE_MS, closeIfDue } from '../../server/services/tender-access';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
@@ -236,6 +236,22 @@ describe('amendments', () => {
     const bids = (await buyer.get(`/api/tenders/${id}/bids`)).body.bids;
     expect(bids).toHaveLength(1);
     expect(bids[0]).toMatchObject({ prices: { R01: 31.5, R03: 33 }, removedPrices: { R02: 32.25 }, digest: sub.body.digest, receiptVerified: true });
+  });
+
+  test("the vendor's next save after a region was removed replaces every figure: the removed price goes with the save", async () => {
+    const [a] = vendors;
+    const id = await openTender(buyer, [a.org], tenderBody(3, 120));
+    const sub = await put(a.b, id, { fixedFee: 800, capacity: 9000, prices: { R01: 31.5, R02: 32.25, R03: 33 }, submit: true, version: null });
+    expect(sub.status).toBe(200);
+    const regions = [{ code: 'R01', name: 'Depot 1', forecast: 1000 }, { code: 'R03', name: 'Depot 3', forecast: 3000 }];
+    expect((await buyer.post(`/api/tenders/${id}/amendments`, { reason: 'Depot 2 closes for rebuilding.', regions })).status).toBe(201);
+    expect(await t.em().fork().count(BidRemovedLine, { bid: sub.body.id })).toBe(1);
+    const revised = await put(a.b, id, { fixedFee: 790, capacity: 9000, prices: { R01: 30, R03: 32 }, submit: true, version: sub.body.version });
+    expect(revised.status).toBe(200);
+    expect(await t.em().fork().count(BidRemovedLine, { bid: sub.body.id })).toBe(0);
+    const own = (await a.b.get(`/api/tenders/${id}/bid`)).body.bid;
+    expect(own).toMatchObject({ status: 'revised', revision: 2, prices: { R01: 30, R03: 32 } });
+    expect(own.removedPrices).toBeUndefined();
   });
 });
 

@@ -18,18 +18,16 @@ const sessionsOf = async (userId: string) =>
   (await sql<{ sid: string; expire_ms: string }>(`select sid, extract(epoch from expire) * 1000 as expire_ms from http_session where sess #>> '{passport,user}' = ?`, [userId]))
     .map((r) => ({ sid: r.sid, expireMs: Number(r.expire_ms) }));
 
-/** The session cookie as the browser holds it (sent again with every answer). */
-async function sessionCookie(b: Browser): Promise<string> {
-  const res = await b.get('/api/session');
-  const cookie = ([] as string[]).concat(res.headers['set-cookie'] ?? []).find((c) => c.startsWith(`${SESSION_COOKIE}=`));
-  if (!cookie) throw new Error('no session cookie in the answer');
-  return cookie.split(';')[0];
-}
+/** The session cookie an answer sets, whole (`name=value; Expires=…; …`), if it sets one. */
+const sessionCookieOf = (res: { headers: Record<string, unknown> }) =>
+  ([] as string[]).concat((res.headers['set-cookie'] as string[] | undefined) ?? []).find((c) => c.startsWith(`${SESSION_COOKIE}=`));
 
 test('after sign-out the very next request is 401, also when the old session cookie is sent again', async () => {
   const user = await makeUser(t, 'buyer');
-  const b = await signedIn(t, user);
-  const old = await sessionCookie(b);
+  const b = await new Browser(t.app).init();
+  const signIn = await b.signIn(user.email);
+  expect(signIn.status).toBe(200);
+  const old = sessionCookieOf(signIn)!.split(';')[0];
   expect((await b.send('delete', '/api/session')).status).toBe(204);
   expect((await b.get('/api/session')).status).toBe(401);
   expect((await new Browser(t.app).agent.get('/api/session').set('Cookie', old)).status).toBe(401);
@@ -94,13 +92,28 @@ test('a signed-in request writes the session back at most once a minute, and mov
   const user = await makeUser(t, 'buyer');
   const b = await signedIn(t, user);
   const [signedInRow] = await sessionsOf(user.id);
-  for (let k = 0; k < 3; k++) expect((await b.get('/api/session')).status).toBe(200);
+  for (let k = 0; k < 3; k++) {
+    const res = await b.get('/api/session');
+    expect(res.status).toBe(200);
+    // Nothing moved, so the cookie is not sent again either.
+    expect(sessionCookieOf(res)).toBeUndefined();
+  }
   const [unchanged] = await sessionsOf(user.id);
   expect(unchanged.expireMs).toBe(signedInRow.expireMs);
   // As if the last write was longer ago than the throttle: the next request moves the expiry on.
   await sql(`update http_session set expire = expire - make_interval(secs => ?) where sid = ?`, [(2 * TOUCH_EVERY_MS) / 1000, signedInRow.sid]);
   const [aged] = await sessionsOf(user.id);
-  expect((await b.get('/api/session')).status).toBe(200);
+  const due = await b.get('/api/session');
+  expect(due.status).toBe(200);
   const [touched] = await sessionsOf(user.id);
   expect(touched.expireMs).toBeGreaterThanOrEqual(aged.expireMs + TOUCH_EVERY_MS);
+  // …and the browser gets the cookie again, expiring with the stored session (HTTP dates have whole seconds).
+  const slid = sessionCookieOf(due);
+  const expires = Date.parse(/Expires=([^;]+)/i.exec(slid ?? '')?.[1] ?? '');
+  expect(Math.abs(expires - touched.expireMs)).toBeLessThan(2000);
+  expect(slid).toMatch(/HttpOnly/i);
+  expect(slid).toMatch(/SameSite=Lax/i);
+  // The same session as before: the cookie it names still works on its own.
+  const again = await new Browser(t.app).agent.get('/api/session').set('Cookie', slid!.split(';')[0]);
+  expect(again.body.user?.id).toBe(user.id);
 });

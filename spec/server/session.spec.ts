@@ -91,3 +91,10 @@ test('an unknown API path is a 404 problem, never the client app', async () => {
   expect(res.status).toBe(404);
   expect(res.type).toBe('application/problem+json');
 });
+
+test("every answer names its request: the caller's X-Request-Id (cut to 64 characters), else a new UUID", async () => {
+  const given = await new Browser(t.app).agent.get('/api/session').set('X-Request-Id', `trace-${'x'.repeat(80)}`);
+  expect(given.headers['x-request-id']).toBe(`trace-${'x'.repeat(58)}`);
+  const fresh = await new Browser(t.app).agent.get('/api/session');
+  expect(fresh.headers['x-request-id']).toMatch(/^[0-9a-f]{8}-[0-9a-f]{4}-4[0-9a-f]{3}-[89ab][0-9a-f]{3}-[0-9a-f]{12}$/);
+});

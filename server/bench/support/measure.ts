@@ -1,3 +1,4 @@
+import { readdirSync, readFileSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import autocannon from 'autocannon';
 
@@ -13,6 +14,8 @@ export interface Phase {
   /** Answers other than the expected status, plus connection errors and timeouts. */
   errors: number;
   statuses: Map<number, number>;
+  /** CPU time the measured processes used during the phase (see `cpuMeter`), in ms. */
+  cpu?: { server: number; db: number };
 }
 
 export interface DriveOptions {
@@ -92,8 +95,58 @@ export function joinPhases(label: string, parts: Phase[]): Phase {
     for (const ms of p.latencies) out.latencies.push(ms);
     out.errors += p.errors;
     for (const [status, n] of p.statuses) out.statuses.set(status, (out.statuses.get(status) ?? 0) + n);
+    if (p.cpu) out.cpu = { server: (out.cpu?.server ?? 0) + p.cpu.server, db: (out.cpu?.db ?? 0) + p.cpu.db };
   }
   return out;
+}
+
+/** Linux's clock ticks per second for /proc/PID/stat times (USER_HZ, 100 on every common build). */
+const TICKS_PER_SECOND = 100;
+
+/**
+ * User plus system CPU time of a process so far, in ms (0 once it has gone); with `reaped`, also
+ * that of its children that have exited (PostgreSQL backends whose pool connection was closed).
+ */
+function processCpuMs(pid: number, reaped = false): number {
+  try {
+    const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+    // Fields after the command name (which may hold spaces, inside parentheses): utime, stime,
+    // cutime and cstime are the 12th to the 15th.
+    const f = stat.slice(stat.lastIndexOf(')') + 2).split(' ').map(Number);
+    return ((f[11] + f[12] + (reaped ? f[13] + f[14] : 0)) * 1000) / TICKS_PER_SECOND;
+  } catch {
+    return 0;
+  }
+}
+
+/** The PostgreSQL postmaster of a cluster folder and its backends (processes whose parent it is). */
+function clusterPids(pgDir: string): number[] {
+  const postmaster = Number(readFileSync(`${pgDir}/postmaster.pid`, 'utf8').split('\n')[0]);
+  const children = readdirSync('/proc').filter((d) => /^\d+$/.test(d)).map(Number).filter((pid) => {
+    try {
+      const stat = readFileSync(`/proc/${pid}/stat`, 'utf8');
+      return Number(stat.slice(stat.lastIndexOf(')') + 2).split(' ')[1]) === postmaster;
+    } catch {
+      return false;
+    }
+  });
+  return [postmaster, ...children];
+}
+
+/**
+ * CPU time per request, which a machine shared with other work changes far less than requests/s:
+ * user + system time of the measured server process and of the PostgreSQL cluster's processes over
+ * a phase (a backend that exits meanwhile is counted through its parent, the postmaster).
+ */
+export function cpuMeter(serverPid: number, pgDir: string | null): <T extends Phase>(run: () => Promise<T>) => Promise<T> {
+  // The postmaster first, with the time of the backends it has reaped, then the live ones.
+  const db = () => (pgDir ? clusterPids(pgDir).reduce((sum, pid, k) => sum + processCpuMs(pid, k === 0), 0) : 0);
+  return async (run) => {
+    const before = { server: processCpuMs(serverPid), db: db() };
+    const phase = await run();
+    phase.cpu = { server: processCpuMs(serverPid) - before.server, db: db() - before.db };
+    return phase;
+  };
 }
 
 /** Nearest-rank percentile of a list of milliseconds. */
@@ -113,10 +166,15 @@ export interface Summary {
   p95: number;
   p99: number;
   errors: number;
+  /** CPU µs per request of the server process and of PostgreSQL, when measured. */
+  serverCpuUs?: number;
+  dbCpuUs?: number;
 }
 
 export function summarise(p: Phase): Summary {
+  const n = p.latencies.length || 1;
   return {
+    ...(p.cpu ? { serverCpuUs: (1000 * p.cpu.server) / n, dbCpuUs: (1000 * p.cpu.db) / n } : {}),
     label: p.label,
     requests: p.latencies.length,
     rps: p.latencies.length / (p.seconds || 1),
@@ -137,8 +195,10 @@ export function table(headers: string[], rows: (string | number)[][]): string {
 
 /** The phases' figures; with `baseRps`, each phase's requests/s also as a percentage of it. */
 export function summaryTable(rows: Summary[], baseRps?: number): string {
+  const cpu = rows.some((s) => s.serverCpuUs !== undefined);
+  const us = (v: number | undefined) => (v === undefined ? '' : Math.round(v));
   return table(
-    ['phase', 'requests', 'req/s', ...(baseRps ? ['% of bare'] : []), 'p50 ms', 'p95 ms', 'p99 ms', 'errors'],
-    rows.map((s) => [s.label, s.requests, s.rps, ...(baseRps ? [(100 * s.rps) / (s.baseRps ?? baseRps)] : []), s.p50, s.p95, s.p99, s.errors]),
+    ['phase', 'requests', 'req/s', ...(baseRps ? ['% of bare'] : []), 'p50 ms', 'p95 ms', 'p99 ms', 'errors', ...(cpu ? ['server CPU µs/req', 'PostgreSQL CPU µs/req'] : [])],
+    rows.map((s) => [s.label, s.requests, s.rps, ...(baseRps ? [(100 * s.rps) / (s.baseRps ?? baseRps)] : []), s.p50, s.p95, s.p99, s.errors, ...(cpu ? [us(s.serverCpuUs), us(s.dbCpuUs)] : [])]),
   );
 }

@@ -1,6 +1,7 @@
 import { Client } from 'pg';
 import { hashPassword } from '../../auth/password';
 import { commitBid } from '../../services/bid-commitment';
+import { DEFAULT_AWARD_BASIS } from '@shared/tenders';
 
 /**
  * Fictional data for the benchmarks, written with plain SQL (thousands of rows in a second or two,
@@ -49,6 +50,9 @@ export function prng(seed: number): () => number {
   };
 }
 
+/** The award basis of a tender whose buyer sets no rule (a constant, so written into the SQL). */
+const AWARD_BASIS = `'${JSON.stringify(DEFAULT_AWARD_BASIS)}'::jsonb`;
+
 const pad = (n: number, w = 3) => String(n).padStart(w, '0');
 
 async function createTender(
@@ -57,7 +61,7 @@ async function createTender(
   const { rows } = await db.query<{ id: string }>(
     `insert into tender (id, reference, title, commodity, unit, currency, closes_at, status, created_by_id, published_at, closed_at, award_basis)
      values (gen_random_uuid(), $1, $2, 'Road salt', 't', 'EUR', now() + make_interval(mins => $3::int), $4::tender_status, $5, now() - interval '10 days',
-             case when $4::text = 'closed' then now() + make_interval(mins => $3::int) end, '{"sourcing": "split", "soleRegions": []}'::jsonb)
+             case when $4::text = 'closed' then now() + make_interval(mins => $3::int) end, ${AWARD_BASIS})
      returning id`,
     [o.reference, o.title, o.closesInMinutes, o.status, buyerId],
   );
@@ -180,8 +184,7 @@ async function seedBuyerBulk(db: Client, buyerId: string, count: number): Promis
      select gen_random_uuid(), 'BENCH-B' || lpad(i::text, 4, '0'), 'Salt for district ' || i, 'Road salt', 't', 'EUR',
             now() + make_interval(days => case when i % 3 = 0 then -(i % 300) - 1 else (i % 300) + 1 end), s.status::tender_status, $1,
             case when s.status = 'draft' then null else now() - interval '400 days' end,
-            case when s.status = 'closed' then now() - make_interval(days => (i % 300) + 1) end,
-            '{"sourcing": "split", "soleRegions": []}'::jsonb
+            case when s.status = 'closed' then now() - make_interval(days => (i % 300) + 1) end, ${AWARD_BASIS}
        from generate_series(1, $2::int) i,
             lateral (select case when i % 3 = 0 then 'closed' when i % 7 = 0 then 'draft' else 'open' end as status) s`,
     [buyerId, count],
