@@ -11,7 +11,7 @@ import { closedTender } from './support/closed-tender';
  *   (950 + 1,000 from vendor1): 3,150, 250 more — its fee is not recovered.
  */
 jest.setTimeout(240_000);
-const TENDER = 'NHP-2026-047';
+const TENDER = 'NHP-2026-061';
 
 let b: Awaited<ReturnType<typeof openBrowser>>;
 beforeAll(async () => {
