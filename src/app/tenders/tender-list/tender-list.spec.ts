@@ -4,7 +4,8 @@ import { HarnessLoader } from '@angular/cdk/testing';
 import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { MatChipListboxHarness } from '@angular/material/chips/testing';
 import { MatTableHarness } from '@angular/material/table/testing';
-import { provideRouter } from '@angular/router';
+import { Router, provideRouter, withComponentInputBinding } from '@angular/router';
+import { RouterTestingHarness } from '@angular/router/testing';
 import type { SessionUser } from '@shared/roles';
 import type { TenderSummary } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
@@ -43,16 +44,22 @@ describe('TenderList', () => {
   let loader: HarnessLoader;
   let fixture: ComponentFixture<TenderList>;
 
-  async function start(role: SessionUser['role'], tenders: TenderSummary[]): Promise<void> {
-    TestBed.configureTestingModule({ imports: [TenderList], providers: [provideApi(), provideHttpClientTesting(), provideRouter([])] });
+  async function start(role: SessionUser['role'], tenders: TenderSummary[], url = '/tenders', request = '/api/tenders'): Promise<void> {
+    TestBed.configureTestingModule({
+      providers: [provideApi(), provideHttpClientTesting(), provideRouter([{ path: 'tenders', component: TenderList }], withComponentInputBinding())],
+    });
     http = TestBed.inject(HttpTestingController);
     signInAs(role);
-    fixture = TestBed.createComponent(TenderList);
-    loader = TestbedHarnessEnvironment.loader(fixture);
+    const harness = await RouterTestingHarness.create();
+    const navigated = harness.navigateByUrl(url);
     // A request in flight keeps the app unstable, so it is answered before waiting.
-    fixture.detectChanges();
-    http.expectOne({ method: 'GET', url: '/api/tenders' }).flush(tenders);
-    await fixture.whenStable();
+    for (let i = 0; i < 100 && !http.match({ method: 'GET', url: request }).some((r) => (r.flush(tenders), true)); i++) {
+      await new Promise((resolve) => setTimeout(resolve, 5));
+    }
+    await navigated;
+    fixture = harness.fixture as unknown as ComponentFixture<TenderList>;
+    loader = TestbedHarnessEnvironment.loader(harness.fixture);
+    await harness.fixture.whenStable();
   }
 
   afterEach(() => http.verify());
@@ -84,6 +91,14 @@ describe('TenderList', () => {
     await selected;
     await fixture.whenStable();
     expect((await rows()).map((r) => r['reference'])).toEqual(['WCX-2026-009']);
+    // The filter is in the address, so a reload or a shared link shows the same list.
+    expect(TestBed.inject(Router).url).toBe('/tenders?status=closed');
+  });
+
+  it('opens filtered and searched from the address', async () => {
+    await start('buyer', [closed], '/tenders?status=closed&q=grit', '/api/tenders?status=closed&q=grit');
+    expect((await rows()).map((r) => r['reference'])).toEqual(['WCX-2026-009']);
+    expect((fixture.nativeElement as HTMLElement).querySelector<HTMLInputElement>('input[type=search]')!.value).toBe('grit');
   });
 
   it("shows a vendor its own bid's state and no draft filter", async () => {

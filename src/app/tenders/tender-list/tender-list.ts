@@ -1,5 +1,5 @@
-import { ChangeDetectionStrategy, Component, computed, effect, inject, signal, viewChild } from '@angular/core';
-import { rxResource, toObservable, toSignal } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, computed, effect, inject, input, signal, untracked, viewChild } from '@angular/core';
+import { rxResource, takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatChipsModule } from '@angular/material/chips';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -8,7 +8,7 @@ import { MatInputModule } from '@angular/material/input';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatSort, MatSortModule } from '@angular/material/sort';
 import { MatTableDataSource, MatTableModule } from '@angular/material/table';
-import { RouterLink } from '@angular/router';
+import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { TENDER_STATUSES, type TenderStatus, type TenderSummary } from '@shared/tenders';
 import { debounceTime } from 'rxjs';
 import { Auth } from '../../core/auth/auth';
@@ -18,7 +18,7 @@ import { BID_STATUS_LABELS, TENDER_STATUS_LABELS } from '../tender-status';
 import { quantity } from '../../ui/number-format';
 import { loadErrorMessage } from '../../ui/load-error';
 
-/** /tenders — every tender the person may see, filtered by status and searched on the server. */
+/** /tenders — every tender the person may see, filtered by status and searched on the server (?status=&q=). */
 @Component({
   selector: 'app-tender-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
@@ -40,6 +40,8 @@ export class TenderList {
   private readonly api = inject(TenderApi);
   private readonly auth = inject(Auth);
   private readonly sort = viewChild.required(MatSort);
+  private readonly router = inject(Router);
+  private readonly route = inject(ActivatedRoute);
 
   protected readonly isVendor = computed(() => this.auth.user()?.role === 'vendor');
   protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
@@ -48,12 +50,18 @@ export class TenderList {
   protected readonly statuses = computed(() =>
     TENDER_STATUSES.filter((s) => !this.isVendor() || s !== 'draft').map((value) => ({ value, label: TENDER_STATUS_LABELS[value] })),
   );
-  protected readonly status = signal<TenderStatus | null>(null);
+  /** Query parameters (?status=…&q=…): a filtered list survives a reload and can be shared as a link. */
+  readonly status = input<string | undefined>();
+  readonly q = input<string | undefined>();
+  protected readonly statusFilter = computed<TenderStatus | null>(() => {
+    const value = this.status();
+    return (TENDER_STATUSES as readonly string[]).includes(value ?? '') ? (value as TenderStatus) : null;
+  });
+  /** What is typed; it reaches the address (and the server) once typing pauses. */
   protected readonly search = signal('');
-  private readonly searchSettled = toSignal(toObservable(this.search).pipe(debounceTime(300)), { initialValue: '' });
 
   private readonly tenders = rxResource({
-    params: () => ({ status: this.status(), q: this.searchSettled() }),
+    params: () => ({ status: this.statusFilter(), q: (this.q() ?? '').trim() }),
     stream: ({ params }) => this.api.list(params),
   });
   protected readonly loading = this.tenders.isLoading;
@@ -88,6 +96,23 @@ export class TenderList {
     effect(() => {
       this.rows.data = this.tenders.value() ?? [];
     });
+    // The field follows the address (a shared link, back and forward).
+    effect(() => {
+      const q = this.q() ?? '';
+      untracked(() => {
+        if (q.trim() !== this.search().trim()) this.search.set(q);
+      });
+    });
+    toObservable(this.search)
+      .pipe(debounceTime(300), takeUntilDestroyed())
+      .subscribe((typed) => {
+        if (typed.trim() !== (this.q() ?? '').trim()) this.go({ q: typed.trim() || null }, true);
+      });
+  }
+
+  /** Changes the list's query parameters; typing replaces the history entry rather than adding one per pause. */
+  private go(queryParams: Record<string, string | null>, replaceUrl = false): void {
+    void this.router.navigate([], { relativeTo: this.route, queryParams, queryParamsHandling: 'merge', replaceUrl });
   }
 
   protected timeLeft(t: TenderSummary): string {
@@ -105,7 +130,7 @@ export class TenderList {
 
   /** "All" (or unselecting the current chip) clears the filter. */
   protected filterBy(value: TenderStatus | 'all' | undefined): void {
-    this.status.set(!value || value === 'all' ? null : value);
+    this.go({ status: !value || value === 'all' ? null : value });
   }
 
   protected onSearch(event: Event): void {
