@@ -1,4 +1,4 @@
-import { ChangeDetectionStrategy, Component, computed, input, signal } from '@angular/core';
+import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterNextRender, afterRenderEffect, computed, inject, input, signal, viewChild } from '@angular/core';
 import type { VendorAward } from '@shared/award';
 import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages';
 import { quantity } from '../../ui/number-format';
@@ -21,7 +21,13 @@ export interface MatrixRegion {
   imports: [RegionPager],
   template: `
     <app-region-pager [total]="regions().length" [(pageIndex)]="pageIndex" [(pageSize)]="pageSize" [label]="'Pages of regions: ' + caption()" />
-    <div class="scroll" tabindex="0" role="region" [attr.aria-label]="caption() + ' (scrolls sideways)'">
+    @if (more().right || more().left) {
+      <p class="scroll-cue" aria-hidden="true">
+        {{ more().right ? 'More regions to the right: scroll the table sideways (arrow keys once it has focus).' : 'Scrolled to the last region of this page.' }}
+      </p>
+    }
+    <div #box class="scroll" tabindex="0" role="region" [attr.aria-label]="caption() + ' (scrolls sideways)'"
+      [class.more-right]="more().right" [class.more-left]="more().left" (scroll)="measure()">
       <table>
         <caption class="visually-hidden">{{ caption() }}</caption>
         <thead>
@@ -55,6 +61,10 @@ export interface MatrixRegion {
   `,
   styles: `
     .scroll { overflow-x: auto; max-width: 100%; border: 1px solid var(--mat-sys-outline-variant); border-radius: 12px; }
+    /* A shadow on the side where more columns are hidden: the table visibly continues. */
+    .scroll.more-right { box-shadow: inset -16px 0 12px -12px var(--mat-sys-outline); }
+    .scroll.more-left.more-right { box-shadow: inset -16px 0 12px -12px var(--mat-sys-outline), inset 16px 0 12px -12px var(--mat-sys-outline); }
+    .scroll-cue { margin: 0 0 4px; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-small); }
     table { border-collapse: separate; border-spacing: 0; min-width: 100%; font: var(--mat-sys-body-medium); }
     th, td { padding: 8px 12px; border-bottom: 1px solid var(--mat-sys-outline-variant); white-space: nowrap; }
     thead th { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-title-small); vertical-align: bottom; }
@@ -67,6 +77,9 @@ export interface MatrixRegion {
   `,
 })
 export class AllocationMatrix {
+  private readonly box = viewChild.required<ElementRef<HTMLElement>>('box');
+  /** Whether columns are hidden to the right or left of the visible part (no layout, no cue). */
+  protected readonly more = signal({ left: false, right: false });
   readonly awards = input.required<readonly VendorAward[]>();
   readonly regions = input.required<readonly MatrixRegion[]>();
   readonly vendorNames = input.required<Record<string, { name: string }>>();
@@ -78,6 +91,29 @@ export class AllocationMatrix {
   protected readonly pageSize = signal(REGIONS_PER_PAGE);
   /** The regions on the current page only (see ui/region-pages.ts). */
   protected readonly shown = regionPage(this.regions, this.pageIndex, this.pageSize);
+  constructor() {
+    // Measured after every render (a new page of regions, new awards) and whenever the box is resized.
+    afterRenderEffect(() => {
+      this.shown();
+      this.rows();
+      this.measure();
+    });
+    const destroyRef = inject(DestroyRef);
+    afterNextRender(() => {
+      if (typeof ResizeObserver === 'undefined') return;
+      const observer = new ResizeObserver(() => this.measure());
+      observer.observe(this.box().nativeElement);
+      destroyRef.onDestroy(() => observer.disconnect());
+    });
+  }
+
+  protected measure(): void {
+    const el = this.box().nativeElement;
+    const next = { left: el.scrollLeft > 1, right: el.scrollLeft + el.clientWidth < el.scrollWidth - 1 };
+    const now = this.more();
+    if (next.left !== now.left || next.right !== now.right) this.more.set(next);
+  }
+
   protected readonly rows = computed(() => {
     const names = this.vendorNames();
     return this.awards().map((award) => {
