@@ -138,8 +138,8 @@ class ReportWriter {
     this.heading('9. Recommendation and approval');
     if (!c.recommendations.length) this.para('No recommendation was made.');
     for (const r of c.recommendations) {
-      this.para(`Round ${r.round}: ${r.status}. Recommended by ${r.recommendedBy} on ${this.at(r.recommendedAt)}: “${r.justification}”.`
-        + (r.decidedBy ? ` Decided by ${r.decidedBy} on ${this.at(r.decidedAt)}${r.comment ? `: “${r.comment}”` : ', without comment'}.` : ''));
+      this.para(`Round ${r.round}: ${r.status}. Recommended by ${r.recommendedBy} on ${this.at(r.recommendedAt)}: “${r.justification}”`
+        + (r.decidedBy ? ` Decided by ${r.decidedBy} on ${this.at(r.decidedAt)}${r.comment ? `: “${r.comment}”` : ', without comment.'}` : ''));
     }
     this.para(t.standstillEndsAt
       ? `Standstill: ${t.standstillDays} days, ending ${this.at(t.standstillEndsAt)}.`
