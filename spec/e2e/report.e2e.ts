@@ -36,5 +36,5 @@ test('the buyer downloads the evaluation report of the salt tender as a PDF and 
   const [xlsx] = await Promise.all([page.waitForEvent('download'), xlsxLink.click()]);
   expect(xlsx.suggestedFilename()).toBe('NHP-2026-014-evaluation-report.xlsx');
   const book = await XlsxPopulate.fromDataAsync(await readFile(await xlsx.path()));
-  expect(String(book.sheet(REPORT_LAYOUT.summary)!.cell('A1').value())).toMatch(/^Evaluation report — NHP-2026-014: /);
+  expect(book.sheet(REPORT_LAYOUT.summary)!.cell('A1').value()).toEqual(expect.stringMatching(/^Evaluation report — NHP-2026-014: /));
 });

@@ -114,7 +114,7 @@ describe('the evaluation report as a PDF', () => {
     expect({ objective: served.result!.objective, fixed: served.result!.fixedCost, variable: served.result!.variableCost }).toEqual({ objective: 108_200, fixed: 200, variable: 108_000 });
     expect(text).toContain('Total cost at the forecast €108,200.00');
     expect(text).toContain('Fixed fees €200.00');
-    const lines = served.result!.awards.flatMap((a) => a.lines.filter((l) => l.quantity > 0).map((l) => ({ vendor: served.vendors[a.vendor]!.name, ...l })));
+    const lines = served.result!.awards.flatMap((a) => a.lines.filter((l) => l.quantity > 0).map((l) => ({ vendor: served.vendors[a.vendor].name, ...l })));
     expect(lines.map((l) => `${l.region} ${l.vendor} ${l.quantity} ${l.unitPrice} ${l.cost}`).sort()).toEqual([
       `R01 ${names.A} 1000 18 18000`, `R02 ${names.B} 2000 18 36000`, `R03 ${names.B} 3000 18 54000`,
     ]);

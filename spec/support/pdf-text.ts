@@ -19,6 +19,6 @@ export function pdfText(pdf: Buffer): Promise<{ pages: number; text: string }> {
  */
 export function embeddedFonts(pdf: Buffer): { names: string[]; programs: number } {
   const raw = pdf.toString('latin1');
-  const names = [...new Set([...raw.matchAll(/\/BaseFont\s*\/([A-Za-z0-9+_-]+)/g)].map((m) => m[1]!.replace(/^[A-Z]{6}\+/, '')))].sort();
+  const names = [...new Set([...raw.matchAll(/\/BaseFont\s*\/([A-Za-z0-9+_-]+)/g)].map((m) => m[1].replace(/^[A-Z]{6}\+/, '')))].sort();
   return { names, programs: (raw.match(/\/FontFile[23]?\s/g) ?? []).length };
 }
