@@ -6,6 +6,7 @@ import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '..
 import { waitForRun } from '../support/evaluation';
 import { embeddedFonts, pdfText } from '../support/pdf-text';
 import { openTender, passClosingTime, tenderBody } from '../support/tenders';
+import { waitFor } from '../support/wait';
 
 /**
  * The evaluation report of a tender, as a PDF and as a workbook: read back (the PDF's text by
@@ -43,40 +44,53 @@ function binary(res: import('superagent').Request) {
   });
 }
 
+let org: Record<Key, string>;
+let vendors: Record<Key, Browser>;
+
+/**
+ * A tender of its own with the three bids: closed, A and B compliant, C excluded, the published
+ * basis solved; with `checks`, the drop-out, explanation and forecast checks computed before the
+ * recommendation (an awarded tender's runs are frozen); then recommended and approved.
+ */
+async function approvedTender(checks: (runId: string) => Promise<void>): Promise<{ tenderId: string; reference: string; run: RunView }> {
+  const body = tenderBody(3);
+  const id = await openTender(buyer, Object.values(org), body);
+  const bidIds = {} as Record<Key, string>;
+  for (const key of Object.keys(FIGURES) as Key[]) {
+    const saved = await vendors[key].send('put', `/api/tenders/${id}/bid`, { ...FIGURES[key], capacity: null, submit: true, version: null });
+    expect(saved.status).toBe(200);
+    bidIds[key] = saved.body.id;
+  }
+  await passClosingTime(t, id);
+  expect((await buyer.get(`/api/tenders/${id}/bids`)).status).toBe(200);
+  for (const key of ['A', 'B'] as const) {
+    expect((await buyer.send('put', `/api/tenders/${id}/bids/${bidIds[key]}/compliance`, { decision: 'compliant', note: 'Complete and qualified.' })).status).toBe(200);
+  }
+  const excluded = await buyer.send('put', `/api/tenders/${id}/bids/${bidIds.C}/compliance`, { decision: 'excluded', ground: 'qualification', note: 'No winter service record.' });
+  expect(excluded.status).toBe(200);
+  const scenarios = await buyer.get(`/api/tenders/${id}/scenarios`);
+  const basis = scenarios.body.find((s: { builtIn: string | null }) => s.builtIn === 'published');
+  const solved = await waitForRun(buyer, (await buyer.post(`/api/scenarios/${basis.id}/runs`)).body.id);
+  await checks(solved.id);
+  expect((await buyer.post(`/api/tenders/${id}/recommendation`, { runId: solved.id, justification: 'Least total cost under the published basis.' })).status).toBe(201);
+  expect((await compliance.post(`/api/tenders/${id}/recommendation/approve`, { comment: 'Checked against the tabulation.' })).status).toBe(200);
+  return { tenderId: id, reference: body.reference, run: solved };
+}
+
 beforeAll(async () => {
   t = await startTestApp();
   buyer = await signedIn(t, await makeUser(t, 'buyer'));
   compliance = await signedIn(t, await makeUser(t, 'compliance'));
-  const org = {} as Record<Key, string>;
-  const vendors = {} as Record<Key, Browser>;
+  org = {} as Record<Key, string>;
+  vendors = {} as Record<Key, Browser>;
   for (const key of Object.keys(FIGURES) as Key[]) {
     const user: User = await makeUser(t, 'vendor');
     org[key] = user.vendorOrganisation!.id;
     names[key] = user.vendorOrganisation!.name;
     vendors[key] = await signedIn(t, user);
   }
-  const body = tenderBody(3);
-  reference = body.reference;
-  tenderId = await openTender(buyer, Object.values(org), body);
-  const bidIds = {} as Record<Key, string>;
-  for (const key of Object.keys(FIGURES) as Key[]) {
-    const saved = await vendors[key].send('put', `/api/tenders/${tenderId}/bid`, { ...FIGURES[key], capacity: null, submit: true, version: null });
-    expect(saved.status).toBe(200);
-    bidIds[key] = saved.body.id;
-  }
   sealedId = await openTender(buyer, [org.A], tenderBody(2));
-  await passClosingTime(t, tenderId);
-  expect((await buyer.get(`/api/tenders/${tenderId}/bids`)).status).toBe(200);
-  for (const key of ['A', 'B'] as const) {
-    expect((await buyer.send('put', `/api/tenders/${tenderId}/bids/${bidIds[key]}/compliance`, { decision: 'compliant', note: 'Complete and qualified.' })).status).toBe(200);
-  }
-  const excluded = await buyer.send('put', `/api/tenders/${tenderId}/bids/${bidIds.C}/compliance`, { decision: 'excluded', ground: 'qualification', note: 'No winter service record.' });
-  expect(excluded.status).toBe(200);
-  const scenarios = await buyer.get(`/api/tenders/${tenderId}/scenarios`);
-  const basis = scenarios.body.find((s: { builtIn: string | null }) => s.builtIn === 'published');
-  run = await waitForRun(buyer, (await buyer.post(`/api/scenarios/${basis.id}/runs`)).body.id);
-  expect((await buyer.post(`/api/tenders/${tenderId}/recommendation`, { runId: run.id, justification: 'Least total cost under the published basis.' })).status).toBe(201);
-  expect((await compliance.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: 'Checked against the tabulation.' })).status).toBe(200);
+  ({ tenderId, reference, run } = await approvedTender(async () => {}));
 });
 afterAll(() => t.close());
 
@@ -175,6 +189,32 @@ describe('the evaluation report as a workbook', () => {
     expect([2, 3, 4].map((row) => [2, 3, 4, 5, 6].map((col) => award.cell(row, col).value()))).toEqual([
       ['R01', names.A, 1000, 18, 18_000], ['R02', names.B, 2000, 18, 36_000], ['R03', names.B, 3000, 18, 54_000],
     ]);
+  });
+});
+
+describe('with the explanation, drop-out and forecast checks computed', () => {
+  test('the PDF states why each region went where it did, the cost of losing each awarded vendor, and no check as not run', async () => {
+    const checked = await approvedTender(async (runId) => {
+      expect((await buyer.post(`/api/runs/${runId}/resilience`)).status).toBe(202);
+      expect((await buyer.post(`/api/runs/${runId}/explanation`)).status).toBe(202);
+      expect((await buyer.post(`/api/runs/${runId}/sensitivity`, {})).status).toBe(202);
+      await waitFor('the drop-out re-solves', async () => {
+        const rows = (await buyer.get(`/api/runs/${runId}/resilience`)).body.rows as { status: string }[];
+        return rows.length === 2 && rows.every((r) => !['queued', 'solving'].includes(r.status));
+      }, { timeoutMs: 150_000 });
+      await waitFor('the explanation', async () => (await buyer.get(`/api/runs/${runId}/explanation`)).body.status === 'done', { timeoutMs: 150_000 });
+      await waitFor('the forecast check', async () => (await buyer.get(`/api/runs/${runId}/sensitivity`)).body.all?.pending === 0, { timeoutMs: 150_000 });
+    });
+    const res = await binary(buyer.get(`/api/tenders/${checked.tenderId}/report.pdf`));
+    const text = (await pdfText(res.body as Buffer)).text.replace(/\s+/g, ' ');
+    const flat = squeezed(text);
+    // Without A, B takes all: 100 + 20 × 1,000 + 18 × 5,000 = 110,100, 1,900 more (1.8 % of 108,200).
+    // Without B, A takes all (C is excluded): 100 + 18 × 1,000 + 20 × 5,000 = 118,100, 9,900 more (9.1 %).
+    expect(flat).toContain(squeezed(`${names.A}: Without it, the award would cost €1,900.00 more (1.8 %).`));
+    expect(flat).toContain(squeezed(`${names.B}: Without it, the award would cost €9,900.00 more (9.1 %). The worst case.`));
+    // R01 went to A; B (20 a tonne) is the cheapest bid that got none of it.
+    expect(flat).toContain(squeezed(`Depot 1 (R01): Awarded to ${names.A}. ${names.B} (unit price €20.00) got none of it:`));
+    expect(text).not.toContain('Not run.');
   });
 });
 
