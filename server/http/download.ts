@@ -2,6 +2,7 @@ import type { Response } from 'express';
 
 export const XLSX = 'application/vnd.openxmlformats-officedocument.spreadsheetml.sheet';
 export const CSV = 'text/csv; charset=utf-8';
+export const PDF = 'application/pdf';
 
 /**
  * The name of an exported file, from the tender's reference and what it holds:

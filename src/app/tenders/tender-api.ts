@@ -70,6 +70,11 @@ export class TenderApi {
     return `${this.tenderUrl(id)}/opening-record.xlsx`;
   }
 
+  /** The evaluation report of a closed tender, as a PDF or a workbook. */
+  reportUrl(id: string, format: 'pdf' | 'xlsx'): string {
+    return `${this.tenderUrl(id)}/report.${format}`;
+  }
+
   /** The procedure as an OCDS 1.1.5 release package, a JSON file to save (buyer and compliance, once published). */
   openDataUrl(id: string): string {
     return `${this.tenderUrl(id)}/ocds.json`;

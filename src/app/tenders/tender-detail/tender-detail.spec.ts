@@ -152,6 +152,23 @@ describe('TenderDetail', () => {
     expect(note?.textContent?.replace(/\s+/g, ' ').trim()).toContain('Check it against your procurement rules and the law that applies to you before publishing it.');
   });
 
+  it('offers compliance the evaluation report of a closed tender as a PDF and a workbook, both described by the decision-support note', async () => {
+    await showAs('compliance', tenderView({ status: 'closed', submittedBids: 0 }), { url: `${tenderUrl}/bids`, body: { submitted: 0, bids: [] } });
+    const root = fixture.nativeElement as HTMLElement;
+    const links = [...root.querySelectorAll<HTMLAnchorElement>('a[download][href*="/report."]')];
+    expect(links.map((a) => [a.getAttribute('href'), a.textContent?.replace(a.querySelector('mat-icon')?.textContent ?? '', '').replace(/\s+/g, ' ').trim()])).toEqual([
+      [`${tenderUrl}/report.pdf`, 'Evaluation report (PDF)'], [`${tenderUrl}/report.xlsx`, 'Evaluation report (.xlsx)'],
+    ]);
+    const note = root.querySelector(`#${links[0].getAttribute('aria-describedby')}`);
+    expect(note?.textContent?.replace(/\s+/g, ' ').trim()).toContain('your procurement rules and the law that applies to this tender govern the award.');
+  });
+
+  it('gives no evaluation report while the bids are sealed', async () => {
+    await showAs('buyer', open, organisations);
+    expect((fixture.nativeElement as HTMLElement).querySelector('a[href*="/report."]')).toBeNull();
+    expect(text()).not.toContain('Evaluation report');
+  });
+
   it('gives no open data for a draft: nothing is published yet', async () => {
     await showAs('buyer', { ...open, status: 'draft', publishedAt: null, submittedBids: 0 }, organisations);
     expect((fixture.nativeElement as HTMLElement).querySelector('a[href$="/ocds.json"]')).toBeNull();

@@ -65,6 +65,9 @@ export class TenderDetail {
     return (role === 'buyer' || role === 'compliance') && !!status && status !== 'draft';
   });
   protected readonly openDataUrl = computed(() => this.api.openDataUrl(this.id()));
+  /** The evaluation report (buyer and compliance, once the bids are unsealed: the same rule as `canEvaluate`). */
+  protected readonly reportPdfUrl = computed(() => this.api.reportUrl(this.id(), 'pdf'));
+  protected readonly reportWorkbookUrl = computed(() => this.api.reportUrl(this.id(), 'xlsx'));
   /** Sealed while draft or open, and for ever once cancelled (the server decides; a passed closing time is closed at the next load). */
   protected readonly sealed = computed(() => {
     const t = this.tender();
