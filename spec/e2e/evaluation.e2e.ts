@@ -29,7 +29,7 @@ async function openTender(page: Page): Promise<void> {
 
 async function openEvaluation(page: Page): Promise<void> {
   await openTender(page);
-  await page.getByRole('link', { name: 'Evaluation' }).click();
+  await page.getByRole('link', { name: 'Evaluation', exact: true }).click();
   await page.getByRole('heading', { name: 'Award scenarios', level: 1 }).waitFor();
   await page.getByRole('row', { name: /All regions split/ }).first().waitFor();
 }

@@ -32,7 +32,7 @@ test('the buyer asks why, sees progress, then each depot with the cheapest bid n
   const { page } = b;
   await signIn(page, 'buyer@demo.tendara.test');
   await openTender(page, TENDER);
-  await page.getByRole('link', { name: 'Evaluation' }).click();
+  await page.getByRole('link', { name: 'Evaluation', exact: true }).click();
   await page.getByRole('heading', { name: 'Award scenarios', level: 1 }).waitFor();
   await page.getByRole('button', { name: 'Run Published award basis', exact: true }).click();
   await page.waitForURL(/\/evaluation\/runs\/[0-9a-f-]+$/);
