@@ -7,7 +7,7 @@ import { MatTableHarness } from '@angular/material/table/testing';
 import { provideRouter } from '@angular/router';
 import type { AuditEntryView } from '@shared/evaluation';
 import { provideApi } from '../../core/http/provide-api';
-import { DATE_TIME } from '../award-format';
+import { tenderView } from '../../tenders/testing/tender-fixtures';
 import { TENDER_ID } from '../testing/award-fixtures';
 import { AuditTrail } from './audit-trail';
 
@@ -59,6 +59,7 @@ describe('AuditTrail', () => {
     fixture.componentRef.setInput('id', TENDER_ID);
     fixture.detectChanges();
     http.expectOne(audit).flush(entries);
+    http.expectOne(`/api/tenders/${TENDER_ID}`).flush(tenderView({ id: TENDER_ID, timeZone: 'Europe/Dublin' }));
     await fixture.whenStable();
     loader = TestbedHarnessEnvironment.loader(fixture);
   });
@@ -76,9 +77,9 @@ describe('AuditTrail', () => {
     expect(rows['seq'].text).toEqual(['1', '2']);
     expect(rows['actor'].text).toEqual(['Mira OkonjoBuyer', 'System']);
     expect(rows['description'].text).toEqual(['Bidding closed; 3 bids opened', 'Award calculation of “All regions split” finished']);
-    expect(rows['at'].text[0]).toBe(
-      new Intl.DateTimeFormat(undefined, DATE_TIME).format(new Date(entries[0].at)),
-    );
+    // In the procedure's time zone, named in the column's heading (09:00 UTC is 09:00 GMT in Dublin in December).
+    expect(rows['at'].text[0]).toBe('Tue, 1 Dec 2026, 09:00 GMT');
+    expect(page().querySelector('th.mat-column-at')!.textContent).toContain('Time (Europe/Dublin)');
     const digest = page().querySelector(`code[title="${hash1}"]`)!;
     expect(digest.textContent).toBe(`${hash1.slice(0, 12)}…`);
     expect(page().querySelector('a[download]')!.getAttribute('href')).toBe(`${audit}.csv`);

@@ -11,6 +11,7 @@ import { ROLE_LABELS, type Role } from '@shared/roles';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { localDateTime, shortDigest } from '../award-format';
+import { localClosingTime } from '../../tenders/closing-time';
 import { loadErrorMessage } from '../../ui/load-error';
 
 /** tenders/:id/evaluation/audit — every state change and decision, hash-chained, with a check of the chain. */
@@ -28,6 +29,9 @@ export class AuditTrail {
   readonly id = input.required<string>();
 
   protected readonly entries = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.audit(params) });
+  /** For its time zone: every time of the procedure is shown in it, the zone named. */
+  private readonly tender = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.tender(params) });
+  protected readonly timeZone = computed(() => this.tender.value()?.timeZone);
   protected readonly loadError = computed(() => loadErrorMessage(this.entries.error(), 'The audit trail could not be loaded.'));
   protected readonly columns = ['seq', 'at', 'actor', 'description', 'digests'];
   protected readonly verification = signal<AuditVerification | null>(null);
@@ -45,7 +49,11 @@ export class AuditTrail {
       ? `Chain intact. ${v.message}`
       : `Chain broken${v.brokenAt !== null ? ` at entry ${v.brokenAt}` : ''}. ${v.message}`;
   });
-  protected readonly when = localDateTime;
+  /** "Thu, 3 Dec 2026, 02:31 GMT", in the procedure's zone (named above the table) once the tender is loaded. */
+  protected when(iso: string): string {
+    const zone = this.timeZone();
+    return zone ? localClosingTime(iso, zone, false) : localDateTime(iso);
+  }
   protected readonly short = shortDigest;
 
   protected csvUrl(): string {
