@@ -1,8 +1,8 @@
 import { inject } from '@angular/core';
 import { MatDialog } from '@angular/material/dialog';
 import type { CanDeactivateFn } from '@angular/router';
-import { map, type Observable } from 'rxjs';
-import { ConfirmDialog, type ConfirmData } from './confirm-dialog';
+import { defaultIfEmpty, type Observable } from 'rxjs';
+import { whenConfirmed, type ConfirmData } from './confirm-dialog';
 
 /** A page that holds figures the person has not saved yet. */
 export interface HoldsUnsavedChanges {
@@ -21,8 +21,6 @@ export const confirmLeavingUnsaved: CanDeactivateFn<HoldsUnsavedChanges> = (page
     confirm: 'Leave without saving',
     destructive: true,
   };
-  return inject(MatDialog)
-    .open<ConfirmDialog, ConfirmData, boolean>(ConfirmDialog, { data: question, maxWidth: '95vw' })
-    .afterClosed()
-    .pipe(map((confirmed) => confirmed === true));
+  // Leaves only once confirmed; cancelling (or closing the dialog) stays on the page.
+  return whenConfirmed(inject(MatDialog), question).pipe(defaultIfEmpty(false));
 };

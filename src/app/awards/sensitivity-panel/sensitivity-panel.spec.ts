@@ -69,10 +69,13 @@ describe('SensitivityPanel', () => {
     expect(post.request.body).toEqual({});
     post.flush({ queued: 4 });
     await answer({ ...none, all: { ...finished, pending: 2, summary: '2 of 4 re-solves still running.', stableFrom: null, stableTo: null } });
+    expect(page().querySelector('[role=status]')!.textContent).toContain('4 re-solves queued.');
     expect(page().querySelector('[role=status]')!.textContent).toContain('2 re-solves still running.');
     expect(page().querySelector('mat-progress-bar')).not.toBeNull();
     await answer({ ...none, all: finished }, SENSITIVITY_POLL_MS);
     expect(page().querySelector('.summary')!.textContent).toBe(finished.summary);
+    // Once they have run, the status no longer says they are queued.
+    expect(page().querySelector('[role=status]')!.textContent.trim()).toBe('The 4 re-solves have finished: the figures below are complete.');
     // Finished: no further request.
     await jest.advanceTimersByTimeAsync(SENSITIVITY_POLL_MS * 5);
     http.expectNone(url);

@@ -67,6 +67,13 @@ export class SensitivityPanel {
   protected readonly view = signal<SensitivityView | null>(null);
   protected readonly loadError = signal<string | null>(null);
   protected readonly actionMessage = signal<string | null>(null);
+  /** Re-solves queued by the last request: said while they run, then that they have finished. */
+  private readonly queued = signal(0);
+  protected readonly statusText = computed(() => {
+    const queued = this.queued();
+    if (!queued) return this.actionMessage();
+    return this.pending() > 0 ? `${queued} re-solves queued.` : `The ${queued} re-solves have finished: the figures below are complete.`;
+  });
   protected readonly starting = signal(false);
   protected readonly region = new FormControl<string | null>(null);
   /** Asks for the view again (after queuing), polling until every re-solve has finished. */
@@ -122,13 +129,15 @@ export class SensitivityPanel {
     if (this.starting()) return;
     this.starting.set(true);
     this.actionMessage.set(null);
+    this.queued.set(0);
     this.api
       .startSensitivity(this.runId(), regionCode)
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: ({ queued }) => {
           this.starting.set(false);
-          this.actionMessage.set(queued ? `${queued} re-solves queued.` : 'This check was already made: its figures are shown.');
+          this.queued.set(queued);
+          this.actionMessage.set(queued ? null : 'This check was already made: its figures are shown.');
           this.refresh.next();
         },
         error: (error: unknown) => {
