@@ -19,20 +19,23 @@ interface DueTender {
 /**
  * Closing reminders, 48 h and 2 h before closing (once each), to every approved, active person of
  * each invited organisation that has no bid in yet (a draft, a withdrawn bid or nothing). A tender
- * is due for a reminder from that many hours before closing until closing, and only if it was
+ * is due for a reminder from that many hours before closing until the next reminder (or closing), and only if it was
  * published earlier than that (a tender published 30 h before closing gets no "48 h" reminder: the
  * invitation has just told its vendors). Judged by `now`, this process's clock, as closing is.
  */
 export async function sendClosingReminders(em: EntityManager, deps: NotifyDeps, now = new Date()): Promise<number> {
   let queued = 0;
-  for (const [kind, hours] of Object.entries(CLOSING_REMINDER_HOURS) as [keyof typeof CLOSING_REMINDER_HOURS, number][]) {
-    const from = new Date(now.getTime() + hours * HOUR_MS);
+  // Largest first; each reminder is due until the next one is (a 48-hour reminder the job missed is
+  // not sent once the 2-hour one is due).
+  const windows = (Object.entries(CLOSING_REMINDER_HOURS) as [keyof typeof CLOSING_REMINDER_HOURS, number][]).sort(([, a], [, b]) => b - a);
+  for (const [i, [kind, hours]] of windows.entries()) {
+    const until = windows[i + 1]?.[1] ?? 0;
     const tenders = await em.execute<DueTender[]>(
       `select id, reference, title, closes_at, time_zone from tender
         where status = 'open' and published_at is not null and closes_at > ? and closes_at <= ?
           and published_at < closes_at - make_interval(hours => ?)
         order by closes_at`,
-      [now, from, hours],
+      [new Date(now.getTime() + until * HOUR_MS), new Date(now.getTime() + hours * HOUR_MS), hours],
     );
     for (const t of tenders) {
       queued += await em.transactional(async (tx) => {
@@ -54,7 +57,7 @@ export async function sendClosingReminders(em: EntityManager, deps: NotifyDeps, 
             const p = byId.get(r.id)!;
             return renderMail('closing-reminder', `Tender ${t.reference} closes within ${hours} hours: your bid is not in`, {
               name: p.name, organisation: p.organisation, reference: t.reference, title: t.title, closesAt, hours, draft: p.has_draft,
-              link: `${deps.publicUrl}/tenders/${t.id}`,
+              link: `${deps.publicUrl}/tenders/${t.id}`, settingsLink: `${deps.publicUrl}/settings`,
             });
           },
         });
@@ -79,7 +82,7 @@ export async function sendStandstillEnded(em: EntityManager, deps: NotifyDeps, n
       kind: 'standstill-ended', subjectId: t.id, tenderId: t.id, recipients: [{ id: t.buyer_id, email: t.email, name: t.name }],
       render: (r) => renderMail('standstill-ended', `Standstill ended on tender ${t.reference}: record the contracts`, {
         name: r.name, reference: t.reference, title: t.title, endedAt: formatInZone(new Date(t.standstill_ends_at).toISOString(), t.time_zone),
-        link: `${deps.publicUrl}/tenders/${t.id}`,
+        link: `${deps.publicUrl}/tenders/${t.id}`, settingsLink: `${deps.publicUrl}/settings`,
       }),
     }));
   }
