@@ -6,10 +6,11 @@ import { createApp } from './app';
 import { loadConfig, type Config } from './config';
 import { closeSolverPool } from './award';
 import { closeWorkbookPool } from './workbooks/workbook-pool';
-import { createBoss, startMailWorker, startTenderCloseWorker } from './jobs/queue';
+import { createBoss, startMailWorker, startReminderWorker, startTenderCloseWorker } from './jobs/queue';
 import { startSolveWorker } from './jobs/solve-job';
 import { startNoticeWorker } from './jobs/notice-job';
 import { closeAllDue, closeIfDue } from './services/tender-access';
+import { sendDueNotifications } from './services/notifications/reminders';
 import { logger } from './logger';
 import { startMailCatcher, type MailCatcher } from './mail/catcher';
 import { createMailer } from './mail/mailer';
@@ -42,6 +43,9 @@ export async function start(config: Config): Promise<Running> {
       const em = orm.em.fork();
       if (id) await closeIfDue(em, id);
       else await closeAllDue(em);
+    });
+    await startReminderWorker(boss, async () => {
+      await sendDueNotifications(orm.em.fork(), { boss, publicUrl: config.publicUrl });
     });
     await startSolveWorker(boss, orm, config.solveConcurrency);
     await startNoticeWorker(boss, orm, mailer);

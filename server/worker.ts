@@ -5,13 +5,14 @@ import { getPriority, setPriority } from 'node:os';
 import { MikroORM } from '@mikro-orm/postgresql';
 import { closeSolverPool } from './award';
 import { loadConfig } from './config';
-import { createBoss, startMailWorker, startTenderCloseWorker } from './jobs/queue';
+import { createBoss, startMailWorker, startReminderWorker, startTenderCloseWorker } from './jobs/queue';
 import { startSolveWorker } from './jobs/solve-job';
 import { startNoticeWorker } from './jobs/notice-job';
 import { logger } from './logger';
 import { createMailer } from './mail/mailer';
 import { ormConfig } from './mikro-orm.config';
 import { closeAllDue, closeIfDue } from './services/tender-access';
+import { sendDueNotifications } from './services/notifications/reminders';
 
 /**
  * Lowers every thread of this process to `niceness` (Linux keeps a niceness per thread); threads
@@ -68,6 +69,9 @@ async function main(): Promise<void> {
     const em = orm.em.fork();
     if (id) await closeIfDue(em, id);
     else await closeAllDue(em);
+  });
+  await startReminderWorker(boss, async () => {
+    await sendDueNotifications(orm.em.fork(), { boss, publicUrl: config.publicUrl });
   });
   await startSolveWorker(boss, orm, config.solveConcurrency);
   await startNoticeWorker(boss, orm, mailer);

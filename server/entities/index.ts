@@ -10,6 +10,8 @@ import { ContractLine } from './contract-line.entity';
 import { Invitation } from './invitation.entity';
 import { MailMessage } from './mail-message.entity';
 import { Notice } from './notice.entity';
+import { NotificationSent } from './notification-sent.entity';
+import { NotificationSetting } from './notification-setting.entity';
 import { OpeningRecord } from './opening-record.entity';
 import { Question } from './question.entity';
 import { Recommendation } from './recommendation.entity';
@@ -24,7 +26,8 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
-  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, Contract, ContractLine];
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, Contract, ContractLine,
+  NotificationSent, NotificationSetting];
 export {
-  AccountToken, Amendment, Contract, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, Amendment, Contract, NotificationSent, NotificationSetting, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

@@ -12,6 +12,8 @@ export const QUEUES = {
   solve: 'award-solve',
   /** Award and regret letters, one job per notice. */
   notice: 'notice-send',
+  /** Closing reminders and standstill ends, every minute (notifications sent once each). */
+  reminders: 'notification-reminders',
 } as const;
 
 /** pg-boss keeps its tables in this schema, installed by `server/ops/migrate.ts`. */
@@ -87,4 +89,16 @@ const EXPLAIN_EXPIRE_SECONDS = 6 * 3600;
 /** Queues the explanation of a run on the solve queue (server/jobs/explain-job.ts), so it shares the solve workers. */
 export async function queueExplanation(boss: PgBoss, runId: string): Promise<void> {
   await boss.send(QUEUES.solve, { runId, explain: true }, { retryLimit: 2, retryDelay: 5, expireInSeconds: EXPLAIN_EXPIRE_SECONDS });
+}
+
+/**
+ * Closing reminders and the standstill's end (server/services/notifications/reminders.ts): a pass
+ * every minute, beside the close sweep. Each notification goes once (the `notification_sent` key),
+ * so passes on several workers, or a pass repeated after a crash, send nothing twice.
+ */
+export async function startReminderWorker(boss: PgBoss, pass: () => Promise<void>): Promise<void> {
+  await boss.work(QUEUES.reminders, { pollingIntervalSeconds: 5 }, async () => {
+    await pass();
+  });
+  await boss.schedule(QUEUES.reminders, '* * * * *', {});
 }

@@ -19,6 +19,7 @@ const EVALUATORS = ['buyer', 'compliance'] as const;
 
 export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
   const ctx = (em: import('@mikro-orm/postgresql').EntityManager) => ({ em, boss: deps.boss });
+  const notify = { boss: deps.boss, publicUrl: deps.config.publicUrl };
   return [
     route({
       method: 'get', path: '/tenders/:id/scenarios', tag: 'Evaluation', access: EVALUATORS, params: tenderIdParamSchema,
@@ -123,17 +124,17 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     route({
       method: 'post', path: '/tenders/:id/recommendation', tag: 'Evaluation', access: ['buyer'], params: tenderIdParamSchema, body: recommendationInputSchema, status: 201,
       summary: "Recommend a run's award, with a justification.",
-      handler: ({ em, user, params, body }) => recommend(em, user, params.id, body),
+      handler: ({ em, user, params, body }) => recommend(em, user, params.id, body, notify),
     }),
     route({
       method: 'post', path: '/tenders/:id/recommendation/approve', tag: 'Evaluation', access: ['compliance'], params: tenderIdParamSchema, body: decisionInputSchema,
       summary: 'Approve the recommendation (never the person who made it): the tender becomes awarded; scenarios and bids freeze.',
-      handler: ({ em, user, params, body }) => decide(em, user, params.id, 'approved', body.comment),
+      handler: ({ em, user, params, body }) => decide(em, user, params.id, 'approved', body.comment, notify),
     }),
     route({
       method: 'post', path: '/tenders/:id/recommendation/return', tag: 'Evaluation', access: ['compliance'], params: tenderIdParamSchema, body: returnInputSchema,
       summary: 'Return the recommendation to the buyer with a comment.',
-      handler: ({ em, user, params, body }) => decide(em, user, params.id, 'returned', body.comment),
+      handler: ({ em, user, params, body }) => decide(em, user, params.id, 'returned', body.comment, notify),
     }),
     route({
       method: 'get', path: '/tenders/:id/audit', tag: 'Audit', access: EVALUATORS, params: tenderIdParamSchema,

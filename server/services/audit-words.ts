@@ -157,6 +157,7 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   'password.reset': (e) => `Password reset by ${person(e)}`,
   'person.deactivated': (e) => `Deactivated ${person(e)}`,
   'person.reactivated': (e) => `Reactivated ${person(e)}`,
+  'notification-settings.changed': (e) => `${person(e)} turned closing reminders ${e.detail['closingReminders'] === false ? 'off' : 'on'} and updates on recommendations ${e.detail['decisionUpdates'] === false ? 'off' : 'on'}`,
   'organisation.registered': (e) => `Vendor organisation ${str(e.detail['name']) ?? ''} registered`.replace('  ', ' '),
 };
 

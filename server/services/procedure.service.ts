@@ -10,18 +10,20 @@ import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { audit } from './audit.service';
-import { sendAfterCommit, type MailOut } from './people.service';
+import { sendAfterCommit } from './people.service';
 import { CLOSING_GRACE_MS, findVisibleTender, lockTender } from './tender-access';
 import { clarificationsCloseAt, tenderView } from './tenders.service';
 import { transition } from './transition';
 import { uuidArray } from './sql';
+import { notifyOnce } from './notifications/notify';
 
 /**
  * The procedure between publication and closing (DEVELOPERS.md, "Clarifications, amendments,
  * cancellation"): vendors' questions and the buyer's published answers, numbered amendments of an
  * open tender, and cancellation before closing. Every change holds the tender's lock
  * (`lockTender`, or FOR SHARE for a vendor's question), is audited in its transaction, and e-mails
- * only after it committed.
+ * only what it committed: published answers and amendments queue their notices in the transaction,
+ * once per person (notifications/notify.ts); the rest after the commit.
  */
 export interface ProcedureDeps {
   em: EntityManager;
@@ -34,15 +36,15 @@ export interface ProcedureDeps {
 const utc = (d: Date) => d.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
 
 /** Every approved, active person of every organisation invited to the tender. */
-async function invitedPeople(em: EntityManager, tenderId: string): Promise<{ email: string; name: string; organisation: string; organisationId: string }[]> {
-  const rows = await em.execute<{ email: string; name: string; organisation: string; organisation_id: string }[]>(
-    `select u.email, u.name, o.name as organisation, o.id as organisation_id
+async function invitedPeople(em: EntityManager, tenderId: string): Promise<{ id: string; email: string; name: string; organisation: string; organisationId: string }[]> {
+  const rows = await em.execute<{ id: string; email: string; name: string; organisation: string; organisation_id: string }[]>(
+    `select u.id, u.email, u.name, o.name as organisation, o.id as organisation_id
        from invitation i join vendor_organisation o on o.id = i.vendor_organisation_id
        join app_user u on u.vendor_organisation_id = o.id and u.active and u.role = 'vendor' and u.membership = 'approved'
       where i.tender_id = ? order by o.name, u.email`,
     [tenderId],
   );
-  return rows.map((r) => ({ email: r.email, name: r.name, organisation: r.organisation, organisationId: r.organisation_id }));
+  return rows.map((r) => ({ id: r.id, email: r.email, name: r.name, organisation: r.organisation, organisationId: r.organisation_id }));
 }
 
 // ——— Clarifications ———
@@ -116,25 +118,23 @@ export async function answerQuestion(deps: ProcedureDeps, user: User, questionId
   const found = await em.findOne(Question, { id: questionId }, { populate: ['tender'] });
   if (!found) throw new NotFoundError('The question');
   const tenderId = found.tender.id;
-  const number = await em.transactional(async (tx) => {
+  const tender = found.tender;
+  await em.transactional(async (tx) => {
     await lockTender(tx, user, tenderId, ['open'], 'Questions can be answered only while the tender is open for bids.');
     const [next] = await tx.execute<{ n: number }[]>('select coalesce(max(number), 0)::int + 1 as n from question where tender_id = ?', [tenderId]);
-    const n = next.n;
-    await transition(tx, Question, questionId, ['asked'], { status: 'answered', number: n, answer: input.text, answeredAt: deps.arrivedAt, answeredBy: user.id },
+    const number = next.n;
+    await transition(tx, Question, questionId, ['asked'], { status: 'answered', number, answer: input.text, answeredAt: deps.arrivedAt, answeredBy: user.id },
       'This question is already answered; its answer is published.');
-    await audit(tx, { tenderId, actor: user, action: 'question.answered', subject: `question ${questionId}`, detail: { number: n } });
-    return n;
+    await audit(tx, { tenderId, actor: user, action: 'question.answered', subject: `question ${questionId}`, detail: { number } });
+    // A legal notice: every invited vendor, once (notifications/notify.ts), queued with the answer.
+    await notifyOnce(tx, deps.boss, {
+      kind: 'clarification-answered', subjectId: questionId, tenderId, recipients: await invitedPeople(tx, tenderId),
+      render: (p) => renderMail('clarification', `Clarification ${number} on tender ${tender.reference}`, {
+        name: p.name, reference: tender.reference, title: tender.title, number,
+        question: found.text, answer: input.text, link: `${deps.publicUrl}/tenders/${tenderId}`,
+      }),
+    });
   });
-  const tender = found.tender;
-  const people = await invitedPeople(em, tenderId);
-  const mails: MailOut[] = people.map((p) => ({
-    to: p.email,
-    ...renderMail('clarification', `Clarification ${number} on tender ${tender.reference}`, {
-      name: p.name, reference: tender.reference, title: tender.title, number,
-      question: found.text, answer: input.text, link: `${deps.publicUrl}/tenders/${tenderId}`,
-    }),
-  }));
-  await sendAfterCommit(deps.boss, mails);
   const saved = await em.fork().findOneOrFail(Question, { id: questionId }, { populate: ['vendorOrganisation', 'askedBy'] });
   return questionView(saved, user);
 }
@@ -264,47 +264,57 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     }
     if (changes.closesAt) t.closesAt = new Date(changes.closesAt.to);
     if (changes.description) t.description = changes.description.to;
-    tx.create(Amendment, { tender: t, number, reason: input.reason, changes, issuedBy: user });
+    const amendment = tx.create(Amendment, { tender: t, number, reason: input.reason, changes, issuedBy: user });
     await tx.flush();
     const after = { closesAt: t.closesAt.toISOString(), description: t.description, regions: input.regions ?? before.regions };
     await audit(tx, {
       tenderId, actor: user, action: 'tender.amended', subject: 'tender',
       detail: { number, reason: input.reason, changes, bidsReturnedToDraft: returned.length }, before, after,
     });
-    return { number, tender: t, changes, returned };
+    await notifyAmendment(deps, tx, { tenderId, amendmentId: amendment.id, number, reason: input.reason, tender: t, changes, returned });
+    return { number, tender: t, changes };
   });
 
-  const { number, tender, changes, returned } = result;
+  const { number, tender, changes } = result;
   if (changes.closesAt) {
     // Closing decides by the stored closing time (tender-access.ts): the job queued at publication
     // finds the tender not yet due and leaves it open; this one, for the new time, closes it.
     await deps.boss.send(QUEUES.tenderClose, { tenderId }, { startAfter: new Date(tender.closesAt.getTime() + CLOSING_GRACE_MS), singletonKey: `close-${tenderId}-amendment-${number}` });
   }
-  const lines = describeChanges(changes, tender.unit);
-  const people = await invitedPeople(em, tenderId);
-  const link = `${deps.publicUrl}/tenders/${tenderId}`;
-  const mails: MailOut[] = people.map((p) => ({
-    to: p.email,
-    ...renderMail('amendment', `Amendment ${number} to tender ${tender.reference}`, {
-      name: p.name, organisation: p.organisation, reference: tender.reference, title: tender.title, number,
-      reason: input.reason, changes: lines, closesAt: utc(tender.closesAt), link,
-    }),
-  }));
-  if (returned.length) {
-    const orgs = await em.execute<{ organisation_id: string }[]>('select vendor_organisation_id as organisation_id from bid where id = any(?::uuid[])', [uuidArray(returned)]);
-    const affected = new Set(orgs.map((o) => o.organisation_id));
-    for (const p of people.filter((x) => affected.has(x.organisationId))) {
-      mails.push({
-        to: p.email,
-        ...renderMail('bid-resubmit', `Submit your bid on ${tender.reference} again: amendment ${number}`, {
-          name: p.name, organisation: p.organisation, reference: tender.reference, title: tender.title, number,
-          added: names(changes.regionsAdded ?? []), closesAt: utc(tender.closesAt), link,
-        }),
-      });
-    }
-  }
-  await sendAfterCommit(deps.boss, mails);
   return { number };
+}
+
+/**
+ * The amendment's legal notices, in its transaction, once each (notifications/notify.ts): every
+ * invited vendor gets the amendment; the people of each organisation whose bid it returned to
+ * draft are also asked to submit again.
+ */
+async function notifyAmendment(
+  deps: ProcedureDeps, tx: EntityManager,
+  a: { tenderId: string; amendmentId: string; number: number; reason: string; tender: Tender; changes: AmendmentChanges; returned: string[] },
+): Promise<void> {
+  const { tender, number } = a;
+  const lines = describeChanges(a.changes, tender.unit);
+  const people = await invitedPeople(tx, a.tenderId);
+  const byId = new Map(people.map((p) => [p.id, p]));
+  const link = `${deps.publicUrl}/tenders/${a.tenderId}`;
+  await notifyOnce(tx, deps.boss, {
+    kind: 'amendment-issued', subjectId: a.amendmentId, tenderId: a.tenderId, recipients: people,
+    render: (r) => renderMail('amendment', `Amendment ${number} to tender ${tender.reference}`, {
+      name: r.name, organisation: byId.get(r.id)!.organisation, reference: tender.reference, title: tender.title, number,
+      reason: a.reason, changes: lines, closesAt: utc(tender.closesAt), link,
+    }),
+  });
+  if (!a.returned.length) return;
+  const orgs = await tx.execute<{ organisation_id: string }[]>('select vendor_organisation_id as organisation_id from bid where id = any(?::uuid[])', [uuidArray(a.returned)]);
+  const affected = new Set(orgs.map((o) => o.organisation_id));
+  await notifyOnce(tx, deps.boss, {
+    kind: 'bid-resubmit', subjectId: a.amendmentId, tenderId: a.tenderId, recipients: people.filter((x) => affected.has(x.organisationId)),
+    render: (r) => renderMail('bid-resubmit', `Submit your bid on ${tender.reference} again: amendment ${number}`, {
+      name: r.name, organisation: byId.get(r.id)!.organisation, reference: tender.reference, title: tender.title, number,
+      added: names(a.changes.regionsAdded ?? []), closesAt: utc(tender.closesAt), link,
+    }),
+  });
 }
 
 // ——— Cancellation ———

@@ -21,6 +21,8 @@ const EXEMPT: Record<string, string> = {
   'POST /tenders': 'creates a tender of the caller’s own',
   'POST /tenders/regions/import': 'reads a region file for the editor; no tender, nothing stored',
   'GET /vendor-organisations': 'the register of vendor firms, shared by every buyer for inviting',
+  'GET /me/notification-settings': 'the caller’s own reminder settings; no tender',
+  'PUT /me/notification-settings': 'the caller’s own reminder settings; no tender',
 };
 /** Lists: they answer 200, holding only the caller's own tenders (checked below). */
 const LISTS = ['GET /tenders', 'GET /notices'];

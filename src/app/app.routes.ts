@@ -62,6 +62,11 @@ export const routes: Routes = [
         loadChildren: () => import('./organisation/organisation.routes').then((m) => m.ORGANISATION_ROUTES),
       },
       {
+        path: 'settings',
+        canActivate: [roleGuard(['admin', 'buyer', 'compliance', 'vendor'])],
+        loadChildren: () => import('./settings/settings.routes').then((m) => m.SETTINGS_ROUTES),
+      },
+      {
         path: 'outbox',
         canActivate: [roleGuard(['admin'])],
         loadChildren: () => import('./outbox/outbox.routes').then((m) => m.OUTBOX_ROUTES),

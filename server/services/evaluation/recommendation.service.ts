@@ -11,6 +11,8 @@ import { transition } from '../transition';
 import { evaluableTender, FROZEN } from './scenarios.service';
 import { statusesBefore } from '@shared/tenders';
 import { standstillEnd } from '../standstill';
+import { notifyRecommendationDecided, notifyRecommendationWaiting } from '../notifications/decisions';
+import type { NotifyDeps } from '../notifications/notify';
 
 const AWAITING = 'A recommendation is awaiting compliance; it must be approved or returned first.';
 
@@ -50,8 +52,8 @@ async function refuseWhatIf(em: EntityManager, tender: Tender, run: Run): Promis
   }
 }
 
-/** The buyer recommends one run's award, with a justification. */
-export async function recommend(em: EntityManager, user: User, tenderId: string, input: { runId: string; justification: string }): Promise<RecommendationView> {
+/** The buyer recommends one run's award, with a justification; compliance is told it waits. */
+export async function recommend(em: EntityManager, user: User, tenderId: string, input: { runId: string; justification: string }, notify: NotifyDeps): Promise<RecommendationView> {
   const tender = await evaluableTender(em, user, tenderId, true);
   const run = await em.findOne(Run, { id: input.runId, tender }, { populate: ['scenario'] });
   if (!run) throw new ValidationError([{ field: 'runId', message: 'This run does not belong to the tender.' }]);
@@ -70,6 +72,7 @@ export async function recommend(em: EntityManager, user: User, tenderId: string,
       tenderId, actor: user, action: 'recommendation.made', subject: `run ${run.id}`,
       detail: { justification: input.justification, objective: run.result?.objective ?? null }, after: { runId: run.id, inputDigest: run.inputDigest, result: run.result },
     });
+    await notifyRecommendationWaiting(tx, notify, { tenderId, recommendationId: r.id, recommendedBy: user.name, justification: input.justification });
     return r.id;
   });
   return view((await em.fork().findOne(Recommendation, { id }, { populate: ['recommendedBy', 'decidedBy', 'run', 'tender'] }))!);
@@ -77,9 +80,9 @@ export async function recommend(em: EntityManager, user: User, tenderId: string,
 
 /**
  * Compliance approves (the tender becomes `awarded`: scenarios and bids are frozen) or returns the
- * recommendation. Never the person who recommended it (four-eyes rule).
+ * recommendation. Never the person who recommended it (four-eyes rule). The buyer is told.
  */
-export async function decide(em: EntityManager, user: User, tenderId: string, decision: 'approved' | 'returned', comment: string): Promise<RecommendationView> {
+export async function decide(em: EntityManager, user: User, tenderId: string, decision: 'approved' | 'returned', comment: string, notify: NotifyDeps): Promise<RecommendationView> {
   await evaluableTender(em, user, tenderId, true);
   const id = await em.transactional(async (tx) => {
     // Under the tender's lock: approve and return (or two approvals) racing run one after the other;
@@ -110,6 +113,7 @@ export async function decide(em: EntityManager, user: User, tenderId: string, de
       detail: { comment, ...(standstill ? { standstillEndsAt: standstill.endsAt.toISOString(), standstillLastDay: standstill.lastDay, standstillSkipped: standstill.skipped } : {}) },
       before: { status: 'recommended' }, after: { status: decision },
     });
+    await notifyRecommendationDecided(tx, notify, { tenderId, recommendationId: r.id, decision, decidedBy: user.name, comment });
     return r.id;
   });
   return view((await em.fork().findOne(Recommendation, { id }, { populate: ['recommendedBy', 'decidedBy', 'run', 'tender'] }))!);
