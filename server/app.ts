@@ -28,13 +28,14 @@ import { noticeRoutes } from './routes/notices.routes';
 import { contractRoutes } from './routes/contracts.routes';
 import { reportRoutes } from './routes/report.routes';
 import { procedureRoutes } from './routes/procedure.routes';
+import { worklistRoutes } from './routes/worklist.routes';
 
 const SESSION_HOURS = 8;
 
 /** Every API route of the app, in one list (mounted, documented and tested from it). */
 export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): AnyRoute[] {
   const routes: AnyRoute[] = [
-    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(deps.config), ...tenderRoutes(deps), ...bidRoutes(deps), ...evaluationRoutes(deps), ...noticeRoutes(deps), ...contractRoutes(), ...reportRoutes(), ...procedureRoutes(deps),
+    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(deps.config), ...tenderRoutes(deps), ...bidRoutes(deps), ...evaluationRoutes(deps), ...noticeRoutes(deps), ...contractRoutes(), ...reportRoutes(), ...procedureRoutes(deps), ...worklistRoutes(deps),
   ];
   routes.push(
     route({
