@@ -53,7 +53,7 @@ describe('Home', () => {
     }).toEqual({
       href: '/tenders/0b7e1c36-54a2-4c1e-9d0a-3f6f2b8c9a11',
       what: 'WCX-2027-004 · Brine for the coastal depots',
-      due: 'Closes: Fri 15 Jan 2027, 12:00 GMT (Europe/Dublin)',
+      due: 'Closes: Fri, 15 Jan 2027, 12:00 GMT (Europe/Dublin)',
     });
     const quiet = [...page.querySelectorAll('.quiet-row')].map((r) => [r.querySelector('dt')?.textContent?.trim(), r.querySelector('dd')?.textContent?.trim()]);
     expect(quiet).toEqual([['Invitations to answer', 'When a buyer invites your organisation to an open tender, it appears here until you start a bid.']]);
@@ -67,7 +67,11 @@ describe('Home', () => {
     const alert = (fixture.nativeElement as HTMLElement).querySelector('[role="alert"]');
     expect(alert?.textContent).toContain('Try again');
     (alert!.querySelector('button') as HTMLButtonElement).click();
-    http.expectOne('/api/worklist').flush(WORKLIST);
+    // The resource asks again once the click's change detection has run.
+    for (let i = 0; i < 100 && !http.match('/api/worklist').some((r) => (r.flush(WORKLIST), true)); i++) {
+      fixture.detectChanges();
+      await new Promise((resolve) => setTimeout(resolve, 5));
+    }
     await fixture.whenStable();
     expect((fixture.nativeElement as HTMLElement).querySelector('[role="alert"]')).toBeNull();
   });
