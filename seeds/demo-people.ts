@@ -44,5 +44,8 @@ export const DEMO_PEOPLE: DemoPerson[] = [
   { email: 'vendor7@demo.tendara.test', name: 'Jonas Weber', role: 'vendor', organisation: 'v7' },
 ];
 
+/** Invited by the administrator, no password set yet (not a sign-in). */
+export const DEMO_INVITED = { email: 'h.voss@demo.tendara.test', name: 'Hana Voss', role: 'compliance' as const };
+
 /** What the start banner and the README list. */
 export const DEMO_SIGN_INS = DEMO_PEOPLE.map((p) => ({ email: p.email, role: p.role }));

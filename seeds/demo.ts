@@ -1,7 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { User, VendorOrganisation } from '../server/entities';
+import { randomBytes } from 'node:crypto';
+import { AccountToken, User, VendorOrganisation } from '../server/entities';
 import { hashPassword } from '../server/auth/password';
-import { DEMO_ORGANISATIONS, DEMO_PASSWORD, DEMO_PEOPLE } from './demo-people';
+import { DEMO_INVITED, DEMO_ORGANISATIONS, DEMO_PASSWORD, DEMO_PEOPLE } from './demo-people';
 import { completeDemoOpening, loadDemoTenders } from './demo-tenders';
 
 /**
@@ -27,6 +28,13 @@ export async function loadDemo(em: EntityManager): Promise<void> {
     if (p.role === 'buyer') buyer = user;
     if (p.organisation && !vendorPeople.has(p.organisation)) vendorPeople.set(p.organisation, user);
   }
+  // Invited a day ago and not yet signed up: the administrator's worklist shows the invitation
+  // waiting. The link's secret is thrown away (the seed sends no mail): a resend issues a fresh one.
+  const invited = em.create(User, { ...DEMO_INVITED, vendorOrganisation: null, passwordHash: null });
+  em.create(AccountToken, {
+    user: invited, purpose: 'invitation', tokenHash: randomBytes(32).toString('hex'),
+    createdAt: new Date(Date.now() - 86_400_000), expiresAt: new Date(Date.now() + 2 * 86_400_000),
+  });
   const salt = loadDemoTenders(em, buyer!, orgs, new Date(), vendorPeople);
   await completeDemoOpening(em, salt, buyer!, orgs);
 }

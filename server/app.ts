@@ -29,13 +29,14 @@ import { contractRoutes } from './routes/contracts.routes';
 import { reportRoutes } from './routes/report.routes';
 import { procedureRoutes } from './routes/procedure.routes';
 import { settingsRoutes } from './routes/settings.routes';
+import { worklistRoutes } from './routes/worklist.routes';
 
 const SESSION_HOURS = 8;
 
 /** Every API route of the app, in one list (mounted, documented and tested from it). */
 export function apiRoutes(deps: AppDeps, auth = configurePassport(deps.orm)): AnyRoute[] {
   const routes: AnyRoute[] = [
-    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(deps.config), ...tenderRoutes(deps), ...bidRoutes(deps), ...evaluationRoutes(deps), ...noticeRoutes(deps), ...contractRoutes(), ...reportRoutes(), ...procedureRoutes(deps), ...settingsRoutes(),
+    ...sessionRoutes(auth), ...peopleRoutes(deps), ...outboxRoutes(deps.config), ...tenderRoutes(deps), ...bidRoutes(deps), ...evaluationRoutes(deps), ...noticeRoutes(deps), ...contractRoutes(), ...reportRoutes(), ...procedureRoutes(deps), ...settingsRoutes(), ...worklistRoutes(deps),
   ];
   routes.push(
     route({

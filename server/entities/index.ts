@@ -20,6 +20,7 @@ import { Run } from './run.entity';
 import { RunAward } from './run-award.entity';
 import { RunExplanation } from './run-explanation.entity';
 import { Scenario } from './scenario.entity';
+import { SeenMark } from './seen-mark.entity';
 import { Tender } from './tender.entity';
 import { User } from './user.entity';
 import { VendorOrganisation } from './vendor-organisation.entity';
@@ -27,7 +28,7 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
   Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, Contract, ContractLine,
-  NotificationSent, NotificationSetting];
+  NotificationSent, NotificationSetting, SeenMark];
 export {
-  AccountToken, Amendment, Contract, NotificationSent, NotificationSetting, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, Amendment, Contract, NotificationSent, NotificationSetting, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, SeenMark, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

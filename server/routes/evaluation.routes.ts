@@ -5,6 +5,7 @@ import { tenderIdParamSchema } from '@shared/tenders';
 import type { AppDeps } from '../context';
 import { route, type AnyRoute } from '../http/route';
 import { auditCsv, auditTrail, verifyTrail } from '../services/audit.service';
+import { markSeen } from '../services/worklist.service';
 import { currentRecommendation, decide, recommend } from '../services/evaluation/recommendation.service';
 import { explanationOf, startExplanation } from '../services/evaluation/explanation.service';
 import { compareRuns, findRun, resilienceOf, runView, startResilience } from '../services/evaluation/results.service';
@@ -149,7 +150,11 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'Recompute every hash of the chain and say whether it is intact.',
       handler: async ({ em, user, params }) => {
         await findVisibleTender(em, user, params.id);
-        return verifyTrail(em, params.id);
+        const at = new Date();
+        const verification = await verifyTrail(em, params.id);
+        // A chain that holds is verified as of `at` for this officer's worklist.
+        if (verification.ok && user.role === 'compliance') await markSeen(em, user, params.id, 'audit-verified', at);
+        return verification;
       },
     }),
     route({

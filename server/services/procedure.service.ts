@@ -16,6 +16,7 @@ import { clarificationsCloseAt, tenderView } from './tenders.service';
 import { transition } from './transition';
 import { uuidArray } from './sql';
 import { notifyOnce } from './notifications/notify';
+import { markSeen } from './worklist.service';
 
 /**
  * The procedure between publication and closing (DEVELOPERS.md, "Clarifications, amendments,
@@ -104,7 +105,10 @@ export async function askQuestion(deps: ProcedureDeps, user: User, tenderId: str
  * questions that await an answer. Buyer (its own tenders), compliance and admin: all, with the asker.
  */
 export async function listQuestions(em: EntityManager, user: User, tenderId: string): Promise<QuestionView[]> {
+  const seenAt = new Date();
   const tender = await findVisibleTender(em, user, tenderId);
+  // The vendor's worklist counts answers published after this read as new.
+  if (user.role === 'vendor') await markSeen(em, user, tender.id, 'clarifications', seenAt);
   const where = user.role === 'vendor'
     ? { tender, $or: [{ status: 'answered' as const }, { vendorOrganisation: user.vendorOrganisation! }] }
     : { tender };

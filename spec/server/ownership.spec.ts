@@ -1,3 +1,4 @@
+import type { Worklist } from '@shared/worklist';
 import XlsxPopulate from 'xlsx-populate';
 import { createHash } from 'node:crypto';
 import { apiRoutes } from '../../server/app';
@@ -25,7 +26,7 @@ const EXEMPT: Record<string, string> = {
   'PUT /me/notification-settings': 'the caller’s own reminder settings; no tender',
 };
 /** Lists: they answer 200, holding only the caller's own tenders (checked below). */
-const LISTS = ['GET /tenders', 'GET /notices'];
+const LISTS = ['GET /tenders', 'GET /notices', 'GET /worklist', 'GET /worklist/count'];
 
 let t: TestApp;
 let owner: Browser;
@@ -165,6 +166,11 @@ test('the tender list and the notice list show a buyer only its own tenders; com
   expect((await other.get('/api/notices')).body).toEqual([]);
   expect((await other.get('/api/notices').query({ tenderId: ids['tender'] })).body).toEqual([]);
   expect((await owner.get('/api/notices')).body).toHaveLength(1);
+  // The worklist: the other buyer's draft is its only item; the owner's tender (in its standstill) is the owner's.
+  const worklistLinks = async (b: Browser) => ((await b.get('/api/worklist')).body as Worklist).sections.flatMap((s) => s.items.map((i) => i.link));
+  expect(await worklistLinks(other)).toEqual([`/tenders/${own.body.id}`]);
+  expect((await other.get('/api/worklist/count')).body).toEqual({ total: 1 });
+  expect(await worklistLinks(owner)).toEqual([`/tenders/${ids['tender']}`]);
   for (const overseer of [compliance, admin]) {
     const all = (await overseer.get('/api/tenders')).body.map((x: { id: string }) => x.id).sort();
     expect(all).toEqual([ids['tender'], own.body.id].sort());

@@ -9,6 +9,8 @@ export interface NavItem {
   roles: readonly Role[];
   /** Only "Overview" needs an exact match; other items stay lit on their sub-pages. */
   exact?: boolean;
+  /** The home page's link shows how many worklist items wait. */
+  showsWorklistCount?: boolean;
 }
 
 /**
@@ -16,7 +18,7 @@ export interface NavItem {
  * entry here next to its route in app.routes.ts.
  */
 export const NAV_ITEMS: readonly NavItem[] = [
-  { label: 'Overview', icon: 'space_dashboard', link: '/', roles: ROLES, exact: true },
+  { label: 'Overview', icon: 'space_dashboard', link: '/', roles: ROLES, exact: true, showsWorklistCount: true },
   { label: 'Tenders', icon: 'request_quote', link: '/tenders', roles: ['admin', 'buyer', 'compliance'] },
   // Vendors see only the tenders they are invited to, so the label says whose they are.
   { label: 'My tenders', icon: 'request_quote', link: '/tenders', roles: ['vendor'] },

@@ -6,6 +6,7 @@ import {
   ElementRef,
   computed,
   inject,
+  signal,
   viewChild,
 } from '@angular/core';
 import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
@@ -15,12 +16,13 @@ import { MatListModule } from '@angular/material/list';
 import { MatMenuModule } from '@angular/material/menu';
 import { MatSidenav, MatSidenavModule } from '@angular/material/sidenav';
 import { MatToolbarModule } from '@angular/material/toolbar';
-import { Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
+import { NavigationEnd, Router, RouterLink, RouterLinkActive, RouterOutlet } from '@angular/router';
 import { ROLE_LABELS } from '@shared/roles';
-import { map } from 'rxjs';
+import { catchError, filter, map, of, startWith, switchMap } from 'rxjs';
 import { Logo } from '../../ui/logo';
 import { Auth } from '../auth/auth';
-import { navigationFor } from './navigation';
+import { navigationFor, type NavItem } from './navigation';
+import { WorklistApi } from './worklist-api';
 
 /** Below this width the side navigation becomes a menu that slides over the page. */
 const NARROW = '(max-width: 959.98px)';
@@ -64,6 +66,28 @@ export class Shell {
     const user = this.user();
     return user ? navigationFor(user.role) : [];
   });
+  /** How many worklist items wait (GET /api/worklist/count), asked again after every navigation. */
+  protected readonly waiting = signal<number | null>(null);
+
+  constructor() {
+    const api = inject(WorklistApi);
+    this.router.events
+      .pipe(
+        filter((event) => event instanceof NavigationEnd),
+        startWith(null),
+        // A newer navigation cancels the count still on its way; a failed count shows none.
+        switchMap(() => api.count().pipe(catchError(() => of(null)))),
+        takeUntilDestroyed(),
+      )
+      .subscribe((answer) => this.waiting.set(answer?.total ?? null));
+  }
+
+  /** The count is part of the home link's accessible name: "Overview, 3 items waiting". */
+  protected accessibleName(item: NavItem): string | null {
+    const n = this.waiting();
+    if (!item.showsWorklistCount || !n) return null;
+    return `${item.label}, ${n} ${n === 1 ? 'item' : 'items'} waiting`;
+  }
 
   /** Closes the sliding menu after a choice, so the chosen page is not hidden behind it. */
   protected closeIfNarrow(): void {
