@@ -5,6 +5,7 @@ import {
   describeChanges, type AmendmentChanges, type AmendmentInput, type AnswerInput, type CancelInput, type QuestionInput, type QuestionView,
 } from '@shared/procedure';
 import { statusesBefore, type TenderView } from '@shared/tenders';
+import { formatInZone } from '@shared/time-zone';
 import { Amendment, Question, Region, Tender, type User } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { QUEUES } from '../jobs/queue';
@@ -31,7 +32,6 @@ export interface ProcedureDeps {
   arrivedAt: Date;
 }
 
-const utc = (d: Date) => d.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
 
 /** Every approved, active person of every organisation invited to the tender. */
 async function invitedPeople(em: EntityManager, tenderId: string): Promise<{ email: string; name: string; organisation: string; organisationId: string }[]> {
@@ -75,7 +75,7 @@ export async function askQuestion(deps: ProcedureDeps, user: User, tenderId: str
     const tender = await tx.findOneOrFail(Tender, { id: tenderId });
     const deadline = clarificationsCloseAt(tender);
     if (deps.arrivedAt.getTime() >= deadline.getTime()) {
-      throw new ConflictError(`The clarification deadline was ${utc(deadline)}: questions can no longer be asked on this tender.`);
+      throw new ConflictError(`The clarification deadline was ${formatInZone(deadline, tender.timeZone)}: questions can no longer be asked on this tender.`);
     }
     const q = tx.create(Question, { tender: visible.id, vendorOrganisation: user.vendorOrganisation!, askedBy: user, text: input.text });
     await tx.flush();
@@ -182,13 +182,13 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     await lockTender(tx, user, tenderId, ['open'], 'Amendments can be issued only while the tender is open for bids.');
     const t = await tx.findOneOrFail(Tender, { id: tenderId }, { populate: ['regions'] });
     if (deps.arrivedAt.getTime() >= t.closesAt.getTime()) {
-      throw new ConflictError(`Bidding closed at ${utc(t.closesAt)}: the tender can no longer be amended.`);
+      throw new ConflictError(`Bidding closed at ${formatInZone(t.closesAt, t.timeZone)}: the tender can no longer be amended.`);
     }
     const changes: AmendmentChanges = {};
     if (input.closesAt !== undefined) {
       const closesAt = new Date(input.closesAt);
       if (closesAt.getTime() <= t.closesAt.getTime()) {
-        throw new ValidationError([{ field: 'closesAt', message: `An amendment can only extend the closing time: choose a time after ${utc(t.closesAt)}.` }]);
+        throw new ValidationError([{ field: 'closesAt', message: `An amendment can only extend the closing time: choose a time after ${formatInZone(t.closesAt, t.timeZone)}.` }]);
       }
       changes.closesAt = { from: t.closesAt.toISOString(), to: closesAt.toISOString() };
     }
@@ -280,14 +280,14 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     // finds the tender not yet due and leaves it open; this one, for the new time, closes it.
     await deps.boss.send(QUEUES.tenderClose, { tenderId }, { startAfter: new Date(tender.closesAt.getTime() + CLOSING_GRACE_MS), singletonKey: `close-${tenderId}-amendment-${number}` });
   }
-  const lines = describeChanges(changes, tender.unit);
+  const lines = describeChanges(changes, tender.unit, tender.timeZone);
   const people = await invitedPeople(em, tenderId);
   const link = `${deps.publicUrl}/tenders/${tenderId}`;
   const mails: MailOut[] = people.map((p) => ({
     to: p.email,
     ...renderMail('amendment', `Amendment ${number} to tender ${tender.reference}`, {
       name: p.name, organisation: p.organisation, reference: tender.reference, title: tender.title, number,
-      reason: input.reason, changes: lines, closesAt: utc(tender.closesAt), link,
+      reason: input.reason, changes: lines, closesAt: tender.closesAt, timeZone: tender.timeZone, link,
     }),
   }));
   if (returned.length) {
@@ -298,7 +298,7 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
         to: p.email,
         ...renderMail('bid-resubmit', `Submit your bid on ${tender.reference} again: amendment ${number}`, {
           name: p.name, organisation: p.organisation, reference: tender.reference, title: tender.title, number,
-          added: names(changes.regionsAdded ?? []), closesAt: utc(tender.closesAt), link,
+          added: names(changes.regionsAdded ?? []), closesAt: tender.closesAt, timeZone: tender.timeZone, link,
         }),
       });
     }
@@ -321,7 +321,7 @@ export async function cancelTender(deps: ProcedureDeps, user: User, tenderId: st
     const locked = await lockTender(tx, user, tenderId, statusesBefore('cancelled'), conflict);
     const t = await tx.findOneOrFail(Tender, { id: tenderId });
     if (locked.status === 'open' && deps.arrivedAt.getTime() >= t.closesAt.getTime()) {
-      throw new ConflictError(`Bidding closed at ${utc(t.closesAt)}: the tender can no longer be cancelled.`);
+      throw new ConflictError(`Bidding closed at ${formatInZone(t.closesAt, t.timeZone)}: the tender can no longer be cancelled.`);
     }
     await transition(tx, Tender, tenderId, [locked.status], { status: 'cancelled', cancelledAt: deps.arrivedAt, cancellationReason: input.reason }, conflict);
     await audit(tx, {

@@ -79,9 +79,3 @@ export type BidWorkbookResult =
   | { ok: true; bid: BidFigures; priceCells: Record<string, string> }
   | { ok: false; errors: BidCellError[] };
 
-/** "2026-03-02 12:00 UTC" — one unambiguous form for a closing time in a file that travels. */
-export function formatUtc(iso: string): string {
-  const date = new Date(iso);
-  if (Number.isNaN(date.getTime())) throw new Error(`closesAt is not a valid ISO 8601 time: ${iso}`);
-  return `${date.toISOString().slice(0, 16).replace('T', ' ')} UTC`;
-}
