@@ -1,5 +1,7 @@
 import { renderMail } from '../../server/mail/templates';
 import { DEFAULT_TIME_ZONE, formatInZone } from '../../shared/time-zone';
+import { makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
+import { openTender, tenderBody } from '../support/tenders';
 
 /**
  * The one date-time format (shared/time-zone.ts) on the daylight-saving edges. From memory of the
@@ -41,5 +43,48 @@ describe('the dateTime Handlebars helper', () => {
     });
     expect(mail.text).toContain('Closing time: Sun, 25 Oct 2026, 02:30 CET (Europe/Berlin).');
     expect(mail.text).not.toMatch(/\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}/);
+  });
+});
+
+/** "2026-12-03T14:32", "2026-12-03 14:32", with or without seconds and zone: a machine's time, not a person's. */
+const ISO_TIME = /\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}/;
+
+describe('real e-mails through the catcher', () => {
+  let t: TestApp;
+  beforeAll(async () => {
+    t = await startTestApp();
+  });
+  afterAll(() => t.close());
+
+  test('invitation, bid receipt, amendment and password reset show their times in the one format, in the tender zone (Europe/Berlin), none as ISO', async () => {
+    const buyer = await signedIn(t, await makeUser(t, 'buyer'));
+    const vendorUser = await makeUser(t, 'vendor');
+    const vendor = await signedIn(t, vendorUser);
+    // Closing 15:00 Berlin winter time (CET, UTC+1) = 14:00 UTC, about ten days ahead.
+    const day = new Date(Date.now() + 10 * 86_400_000).toISOString().slice(0, 10);
+    const closesAt = `${day}T14:00:00.000Z`;
+    const id = await openTender(buyer, [vendorUser.vendorOrganisation!.id], tenderBody(2, 0, { closesAt, timeZone: BERLIN }));
+    const invitation = await waitForMail(t, vendorUser.email, 'Invitation to tender');
+    const closing = formatInZone(closesAt, BERLIN);
+    expect(invitation.text).toContain(`Closing time: ${closing}.`);
+
+    expect((await vendor.send('put', `/api/tenders/${id}/bid`, { fixedFee: 10, capacity: null, prices: { R01: 5, R02: 6 }, submit: true, version: null })).status).toBe(200);
+    const receipt = await waitForMail(t, vendorUser.email, 'Receipt: your bid');
+    expect(receipt.text).toContain(`closing time (${closing})`);
+    expect(receipt.text).toMatch(/at [A-Z][a-z]{2}, \d{1,2} [A-Z][a-z]{2} \d{4}, \d{2}:\d{2}:\d{2} (CET|CEST) \(Europe\/Berlin\)\./);
+
+    const later = new Date(new Date(closesAt).getTime() + 86_400_000).toISOString();
+    expect((await buyer.post(`/api/tenders/${id}/amendments`, { reason: 'More time.', closesAt: later })).status).toBe(201);
+    const amendment = await waitForMail(t, vendorUser.email, 'Amendment 1');
+    expect(amendment.text).toContain(`Closing time extended from ${closing} to ${formatInZone(later, BERLIN)}.`);
+
+    const admin = await signedIn(t, await makeUser(t, 'admin'));
+    const person = await makeUser(t, 'compliance');
+    expect((await admin.post(`/api/users/${person.id}/password-reset`)).status).toBe(202);
+    const reset = await waitForMail(t, person.email, 'Your Tendara account');
+    expect(reset.text).toMatch(/expires on [A-Z][a-z]{2}, \d{1,2} [A-Z][a-z]{2} \d{4}, \d{2}:\d{2} UTC:/);
+
+    const mails = [invitation, receipt, amendment, reset];
+    expect(mails.filter((m) => ISO_TIME.test(m.text) || ISO_TIME.test(m.html ?? '')).map((m) => m.subject)).toEqual([]);
   });
 });
