@@ -50,6 +50,8 @@ describe('the dateTime Handlebars helper', () => {
 const ISO_TIME = /\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}/;
 
 describe('real e-mails through the catcher', () => {
+  // Four e-mails through the real queue and catcher on a shared 2-core machine: more than the default minute.
+  jest.setTimeout(240_000);
   let t: TestApp;
   beforeAll(async () => {
     t = await startTestApp();

@@ -19,12 +19,12 @@ import { MatProgressBarModule } from '@angular/material/progress-bar';
       [attr.aria-label]="text()"
       [attr.aria-valuetext]="detail() || text()"
     />
-    <p class="progress-text"><span role="status" aria-live="polite">{{ text() }}</span>@if (detail()) { <span class="detail">{{ detail() }}</span> }</p>
+    <!-- The space before the detail is in the interpolation: Angular drops white space between tags. -->
+    <p class="progress-text"><span role="status" aria-live="polite">{{ text() }}</span>@if (detail()) {<span class="detail">{{ ' ' + detail() }}</span>}</p>
   `,
   styles: `
     :host { display: block; min-width: 12rem; margin: 4px 0; }
     .progress-text { margin: 4px 0 0; font-size: 0.875rem; }
-    .detail { margin-left: 0.5em; }
   `,
 })
 export class ProgressNote {
