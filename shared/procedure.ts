@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { regionListSchema } from './bids';
 import { plainText } from './text';
+import { DEFAULT_TIME_ZONE, formatInZone } from './time-zone';
 
 /**
  * The procedure between publication and closing: vendors' clarification questions and the buyer's
@@ -70,10 +71,10 @@ export const cancelInputSchema = z.object({ reason: multiline('Reason', 2000) })
 export type CancelInput = z.infer<typeof cancelInputSchema>;
 
 /** A one-line summary of an amendment's changes, in the buyer's words. */
-export function describeChanges(c: AmendmentChanges, unit = ''): string[] {
+export function describeChanges(c: AmendmentChanges, unit = '', timeZone = DEFAULT_TIME_ZONE): string[] {
   const lines: string[] = [];
   const u = unit ? ` ${unit}` : '';
-  if (c.closesAt) lines.push(`Closing time extended from ${c.closesAt.from.slice(0, 16).replace('T', ' ')} UTC to ${c.closesAt.to.slice(0, 16).replace('T', ' ')} UTC.`);
+  if (c.closesAt) lines.push(`Closing time extended from ${formatInZone(c.closesAt.from, timeZone)} to ${formatInZone(c.closesAt.to, timeZone)}.`);
   for (const r of c.regionsAdded ?? []) lines.push(`Region ${r.code} (${r.name}) added, forecast ${r.forecast}${u}.`);
   for (const r of c.regionsRemoved ?? []) lines.push(`Region ${r.code} (${r.name}) removed.`);
   for (const r of c.regionsChanged ?? []) {

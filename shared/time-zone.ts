@@ -39,12 +39,37 @@ export function utcToWallTime(iso: string, timeZone: string): string {
 }
 
 /**
- * "Sat 12 Dec 2026, 12:00 GMT (Europe/Dublin)": the time in the tender's zone, the zone named
- * (`named` false leaves the zone's name out, for a narrow column that names it below).
+ * The zone of times that belong to no procedure (the admin's trails, the outbox, account links):
+ * the same default a new tender gets, and named wherever it is used.
  */
-export function formatInZone(iso: string, timeZone: string, locale = 'en-GB', named = true): string {
-  const text = new Intl.DateTimeFormat(locale, {
-    timeZone, weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short',
-  }).format(new Date(iso));
-  return named ? `${text} (${timeZone})` : text;
+export const DEFAULT_TIME_ZONE = 'UTC';
+
+export interface DateTimeOptions {
+  /** false leaves the zone's IANA name out, for a column whose heading names it. */
+  named?: boolean;
+  /** Seconds too, where they matter (receipt times, audit entries, mail sent). */
+  seconds?: boolean;
+  /** Only the letters pass their own locale (month and weekday names); screens and e-mails use en-GB. */
+  locale?: string;
+}
+
+/**
+ * THE date-time format of Tendara, on every screen, e-mail, export and trail: "Thu, 3 Dec 2026,
+ * 15:32 CET (Europe/Berlin)" — the wall time in the procedure's zone, its abbreviation or offset
+ * (which tells the two 02:30s of an autumn night apart) and the zone's name; for UTC simply
+ * "Thu, 3 Dec 2026, 15:32 UTC". Built from Intl's parts, so Node.js and every browser give the same
+ * characters. The client uses it through the `dateTime` pipe, the e-mails through the `dateTime`
+ * Handlebars helper. Machine formats (ISO 8601 in JSON, OCDS, file names) stay ISO.
+ */
+export function formatInZone(at: string | Date, timeZone: string, options: DateTimeOptions = {}): string {
+  const { named = true, seconds = false, locale = 'en-GB' } = options;
+  const p: Partial<Record<Intl.DateTimeFormatPartTypes, string>> = {};
+  const fmt = new Intl.DateTimeFormat(locale, {
+    timeZone, weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit',
+    ...(seconds ? { second: '2-digit' } : {}), hourCycle: 'h23', timeZoneName: 'short',
+  });
+  for (const part of fmt.formatToParts(typeof at === 'string' ? new Date(at) : at)) if (part.type !== 'literal') p[part.type] = part.value;
+  const time = `${p.hour}:${p.minute}${seconds ? `:${p.second}` : ''}`;
+  const text = `${p.weekday}, ${p.day} ${p.month} ${p.year}, ${time} ${p.timeZoneName}`;
+  return named && p.timeZoneName !== timeZone ? `${text} (${timeZone})` : text;
 }

@@ -1,6 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import Handlebars from 'handlebars';
+import { formatInZone } from '@shared/time-zone';
 
 /**
  * Letters and e-mails from Handlebars templates in templates/: `NAME.html.hbs` and `NAME.text.hbs`,
@@ -12,6 +13,14 @@ const TEMPLATE_DIR = [path.join(__dirname, '..', '..', 'templates'), path.join(_
 );
 
 const hbs = Handlebars.create();
+/**
+ * `{{dateTime closesAt timeZone}}` (`seconds=true` for a receipt time): the one date-time format of
+ * shared/time-zone.ts. Services pass ISO instants and the procedure's zone, never formatted times.
+ */
+hbs.registerHelper('dateTime', (at: unknown, timeZone: unknown, options: Handlebars.HelperOptions) => {
+  if ((typeof at !== 'string' && !(at instanceof Date)) || typeof timeZone !== 'string') throw new TypeError('dateTime needs an instant and a time zone');
+  return formatInZone(at, timeZone, { seconds: options.hash['seconds'] === true });
+});
 const cache = new Map<string, Handlebars.TemplateDelegate>();
 
 function load(file: string): Handlebars.TemplateDelegate {

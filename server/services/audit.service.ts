@@ -3,6 +3,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
 import { ROLE_LABELS, type Role } from '@shared/roles';
 import { SEALED_TENDER_STATUSES } from '@shared/tenders';
+import { formatInZone } from '@shared/time-zone';
 import { AuditEntry, Tender, type User } from '../entities';
 import { csvCell } from '../workbooks/spreadsheet-text';
 import { auditNames, describeEntry } from './audit-words';
@@ -141,13 +142,9 @@ export async function auditCsv(em: EntityManager, tenderId: string, timeZone: st
   const rows = await auditTrail(em, tenderId);
   const header = ['No.', `Time (${timeZone})`, 'Who', 'Role', 'What happened', 'Details', 'Time (UTC, ISO 8601)', 'Action code', 'Before digest', 'After digest', 'Hash'];
   const lines = [header.map(csvCell).join(',')];
-  // "2026-12-03 14:05:12": the procedure's wall time in a form spreadsheets sort and read as a date.
-  const sortableTime = new Intl.DateTimeFormat('sv-SE', {
-    timeZone, year: 'numeric', month: '2-digit', day: '2-digit', hour: '2-digit', minute: '2-digit', second: '2-digit', hourCycle: 'h23',
-  });
   for (const r of rows) {
     lines.push([
-      r.number, sortableTime.format(new Date(r.at)), r.actor?.name ?? 'System', r.actor ? ROLE_LABELS[r.actor.role as Role] ?? r.actor.role : '',
+      r.number, formatInZone(r.at, timeZone, { named: false, seconds: true }), r.actor?.name ?? 'System', r.actor ? ROLE_LABELS[r.actor.role as Role] ?? r.actor.role : '',
       r.description, detailText(r.detail), r.at, r.action, r.beforeDigest, r.afterDigest, r.hash,
     ].map(csvCell).join(','));
   }

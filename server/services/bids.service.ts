@@ -42,9 +42,6 @@ export interface BidHooks {
   beforeBidCommit?: (at: { tenderId: string; arrivedAt: Date }) => Promise<void>;
 }
 
-const utc = (d: Date) => d.toISOString().slice(0, 19).replace('T', ' ') + ' UTC';
-/** A receipt time, to the millisecond. */
-const utcMs = (d: Date) => d.toISOString().replace('T', ' ').replace('Z', ' UTC');
 
 
 /** `nonce` only once the tender is closed: before, it would let a reader test guesses of the figures. */
@@ -90,10 +87,10 @@ export async function ownBid(em: EntityManager, user: User, tenderId: string): P
 }
 
 class BiddingClosed extends ConflictError {
-  constructor(closesAt: Date, cancelled = false) {
+  constructor(closesAt: Date, timeZone: string, cancelled = false) {
     super(cancelled
       ? 'The buyer cancelled this tender. Bids can no longer be saved, revised or withdrawn; they stay sealed.'
-      : `Bidding closed at ${utc(closesAt)}. Bids can no longer be saved, revised or withdrawn.`);
+      : `Bidding closed at ${formatInZone(closesAt, timeZone)}. Bids can no longer be saved, revised or withdrawn.`);
   }
 }
 
@@ -149,7 +146,7 @@ async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: str
   const row = rows[0];
   if (!row || !row.invited || row.status === 'draft' || !row.published) throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
-  if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt, row.status === 'cancelled');
+  if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt, row.time_zone, row.status === 'cancelled');
   return { id: tenderId, reference: row.reference, title: row.title, closesAt, timeZone: row.time_zone, regions: new Map(Object.entries(row.regions ?? {})), amendment: row.amendment };
 }
 
@@ -274,10 +271,11 @@ async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid
     title: tender.title,
     withdrawn: what === 'withdrawn',
     revision: bid.revision,
-    at: utcMs(deps.arrivedAt),
+    at: deps.arrivedAt,
     digest: bid.digest ?? '',
     answersAmendment: bid.answersAmendment,
-    closesAt: tender.timeZone === 'UTC' ? utc(tender.closesAt) : `${formatInZone(tender.closesAt.toISOString(), tender.timeZone)}, ${utc(tender.closesAt)}`,
+    closesAt: tender.closesAt,
+    timeZone: tender.timeZone,
     link: `${deps.publicUrl}/tenders/${tender.id}`,
   });
   await enqueueMail(deps.boss, { to: user.email, ...mail });
@@ -404,7 +402,7 @@ export async function uploadWorkbook(
   const org = vendorOf(user);
   const tender = await findVisibleTender(em, user, tenderId);
   // As a bid: on time when the upload arrived in full before the closing time.
-  if (tender.status !== 'open' || arrivedAt.getTime() >= tender.closesAt.getTime()) throw new ConflictError(`Bidding closed at ${utc(tender.closesAt)}.`);
+  if (tender.status !== 'open' || arrivedAt.getTime() >= tender.closesAt.getTime()) throw new ConflictError(`Bidding closed at ${formatInZone(tender.closesAt, tender.timeZone)}.`);
   const parsed = await parseBidWorkbookOffThread(file.buffer, regionInputs(tender), { reference: tender.reference });
   if (!parsed.ok) {
     throw new ValidationError(parsed.errors.map((e) => ({ field: e.cell || 'file', message: e.message })), 'The workbook has problems; nothing was saved.');

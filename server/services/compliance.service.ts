@@ -1,5 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AwardResult } from '@shared/award';
+import { formatInZone } from '@shared/time-zone';
 import { bidsValidUntil, type AbnormallyLowInput, type ComplianceInput } from '@shared/compliance';
 import { LIVE_BID_STATUSES, type TabulatedBid } from '@shared/tenders';
 import { Bid, Recommendation, Tender, type Run, type User } from '../entities';
@@ -16,7 +17,6 @@ const NOT_CHECKABLE = 'Bids are checked after closing and before an award is app
 const NOT_LIVE = 'This bid is no longer a submitted bid.';
 const AWAITING = 'A recommendation is awaiting compliance: it must be approved or returned before a bid\'s check changes.';
 
-const utcDate = (d: Date) => d.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
 
 /** The live bid `bidId` of the tender, read inside the decision's transaction (404 otherwise). */
 async function liveBid(tx: EntityManager, tenderId: string, bidId: string): Promise<TabulatedBid> {
@@ -67,7 +67,7 @@ export async function decideAbnormallyLow(em: EntityManager, user: User, tenderI
     const decidedAt = new Date();
     const askedAt = input.explanationRequestedAt ? new Date(input.explanationRequestedAt) : decidedAt;
     if (askedAt.getTime() < tender.closesAt.getTime() || askedAt.getTime() > decidedAt.getTime()) {
-      throw new ValidationError([{ field: 'explanationRequestedAt', message: `The explanation is asked for after the closing time (${utcDate(tender.closesAt)}) and not in the future.` }]);
+      throw new ValidationError([{ field: 'explanationRequestedAt', message: `The explanation is asked for after the closing time (${formatInZone(tender.closesAt, tender.timeZone)}) and not in the future.` }]);
     }
     await transition(tx, Bid, bidId, LIVE, { lowPriceExplanationRequestedAt: askedAt, lowPriceAccepted: input.accepted, lowPriceNote: input.note, lowPriceDecidedAt: decidedAt }, NOT_LIVE);
     await audit(tx, {
@@ -130,7 +130,7 @@ export async function assertBidsValid(tx: EntityManager, tenderId: string, run: 
     return !bid?.validityExtendedUntil || bid.validityExtendedUntil.getTime() < now.getTime();
   }).map((v) => bids.find((b) => b.vendorOrganisation.id === v)?.vendorOrganisation.name ?? v);
   if (missing.length) {
-    throw new ConflictError(`The bids' validity ended on ${utcDate(ends)}; each awarded vendor must confirm an extension before the award can be approved. Not yet confirmed: ${missing.join(', ')}.`);
+    throw new ConflictError(`The bids' validity ended on ${formatInZone(ends, tender.timeZone)}; each awarded vendor must confirm an extension before the award can be approved. Not yet confirmed: ${missing.join(', ')}.`);
   }
 }
 
@@ -154,7 +154,7 @@ export async function extendValidity(em: EntityManager, user: User, tenderId: st
     // Absent: one more validity period, from the current end or from now if that has passed.
     const until = input.until ? new Date(input.until) : new Date(Math.max(current.getTime(), Date.now()) + tender.bidValidityDays * DAY);
     if (until.getTime() <= current.getTime() || until.getTime() <= Date.now()) {
-      throw new ValidationError([{ field: 'until', message: `The extension must run past ${utcDate(current)} and past today.` }]);
+      throw new ValidationError([{ field: 'until', message: `The extension must run past ${formatInZone(current, tender.timeZone)} and past today.` }]);
     }
     await transition(tx, Bid, bid.id, LIVE, { validityExtendedUntil: until }, NOT_LIVE);
     await audit(tx, {

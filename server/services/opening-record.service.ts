@@ -24,6 +24,7 @@ export async function openingRecordOf(em: EntityManager, user: User, tenderId: s
 
 export async function openingRecordWorkbook(em: EntityManager, user: User, tenderId: string): Promise<{ filename: string; content: Buffer }> {
   const view = await openingRecordOf(em, user, tenderId);
-  const content = await buildOpeningRecordWorkbook(view);
+  const { timeZone } = await findVisibleTender(em, user, tenderId);
+  const content = await buildOpeningRecordWorkbook(view, timeZone);
   return { filename: exportName(view.record.tender.reference, 'opening-record.xlsx'), content };
 }

@@ -3,6 +3,7 @@ import { LockMode } from '@mikro-orm/core';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { ROLE_LABELS } from '@shared/roles';
+import { DEFAULT_TIME_ZONE } from '@shared/time-zone';
 import type {
   AccountSetupView, InviteUser, MemberView, PersonView, VendorOrganisationInput, VendorOrganisationView,
 } from '@shared/people';
@@ -50,7 +51,6 @@ export function organisationView(org: VendorOrganisation): VendorOrganisationVie
 }
 
 const sha256 = (token: string) => createHash('sha256').update(token).digest('hex');
-const hours = (date: Date) => date.toISOString().slice(0, 16).replace('T', ' ');
 /** What the admin audit trail records of a person (no secrets). */
 const personDetail = (user: User) => ({
   person: user.id, email: user.email, name: user.name, role: user.role,
@@ -196,10 +196,11 @@ function issueToken(em: EntityManager, user: User, purpose: AccountToken['purpos
 }
 
 function accountLinkMail(deps: Pick<PeopleDeps, 'publicUrl'>, user: User, secret: string, sentBy: string, purpose: AccountToken['purpose']): MailOut {
-  const expiresAt = hours(new Date(Date.now() + ACCOUNT_LINK_HOURS * 3600_000));
+  const expiresAt = new Date(Date.now() + ACCOUNT_LINK_HOURS * 3600_000);
+  const timeZone = DEFAULT_TIME_ZONE;
   const link = `${deps.publicUrl}/account-setup/${secret}`;
   const mail = purpose === 'reset'
-    ? renderMail('password-reset', 'Your Tendara account: choose a new password', { name: user.name, email: user.email, requestedBy: sentBy, link, expiresAt })
+    ? renderMail('password-reset', 'Your Tendara account: choose a new password', { name: user.name, email: user.email, requestedBy: sentBy, link, expiresAt, timeZone })
     : renderMail('set-password', 'Your Tendara account: set your password', {
       name: user.name,
       invitedBy: sentBy,
@@ -207,6 +208,7 @@ function accountLinkMail(deps: Pick<PeopleDeps, 'publicUrl'>, user: User, secret
       organisation: user.vendorOrganisation?.name ?? null,
       link,
       expiresAt,
+      timeZone,
     });
   return { to: user.email, ...mail };
 }

@@ -5,6 +5,7 @@ import {
   describeChanges, type AmendmentChanges, type AmendmentInput, type AnswerInput, type CancelInput, type QuestionInput, type QuestionView,
 } from '@shared/procedure';
 import { statusesBefore, type TenderView } from '@shared/tenders';
+import { formatInZone } from '@shared/time-zone';
 import { Amendment, Question, Region, Tender, type User } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { QUEUES } from '../jobs/queue';
@@ -34,7 +35,6 @@ export interface ProcedureDeps {
   arrivedAt: Date;
 }
 
-const utc = (d: Date) => d.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
 
 /** Every approved, active person of every organisation invited to the tender. */
 async function invitedPeople(em: EntityManager, tenderId: string): Promise<{ id: string; email: string; name: string; organisation: string; organisationId: string }[]> {
@@ -78,7 +78,7 @@ export async function askQuestion(deps: ProcedureDeps, user: User, tenderId: str
     const tender = await tx.findOneOrFail(Tender, { id: tenderId });
     const deadline = clarificationsCloseAt(tender);
     if (deps.arrivedAt.getTime() >= deadline.getTime()) {
-      throw new ConflictError(`The clarification deadline was ${utc(deadline)}: questions can no longer be asked on this tender.`);
+      throw new ConflictError(`The clarification deadline was ${formatInZone(deadline, tender.timeZone)}: questions can no longer be asked on this tender.`);
     }
     const q = tx.create(Question, { tender: visible.id, vendorOrganisation: user.vendorOrganisation!, askedBy: user, text: input.text });
     await tx.flush();
@@ -186,13 +186,13 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     await lockTender(tx, user, tenderId, ['open'], 'Amendments can be issued only while the tender is open for bids.');
     const t = await tx.findOneOrFail(Tender, { id: tenderId }, { populate: ['regions'] });
     if (deps.arrivedAt.getTime() >= t.closesAt.getTime()) {
-      throw new ConflictError(`Bidding closed at ${utc(t.closesAt)}: the tender can no longer be amended.`);
+      throw new ConflictError(`Bidding closed at ${formatInZone(t.closesAt, t.timeZone)}: the tender can no longer be amended.`);
     }
     const changes: AmendmentChanges = {};
     if (input.closesAt !== undefined) {
       const closesAt = new Date(input.closesAt);
       if (closesAt.getTime() <= t.closesAt.getTime()) {
-        throw new ValidationError([{ field: 'closesAt', message: `An amendment can only extend the closing time: choose a time after ${utc(t.closesAt)}.` }]);
+        throw new ValidationError([{ field: 'closesAt', message: `An amendment can only extend the closing time: choose a time after ${formatInZone(t.closesAt, t.timeZone)}.` }]);
       }
       changes.closesAt = { from: t.closesAt.toISOString(), to: closesAt.toISOString() };
     }
@@ -298,7 +298,7 @@ async function notifyAmendment(
   a: { tenderId: string; amendmentId: string; number: number; reason: string; tender: Tender; changes: AmendmentChanges; returned: string[] },
 ): Promise<void> {
   const { tender, number } = a;
-  const lines = describeChanges(a.changes, tender.unit);
+  const lines = describeChanges(a.changes, tender.unit, tender.timeZone);
   const people = await invitedPeople(tx, a.tenderId);
   const byId = new Map(people.map((p) => [p.id, p]));
   const link = `${deps.publicUrl}/tenders/${a.tenderId}`;
@@ -306,7 +306,7 @@ async function notifyAmendment(
     kind: 'amendment-issued', subjectId: a.amendmentId, tenderId: a.tenderId, recipients: people,
     render: (r) => renderMail('amendment', `Amendment ${number} to tender ${tender.reference}`, {
       name: r.name, organisation: byId.get(r.id)!.organisation, reference: tender.reference, title: tender.title, number,
-      reason: a.reason, changes: lines, closesAt: utc(tender.closesAt), link,
+      reason: a.reason, changes: lines, closesAt: tender.closesAt, timeZone: tender.timeZone, link,
     }),
   });
   if (!a.returned.length) return;
@@ -316,7 +316,7 @@ async function notifyAmendment(
     kind: 'bid-resubmit', subjectId: a.amendmentId, tenderId: a.tenderId, recipients: people.filter((x) => affected.has(x.organisationId)),
     render: (r) => renderMail('bid-resubmit', `Submit your bid on ${tender.reference} again: amendment ${number}`, {
       name: r.name, organisation: byId.get(r.id)!.organisation, reference: tender.reference, title: tender.title, number,
-      added: names(a.changes.regionsAdded ?? []), closesAt: utc(tender.closesAt), link,
+      added: names(a.changes.regionsAdded ?? []), closesAt: tender.closesAt, timeZone: tender.timeZone, link,
     }),
   });
 }
@@ -335,7 +335,7 @@ export async function cancelTender(deps: ProcedureDeps, user: User, tenderId: st
     const locked = await lockTender(tx, user, tenderId, statusesBefore('cancelled'), conflict);
     const t = await tx.findOneOrFail(Tender, { id: tenderId });
     if (locked.status === 'open' && deps.arrivedAt.getTime() >= t.closesAt.getTime()) {
-      throw new ConflictError(`Bidding closed at ${utc(t.closesAt)}: the tender can no longer be cancelled.`);
+      throw new ConflictError(`Bidding closed at ${formatInZone(t.closesAt, t.timeZone)}: the tender can no longer be cancelled.`);
     }
     await transition(tx, Tender, tenderId, [locked.status], { status: 'cancelled', cancelledAt: deps.arrivedAt, cancellationReason: input.reason }, conflict);
     await audit(tx, {

@@ -9,7 +9,6 @@ import { Amendment, Bid, Invitation, Notice, Region, Tender, User, VendorOrganis
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
-import { formatInZone } from '@shared/time-zone';
 import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from './people.service';
 import { audit } from './audit.service';
 import { AFTER_AWARD, tenderListRows } from './queries/tenders.queries';
@@ -313,7 +312,6 @@ async function notifyInvited(deps: TenderDeps, tender: Tender, invitationIds: st
   // The same sentences as the tender page and the bid workbook (shared/award-basis.ts).
   const regions = await em.find(Region, { tender: tender.id }, { orderBy: { position: 'asc' } });
   const basis = describeAwardBasis(tender.awardBasis, { unit: tender.unit, regions });
-  const closes = `${formatInZone(tender.closesAt.toISOString(), tender.timeZone)}${tender.timeZone === 'UTC' ? '' : `, ${tender.closesAt.toISOString().slice(0, 16).replace('T', ' ')} UTC`}`;
   for (const inv of invitations) {
     // Only approved members: a person awaiting the organisation's approval learns nothing of it.
     const people = await em.find(User, { vendorOrganisation: inv.vendorOrganisation, active: true, role: 'vendor', membership: 'approved' });
@@ -324,7 +322,8 @@ async function notifyInvited(deps: TenderDeps, tender: Tender, invitationIds: st
         reference: tender.reference,
         title: tender.title,
         commodity: tender.commodity,
-        closesAt: closes,
+        closesAt: tender.closesAt,
+        timeZone: tender.timeZone,
         basis,
         link: `${deps.publicUrl}/tenders/${tender.id}`,
       });

@@ -4,7 +4,7 @@ import type { BidFigures, RegionInput } from '@shared/bids';
  * Where everything sits in the bid workbook. Build and parse both read this one object, so a layout
  * change cannot make them disagree. On the `Bid` sheet:
  *
- *   A1      tender reference and title         A2  vendor, closing time (UTC), currency and unit
+ *   A1      tender reference and title         A2  vendor, closing time (in its zone), currency and unit
  *   B3      tender reference (read back on upload to catch a workbook from another tender)
  *   C4      fixed fee            (input)       D4  currency note
  *   C5      capacity cap         (input)       D5  unit note, "blank = no cap"
@@ -58,7 +58,7 @@ export interface BidWorkbookView {
   unit: string;
   /** ISO 8601 instant. */
   closesAt: string;
-  /** The procedure's IANA time zone (the closing time is also given in UTC). */
+  /** The procedure's IANA time zone: the closing time is written in it, its offset and name shown. */
   timeZone?: string;
   /** The published award basis in words (`describeAwardBasis`), shown on the cover sheet. */
   awardBasis?: string[];
@@ -79,9 +79,3 @@ export type BidWorkbookResult =
   | { ok: true; bid: BidFigures; priceCells: Record<string, string> }
   | { ok: false; errors: BidCellError[] };
 
-/** "2026-03-02 12:00 UTC" — one unambiguous form for a closing time in a file that travels. */
-export function formatUtc(iso: string): string {
-  const date = new Date(iso);
-  if (Number.isNaN(date.getTime())) throw new Error(`closesAt is not a valid ISO 8601 time: ${iso}`);
-  return `${date.toISOString().slice(0, 16).replace('T', ' ')} UTC`;
-}

@@ -1,7 +1,7 @@
 import XlsxPopulate from 'xlsx-populate';
 import { byCode } from '@shared/bids';
-import { formatInZone } from '@shared/time-zone';
-import { BID_LAYOUT, type BidWorkbookView, formatUtc } from './bid-layout';
+import { DEFAULT_TIME_ZONE, formatInZone } from '@shared/time-zone';
+import { BID_LAYOUT, type BidWorkbookView } from './bid-layout';
 import { outputSafeWorkbook } from './spreadsheet-text';
 import { addDecimalValidation, protectSheet, unlockCell } from './xlsx-internals';
 import {
@@ -11,10 +11,9 @@ import {
 
 const { columns: COL } = BID_LAYOUT;
 
-/** The closing time in the procedure's zone, named, and in UTC: a file travels between zones. */
+/** The closing time in the one format: the procedure's zone, its offset and name (a file travels between zones). */
 function closingTime(view: BidWorkbookView): string {
-  const zone = view.timeZone ?? 'UTC';
-  return zone === 'UTC' ? formatUtc(view.closesAt) : `${formatInZone(view.closesAt, zone)}, that is ${formatUtc(view.closesAt)}`;
+  return formatInZone(view.closesAt, view.timeZone ?? DEFAULT_TIME_ZONE);
 }
 
 const BASIS_HEADING = 'How the contract will be awarded (the published award basis)';

@@ -165,7 +165,7 @@ describe('vendors see the basis before bidding, never the estimate', () => {
     const saved = await vendors[0].send('put', `/api/tenders/${id}/bid`, { fixedFee: 100, capacity: null, prices: { R01: 10 }, submit: true, version: null });
     expect(saved.status).toBe(200);
     const receipt = await waitForMail(t, vendorUsers[0].email, `Receipt: your bid on ${reference}`);
-    expect(receipt.text).toContain('closing time (Tue, 1 Jul 2031, 12:00 GMT+1 (Europe/Dublin), 2031-07-01 11:00:00 UTC)');
+    expect(receipt.text).toContain('closing time (Tue, 1 Jul 2031, 12:00 GMT+1 (Europe/Dublin))');
   });
 
   test("the bid workbook's cover sheet states the basis and the zoned closing time, without the estimate", async () => {
@@ -173,7 +173,7 @@ describe('vendors see the basis before bidding, never the estimate', () => {
     expect(text).toContain('How the contract will be awarded (the published award basis)');
     expect(text).toContain('- No vendor will be awarded more than 60 % of the total quantity.');
     expect(text).toContain('- Quantities are awarded in whole multiples of 500 t.');
-    expect(text).toContain('Tue, 1 Jul 2031, 12:00 GMT+1 (Europe/Dublin), that is 2031-07-01 11:00 UTC');
+    expect(text).toContain('Tue, 1 Jul 2031, 12:00 GMT+1 (Europe/Dublin)');
     expect(text).not.toContain('987654');
     expect(text).not.toContain('987,654');
   });

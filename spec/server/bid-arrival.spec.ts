@@ -4,6 +4,7 @@ import { CLOSING_GRACE_MS, closeIfDue } from '../../server/services/tender-acces
 import { makeUser, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
 import { openTender } from '../support/tenders';
 import { waitFor } from '../support/wait';
+import { formatInZone } from '@shared/time-zone';
 
 /**
  * A bid is on time when its request arrived in full before the closing time (stamped by the server
@@ -80,7 +81,8 @@ test('a bid whose request arrived before the closing time is accepted and stampe
   const stored = await t.em().findOneOrFail(Bid, { tender: tenderId });
   expect(stored.submittedAt!.toISOString()).toBe(arrivedAt.toISOString());
   const receipt = await waitForMail(t, email, 'Receipt:');
-  expect(receipt.text).toContain(`at ${arrivedAt.toISOString().replace('T', ' ').replace('Z', ' UTC')}`);
+  // The receipt time in the one date-time format, to the second, in the tender's zone (UTC here).
+  expect(receipt.text).toContain(`at ${formatInZone(arrivedAt, 'UTC', { seconds: true })}.`);
 });
 
 test('closing waits for a bid received in time that is still being stored, and counts it at opening', async () => {

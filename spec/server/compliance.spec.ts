@@ -2,6 +2,7 @@ import XlsxPopulate from 'xlsx-populate';
 import { simpleParser } from 'mailparser';
 import type { OpeningRecordView } from '@shared/compliance';
 import type { TabulatedBid } from '@shared/tenders';
+import { formatInZone } from '@shared/time-zone';
 import { AuditEntry, Bid, MailMessage, OpeningRecord, Tender, type User } from '../../server/entities';
 import { digestOf } from '../../server/services/audit.service';
 import { OPENING_RECORD_LAYOUT } from '../../server/workbooks/opening-record-workbook';
@@ -113,10 +114,12 @@ test('the opening record lists every bid received and withdrawn; the SHA-256 rec
   expect(file.headers['content-disposition']).toMatch(/opening-record\.xlsx/);
   const sheet = (await XlsxPopulate.fromDataAsync(file.body as Buffer)).sheet(OPENING_RECORD_LAYOUT.sheet)!;
   const rows = view.record.bids.map((_, i) => [1, 2, 3, 4].map((c) => sheet.cell(OPENING_RECORD_LAYOUT.firstBidRow + i, c).value()));
-  expect(rows).toEqual(view.record.bids.map((b) => [b.vendor.name, b.receivedAt, b.revision, b.digest]));
+  // Times in the one date-time format, in the tender's zone (named in the heading).
+  const when = (iso: string) => formatInZone(iso, 'UTC', { named: false, seconds: true });
+  expect(rows).toEqual(view.record.bids.map((b) => [b.vendor.name, when(b.receivedAt), b.revision, b.digest]));
   expect(sheet.cell(OPENING_RECORD_LAYOUT.digest).value()).toContain(view.digest);
   const afterBids = OPENING_RECORD_LAYOUT.firstBidRow + view.record.bids.length + 2;
-  expect([sheet.cell(afterBids, 1).value(), sheet.cell(afterBids, 2).value()]).toEqual([vendors['W'].name, view.record.withdrawn[0].withdrawnAt]);
+  expect([sheet.cell(afterBids, 1).value(), sheet.cell(afterBids, 2).value()]).toEqual([vendors['W'].name, when(view.record.withdrawn[0].withdrawnAt)]);
 });
 
 test('no opening record before closing, and none for a tender closed before records were kept: 404 saying which', async () => {
@@ -237,7 +240,7 @@ test("after the bids' validity has ended, approval is refused until each awarded
   // Time moves by storing an older closing time: 91 days ago, validity 90 days → ended yesterday.
   const closesAt = new Date(Date.now() - 91 * DAY);
   await t.em().nativeUpdate(Tender, { id: tenderId }, { closesAt });
-  const ended = new Date(closesAt.getTime() + 90 * DAY).toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
+  const ended = formatInZone(new Date(closesAt.getTime() + 90 * DAY), 'UTC');
   const [first, second] = [vendors['A'], vendors['C']].sort((x, y) => (run.result!.awards.findIndex((a) => a.vendor === x.orgId) - run.result!.awards.findIndex((a) => a.vendor === y.orgId)));
   const refused = await compliance.post(`/api/tenders/${tenderId}/recommendation/approve`, { comment: 'Checked.' });
   expect({ status: refused.status, detail: refused.body.detail }).toEqual({

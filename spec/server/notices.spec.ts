@@ -1,6 +1,6 @@
 import { simpleParser } from 'mailparser';
 import type { RunView } from '@shared/evaluation';
-import { utcToWallTime } from '@shared/time-zone';
+import { formatInZone, utcToWallTime } from '@shared/time-zone';
 import { MailMessage, Notice, Recommendation, Tender } from '../../server/entities';
 import { standstillEnd } from '../../server/services/standstill';
 import { startMailCatcher } from '../../server/mail/catcher';
@@ -103,11 +103,10 @@ describe('with the mail server up', () => {
     const expected = standstillEnd({ approvedAt: rec.decidedAt!, days: 10, timeZone: 'Europe/Dublin', country: 'IE', closureDays: tender.closureDays });
     expect(tender.standstillEndsAt?.toISOString()).toBe(expected.endsAt.toISOString());
     expect(utcToWallTime(expected.endsAt.toISOString(), 'Europe/Dublin').slice(11)).toBe('23:59');
-    const end = new Intl.DateTimeFormat('en-GB', {
-      timeZone: 'Europe/Dublin', weekday: 'long', day: 'numeric', month: 'long', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short',
-    }).format(expected.endsAt);
+    // The one date-time format, in the letters' locale.
+    const end = formatInZone(expected.endsAt, 'Europe/Dublin', { locale: tender.locale });
     const preview = (await buyer.get(`/api/tenders/${tenderId}/notices/preview`)).body as { text: string }[];
-    expect(preview.map((l) => l.text.includes(`${end} (Europe/Dublin)`))).toEqual(Array(7).fill(true));
+    expect(preview.map((l) => l.text.includes(`on ${end}.`))).toEqual(Array(7).fill(true));
   });
 
   test('the preview is byte for byte what is sent: each letter as previewed equals the mail the catcher received', async () => {

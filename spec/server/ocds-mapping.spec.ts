@@ -108,7 +108,7 @@ test('each release shows the tender as it stood then: published items and closin
   expect(first.tender.items.map((i) => [i.id, i.quantity])).toEqual([['R01', 1000], ['R02', 2000]]);
   expect(second.tender.items.map((i) => [i.id, i.quantity])).toEqual([['R01', 1000], ['R02', 2500], ['R03', 500]]);
   expect(second.tender['amendments']).toEqual([
-    { id: '1', date: '2026-10-10T10:00:00.000Z', rationale: 'More time for site visits.', description: 'Closing time extended from 2026-10-27 12:00 UTC to 2026-11-03 12:00 UTC. Description changed.', amendsReleaseID: published.id, releaseID: first.id },
+    { id: '1', date: '2026-10-10T10:00:00.000Z', rationale: 'More time for site visits.', description: 'Closing time extended from Tue, 27 Oct 2026, 12:00 GMT (Europe/Dublin) to Tue, 3 Nov 2026, 12:00 GMT (Europe/Dublin). Description changed.', amendsReleaseID: published.id, releaseID: first.id },
     { id: '2', date: '2026-10-20T10:00:00.000Z', rationale: 'A third depot joins.', description: 'Region R03 (East depot) added, forecast 500 t. Region R02 (South depot): forecast changed from 2000 t to 2500 t.', amendsReleaseID: first.id, releaseID: second.id },
   ]);
   // The enquiry period ends 5 days before the closing time in force (no deadline set by hand).

@@ -1,3 +1,4 @@
+import { formatInZone } from '@shared/time-zone';
 import { Amendment, AuditEntry, Bid, BidRemovedLine, MailMessage, Question, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { CLOSING_GRACE_MS, closeIfDue } from '../../server/services/tender-access';
@@ -103,7 +104,8 @@ describe('clarifications', () => {
     await t.em().nativeUpdate(Tender, { id }, { clarificationsCloseAt: deadline });
     const res = await v.b.post(`/api/tenders/${id}/questions`, { text: 'Too late?' });
     expect(res.status).toBe(409);
-    expect(res.body.detail).toContain(deadline.toISOString().slice(0, 16).replace('T', ' '));
+    // In the one date-time format, in the tender's zone (UTC here).
+    expect(res.body.detail).toContain(`The clarification deadline was ${formatInZone(deadline, 'UTC')}:`);
     expect(await t.em().count(Question, { tender: id })).toBe(0);
   });
 

@@ -8,6 +8,7 @@ import { ConflictError } from '../../http/errors';
 import { renderMail } from '../../mail/templates';
 import { normaliseEmail } from '@shared/auth';
 import { LIVE_BID_STATUSES } from '@shared/tenders';
+import { formatInZone } from '@shared/time-zone';
 import { standstillEnd } from '../standstill';
 
 export interface Letter {
@@ -51,16 +52,13 @@ export function storedStandstillEnd(tender: Tender, approvedAt: Date): Date {
 export function letterFormats(tender: Tender) {
   const locale = tender.locale;
   const long = new Intl.DateTimeFormat(locale, { dateStyle: 'long', timeZone: tender.timeZone });
-  const endFormat = new Intl.DateTimeFormat(locale, {
-    timeZone: tender.timeZone, weekday: 'long', day: 'numeric', month: 'long', year: 'numeric', hour: '2-digit', minute: '2-digit', hourCycle: 'h23', timeZoneName: 'short',
-  });
   return {
     money: new Intl.NumberFormat(locale, { style: 'currency', currency: tender.currency }),
     price: new Intl.NumberFormat(locale, { style: 'currency', currency: tender.currency, maximumFractionDigits: 4 }),
     qty: new Intl.NumberFormat(locale, { maximumFractionDigits: 3 }),
     date: (d: Date) => long.format(d),
-    /** "Wednesday 18 March 2026 at 23:59 GMT (Europe/Dublin)": the zone named. */
-    moment: (d: Date) => `${endFormat.format(d)} (${tender.timeZone})`,
+    /** "Wed, 18 Mar 2026, 23:59 GMT (Europe/Dublin)": the one date-time format, in the letter's locale. */
+    moment: (d: Date) => formatInZone(d, tender.timeZone, { locale }),
   };
 }
 

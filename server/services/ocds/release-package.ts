@@ -208,7 +208,7 @@ export function buildReleasePackage(input: OcdsInput, options: OcdsOptions): Jso
       tender.amendments = amendmentsSoFar.map((a) => {
         const own = stages.findIndex((s) => s.key === `amendment-${a.number}`);
         return {
-          id: String(a.number), date: a.issuedAt.toISOString(), rationale: a.reason, description: describeChanges(a.changes, t.unit).join(' '),
+          id: String(a.number), date: a.issuedAt.toISOString(), rationale: a.reason, description: describeChanges(a.changes, t.unit, t.timeZone).join(' '),
           amendsReleaseID: releaseId(stages[own - 1]), releaseID: releaseId(stages[own]),
         };
       });

@@ -12,4 +12,4 @@ export const formatQuantity = (n: number): string => quantity.format(n);
 export const percentText = (fraction: number): string => percentWords(fraction);
 
 /** A stored instant in the tender's time zone (zone not repeated: the report names it once). */
-export const dateTime = (iso: string | null, timeZone: string): string => (iso ? formatInZone(iso, timeZone, 'en-GB', false) : '—');
+export const dateTime = (iso: string | null, timeZone: string): string => (iso ? formatInZone(iso, timeZone, { named: false }) : '—');

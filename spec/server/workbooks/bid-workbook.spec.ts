@@ -67,11 +67,11 @@ describe('bid workbook: download, fill in, upload', () => {
     expect(result).toEqual({ ok: true, bid: draft, priceCells: { 'NW-02': 'Bid!E9', 'NW-03': 'Bid!E10' } });
   });
 
-  it('has an instructions sheet with the closing time in UTC, the blank rule, the file rules and the caution', async () => {
+  it('has an instructions sheet with the closing time in the one date-time format (no zone given: UTC), the blank rule, the file rules and the caution', async () => {
     const workbook = await XlsxPopulate.fromDataAsync(await buildBidWorkbook(view));
     expect(workbook.sheets().map((s) => s.name())).toEqual(['Instructions', 'Bid']);
     const text = (sheetOf(workbook, 'Instructions').usedRange()?.value() ?? []).flat().map(String).join('\n');
-    expect(text).toContain('2026-03-02 11:00 UTC');
+    expect(text).toContain('Mon, 2 Mar 2026, 11:00 UTC');
     expect(text).toMatch(/Leave a price blank if you do not offer that region/);
     expect(text).toMatch(/Keep the file as \.xlsx/);
     expect(text).toMatch(/Formulas are not accepted/);

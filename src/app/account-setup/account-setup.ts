@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, inject, input } from '@angular/core';
 import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { AbstractControl, NonNullableFormBuilder, ReactiveFormsModule, ValidationErrors } from '@angular/forms';
@@ -15,6 +14,7 @@ import { formSubmission } from '../ui/form-submission';
 import { fieldMessage, zodValidator } from '../ui/zod-validator';
 import { AccountSetupApi } from './account-setup-api';
 import { apiProblem, loadErrorMessage } from '../ui/load-error';
+import { DateTimePipe } from '../ui/date-time.pipe';
 
 /** A typing slip is caught here; the server only ever sees one password. */
 function sameAsPassword(control: AbstractControl): ValidationErrors | null {
@@ -29,7 +29,7 @@ function sameAsPassword(control: AbstractControl): ValidationErrors | null {
   imports: [
     ReactiveFormsModule,
     RouterLink,
-    DatePipe,
+    DateTimePipe,
     MatFormFieldModule,
     MatInputModule,
     MatButtonModule,

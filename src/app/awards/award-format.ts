@@ -1,8 +1,9 @@
 /**
- * How the award screens write numbers, times and digests: always in the viewer's locale and
- * time zone, amounts in the tender's currency (numbers: ui/number-format.ts).
+ * How the award screens write numbers, times and digests: times in the procedure's zone, amounts in
+ * the tender's currency (numbers: ui/number-format.ts).
  */
 
+import { DEFAULT_TIME_ZONE, formatInZone } from '@shared/time-zone';
 import { fractionPercent } from '../ui/number-format';
 
 /**
@@ -14,20 +15,12 @@ export function percent(value: number, maximumFractionDigits = 2): string {
   return fractionPercent(value, maximumFractionDigits);
 }
 
-export const DATE_TIME: Intl.DateTimeFormatOptions = {
-  year: 'numeric',
-  month: 'short',
-  day: 'numeric',
-  hour: '2-digit',
-  minute: '2-digit',
-  second: '2-digit',
-  timeZoneName: 'short',
-};
-
-/** Date and time in the viewer's own zone, with the zone named so a printout is unambiguous. */
-export function localDateTime(iso: string): string {
-  // dateStyle/timeStyle cannot be combined with timeZoneName, hence the separate fields.
-  return new Intl.DateTimeFormat(undefined, DATE_TIME).format(new Date(iso));
+/**
+ * Date and time to the second in the procedure's zone (DEFAULT_TIME_ZONE for the admin's screens),
+ * in the one date-time format of shared/time-zone.ts, the zone named so a printout is unambiguous.
+ */
+export function localDateTime(iso: string, timeZone: string = DEFAULT_TIME_ZONE): string {
+  return formatInZone(iso, timeZone, { seconds: true });
 }
 
 /** The first characters of a hex digest; the full value goes in a title attribute beside it. */

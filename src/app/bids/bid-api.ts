@@ -4,6 +4,7 @@ import type { BidFigures } from '@shared/bids';
 import type { BidSave, BidView } from '@shared/tenders';
 import { Observable, map } from 'rxjs';
 import { API_BASE_URL } from '../core/http/api-base-url';
+import { transferProgress, type Transfer } from '../ui/transfer';
 
 /** A vendor's calls about its own bid on one tender. */
 @Injectable({ providedIn: 'root' })
@@ -25,11 +26,13 @@ export class BidApi {
     return this.http.post<BidView>(`${this.url(tenderId)}/bid/withdraw`, { version });
   }
 
-  /** Parses a filled-in workbook into figures for review; nothing is submitted. */
-  upload(tenderId: string, file: File): Observable<{ documentId: string; bid: BidFigures }> {
+  /** Parses a filled-in workbook into figures for review; nothing is submitted. With its progress (ui/transfer.ts). */
+  upload(tenderId: string, file: File): Observable<Transfer<{ documentId: string; bid: BidFigures }>> {
     const body = new FormData();
     body.append('file', file, file.name);
-    return this.http.post<{ documentId: string; bid: BidFigures }>(`${this.url(tenderId)}/bid-workbook`, body);
+    return this.http
+      .post<{ documentId: string; bid: BidFigures }>(`${this.url(tenderId)}/bid-workbook`, body, { observe: 'events', reportProgress: true })
+      .pipe(transferProgress({ sending: `Sending ${file.name}`, waiting: `Reading workbook ${file.name}…` }, (response) => response.body!));
   }
 
   /** After closing: confirms the bid stays valid for one more validity period (or until `until`). */

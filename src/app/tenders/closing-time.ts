@@ -1,6 +1,6 @@
 import { Signal } from '@angular/core';
 import { toSignal } from '@angular/core/rxjs-interop';
-import { formatInZone } from '@shared/time-zone';
+import { DEFAULT_TIME_ZONE, formatInZone } from '@shared/time-zone';
 import { interval, map } from 'rxjs';
 
 const MINUTE = 60_000;
@@ -20,15 +20,11 @@ export function timeLeft(closesAt: string, now: number): string {
 }
 
 /**
- * The closing time in the tender's time zone, the zone named ("Tue, 1 Jul 2031, 12:00 GMT+1
- * (Europe/Dublin)"); without a zone, in the viewer's own, named too.
+ * A time of the procedure in its zone, the zone named ("Tue, 1 Jul 2031, 12:00 GMT+1
+ * (Europe/Dublin)"): the one date-time format (shared/time-zone.ts; templates use the `dateTime` pipe).
  */
-export function localClosingTime(iso: string, timeZone?: string, named = true): string {
-  if (timeZone) return formatInZone(iso, timeZone, 'en-GB', named);
-  // dateStyle cannot be combined with timeZoneName, hence the separate fields.
-  return new Intl.DateTimeFormat(undefined, {
-    weekday: 'short', day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', timeZoneName: 'short',
-  }).format(new Date(iso));
+export function localClosingTime(iso: string, timeZone: string = DEFAULT_TIME_ZONE, named = true): string {
+  return formatInZone(iso, timeZone, { named });
 }
 
 export function hasClosed(closesAt: string, now: number): boolean {

@@ -6,6 +6,7 @@ import type { VendorOrganisationView } from '@shared/people';
 import type { BidsAnswer, InvitationInput, TabulatedBid, TenderInput, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
 import { Observable } from 'rxjs';
 import { API_BASE_URL } from '../core/http/api-base-url';
+import { transferProgress, type Transfer } from '../ui/transfer';
 
 /** Buyer, compliance and admin calls about tenders, their invitations and (after closing) their bids. */
 @Injectable({ providedIn: 'root' })
@@ -34,10 +35,12 @@ export class TenderApi {
   }
 
   /** Reads regions from an .xlsx or .csv; the server stores nothing. */
-  importRegions(file: File): Observable<{ regions: RegionInput[] }> {
+  importRegions(file: File): Observable<Transfer<{ regions: RegionInput[] }>> {
     const body = new FormData();
     body.append('file', file, file.name);
-    return this.http.post<{ regions: RegionInput[] }>(`${this.base}/tenders/regions/import`, body);
+    return this.http
+      .post<{ regions: RegionInput[] }>(`${this.base}/tenders/regions/import`, body, { observe: 'events', reportProgress: true })
+      .pipe(transferProgress({ sending: `Sending ${file.name}`, waiting: `Reading ${file.name}…` }, (response) => response.body!));
   }
 
   organisations(): Observable<VendorOrganisationView[]> {

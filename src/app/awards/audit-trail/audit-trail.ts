@@ -10,15 +10,17 @@ import type { AuditVerification } from '@shared/evaluation';
 import { ROLE_LABELS, type Role } from '@shared/roles';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
-import { localDateTime, shortDigest } from '../award-format';
+import { shortDigest } from '../award-format';
 import { localClosingTime } from '../../tenders/closing-time';
 import { loadErrorMessage } from '../../ui/load-error';
+import { DownloadLink } from '../../ui/download-link';
+import { SkeletonRows } from '../../ui/skeleton-rows';
 
 /** tenders/:id/evaluation/audit — every state change and decision, hash-chained, with a check of the chain. */
 @Component({
   selector: 'app-audit-trail',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatTableModule, MatButtonModule, MatIconModule, MatProgressBarModule, MatTooltipModule],
+  imports: [SkeletonRows, DownloadLink, RouterLink, MatTableModule, MatButtonModule, MatIconModule, MatProgressBarModule, MatTooltipModule],
   templateUrl: './audit-trail.html',
   styleUrl: './audit-trail.scss',
 })
@@ -52,7 +54,7 @@ export class AuditTrail {
   /** "Thu, 3 Dec 2026, 02:31 GMT", in the procedure's zone (named above the table) once the tender is loaded. */
   protected when(iso: string): string {
     const zone = this.timeZone();
-    return zone ? localClosingTime(iso, zone, false) : localDateTime(iso);
+    return zone ? localClosingTime(iso, zone, false) : '…';
   }
   protected readonly short = shortDigest;
 

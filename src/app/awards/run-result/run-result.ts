@@ -3,7 +3,6 @@ import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
-import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import type { RecommendationView, RunView } from '@shared/evaluation';
@@ -22,6 +21,8 @@ import { ShareChart, type ChartItem } from '../share-chart/share-chart';
 import { EngineDetails } from '../engine-details/engine-details';
 import { awardStatusWords, marginAboveBest } from '@shared/award-wording';
 import { whenConfirmed } from '../../ui/confirm-dialog';
+import { DownloadLink } from '../../ui/download-link';
+import { ProgressNote } from '../../ui/progress-note';
 
 /** How often an unfinished run is asked for again. */
 export const RUN_POLL_MS = 1000;
@@ -30,11 +31,10 @@ export const RUN_POLL_MS = 1000;
 @Component({
   selector: 'app-run-result',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [
+  imports: [ProgressNote, DownloadLink, 
     RouterLink,
     MatButtonModule,
     MatIconModule,
-    MatProgressBarModule,
     MatTableModule,
     AllocationMatrix,
     AwardCaution,

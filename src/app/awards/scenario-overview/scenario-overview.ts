@@ -18,6 +18,7 @@ import { money } from '../../ui/number-format';
 import { RUN_STATUS_LABELS, hasAward } from '../run-status';
 import { describeRules } from '../rules-summary';
 import { ScenarioEditor, type ScenarioEditorData } from '../scenario-editor/scenario-editor';
+import { SkeletonRows } from '../../ui/skeleton-rows';
 
 /** The compare route takes two to eight runs (compareQuerySchema). */
 const MAX_COMPARED = 8;
@@ -26,7 +27,7 @@ const MAX_COMPARED = 8;
 @Component({
   selector: 'app-scenario-overview',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatTableModule, MatButtonModule, MatIconModule, MatCheckboxModule, MatProgressBarModule],
+  imports: [SkeletonRows, RouterLink, MatTableModule, MatButtonModule, MatIconModule, MatCheckboxModule, MatProgressBarModule],
   templateUrl: './scenario-overview.html',
   styleUrl: './scenario-overview.scss',
 })
@@ -66,7 +67,7 @@ export class ScenarioOverview {
   protected statusText(status: RunStatus): string {
     return RUN_STATUS_LABELS[status];
   }
-  protected readonly when = localDateTime;
+  protected readonly when = (iso: string) => localDateTime(iso, this.tender()?.timeZone);
   protected readonly selectable = (run: RunSummary) => hasAward(run.status) || run.status === 'infeasible';
 
   constructor() {

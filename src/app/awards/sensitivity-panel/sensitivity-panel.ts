@@ -13,6 +13,7 @@ import { CategoryScale, Chart, Legend, LinearScale, LineController, LineElement,
 import { Subject, catchError, exhaustMap, of, startWith, switchMap, takeWhile, timer } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { money } from '../../ui/number-format';
+import { ProgressNote } from '../../ui/progress-note';
 import { AwardApi } from '../award-api';
 import type { MatrixRegion } from '../allocation-matrix/allocation-matrix';
 import { percent } from '../award-format';
@@ -51,7 +52,7 @@ function signed(percentValue: number): string {
 @Component({
   selector: 'app-sensitivity-panel',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [NgTemplateOutlet, RouterLink, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule],
+  imports: [ProgressNote, NgTemplateOutlet, RouterLink, ReactiveFormsModule, MatButtonModule, MatFormFieldModule, MatIconModule, MatProgressBarModule, MatSelectModule],
   templateUrl: './sensitivity-panel.html',
   styleUrl: './sensitivity-panel.scss',
 })

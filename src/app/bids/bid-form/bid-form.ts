@@ -10,6 +10,7 @@ import { MatInputModule } from '@angular/material/input';
 import { bidSaveSchema, isLiveBid, type BidSave, type BidView, type TenderView } from '@shared/tenders';
 import { startWith } from 'rxjs';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
+import { formatInZone } from '@shared/time-zone';
 import { hasClosed, localClosingTime, minuteClock } from '../../tenders/closing-time';
 import { BID_STATUS_LABELS } from '../../tenders/tender-status';
 import { money, quantity } from '../../ui/number-format';
@@ -20,12 +21,15 @@ import { BidApi } from '../bid-api';
 import { totalAtForecast } from '../bid-total';
 import { bidFigures, bidFormGroup, controlFor, fillBid, syncCap, type BidFormGroup } from './bid-fields';
 import { controlPath } from '@shared/field-path';
+import { DownloadLink } from '../../ui/download-link';
+import { ProgressNote } from '../../ui/progress-note';
+import type { Transfer } from '../../ui/transfer';
 
 /** The vendor's bid on one tender: by form or by workbook, saved, submitted, revised or withdrawn. */
 @Component({
   selector: 'app-bid-form',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule, MoneyInput],
+  imports: [DownloadLink, ProgressNote, ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule, MoneyInput],
   templateUrl: './bid-form.html',
   styleUrl: './bid-form.scss',
   // Closing or reloading the tab with unsaved figures asks first (leaving within the app: the route guard).
@@ -50,6 +54,8 @@ export class BidForm {
   protected readonly conflict = signal<string | null>(null);
   protected readonly uploadErrors = signal<FieldProblem[]>([]);
   protected readonly uploading = signal(false);
+  /** What the upload is doing: sending (with its percentage), then the server reading the workbook. */
+  protected readonly uploadProgress = signal<Transfer<unknown> | null>(null);
   /** The workbook the figures on screen came from; sent with the next save, then forgotten. */
   protected readonly documentId = signal<string | null>(null);
   protected readonly uploadedName = signal<string | null>(null);
@@ -246,14 +252,21 @@ export class BidForm {
     input.value = '';
     if (!file || this.isClosed()) return;
     this.uploading.set(true);
+    this.uploadProgress.set({ text: `Sending ${file.name}`, percent: 0 });
     this.uploadErrors.set([]);
     this.failure.set(null);
     this.api
       .upload(this.tender().id, file)
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
-        next: ({ documentId, bid }) => {
+        next: (progress) => {
+          if (!progress.result) {
+            this.uploadProgress.set(progress);
+            return;
+          }
+          const { documentId, bid } = progress.result;
           this.uploading.set(false);
+          this.uploadProgress.set(null);
           fillBid(this.form, bid);
           this.form.markAllAsTouched();
           this.form.markAsDirty();
@@ -264,6 +277,7 @@ export class BidForm {
         },
         error: (error: unknown) => {
           this.uploading.set(false);
+          this.uploadProgress.set(null);
           const problem = error instanceof ApiError ? error : null;
           this.uploadErrors.set(
             problem?.fieldErrors.length ? [...problem.fieldErrors] : [{ field: 'file', message: problem?.userMessage ?? 'The workbook could not be read.' }],
@@ -303,8 +317,6 @@ export class BidForm {
   }
 
   protected submittedAt(iso: string): string {
-    return new Intl.DateTimeFormat(undefined, {
-      day: 'numeric', month: 'short', year: 'numeric', hour: '2-digit', minute: '2-digit', second: '2-digit', timeZoneName: 'short',
-    }).format(new Date(iso));
+    return formatInZone(iso, this.tender().timeZone, { seconds: true });
   }
 }

@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, signal } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
@@ -14,13 +13,15 @@ import { ApiError } from '../../core/http/api-error';
 import { NoticeApi } from '../notice-api';
 import { NOTICE_KIND_LABELS, NOTICE_STATUS_LABELS, noticeDate } from '../notice-labels';
 import { NoticeStatusBadge } from '../notice-status-badge';
+import { DateTimePipe } from '../../ui/date-time.pipe';
+import { SkeletonRows } from '../../ui/skeleton-rows';
 
 /** /notices — a vendor's letters, or for the other roles the notices of the tenders they may see. */
 @Component({
   selector: 'app-notice-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    DatePipe,
+    SkeletonRows, DateTimePipe,
     RouterLink,
     MatButtonModule,
     MatFormFieldModule,

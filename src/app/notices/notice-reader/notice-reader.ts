@@ -43,7 +43,7 @@ export class NoticeReader {
 
   /** A time of the letter as the letter writes it: the procedure's zone (named) and the letter's locale. */
   protected inZone(iso: string, letter: Pick<NoticeSummary, 'timeZone' | 'locale'>): string {
-    return formatInZone(iso, letter.timeZone, letter.locale);
+    return formatInZone(iso, letter.timeZone, { locale: letter.locale });
   }
 
   protected print(): void {

@@ -15,6 +15,7 @@ import { LetterFrame } from '../letter-frame/letter-frame';
 import { NOTICE_POLL_MS, NoticeApi } from '../notice-api';
 import { NOTICE_KIND_LABELS, anyQueued } from '../notice-labels';
 import { NoticeStatusTable } from '../notice-status-table/notice-status-table';
+import { DownloadLink } from '../../ui/download-link';
 
 /** Shown beside the send button: the product prepares the letters, the buyer answers for the duty. */
 export const NOTICE_CAUTION =
@@ -35,7 +36,7 @@ function plural(count: number, one: string, many: string): string {
 @Component({
   selector: 'app-notice-sender',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, LetterFrame, NoticeStatusTable],
+  imports: [DownloadLink, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, LetterFrame, NoticeStatusTable],
   templateUrl: './notice-sender.html',
   styleUrl: './notice-sender.scss',
 })

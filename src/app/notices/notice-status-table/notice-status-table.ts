@@ -1,16 +1,16 @@
-import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, input } from '@angular/core';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import type { NoticeSummary } from '@shared/notices';
 import { NOTICE_KIND_LABELS } from '../notice-labels';
 import { NoticeStatusBadge } from '../notice-status-badge';
+import { DateTimePipe } from '../../ui/date-time.pipe';
 
 /** The delivery state of one tender's notices, one row per bidder. */
 @Component({
   selector: 'app-notice-status-table',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, RouterLink, MatTableModule, NoticeStatusBadge],
+  imports: [DateTimePipe, RouterLink, MatTableModule, NoticeStatusBadge],
   template: `
     <div class="table-scroll">
       <table mat-table [dataSource]="notices()" aria-label="Delivery of the notices">
@@ -40,7 +40,7 @@ import { NoticeStatusBadge } from '../notice-status-badge';
         <ng-container matColumnDef="sentAt">
           <th mat-header-cell *matHeaderCellDef scope="col">Sent</th>
           <td mat-cell *matCellDef="let notice" class="nowrap">
-            {{ notice.sentAt ? (notice.sentAt | date: 'd MMM y, HH:mm:ss') : '—' }}
+            {{ notice.sentAt | dateTime: notice.timeZone : { seconds: true } }}
           </td>
         </ng-container>
 

@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { BreakpointObserver } from '@angular/cdk/layout';
 import { ChangeDetectionStrategy, Component, computed, effect, inject, input } from '@angular/core';
 import { rxResource, toSignal } from '@angular/core/rxjs-interop';
@@ -14,6 +13,8 @@ import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import { map } from 'rxjs';
 import { OutboxApi } from '../outbox-api';
 import { loadErrorMessage } from '../../ui/load-error';
+import { DateTimePipe } from '../../ui/date-time.pipe';
+import { SkeletonRows } from '../../ui/skeleton-rows';
 
 /** Messages per page. */
 const PAGE_SIZE = 25;
@@ -22,7 +23,7 @@ const PAGE_SIZE = 25;
 @Component({
   selector: 'app-outbox-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, RouterLink, ReactiveFormsModule, MatTableModule, MatIconModule, MatButtonModule, MatProgressBarModule, MatFormFieldModule, MatInputModule, MatPaginatorModule],
+  imports: [SkeletonRows, DateTimePipe, RouterLink, ReactiveFormsModule, MatTableModule, MatIconModule, MatButtonModule, MatProgressBarModule, MatFormFieldModule, MatInputModule, MatPaginatorModule],
   templateUrl: './outbox-list.html',
   styleUrl: './outbox-list.scss',
 })

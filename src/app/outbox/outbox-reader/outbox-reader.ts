@@ -1,4 +1,3 @@
-import { DatePipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
 import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
@@ -8,6 +7,7 @@ import { DomSanitizer, SafeHtml } from '@angular/platform-browser';
 import { RouterLink } from '@angular/router';
 import { OutboxApi } from '../outbox-api';
 import { apiProblem, loadErrorMessage } from '../../ui/load-error';
+import { DateTimePipe } from '../../ui/date-time.pipe';
 
 /**
  * Fetches are refused inside the message (no remote images, fonts or tracking pixels); inline
@@ -32,7 +32,7 @@ export function messageDocument(html: string, sanitizer: DomSanitizer): SafeHtml
 @Component({
   selector: 'app-outbox-reader',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DatePipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule],
+  imports: [DateTimePipe, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule],
   templateUrl: './outbox-reader.html',
   styleUrl: './outbox-reader.scss',
 })

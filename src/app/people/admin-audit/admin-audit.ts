@@ -9,6 +9,7 @@ import { ROLE_LABELS, type Role } from '@shared/roles';
 import { localDateTime } from '../../awards/award-format';
 import { ApiError } from '../../core/http/api-error';
 import { PeopleApi } from '../people-api';
+import { SkeletonRows } from '../../ui/skeleton-rows';
 
 /** How many of the newest entries the page shows. */
 const SHOWN = 50;
@@ -17,7 +18,7 @@ const SHOWN = 50;
 @Component({
   selector: 'app-admin-audit',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatButtonModule, MatIconModule, MatProgressBarModule],
+  imports: [SkeletonRows, MatTableModule, MatButtonModule, MatIconModule, MatProgressBarModule],
   templateUrl: './admin-audit.html',
   styleUrl: './admin-audit.scss',
 })

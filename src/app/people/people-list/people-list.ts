@@ -31,6 +31,7 @@ import { InviteDialog } from '../invite-dialog/invite-dialog';
 import { PeopleApi } from '../people-api';
 import { STATUS_LABELS, personStatus } from '../person-status';
 import { loadErrorMessage } from '../../ui/load-error';
+import { SkeletonRows } from '../../ui/skeleton-rows';
 
 /** The text a row is sorted and filtered by, per column. */
 function cellText(person: PersonView, column: string): string {
@@ -59,7 +60,7 @@ function matches(person: PersonView, filter: string): boolean {
   selector: 'app-people-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    MatTableModule,
+    SkeletonRows, MatTableModule,
     MatSortModule,
     MatPaginatorModule,
     MatFormFieldModule,

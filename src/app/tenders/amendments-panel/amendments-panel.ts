@@ -28,7 +28,7 @@ export class AmendmentsPanel {
 
   protected readonly canAmend = computed(() => this.auth.user()?.role === 'buyer' && this.tender().status === 'open');
   protected readonly amendments = computed(() =>
-    this.tender().amendments.map((a) => ({ ...a, lines: describeChanges(a.changes, this.tender().unit) })).reverse());
+    this.tender().amendments.map((a) => ({ ...a, lines: describeChanges(a.changes, this.tender().unit, this.tender().timeZone) })).reverse());
   /** Times of the procedure are shown in its time zone, named. */
   protected readonly when = (iso: string) => localClosingTime(iso, this.tender().timeZone);
 

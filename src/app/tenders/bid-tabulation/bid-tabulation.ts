@@ -16,6 +16,8 @@ import { REGIONS_PER_PAGE, RegionPager, regionPage } from '../../ui/region-pages
 import { TenderApi } from '../tender-api';
 import { money, quantity } from '../../ui/number-format';
 import { loadErrorMessage } from '../../ui/load-error';
+import { DownloadLink } from '../../ui/download-link';
+import { SkeletonRows } from '../../ui/skeleton-rows';
 
 /** The lowest unit price bid for each region among the bids not excluded (regions nobody bid are left out). */
 export function lowestPrices(bids: readonly TabulatedBid[]): Record<string, number> {
@@ -45,7 +47,7 @@ export function isFlagged(bid: TabulatedBid): boolean {
 @Component({
   selector: 'app-bid-tabulation',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule, MatSortModule, MatButtonModule, MatIconModule, MatProgressBarModule, RegionPager],
+  imports: [SkeletonRows, DownloadLink, MatTableModule, MatSortModule, MatButtonModule, MatIconModule, MatProgressBarModule, RegionPager],
   templateUrl: './bid-tabulation.html',
   styleUrl: './bid-tabulation.scss',
 })

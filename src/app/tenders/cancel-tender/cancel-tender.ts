@@ -11,6 +11,7 @@ import type { TenderView } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { ProcedureApi } from '../procedure-api';
+import { localClosingTime } from '../closing-time';
 import { formSubmission } from '../../ui/form-submission';
 
 /** Asks for the reason and names what cancelling does; closes with the cancelled tender. */
@@ -110,7 +111,7 @@ export class CancelTender {
   readonly tender = input.required<TenderView>();
   readonly changed = output<TenderView>();
   protected readonly canCancel = computed(() => this.auth.user()?.role === 'buyer' && ['draft', 'open'].includes(this.tender().status));
-  protected readonly when = (iso: string) => new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short' }).format(new Date(iso));
+  protected readonly when = (iso: string) => localClosingTime(iso, this.tender().timeZone);
 
   protected open(): void {
     this.dialog

@@ -187,7 +187,7 @@ export class ContractsPanel {
   protected readonly view = computed(() => (this.contracts.hasValue() ? this.contracts.value() : null));
 
   protected inZone(iso: string): string {
-    return formatInZone(iso, this.tender().timeZone, this.tender().locale);
+    return formatInZone(iso, this.tender().timeZone, { locale: this.tender().locale });
   }
 
   protected recorded(view: ContractsView): void {

@@ -11,6 +11,7 @@ import { invitationInputSchema, type TenderView } from '@shared/tenders';
 import { ApiError } from '../../core/http/api-error';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
+import { localClosingTime } from '../closing-time';
 
 const newVendorFields = invitationInputSchema.shape.newVendor.unwrap().shape;
 
@@ -119,6 +120,6 @@ export class InvitationsPanel {
   }
 
   protected invitedOn(iso: string): string {
-    return new Intl.DateTimeFormat(undefined, { dateStyle: 'medium' }).format(new Date(iso));
+    return localClosingTime(iso, this.tender().timeZone);
   }
 }

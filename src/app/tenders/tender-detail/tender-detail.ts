@@ -23,12 +23,13 @@ import { QuestionsPanel } from '../questions-panel/questions-panel';
 import { RegionTable } from '../region-table/region-table';
 import { TenderApi } from '../tender-api';
 import { TENDER_STATUS_LABELS } from '../tender-status';
+import { DownloadLink } from '../../ui/download-link';
 
 /** /tenders/:id for buyer, compliance and admin: facts, regions, invitations, publishing and bids. */
 @Component({
   selector: 'app-tender-detail',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel, QuestionsPanel, AmendmentsPanel, CancelTender, ContractsPanel],
+  imports: [DownloadLink, RouterLink, MatButtonModule, MatIconModule, MatProgressBarModule, RegionTable, InvitationsPanel, BidTabulation, AwardBasisPanel, QuestionsPanel, AmendmentsPanel, CancelTender, ContractsPanel],
   templateUrl: './tender-detail.html',
   styleUrl: './tender-detail.scss',
 })

@@ -19,6 +19,8 @@ import { fieldMessage } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
 import { quantity } from '../../ui/number-format';
 import { clearServerProblems, controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm, zonedInstant } from './tender-form';
+import { ProgressNote } from '../../ui/progress-note';
+import type { Transfer } from '../../ui/transfer';
 
 /** Every IANA zone the browser knows. */
 const ZONES: readonly string[] = Intl.supportedValuesOf('timeZone');
@@ -38,6 +40,7 @@ function currencyName(code: string): string | null {
   selector: 'app-tender-editor',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
+    ProgressNote,
     ReactiveFormsModule, RouterLink, MatFormFieldModule, MatInputModule, MatButtonModule, MatIconModule, MatAutocompleteModule, MatRadioModule, MatSelectModule,
   ],
   templateUrl: './tender-editor.html',
@@ -61,6 +64,8 @@ export class TenderEditor {
   protected readonly busy = signal(false);
   protected readonly failure = signal<string | null>(null);
   protected readonly importing = signal(false);
+  /** What the import is doing: sending the file, then the server reading it. */
+  protected readonly importProgress = signal<Transfer<unknown> | null>(null);
   protected readonly importErrors = signal<{ field: string; message: string }[]>([]);
   protected readonly status = signal('');
   protected readonly fieldMessage = fieldMessage;
@@ -169,18 +174,26 @@ export class TenderEditor {
     input.value = '';
     if (!file) return;
     this.importing.set(true);
+    this.importProgress.set({ text: `Sending ${file.name}`, percent: 0 });
     this.importErrors.set([]);
     this.api
       .importRegions(file)
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
-        next: ({ regions }) => {
+        next: (progress) => {
+          if (!progress.result) {
+            this.importProgress.set(progress);
+            return;
+          }
+          const { regions } = progress.result;
           this.importing.set(false);
+          this.importProgress.set(null);
           setRegions(this.fb, this.regions, regions);
           this.status.set(`${regions.length} regions imported from ${file.name}. Check them, then save.`);
         },
         error: (error: unknown) => {
           this.importing.set(false);
+          this.importProgress.set(null);
           if (error instanceof ApiError && error.fieldErrors.length) {
             this.importErrors.set([...error.fieldErrors]);
             this.status.set(`${file.name} was not imported: ${error.fieldErrors.length} problems are listed.`);
