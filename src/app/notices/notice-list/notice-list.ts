@@ -14,12 +14,14 @@ import { ApiError } from '../../core/http/api-error';
 import { NoticeApi } from '../notice-api';
 import { NOTICE_KIND_LABELS, NOTICE_STATUS_LABELS, noticeDate } from '../notice-labels';
 import { NoticeStatusBadge } from '../notice-status-badge';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** /notices — a vendor's letters, or for the other roles the notices of the tenders they may see. */
 @Component({
   selector: 'app-notice-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
+    ScrollFrame,
     DatePipe,
     RouterLink,
     MatButtonModule,

@@ -17,12 +17,14 @@ import { TenderApi } from '../tender-api';
 import { BID_STATUS_LABELS, TENDER_STATUS_LABELS } from '../tender-status';
 import { quantity } from '../../ui/number-format';
 import { loadErrorMessage } from '../../ui/load-error';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** /tenders — every tender the person may see, filtered by status and searched on the server (?status=&q=). */
 @Component({
   selector: 'app-tender-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
+    ScrollFrame,
     RouterLink,
     MatTableModule,
     MatSortModule,
