@@ -20,12 +20,13 @@ import { BidApi } from '../bid-api';
 import { totalAtForecast } from '../bid-total';
 import { bidFigures, bidFormGroup, controlFor, fillBid, syncCap, type BidFormGroup } from './bid-fields';
 import { controlPath } from '@shared/field-path';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** The vendor's bid on one tender: by form or by workbook, saved, submitted, revised or withdrawn. */
 @Component({
   selector: 'app-bid-form',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule, MoneyInput],
+  imports: [ScrollFrame, ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule, MoneyInput],
   templateUrl: './bid-form.html',
   styleUrl: './bid-form.scss',
   // Closing or reloading the tab with unsaved figures asks first (leaving within the app: the route guard).
