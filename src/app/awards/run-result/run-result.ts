@@ -22,6 +22,7 @@ import { ShareChart, type ChartItem } from '../share-chart/share-chart';
 import { EngineDetails } from '../engine-details/engine-details';
 import { awardStatusWords, marginAboveBest } from '@shared/award-wording';
 import { whenConfirmed } from '../../ui/confirm-dialog';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** How often an unfinished run is asked for again. */
 export const RUN_POLL_MS = 1000;
@@ -31,6 +32,7 @@ export const RUN_POLL_MS = 1000;
   selector: 'app-run-result',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
+    ScrollFrame,
     RouterLink,
     MatButtonModule,
     MatIconModule,
