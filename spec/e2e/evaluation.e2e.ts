@@ -116,7 +116,7 @@ test('the run result shows the totals, the award by vendor, the allocation matri
   const vendorTable = page.getByRole('table', { name: 'Award by vendor' });
   const vendorRows = await vendorTable.getByRole('row').count();
   expect(vendorRows).toBeGreaterThanOrEqual(2); // header and at least one awarded vendor
-  const matrix = page.getByRole('region', { name: /scrolls sideways/ });
+  const matrix = page.getByRole('region', { name: 'Quantity awarded by vendor and region (scrolls sideways)' });
   await expect(matrix.getByRole('row').count()).resolves.toBe(vendorRows + 1); // plus the forecast footer
   await expect(matrix.getByRole('columnheader').count()).resolves.toBe(1 + 12);
   // Twelve depots do not fit beside the vendor names: the table says there is more, and scrolling

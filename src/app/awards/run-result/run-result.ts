@@ -23,6 +23,7 @@ import { awardStatusWords, marginAboveBest } from '@shared/award-wording';
 import { whenConfirmed } from '../../ui/confirm-dialog';
 import { DownloadLink } from '../../ui/download-link';
 import { ProgressNote } from '../../ui/progress-note';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** How often an unfinished run is asked for again. */
 export const RUN_POLL_MS = 1000;
@@ -31,7 +32,7 @@ export const RUN_POLL_MS = 1000;
 @Component({
   selector: 'app-run-result',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ProgressNote, DownloadLink, 
+  imports: [ProgressNote, DownloadLink, ScrollFrame,
     RouterLink,
     MatButtonModule,
     MatIconModule,

@@ -24,12 +24,13 @@ import { controlPath } from '@shared/field-path';
 import { DownloadLink } from '../../ui/download-link';
 import { ProgressNote } from '../../ui/progress-note';
 import type { Transfer } from '../../ui/transfer';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** The vendor's bid on one tender: by form or by workbook, saved, submitted, revised or withdrawn. */
 @Component({
   selector: 'app-bid-form',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DownloadLink, ProgressNote, ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule, MoneyInput],
+  imports: [ScrollFrame, DownloadLink, ProgressNote, ReactiveFormsModule, MatFormFieldModule, MatInputModule, MatCheckboxModule, MatButtonModule, MatIconModule, MoneyInput],
   templateUrl: './bid-form.html',
   styleUrl: './bid-form.scss',
   // Closing or reloading the tab with unsaved figures asks first (leaving within the app: the route guard).

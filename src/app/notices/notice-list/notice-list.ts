@@ -15,13 +15,14 @@ import { NOTICE_KIND_LABELS, NOTICE_STATUS_LABELS, noticeDate } from '../notice-
 import { NoticeStatusBadge } from '../notice-status-badge';
 import { DateTimePipe } from '../../ui/date-time.pipe';
 import { SkeletonRows } from '../../ui/skeleton-rows';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** /notices — a vendor's letters, or for the other roles the notices of the tenders they may see. */
 @Component({
   selector: 'app-notice-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    SkeletonRows, DateTimePipe,
+    SkeletonRows, DateTimePipe, ScrollFrame,
     RouterLink,
     MatButtonModule,
     MatFormFieldModule,

@@ -5,14 +5,15 @@ import type { NoticeSummary } from '@shared/notices';
 import { NOTICE_KIND_LABELS } from '../notice-labels';
 import { NoticeStatusBadge } from '../notice-status-badge';
 import { DateTimePipe } from '../../ui/date-time.pipe';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** The delivery state of one tender's notices, one row per bidder. */
 @Component({
   selector: 'app-notice-status-table',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [DateTimePipe, RouterLink, MatTableModule, NoticeStatusBadge],
+  imports: [ScrollFrame, DateTimePipe, RouterLink, MatTableModule, NoticeStatusBadge],
   template: `
-    <div class="table-scroll">
+    <div class="table-scroll" appScrollFrame="Delivery of the notices">
       <table mat-table [dataSource]="notices()" aria-label="Delivery of the notices">
         <ng-container matColumnDef="vendor">
           <th mat-header-cell *matHeaderCellDef scope="col">Vendor</th>

@@ -2,15 +2,16 @@ import { ChangeDetectionStrategy, Component, computed, input } from '@angular/co
 import { MatTableModule } from '@angular/material/table';
 import type { RegionView } from '@shared/tenders';
 import { quantity } from '../../ui/number-format';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** A tender's regions with their forecast quantities, read-only, with the total underneath. */
 @Component({
   selector: 'app-region-table',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatTableModule],
+  imports: [ScrollFrame, MatTableModule],
   template: `
     <div class="table-card">
-      <div class="table-scroll">
+      <div class="table-scroll" [appScrollFrame]="label()">
         <table mat-table [dataSource]="regions()" [attr.aria-label]="label()">
           <ng-container matColumnDef="code">
             <th mat-header-cell *matHeaderCellDef>Code</th>

@@ -18,13 +18,14 @@ import { BID_STATUS_LABELS, TENDER_STATUS_LABELS } from '../tender-status';
 import { quantity } from '../../ui/number-format';
 import { loadErrorMessage } from '../../ui/load-error';
 import { SkeletonRows } from '../../ui/skeleton-rows';
+import { ScrollFrame } from '../../ui/scroll-frame';
 
 /** /tenders — every tender the person may see, filtered by status and searched on the server (?status=&q=). */
 @Component({
   selector: 'app-tender-list',
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [
-    SkeletonRows, RouterLink,
+    SkeletonRows, ScrollFrame, RouterLink,
     MatTableModule,
     MatSortModule,
     MatChipsModule,
