@@ -33,6 +33,10 @@ const SPARE_CORES = availableParallelism() > 2;
 // The neighbourhood search starts only on models of this many columns or more: smaller ones are
 // proven by glpk.js or HiGHS A within a second or two, before it could help.
 const LNS_MIN_COLUMNS = 1000;
+// On sole award models the neighbourhood-search thread first spends this share of the limit on
+// the Lagrangian bound and heuristic (lagrangian.ts): a bound above the LP's, and awards repaired
+// from the relaxed solutions; the bound then closes the search once an award meets it.
+const LAGRANGIAN_SHARE = 0.15;
 
 const decisive = (o: EngineOutcome) => o.status === 'optimal' || o.status === 'infeasible';
 
@@ -83,7 +87,10 @@ async function neighbourhoodRun(request: EngineRequest, board: SharedArrayBuffer
   if (greedy) publishAward(board, costOf(model, greedy), greedy);
   signal.throwIfAborted();
   const seconds = Math.max(0.5, (deadline - performance.now()) / 1000);
-  return runInWorker(LNS_WORKER, { model, structure: { open: map.open, supply: map.supply }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000, randomSeed: 20_260 }, signal);
+  return runInWorker(LNS_WORKER, {
+    model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000,
+    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, relativeGap: request.relativeGap,
+  }, signal);
 }
 
 export const portfolioEngine: SolverEngine = {
@@ -103,7 +110,13 @@ export const portfolioEngine: SolverEngine = {
       // glpk.js runs in its own pool at a lower thread priority (workers/glpk-worker.mjs), so on a
       // busy machine it does not slow HiGHS A down.
       const highsA = runInWorker(HIGHS_WORKER, { model, timeLimitSeconds, relativeGap, board, randomSeed: 0, incumbent: request.incumbent }, stops[1].signal);
-      const glpk = runInWorker(GLPK_WORKER, { model, timeLimitSeconds: glpkLimit, relativeGap }, stops[0].signal);
+      // On a sole award model of some size the Lagrangian bound and heuristic take glpk.js's
+      // place from the start: glpk.js does not prove such models in its short share, and they
+      // need the core it would hold.
+      const lagrangianFirst = !!request.map && model.numCols >= LNS_MIN_COLUMNS && request.map.soleColumn.every(Boolean);
+      const glpk = lagrangianFirst
+        ? Promise.reject(new Error('the Lagrangian bound runs instead of glpk.js on a large sole award model'))
+        : runInWorker(GLPK_WORKER, { model, timeLimitSeconds: glpkLimit, relativeGap }, stops[0].signal);
       // Runs that start when glpk.js stops, so that glpk.js and they never compete for a core.
       const afterGlpk = glpk.catch(() => null).then((g) => {
         if (g && decisive(g)) throw new Error('glpk.js finished first');

@@ -8,20 +8,65 @@
 // The portfolio stops this worker by terminating its thread; on its own it stops at its deadline.
 import { bestAward, publishAward } from '../award-board';
 import { cleaned, costOf, randomSource, satisfiesRows } from '../kernel';
+import { roundedBound, soleData, subgradient, type SoleData } from '../lagrangian';
 import type { MipModel } from '../model';
 import type { EngineOutcome } from '../solve';
-import { createHighsModel, engineLabel, highsRuntime } from './highs-model';
+import { createHighsModel, engineLabel, highsRuntime, type HighsModel } from './highs-model';
 import { setThreadPriority } from './low-priority';
 import { neighbourhood, prepare, readAward, type ModelStructure, type NeighbourhoodKind } from './neighbourhoods';
 
 export interface NeighbourhoodTask {
   model: MipModel;
-  structure: ModelStructure;
+  structure: ModelStructure & { soleColumn?: boolean[] };
   board: SharedArrayBuffer;
   timeLimitSeconds: number;
   deadlineEpochMs?: number;
   randomSeed?: number;
   maxRounds?: number;
+  /**
+   * On a sole award model, first the Lagrangian bound and heuristic (lagrangian.ts) for this share
+   * of the time (warm-started from the LP's duals); its bound then closes the search as soon as
+   * the best award meets it.
+   */
+  lagrangianShare?: number;
+  relativeGap?: number;
+}
+
+const LAGRANGIAN_SOURCE = 'Lagrangian relaxation of the assignment rows (one knapsack per vendor)';
+
+/**
+ * The LP relaxation (for its bound and its duals), then the subgradient method from those duals
+ * until `until`: every repaired award that meets the model's rows goes on the board. Returns the
+ * better of the two bounds.
+ */
+function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model: MipModel, data: SoleData, board: SharedArrayBuffer, until: number): { bound: number; source: string } | null {
+  let lp: HighsModel | null = createHighsModel(highs, model, false);
+  let lpBound = -Infinity;
+  let start: Float64Array | null = null;
+  try {
+    lp.options.set({ output_flag: false, time_limit: Math.max(0.5, (until - Date.now()) / 2000) });
+    lp.run();
+    if (lp.getModelStatus() === highs.constants.modelStatus.optimal) {
+      lpBound = lp.getObjectiveValue();
+      const duals = lp.getSolution().rowDual;
+      const rowOf = new Map(model.rowNames.map((name, r) => [name, r]));
+      start = Float64Array.from({ length: data.n }, (_, j) => duals[rowOf.get(`demand_${j}`) ?? -1] ?? 0);
+    }
+  } finally {
+    lp.dispose();
+    lp = null;
+  }
+  const r = subgradient(data, {
+    start, upper: bestAward(board, model.numCols)?.objective ?? Infinity, iterations: 5000,
+    stop: () => Date.now() > until,
+    onAward: (award) => {
+      if (satisfiesRows(model, award.x)) publishAward(board, award.objective, award.x);
+      const theirs = bestAward(board, model.numCols);
+      return theirs?.objective;
+    },
+  });
+  if (r.bound > lpBound) return { bound: r.bound, source: `${LAGRANGIAN_SOURCE}, ${r.iterations} subgradient steps from the LP duals` };
+  return Number.isFinite(lpBound) ? { bound: lpBound, source: 'LP relaxation (HiGHS simplex)' } : null;
 }
 
 // A round's sub-problem may use this share of the time limit (between 0.5 and 5 s).
@@ -62,7 +107,7 @@ function rest(seconds: number, deadline: number): void {
  * `structure` is the model's map of vendor and region columns; `board` the shared award board.
  * Returns the best award it holds.
  */
-export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity }: NeighbourhoodTask): Promise<EngineOutcome> {
+export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
   // A thread of this pool may have ended its last search at the lowest priority.
   setThreadPriority(GAINING_STEPS);
   const highs = await highsRuntime();
@@ -88,15 +133,20 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     mine = false;
     return true;
   };
+  const sole = lagrangianShare > 0 && structure.soleColumn ? soleData(model, { ...structure, soleColumn: structure.soleColumn }) : null;
+  const proven = sole ? lagrangianPhase(highs, model, sole, board, Math.min(deadline - 200, Date.now() + lagrangianShare * timeLimitSeconds * 1000)) : null;
+  // The best award is optimal once no award can be cheaper than the bound (every total a whole
+  // number: the bound rounded up), within the relative gap asked for.
+  const closed = () => !!best && !!proven && !!sole && roundedBound(sole, proven.bound) >= best.objective - eps(best.objective) - relativeGap * Math.abs(best.objective);
   while (!best && Date.now() < deadline - 200) {
     adoptBoard();
     if (!best) sleep(50);
   }
   const outcome = (): EngineOutcome => ({
-    status: best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: null, boundSource: null,
-    seconds: (performance.now() - started) / 1000, engine, message: `${stats.rounds} neighbourhoods, ${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}`,
+    status: closed() ? 'optimal' : best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: proven?.bound ?? null, boundSource: proven?.source ?? null,
+    seconds: (performance.now() - started) / 1000, engine: proven && sole ? `${engine} after the Lagrangian heuristic` : engine, message: `${stats.rounds} neighbourhoods, ${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}`,
   });
-  if (!best) return outcome();
+  if (!best || closed()) return outcome();
 
   const m = createHighsModel(highs, model, true);
   try {
@@ -123,6 +173,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
         setThreadPriority(STALLED_STEPS);
       }
       adoptBoard();
+      if (closed()) break;
       const award = readAward(ctx, best.x);
       const kind = KINDS[Math.floor(random() * KINDS.length)];
       const { free } = neighbourhood(ctx, award, kind, sizes[kind], random);
