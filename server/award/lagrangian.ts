@@ -24,6 +24,8 @@ export interface SoleData {
   /** c_ij = p_ij d_j at [i * n + j]; Infinity where vendor i cannot take region j. */
   cost: Float64Array;
   totalDemand: number;
+  /** Fewest vendors any award opens (the model's minimum-vendors and fewest-vendors rows; 0 when neither). */
+  fewestVendors: number;
   /** Every cost of the model is a whole number: so is every award's total, and a bound can be rounded up. */
   integral: boolean;
   /** The model's columns: y_i, z_ij (-1 where absent). */
@@ -68,7 +70,12 @@ export function soleData(model: MipModel, map: Pick<ModelMap, 'open' | 'supply' 
   if (demand.some((d) => !(d > 0))) return null;
   const whole = (v: number) => Math.abs(v - Math.round(v)) <= 1e-9 * Math.max(1, Math.abs(v));
   const integral = model.colCost.every(whole);
-  return { m, n, fee, cap, demand, required, cost, totalDemand: demand.reduce((s, d) => s + d, 0), integral, numCols: model.numCols, open: map.open, supply: map.supply };
+  let fewestVendors = 0;
+  for (const name of ['min_vendors', 'fewest_vendors']) {
+    const r = rowOf.get(name);
+    if (r !== undefined && Number.isFinite(model.rowLower[r])) fewestVendors = Math.max(fewestVendors, Math.ceil(model.rowLower[r] - 1e-9));
+  }
+  return { m, n, fee, cap, demand, required, cost, totalDemand: demand.reduce((s, d) => s + d, 0), fewestVendors, integral, numCols: model.numCols, open: map.open, supply: map.supply };
 }
 
 /** The smallest total an award can have given a proven lower bound: rounded up when every total is whole. */
@@ -130,6 +137,61 @@ export function knapsack(values: Float64Array, weights: Float64Array, items: num
   return { value, exact: false };
 }
 
+interface Completion { value: number; open: [number, number][]; exact: boolean }
+
+/**
+ * The cheapest set of further vendors (`worth` ≥ 0 each) whose capacities reach `need`: exact by
+ * dynamic programming over capacity (a covering knapsack, capacities divided by their greatest
+ * common divisor) when capacities are whole and small enough, else its LP (cheapest per unit of
+ * capacity first, the last one fractional), which is never above it.
+ */
+function coverCompletion(rest: number[], worth: Float64Array, cap: Float64Array, need: number): Completion {
+  if (need <= 1e-9) return { value: 0, open: [], exact: true };
+  const whole = rest.every((i) => Number.isInteger(cap[i]));
+  let g = 0;
+  if (whole) for (const i of rest) g = gcd(g, cap[i]);
+  const target = g > 0 ? Math.ceil(need / g - 1e-9) : 0;
+  if (whole && g > 0 && rest.length * (target + 1) <= DP_LIMIT) {
+    // f[c]: cheapest worth of vendors whose capacities reach at least c (in units of g).
+    const f = new Float64Array(target + 1).fill(Infinity);
+    f[0] = 0;
+    const keep = new Uint8Array(rest.length * (target + 1));
+    rest.forEach((i, k) => {
+      const w = cap[i] / g;
+      for (let c = target; c >= 1; c--) {
+        const withIt = f[Math.max(0, c - w)] + worth[i];
+        if (withIt < f[c]) { f[c] = withIt; keep[k * (target + 1) + c] = 1; }
+      }
+    });
+    if (f[target] === Infinity) return { value: Infinity, open: [], exact: true };
+    const open: [number, number][] = [];
+    for (let k = rest.length - 1, c = target; k >= 0 && c > 0; k--) {
+      if (keep[k * (target + 1) + c]) { open.push([rest[k], 1]); c = Math.max(0, c - cap[rest[k]] / g); }
+    }
+    return { value: f[target], open, exact: true };
+  }
+  const order = [...rest].sort((a, b) => worth[a] / cap[a] - worth[b] / cap[b]);
+  const open: [number, number][] = [];
+  let value = 0;
+  let left = need;
+  for (const i of order) {
+    if (left <= 1e-9) break;
+    const share = Math.min(1, left / cap[i]);
+    open.push([i, share]);
+    value += share * worth[i];
+    left -= share * cap[i];
+  }
+  return { value: left > 1e-9 ? Infinity : value, open, exact: false };
+}
+
+/** The cheapest `count` further vendors (each `worth` ≥ 0): exact. */
+function countCompletion(rest: number[], worth: Float64Array, count: number): Completion {
+  if (count <= 0) return { value: 0, open: [], exact: true };
+  const order = [...rest].sort((a, b) => worth[a] - worth[b]).slice(0, count);
+  if (order.length < count) return { value: Infinity, open: [], exact: true };
+  return { value: order.reduce((s, i) => s + worth[i], 0), open: order.map((i) => [i, 1]), exact: true };
+}
+
 export interface RelaxedSolution {
   /** L(u), a lower bound on every award's total. */
   bound: number;
@@ -164,26 +226,24 @@ export function relaxed(data: SoleData, u: Float64Array): RelaxedSolution {
     worth[i] = fee[i] - k.value;
     for (const j of items) taken[i * n + j] = take[j];
   }
-  // Choose the vendors: every vendor that pays for itself or is required, then the cover of the
-  // aggregate capacity row by the cheapest per unit of capacity, the last one fractional (its LP).
+  // Choose the vendors: every vendor that pays for itself or is required, then the others the
+  // aggregate capacity row or the fewest-vendors row still asks for. Both rows hold for every
+  // award, but they are met one at a time here: the cheaper completion of the two is a relaxation
+  // of meeting both, so the dearer of the two is still a lower bound (and its vendors the solution).
+  let count = 0;
   let covered = 0;
   for (let i = 0; i < m; i++) {
     if (worth[i] === Infinity) continue;
-    if (required[i] || worth[i] < 0) { open[i] = 1; bound += worth[i]; covered += cap[i]; }
+    if (required[i] || worth[i] < 0) { open[i] = 1; bound += worth[i]; covered += cap[i]; count++; }
   }
-  if (covered < data.totalDemand - 1e-9) {
-    const rest = [];
-    for (let i = 0; i < m; i++) if (!open[i] && worth[i] !== Infinity) rest.push(i);
-    rest.sort((a, b) => worth[a] / cap[a] - worth[b] / cap[b]);
-    for (const i of rest) {
-      const need = data.totalDemand - covered;
-      if (need <= 1e-9) break;
-      const share = Math.min(1, need / cap[i]);
-      open[i] = share;
-      bound += share * worth[i];
-      covered += share * cap[i];
-    }
-  }
+  const rest: number[] = [];
+  for (let i = 0; i < m; i++) if (!open[i] && worth[i] !== Infinity) rest.push(i);
+  const cover = coverCompletion(rest, worth, cap, data.totalDemand - covered);
+  const cardinality = countCompletion(rest, worth, data.fewestVendors - count);
+  const completion = cover.value >= cardinality.value ? cover : cardinality;
+  exact &&= completion.exact;
+  bound += completion.value;
+  for (const [i, share] of completion.open) open[i] = share;
   return { bound, open, taken, exact };
 }
 
