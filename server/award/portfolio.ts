@@ -10,8 +10,11 @@ import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome,
  *    here), for a short share of the limit, at a lower thread priority;
  *  - HiGHS A on the model as built, started at the same moment: nothing waits in front of it, so
  *    on problems HiGHS proves in well under a second the engine is as fast as HiGHS alone;
+ *  - on sole award models of some size, instead of glpk.js, the Lagrangian bound and heuristic
+ *    (lagrangian.ts) first in the neighbourhood-search thread: its bound closes the search once
+ *    an award meets it;
  *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
- *    (workers/lns-worker.mjs) on the core glpk.js leaves free, at a lower thread priority and
+ *    (workers/lns-worker.ts) on the core glpk.js leaves free, at a lower thread priority and
  *    resting when it stops gaining: it improves the best award on the board and publishes what
  *    it finds, so HiGHS A prunes with it;
  *  - HiGHS B, when cores are to spare, once glpk.js stops: LP relaxation (proven bound, reduced
@@ -73,7 +76,7 @@ async function reducedRun(request: EngineRequest, board: SharedArrayBuffer, dead
 }
 
 /**
- * The large neighbourhood search (workers/lns-worker.mjs) over the board's best award, to the
+ * The large neighbourhood search (workers/lns-worker.ts) over the board's best award, to the
  * deadline. It starts from the greedy award when that is cheaper than what the board holds (often
  * glpk.js's award at this point, far from optimal: neighbourhoods of a poor award are slow to
  * solve and gain little each). The greedy award is built on this thread (it yields to the event
@@ -107,7 +110,7 @@ export const portfolioEngine: SolverEngine = {
     try {
       request.signal?.throwIfAborted();
       const glpkLimit = Math.min(timeLimitSeconds, Math.max(1, GLPK_SHARE * timeLimitSeconds));
-      // glpk.js runs in its own pool at a lower thread priority (workers/glpk-worker.mjs), so on a
+      // glpk.js runs in its own pool at a lower thread priority (workers/glpk-worker.ts), so on a
       // busy machine it does not slow HiGHS A down.
       const highsA = runInWorker(HIGHS_WORKER, { model, timeLimitSeconds, relativeGap, board, randomSeed: 0, incumbent: request.incumbent }, stops[1].signal);
       // On a sole award model of some size the Lagrangian bound and heuristic take glpk.js's
