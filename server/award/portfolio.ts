@@ -1,5 +1,6 @@
 import { availableParallelism } from 'node:os';
 import { bestAward, newBoard, publishAward } from './award-board';
+import { cleaned, satisfiesRows } from './kernel';
 import { asFullModel, costOf, fixByReducedCost } from './reduced-model';
 import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome, type EngineRequest, type RelaxationOutcome, type SolverEngine } from './solve';
 
@@ -149,7 +150,7 @@ export const portfolioEngine: SolverEngine = {
           return bounds.length ? { ...o, bound: Math.max(...bounds), seconds } : { ...o, seconds };
         }
       }
-      return combine(done);
+      return combine(done, boardAward(board, model));
     } finally {
       stops.forEach((c) => c.abort(new Error('finished')));
       request.signal?.removeEventListener('abort', cancel);
@@ -157,8 +158,22 @@ export const portfolioEngine: SolverEngine = {
   },
 };
 
-/** Every run stopped without proof: keep the cheapest award and the highest proven bound. */
-function combine(outcomes: EngineOutcome[]): EngineOutcome {
+/**
+ * The board's award as an outcome, when it meets every row once rounded: a run stopped by its
+ * watchdog (a thread slow to start on a busy machine) leaves its awards there, and so does the
+ * greedy award.
+ */
+function boardAward(board: SharedArrayBuffer, model: EngineRequest['model']): EngineOutcome | null {
+  const b = bestAward(board, model.numCols);
+  if (!b) return null;
+  const x = cleaned(model, b.x);
+  if (!satisfiesRows(model, x)) return null;
+  return { status: 'feasible', values: x, objective: costOf(model, x), bound: null, boundSource: null, seconds: 0, engine: 'Tendara (best award on the shared board)' };
+}
+
+/** Every run stopped without proof: keep the cheapest award (the runs' or the board's) and the highest proven bound. */
+function combine(found: EngineOutcome[], onBoard: EngineOutcome | null): EngineOutcome {
+  const outcomes = onBoard ? [...found, onBoard] : found;
   if (outcomes.length === 0) return { status: 'failed', values: null, objective: null, bound: null, boundSource: null, seconds: 0, engine: 'Tendara', message: 'no engine returned a result' };
   const withAward = outcomes.filter((o) => o.values !== null && o.objective !== null).sort((a, b) => a.objective! - b.objective!);
   const best = withAward[0] ?? outcomes.find((o) => o.status !== 'failed') ?? outcomes[0];
