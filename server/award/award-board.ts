@@ -1,18 +1,20 @@
 import type { MipModel } from './model';
 
 /**
- * The calling thread's side of the award board shared with the HiGHS workers (layout and the
- * workers' side in workers/shared-incumbent.mjs): Int32 [lock, version], then Float64
- * [objective, x_0 … x_n-1]. The portfolio publishes awards found outside HiGHS (glpk.js, the
- * greedy award) so a running HiGHS takes them in at its next user-solution checkpoint.
+ * The award board shared by the calling thread and the solver workers through a
+ * SharedArrayBuffer: every run publishes its improving awards and takes in a cheaper one another
+ * run found (HiGHS at its next user-solution checkpoint, the neighbourhood search each round).
+ * Layout: Int32 [lock, version], then Float64 [objective, x_0 … x_n-1]. A short spin lock guards
+ * both reads and writes (copies of a few thousand numbers). One module for every thread.
  */
-export function newBoard(model: MipModel): SharedArrayBuffer {
+export function newBoard(model: Pick<MipModel, 'numCols'>): SharedArrayBuffer {
   const board = new SharedArrayBuffer(8 + 8 * (model.numCols + 1));
   new Float64Array(board, 8)[0] = Infinity;
   return board;
 }
 
-// Same bounded spin as the workers: a worker terminated while holding the lock must not hang us.
+// Spins are bounded: a run terminated while holding the lock must not hang another, which then
+// just skips this exchange.
 const MAX_SPINS = 10_000_000;
 
 function locked<T>(board: SharedArrayBuffer, fn: (nums: Float64Array) => T): T | null {
@@ -27,7 +29,7 @@ function locked<T>(board: SharedArrayBuffer, fn: (nums: Float64Array) => T): T |
   }
 }
 
-/** Publishes x (cost `objective`) when it is cheaper than the board's award. */
+/** Publishes x (cost `objective`) when it is cheaper than the board's award; true if it was. */
 export function publishAward(board: SharedArrayBuffer, objective: number, x: ArrayLike<number>): boolean {
   return locked(board, (nums) => {
     if (!(objective < nums[0])) return false;
@@ -41,4 +43,9 @@ export function publishAward(board: SharedArrayBuffer, objective: number, x: Arr
 /** A consistent copy of the board's award, or null when it is empty. */
 export function bestAward(board: SharedArrayBuffer, numCols: number): { objective: number; x: Float64Array } | null {
   return locked(board, (nums) => (Number.isFinite(nums[0]) ? { objective: nums[0], x: nums.slice(1, 1 + numCols) } : null));
+}
+
+/** Cost of the board's award (Infinity when none). Unlocked read: a hint only. */
+export function boardObjective(board: SharedArrayBuffer): number {
+  return new Float64Array(board, 8, 1)[0];
 }

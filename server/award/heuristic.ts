@@ -1,5 +1,9 @@
 import { effectiveCapacity, inIncrements, regionLimit, type AwardInstance } from './instance';
+import { satisfiesRows } from './kernel';
 import type { MipModel, ModelMap } from './model';
+
+// The rule check lives in the kernel (one copy for every thread); exported here too for callers of the greedy award.
+export { satisfiesRows };
 
 /**
  * A fast greedy award used to seed the exact search (an incumbent lets branch and bound prune
@@ -131,27 +135,4 @@ export async function greedyIncumbent(problemInstance: AwardInstance, model: Mip
     if (map.open[i] >= 0 && (used > 0 || inst.vendors[i].required)) x[map.open[i]] = 1;
   }
   return satisfiesRows(model, x) ? x : null;
-}
-
-/**
- * True when x meets every bound and row of the model (tolerance 1e-7, relative to the row) and
- * its integer columns are whole (to 1e-9). The
- * neighbourhood-search worker has its own copy (workers/neighbourhoods.mjs: plain ESM cannot import
- * this file); the tests hold its awards to this one.
- */
-export function satisfiesRows(model: MipModel, x: Float64Array): boolean {
-  for (let c = 0; c < model.numCols; c++) {
-    if (x[c] < model.colLower[c] - 1e-9 || x[c] > model.colUpper[c] + 1e-7 * Math.max(1, model.colUpper[c])) return false;
-    if (model.integer[c] && Math.abs(x[c] - Math.round(x[c])) > 1e-9) return false;
-  }
-  for (let r = 0; r < model.rowNames.length; r++) {
-    let act = 0;
-    let scale = 1;
-    for (let k = model.rowStarts[r]; k < model.rowStarts[r + 1]; k++) {
-      act += model.rowValue[k] * x[model.rowIndex[k]];
-      scale = Math.max(scale, Math.abs(model.rowValue[k]));
-    }
-    if (act < model.rowLower[r] - 1e-7 * scale || act > model.rowUpper[r] + 1e-7 * scale) return false;
-  }
-  return true;
 }

@@ -1,5 +1,6 @@
 import { availableParallelism } from 'node:os';
 import { bestAward, newBoard, publishAward } from './award-board';
+import { cleaned, satisfiesRows } from './kernel';
 import { asFullModel, costOf, fixByReducedCost } from './reduced-model';
 import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome, type EngineRequest, type RelaxationOutcome, type SolverEngine } from './solve';
 
@@ -10,8 +11,11 @@ import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome,
  *    here), for a short share of the limit, at a lower thread priority;
  *  - HiGHS A on the model as built, started at the same moment: nothing waits in front of it, so
  *    on problems HiGHS proves in well under a second the engine is as fast as HiGHS alone;
+ *  - on sole award models of some size, instead of glpk.js, the Lagrangian bound and heuristic
+ *    (lagrangian.ts) first in the neighbourhood-search thread: its bound closes the search once
+ *    an award meets it;
  *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
- *    (workers/lns-worker.mjs) on the core glpk.js leaves free, at a lower thread priority and
+ *    (workers/lns-worker.ts) on the core glpk.js leaves free, at a lower thread priority and
  *    resting when it stops gaining: it improves the best award on the board and publishes what
  *    it finds, so HiGHS A prunes with it;
  *  - HiGHS B, when cores are to spare, once glpk.js stops: LP relaxation (proven bound, reduced
@@ -33,6 +37,10 @@ const SPARE_CORES = availableParallelism() > 2;
 // The neighbourhood search starts only on models of this many columns or more: smaller ones are
 // proven by glpk.js or HiGHS A within a second or two, before it could help.
 const LNS_MIN_COLUMNS = 1000;
+// On sole award models the neighbourhood-search thread first spends this share of the limit on
+// the Lagrangian bound and heuristic (lagrangian.ts): a bound above the LP's, and awards repaired
+// from the relaxed solutions; the bound then closes the search once an award meets it.
+const LAGRANGIAN_SHARE = 0.15;
 
 const decisive = (o: EngineOutcome) => o.status === 'optimal' || o.status === 'infeasible';
 
@@ -69,7 +77,7 @@ async function reducedRun(request: EngineRequest, board: SharedArrayBuffer, dead
 }
 
 /**
- * The large neighbourhood search (workers/lns-worker.mjs) over the board's best award, to the
+ * The large neighbourhood search (workers/lns-worker.ts) over the board's best award, to the
  * deadline. It starts from the greedy award when that is cheaper than what the board holds (often
  * glpk.js's award at this point, far from optimal: neighbourhoods of a poor award are slow to
  * solve and gain little each). The greedy award is built on this thread (it yields to the event
@@ -83,7 +91,10 @@ async function neighbourhoodRun(request: EngineRequest, board: SharedArrayBuffer
   if (greedy) publishAward(board, costOf(model, greedy), greedy);
   signal.throwIfAborted();
   const seconds = Math.max(0.5, (deadline - performance.now()) / 1000);
-  return runInWorker(LNS_WORKER, { model, structure: { open: map.open, supply: map.supply }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000, randomSeed: 20_260 }, signal);
+  return runInWorker(LNS_WORKER, {
+    model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000,
+    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, relativeGap: request.relativeGap,
+  }, signal);
 }
 
 export const portfolioEngine: SolverEngine = {
@@ -100,10 +111,16 @@ export const portfolioEngine: SolverEngine = {
     try {
       request.signal?.throwIfAborted();
       const glpkLimit = Math.min(timeLimitSeconds, Math.max(1, GLPK_SHARE * timeLimitSeconds));
-      // glpk.js runs in its own pool at a lower thread priority (workers/glpk-worker.mjs), so on a
+      // glpk.js runs in its own pool at a lower thread priority (workers/glpk-worker.ts), so on a
       // busy machine it does not slow HiGHS A down.
       const highsA = runInWorker(HIGHS_WORKER, { model, timeLimitSeconds, relativeGap, board, randomSeed: 0, incumbent: request.incumbent }, stops[1].signal);
-      const glpk = runInWorker(GLPK_WORKER, { model, timeLimitSeconds: glpkLimit, relativeGap }, stops[0].signal);
+      // On a sole award model of some size the Lagrangian bound and heuristic take glpk.js's
+      // place from the start: glpk.js does not prove such models in its short share, and they
+      // need the core it would hold.
+      const lagrangianFirst = !!request.map && model.numCols >= LNS_MIN_COLUMNS && request.map.soleColumn.every(Boolean);
+      const glpk = lagrangianFirst
+        ? Promise.reject(new Error('the Lagrangian bound runs instead of glpk.js on a large sole award model'))
+        : runInWorker(GLPK_WORKER, { model, timeLimitSeconds: glpkLimit, relativeGap }, stops[0].signal);
       // Runs that start when glpk.js stops, so that glpk.js and they never compete for a core.
       const afterGlpk = glpk.catch(() => null).then((g) => {
         if (g && decisive(g)) throw new Error('glpk.js finished first');
@@ -133,7 +150,7 @@ export const portfolioEngine: SolverEngine = {
           return bounds.length ? { ...o, bound: Math.max(...bounds), seconds } : { ...o, seconds };
         }
       }
-      return combine(done);
+      return combine(done, boardAward(board, model));
     } finally {
       stops.forEach((c) => c.abort(new Error('finished')));
       request.signal?.removeEventListener('abort', cancel);
@@ -141,8 +158,22 @@ export const portfolioEngine: SolverEngine = {
   },
 };
 
-/** Every run stopped without proof: keep the cheapest award and the highest proven bound. */
-function combine(outcomes: EngineOutcome[]): EngineOutcome {
+/**
+ * The board's award as an outcome, when it meets every row once rounded: a run stopped by its
+ * watchdog (a thread slow to start on a busy machine) leaves its awards there, and so does the
+ * greedy award.
+ */
+function boardAward(board: SharedArrayBuffer, model: EngineRequest['model']): EngineOutcome | null {
+  const b = bestAward(board, model.numCols);
+  if (!b) return null;
+  const x = cleaned(model, b.x);
+  if (!satisfiesRows(model, x)) return null;
+  return { status: 'feasible', values: x, objective: costOf(model, x), bound: null, boundSource: null, seconds: 0, engine: 'Tendara (best award on the shared board)' };
+}
+
+/** Every run stopped without proof: keep the cheapest award (the runs' or the board's) and the highest proven bound. */
+function combine(found: EngineOutcome[], onBoard: EngineOutcome | null): EngineOutcome {
+  const outcomes = onBoard ? [...found, onBoard] : found;
   if (outcomes.length === 0) return { status: 'failed', values: null, objective: null, bound: null, boundSource: null, seconds: 0, engine: 'Tendara', message: 'no engine returned a result' };
   const withAward = outcomes.filter((o) => o.values !== null && o.objective !== null).sort((a, b) => a.objective! - b.objective!);
   const best = withAward[0] ?? outcomes.find((o) => o.status !== 'failed') ?? outcomes[0];

@@ -6,11 +6,7 @@ import type { EngineOutcome } from './solve';
  * the reduced model proves about the full one.
  */
 
-export function costOf(model: MipModel, x: ArrayLike<number>): number {
-  let s = 0;
-  for (let c = 0; c < model.numCols; c++) s += model.colCost[c] * x[c];
-  return s;
-}
+export { costOf } from './kernel';
 
 /**
  * A column at 0 in the LP with reduced cost rc > 0 raises any solution's cost to at least

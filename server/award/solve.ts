@@ -1,5 +1,5 @@
 import type { MipModel, ModelMap } from './model';
-import { solverPool, workerFile } from './workers';
+import { solverPool } from './workers';
 
 /** What one engine run reports back; `values` is the full column vector of the model. */
 export interface EngineOutcome {
@@ -42,6 +42,8 @@ const GRACE_SECONDS = 10;
 /** Extra fields of an LP-relaxation run (HiGHS worker with `relax: true`). */
 export interface RelaxationOutcome extends EngineOutcome {
   reducedCosts: Float64Array | null;
+  /** Row duals of the LP optimum (the Lagrangian bound starts its multipliers from them). */
+  rowDuals: Float64Array | null;
 }
 
 /**
@@ -56,7 +58,7 @@ export async function runInWorker<T extends EngineOutcome>(file: string, payload
   const started = performance.now();
   try {
     signal?.throwIfAborted();
-    return (await solverPool(file).run(payload, { filename: workerFile(file), signal: controller.signal })) as T;
+    return (await solverPool(file).run(payload, { signal: controller.signal })) as T;
   } catch (err) {
     if (signal?.aborted) throw signal.reason ?? err;
     const message = err instanceof Error ? err.message : String(err);
@@ -67,9 +69,9 @@ export async function runInWorker<T extends EngineOutcome>(file: string, payload
   }
 }
 
-export const GLPK_WORKER = 'glpk-worker.mjs';
-export const HIGHS_WORKER = 'highs-worker.mjs';
-export const LNS_WORKER = 'lns-worker.mjs';
+export const GLPK_WORKER = 'glpk-worker';
+export const HIGHS_WORKER = 'highs-worker';
+export const LNS_WORKER = 'lns-worker';
 
 /** glpk.js alone on the model as built (the default engine's first solver, and a baseline). */
 export const glpkEngine: SolverEngine = {

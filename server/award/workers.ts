@@ -1,5 +1,5 @@
 import { existsSync } from 'node:fs';
-import { dirname, join } from 'node:path';
+import { join } from 'node:path';
 import Piscina from 'piscina';
 import { setting } from '../config';
 
@@ -10,37 +10,38 @@ import { setting } from '../config';
  */
 const pools = new Map<string, Piscina>();
 
-/** Finds a worker file: beside this module (source), else the source folder from a build in dist/. */
-export function workerFile(name: string): string {
-  const beside = join(__dirname, 'workers', name);
-  if (existsSync(beside)) return beside;
-  // tsc does not copy .mjs files into dist: walk up to the project root and use the source copy.
-  let dir = __dirname;
-  while (dirname(dir) !== dir) {
-    const candidate = join(dir, 'server', 'award', 'workers', name);
-    if (existsSync(candidate)) return candidate;
-    dir = dirname(dir);
-  }
-  throw new Error(`Award solver worker ${name} not found near ${__dirname}.`);
+/**
+ * Finds a worker (workers/NAME.ts): compiled JavaScript beside this module in a build (dist/),
+ * else the TypeScript source, which the worker thread loads through tsx. Either way the worker
+ * imports the same typed modules as this thread (kernel.ts, award-board.ts, model.ts).
+ */
+export function workerFile(name: string): { filename: string; execArgv: string[] } {
+  const compiled = join(__dirname, 'workers', `${name}.js`);
+  if (existsSync(compiled)) return { filename: compiled, execArgv: [] };
+  const source = join(__dirname, 'workers', `${name}.ts`);
+  if (existsSync(source)) return { filename: source, execArgv: ['--import', 'tsx'] };
+  throw new Error(`Award solver worker ${name} not found in ${join(__dirname, 'workers')}.`);
 }
 
 /**
- * The pool for one worker file. glpk.js has its own pool because its worker lowers its threads'
- * scheduling priority (workers/glpk-worker.mjs), and such a thread must never run HiGHS later.
+ * The pool for one worker. glpk.js has its own pool because its worker lowers its threads'
+ * scheduling priority (workers/glpk-worker.ts), and such a thread must never run HiGHS later.
  */
-export function solverPool(file = 'highs-worker.mjs'): Piscina {
+export function solverPool(file = 'highs-worker'): Piscina {
   let pool = pools.get(file);
   if (!pool) {
+    const worker = workerFile(file);
     pool = new Piscina({
+      filename: worker.filename,
       // Two runs of one solver at most per solve (HiGHS A and B); more threads than that only
       // compete for the same cores.
       maxThreads: setting('AWARD_SOLVER_THREADS'),
       minThreads: 0,
       idleTimeout: 10_000,
-      // Node 20.19+ lets require() load an ES module, and piscina tries require() first; that path
-      // once aborted a whole test run (an assertion in Node's require(esm) facade). Without it,
-      // require() refuses the .mjs worker and piscina falls back to import(), the plain way.
-      execArgv: [...process.execArgv, '--no-experimental-require-module'],
+      // Node 20.19+ lets require() load an ES module; that path once aborted a whole test run (an
+      // assertion in Node's require(esm) facade). The workers load glpk.js, an ES module, with
+      // import() and nothing else of that kind, so require(esm) stays off.
+      execArgv: [...process.execArgv, ...worker.execArgv, '--no-experimental-require-module'],
     });
     pools.set(file, pool);
   }

@@ -4,14 +4,16 @@ import type { AwardProblem } from '../../shared/award';
 
 /**
  * Reader for the published capacitated facility location instances kept beside the project in
- * ../shared/reference (Beasley 1988, OR-Library "cap"; Holmberg, Rönnqvist & Yuan 1999). They are
+ * ../shared/reference (Beasley 1988, OR-Library "cap"; Holmberg, Rönnqvist & Yuan 1999; Yang, Chu &
+ * Chen 2012, sole award only). They are
  * read in place and never copied into the project. Vendors are the facilities, regions the customers.
  */
-export const REFERENCE_DIR = resolve(__dirname, '..', '..', '..', 'shared', 'reference');
+// AWARD_REFERENCE_DIR points elsewhere (a checkout that is not beside ../shared, such as a second worktree).
+export const REFERENCE_DIR = process.env.AWARD_REFERENCE_DIR ?? resolve(__dirname, '..', '..', '..', 'shared', 'reference');
 
 export interface ReferenceEntry {
   file: string;
-  set: 'orlib-cap' | 'holmberg';
+  set: 'orlib-cap' | 'holmberg' | 'yang';
   name: string;
   vendors: number;
   regions: number;

@@ -1,22 +1,80 @@
 // Large neighbourhood search over the best award on the shared board (a primal heuristic: it
 // finds cheaper awards, it proves nothing). Each round frees a neighbourhood of the current award
-// (workers/neighbourhoods.mjs), fixes every other integer column at the award's value and solves
+// (workers/neighbourhoods.ts), fixes every other integer column at the award's value and solves
 // that sub-problem with HiGHS under a short time limit, seeded with the award itself. A cheaper
 // award that meets every row of the model is published to the board, where the full HiGHS run
 // takes it in at its next user-solution checkpoint and prunes with it. The neighbourhood grows
 // while its sub-problems are solved quickly and shrinks when they hit their limit.
 // The portfolio stops this worker by terminating its thread; on its own it stops at its deadline.
-import { createHighsModel, engineLabel, highsRuntime } from './highs-model.mjs';
-import { setThreadPriority } from './low-priority.mjs';
-import { neighbourhood, prepare, randomSource, readAward, satisfiesRows } from './neighbourhoods.mjs';
-import { publish, read } from './shared-incumbent.mjs';
+import { bestAward, publishAward } from '../award-board';
+import { cleaned, costOf, randomSource, satisfiesRows } from '../kernel';
+import { roundedBound, soleData, subgradient, type SoleData } from '../lagrangian';
+import type { MipModel } from '../model';
+import type { EngineOutcome } from '../solve';
+import { createHighsModel, engineLabel, highsRuntime, type HighsModel } from './highs-model';
+import { setThreadPriority } from './low-priority';
+import { neighbourhood, prepare, readAward, type ModelStructure, type NeighbourhoodKind } from './neighbourhoods';
+
+export interface NeighbourhoodTask {
+  model: MipModel;
+  structure: ModelStructure & { soleColumn?: boolean[] };
+  board: SharedArrayBuffer;
+  timeLimitSeconds: number;
+  deadlineEpochMs?: number;
+  randomSeed?: number;
+  maxRounds?: number;
+  /**
+   * On a sole award model, first the Lagrangian bound and heuristic (lagrangian.ts) for this share
+   * of the time (warm-started from the LP's duals); its bound then closes the search as soon as
+   * the best award meets it.
+   */
+  lagrangianShare?: number;
+  relativeGap?: number;
+}
+
+const LAGRANGIAN_SOURCE = 'Lagrangian relaxation of the assignment rows (one knapsack per vendor)';
+
+/**
+ * The LP relaxation (for its bound and its duals), then the subgradient method from those duals
+ * until `until`: every repaired award that meets the model's rows goes on the board. Returns the
+ * better of the two bounds.
+ */
+function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model: MipModel, data: SoleData, board: SharedArrayBuffer, until: number): { bound: number; source: string } | null {
+  let lp: HighsModel | null = createHighsModel(highs, model, false);
+  let lpBound = -Infinity;
+  let start: Float64Array | null = null;
+  try {
+    lp.options.set({ output_flag: false, time_limit: Math.max(0.5, (until - Date.now()) / 2000) });
+    lp.run();
+    if (lp.getModelStatus() === highs.constants.modelStatus.optimal) {
+      lpBound = lp.getObjectiveValue();
+      const duals = lp.getSolution().rowDual;
+      const rowOf = new Map(model.rowNames.map((name, r) => [name, r]));
+      start = Float64Array.from({ length: data.n }, (_, j) => duals[rowOf.get(`demand_${j}`) ?? -1] ?? 0);
+    }
+  } finally {
+    lp.dispose();
+    lp = null;
+  }
+  const r = subgradient(data, {
+    start, upper: bestAward(board, model.numCols)?.objective ?? Infinity, iterations: 5000,
+    stop: () => Date.now() > until,
+    onAward: (award) => {
+      if (satisfiesRows(model, award.x)) publishAward(board, award.objective, award.x);
+      const theirs = bestAward(board, model.numCols);
+      return theirs?.objective;
+    },
+  });
+  if (r.bound > lpBound) return { bound: r.bound, source: `${LAGRANGIAN_SOURCE}, ${r.iterations} subgradient steps from the LP duals` };
+  return Number.isFinite(lpBound) ? { bound: lpBound, source: 'LP relaxation (HiGHS simplex)' } : null;
+}
 
 // A round's sub-problem may use this share of the time limit (between 0.5 and 5 s).
 const ROUND_SHARE = 0.05;
-// Neighbourhood kinds (workers/neighbourhoods.mjs), drawn in these proportions.
-const KINDS = ['vendors', 'vendors', 'vendors', 'regions', 'regions', 'random'];
+// Neighbourhood kinds (workers/neighbourhoods.ts), drawn in these proportions.
+const KINDS: NeighbourhoodKind[] = ['vendors', 'vendors', 'vendors', 'regions', 'regions', 'random'];
 // Stalling. While the search finds awards cheaper than any other run has, it runs at a reduced
-// priority (low-priority.mjs: GAINING_STEPS of niceness above its process's). After
+// priority (low-priority.ts: GAINING_STEPS of niceness above its process's). After
 // PATIENCE_ROUNDS rounds and PATIENCE_SECONDS seconds without such a gain it is stalled: lowest
 // priority (niceness 19), and after each round it rests a multiple of the round's time, from 1
 // and growing by 1 every REST_GROWTH_ROUNDS rounds up to MAX_REST_RATIO, until it gains again.
@@ -35,27 +93,11 @@ const PATIENCE_SECONDS = 3;
 const REST_GROWTH_ROUNDS = 8;
 const MAX_REST_RATIO = 4;
 
-function costOf(model, x) {
-  let s = 0;
-  for (let c = 0; c < model.numCols; c++) s += model.colCost[c] * x[c];
-  return s;
-}
-
-/** x with integer columns rounded and every column inside its bounds. */
-function cleaned(model, x) {
-  const y = new Float64Array(model.numCols);
-  for (let c = 0; c < model.numCols; c++) {
-    const v = model.integer[c] ? Math.round(x[c]) : x[c];
-    y[c] = Math.min(model.colUpper[c], Math.max(model.colLower[c], v));
-  }
-  return y;
-}
-
 const sleeper = new Int32Array(new SharedArrayBuffer(4));
-const sleep = (ms) => Atomics.wait(sleeper, 0, 0, ms);
+const sleep = (ms: number) => Atomics.wait(sleeper, 0, 0, ms);
 
 /** Sleeps `seconds` (never past the deadline), in short steps so that a terminate is never kept waiting long. */
-function rest(seconds, deadline) {
+function rest(seconds: number, deadline: number): void {
   const until = Math.min(Date.now() + seconds * 1000, deadline - 200);
   for (let left = until - Date.now(); left > 0; left = until - Date.now()) sleep(Math.min(200, left));
 }
@@ -65,23 +107,23 @@ function rest(seconds, deadline) {
  * `structure` is the model's map of vendor and region columns; `board` the shared award board.
  * Returns the best award it holds.
  */
-export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity }) {
+export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
   // A thread of this pool may have ended its last search at the lowest priority.
   setThreadPriority(GAINING_STEPS);
   const highs = await highsRuntime();
   const started = performance.now();
   const engine = `${engineLabel(highs)}, large neighbourhood search`;
   const deadline = Math.min(deadlineEpochMs ?? Infinity, Date.now() + timeLimitSeconds * 1000);
-  const eps = (v) => 1e-6 * Math.max(1, Math.abs(v));
+  const eps = (v: number) => 1e-6 * Math.max(1, Math.abs(v));
   const roundLimit = Math.min(5, Math.max(0.5, ROUND_SHARE * timeLimitSeconds));
   const ctx = prepare(model, structure);
   const random = randomSource(randomSeed);
   const stats = { rounds: 0, improvements: 0 };
 
-  let best = null;
+  let best: { x: Float64Array; objective: number } | null = null;
   let mine = false;
   const adoptBoard = () => {
-    const b = read(board, model.numCols);
+    const b = bestAward(board, model.numCols);
     if (!b || (best && !(b.objective < best.objective - eps(best.objective)))) return false;
     const x = cleaned(model, b.x);
     // An award taken from the board is only a base to fix columns at; it must meet the rows
@@ -91,28 +133,33 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     mine = false;
     return true;
   };
+  const sole = lagrangianShare > 0 && structure.soleColumn ? soleData(model, { ...structure, soleColumn: structure.soleColumn }) : null;
+  const proven = sole ? lagrangianPhase(highs, model, sole, board, Math.min(deadline - 200, Date.now() + lagrangianShare * timeLimitSeconds * 1000)) : null;
+  // The best award is optimal once no award can be cheaper than the bound (every total a whole
+  // number: the bound rounded up), within the relative gap asked for.
+  const closed = () => !!best && !!proven && !!sole && roundedBound(sole, proven.bound) >= best.objective - eps(best.objective) - relativeGap * Math.abs(best.objective);
   while (!best && Date.now() < deadline - 200) {
     adoptBoard();
     if (!best) sleep(50);
   }
-  const outcome = () => ({
-    status: best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: null, boundSource: null,
-    seconds: (performance.now() - started) / 1000, engine, message: `${stats.rounds} neighbourhoods, ${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}`,
+  const outcome = (): EngineOutcome => ({
+    status: closed() ? 'optimal' : best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: proven?.bound ?? null, boundSource: proven?.source ?? null,
+    seconds: (performance.now() - started) / 1000, engine: proven && sole ? `${engine} after the Lagrangian heuristic` : engine, message: `${stats.rounds} neighbourhoods, ${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}`,
   });
-  if (!best) return outcome();
+  if (!best || closed()) return outcome();
 
   const m = createHighsModel(highs, model, true);
   try {
     m.options.set({ output_flag: false, mip_rel_gap: 0, mip_abs_gap: 1e-6 });
     const lower = new Float64Array(model.numCols);
     const upper = new Float64Array(model.numCols);
-    const all = { kind: 'range', from: 0, to: model.numCols - 1 };
+    const all = { kind: 'range', from: 0, to: model.numCols - 1 } as const;
     // Each kind's size (vendors, or regions for 'regions') grows while its sub-problems are
     // solved well within the limit and shrinks when they are not: the search stays where HiGHS
     // still proves the sub-problem quickly.
     const vendorCount = ctx.vendors.length;
-    const limits = { vendors: [2, vendorCount], random: [2, vendorCount], regions: [Math.min(ctx.n, 5), ctx.n] };
-    const sizes = { vendors: Math.min(vendorCount, 4), random: Math.min(vendorCount, 4), regions: Math.max(limits.regions[0], Math.round(ctx.n / 10)) };
+    const limits: Record<NeighbourhoodKind, [number, number]> = { vendors: [2, vendorCount], random: [2, vendorCount], regions: [Math.min(ctx.n, 5), ctx.n] };
+    const sizes: Record<NeighbourhoodKind, number> = { vendors: Math.min(vendorCount, 4), random: Math.min(vendorCount, 4), regions: Math.max(limits.regions[0], Math.round(ctx.n / 10)) };
     let idleRounds = 0;
     let lastGain = performance.now();
     let stalled = false;
@@ -126,6 +173,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
         setThreadPriority(STALLED_STEPS);
       }
       adoptBoard();
+      if (closed()) break;
       const award = readAward(ctx, best.x);
       const kind = KINDS[Math.floor(random() * KINDS.length)];
       const { free } = neighbourhood(ctx, award, kind, sizes[kind], random);
@@ -156,7 +204,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
           mine = true;
           stats.improvements++;
           // A gain only when no other run had found as cheap an award: keeping up is none.
-          if (publish(board, objective, x)) {
+          if (publishAward(board, objective, x)) {
             idleRounds = 0;
             lastGain = performance.now();
             if (stalled) {

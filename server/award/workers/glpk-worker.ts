@@ -1,33 +1,29 @@
-// Solver worker for glpk.js. Plain ESM on purpose: glpk.js is an ES module that jest 30 on
-// Node 20 cannot import, and piscina loads this file by absolute path from source or build alike.
-import GLPK from 'glpk.js/node';
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
-import { dirname, join } from 'node:path';
-import { setThreadPriority } from './low-priority.mjs';
+// Solver worker for glpk.js. glpk.js is an ES module: it is loaded with import() (jest 30 on
+// Node 20 cannot import it on the calling thread; in a worker thread, from source through tsx or
+// from the build in dist/, a dynamic import is the plain way).
+import type { GLPK, LP } from 'glpk.js/node';
+import { packageVersion } from '../kernel';
+import type { MipModel } from '../model';
+import type { EngineOutcome } from '../solve';
+import { setThreadPriority } from './low-priority';
 
-let glpkPromise;
-let label;
+export interface GlpkTask { model: MipModel; timeLimitSeconds: number; relativeGap: number }
+
+let glpkPromise: Promise<GLPK> | undefined;
 
 // glpk.js races HiGHS in the Tendara engine; on the large problems HiGHS proves first, a glpk.js
-// at normal priority would halve HiGHS's speed on a busy machine (see low-priority.mjs).
+// at normal priority would halve HiGHS's speed on a busy machine (see low-priority.ts).
 setThreadPriority(10);
 
-function engineLabel(glpk) {
-  if (!label) {
-    const require = createRequire(import.meta.url);
-    // package.json is not in glpk.js's exports map, so read it beside the resolved entry point.
-    const pkgDir = dirname(dirname(require.resolve('glpk.js/node')));
-    const version = JSON.parse(readFileSync(join(pkgDir, 'package.json'), 'utf8')).version;
-    label = `glpk.js ${version} (GLPK ${glpk.version})`;
-  }
-  return label;
+async function loadGlpk(): Promise<GLPK> {
+  const mod = await import('glpk.js/node');
+  return mod.default();
 }
 
-function toGlpkProblem(glpk, model, relax) {
-  const name = (k) => `x${k}`;
+function toGlpkProblem(glpk: GLPK, model: MipModel, relax: boolean): LP {
+  const name = (k: number) => `x${k}`;
   const big = Number.MAX_VALUE;
-  const subjectTo = [];
+  const subjectTo: LP['subjectTo'] = [];
   for (let r = 0; r < model.rowNames.length; r++) {
     const vars = [];
     for (let k = model.rowStarts[r]; k < model.rowStarts[r + 1]; k++) vars.push({ name: name(model.rowIndex[k]), coef: model.rowValue[k] });
@@ -56,13 +52,13 @@ function toGlpkProblem(glpk, model, relax) {
 }
 
 /** Solves the LP relaxation (for an honest bound), then the MIP within the time limit. */
-export default async function solveWithGlpk({ model, timeLimitSeconds, relativeGap }) {
-  glpkPromise ??= GLPK();
+export default async function solveWithGlpk({ model, timeLimitSeconds, relativeGap }: GlpkTask): Promise<EngineOutcome> {
+  glpkPromise ??= loadGlpk();
   const glpk = await glpkPromise;
   const started = performance.now();
   const elapsed = () => (performance.now() - started) / 1000;
-  const engine = engineLabel(glpk);
-  const values = (vars) => Float64Array.from({ length: model.numCols }, (_, c) => vars[`x${c}`] ?? 0);
+  const engine = `glpk.js ${packageVersion('glpk.js/node')} (GLPK ${glpk.version})`;
+  const values = (vars: Record<string, number>) => Float64Array.from({ length: model.numCols }, (_, c) => vars[`x${c}`] ?? 0);
 
   const lp = glpk.solve(toGlpkProblem(glpk, model, true), { msglev: glpk.GLP_MSG_OFF, tmlim: Math.max(1, timeLimitSeconds) });
   const lpStatus = lp.result.status;

@@ -7,7 +7,7 @@
 import { readlinkSync } from 'node:fs';
 import { getPriority, setPriority } from 'node:os';
 
-function threadId() {
+function threadId(): number | null {
   try {
     const tid = Number(readlinkSync('/proc/thread-self').split('/').pop());
     return tid > 0 ? tid : null;
@@ -26,7 +26,7 @@ const base = tid === null ? 0 : getPriority(tid);
  * when the platform does not allow it. Raising the niceness is always allowed; lowering it again
  * needs the privilege (CAP_SYS_NICE, RLIMIT_NICE).
  */
-export function setThreadPriority(steps) {
+export function setThreadPriority(steps: number): boolean {
   if (tid === null) return false;
   try {
     setPriority(tid, Math.min(19, base + steps));

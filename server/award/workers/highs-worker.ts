@@ -1,22 +1,37 @@
-// Solver worker for HiGHS (the `highs` package, HiGHS compiled to WebAssembly). Plain ESM so it
-// is loaded the same way as the glpk.js worker; each worker thread keeps one loaded runtime.
-import { createHighsModel, engineLabel, highsRuntime } from './highs-model.mjs';
-import { boardObjective, publish, read } from './shared-incumbent.mjs';
+// Solver worker for HiGHS (the `highs` package, HiGHS compiled to WebAssembly); each worker
+// thread keeps one loaded runtime. Compiled with the server (dist/), run through tsx from source.
+import type { Highs, HighsCallbackMap } from 'highs';
+import { boardObjective, bestAward, publishAward } from '../award-board';
+import type { MipModel } from '../model';
+import type { EngineOutcome, RelaxationOutcome } from '../solve';
+import { createHighsModel, engineLabel, highsRuntime } from './highs-model';
+
+export interface HighsTask {
+  model: MipModel;
+  timeLimitSeconds: number;
+  relativeGap: number;
+  incumbent?: Float64Array;
+  relax?: boolean;
+  board?: SharedArrayBuffer;
+  randomSeed?: number;
+  heuristicEffort?: number;
+  deadlineEpochMs?: number;
+}
 
 /** Callbacks that publish this run's improving awards and take in cheaper ones from the board. */
-function sharingCallbacks(highs, board, numCols) {
+function sharingCallbacks(highs: Highs, board: SharedArrayBuffer, numCols: number): HighsCallbackMap {
   const cb = highs.constants.callbackType;
   return {
     [cb.mipImprovingSolution]: (event) => {
       const x = event.data.mip_solution;
       const objective = event.data.objective_function_value;
-      if (x && x.length === numCols && Number.isFinite(objective)) publish(board, objective, x);
+      if (x && x.length === numCols && objective !== undefined && Number.isFinite(objective)) publishAward(board, objective, x);
     },
     [cb.mipUserSolution]: (event) => {
       const mine = event.data.mip_primal_bound ?? Infinity;
       const theirs = boardObjective(board);
       if (!(theirs < mine - 1e-9 * Math.max(1, Math.abs(theirs)))) return;
-      const best = read(board, numCols);
+      const best = bestAward(board, numCols);
       if (best) event.setSolution(best.x);
     },
   };
@@ -26,7 +41,7 @@ function sharingCallbacks(highs, board, numCols) {
  * Solves the MIP; an optional incumbent (full column vector) seeds the search. With
  * `relax: true` it solves the LP relaxation instead and also returns the reduced costs.
  */
-export default async function solveWithHighs({ model, timeLimitSeconds, relativeGap, incumbent, relax, board, randomSeed, heuristicEffort, deadlineEpochMs }) {
+export default async function solveWithHighs({ model, timeLimitSeconds, relativeGap, incumbent, relax, board, randomSeed, heuristicEffort, deadlineEpochMs }: HighsTask): Promise<EngineOutcome | RelaxationOutcome> {
   const highs = await highsRuntime();
   const started = performance.now();
   const engine = engineLabel(highs);
@@ -52,7 +67,8 @@ export default async function solveWithHighs({ model, timeLimitSeconds, relative
     const boundSource = isMip ? 'HiGHS branch-and-cut dual bound' : relax ? 'LP relaxation (HiGHS simplex)' : 'LP optimum (HiGHS)';
     if (relax) {
       const sol = m.getSolution();
-      return { status: st === S.optimal ? 'optimal' : 'unknown', values, objective, bound, boundSource, seconds, engine, reducedCosts: st === S.optimal ? Float64Array.from(sol.colDual) : null };
+      const rowDuals = st === S.optimal ? Float64Array.from(sol.rowDual) : null;
+      return { status: st === S.optimal ? 'optimal' : 'unknown', values, objective, bound, boundSource, seconds, engine, reducedCosts: st === S.optimal ? Float64Array.from(sol.colDual) : null, rowDuals };
     }
     if (st === S.optimal) return { status: 'optimal', values, objective, bound, boundSource, seconds, engine };
     return { status: hasSolution ? 'feasible' : 'unknown', values, objective, bound, boundSource, seconds, engine };

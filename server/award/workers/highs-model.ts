@@ -1,33 +1,25 @@
 // The HiGHS runtime (the `highs` package, HiGHS compiled to WebAssembly) as the HiGHS worker and
 // the neighbourhood-search worker both load it: one runtime per worker thread, the award model
 // passed in as HiGHS's own model data.
-import loadHighs from 'highs';
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
-import { dirname, join } from 'node:path';
+import loadHighs, { type Highs } from 'highs';
+import { packageVersion } from '../kernel';
+import type { MipModel } from '../model';
 
-let highsPromise;
-let label;
+let highsPromise: Promise<Highs> | undefined;
 
 /** The thread's HiGHS runtime, loaded once. */
-export function highsRuntime() {
+export function highsRuntime(): Promise<Highs> {
   highsPromise ??= loadHighs();
   return highsPromise;
 }
 
 /** "HiGHS x.y.z via highs a.b.c", for the result's engine field. */
-export function engineLabel(highs) {
-  if (!label) {
-    const require = createRequire(import.meta.url);
-    const pkgDir = dirname(dirname(require.resolve('highs')));
-    const version = JSON.parse(readFileSync(join(pkgDir, 'package.json'), 'utf8')).version;
-    label = `HiGHS ${highs.version.string} via highs ${version}`;
-  }
-  return label;
+export function engineLabel(highs: Highs): string {
+  return `HiGHS ${highs.version.string} via highs ${packageVersion('highs')}`;
 }
 
 /** A HiGHS model of the MipModel; integrality only when `isMip`. The caller disposes it. */
-export function createHighsModel(highs, model, isMip) {
+export function createHighsModel(highs: Highs, model: MipModel, isMip: boolean) {
   return highs.createModel({
     numCols: model.numCols,
     numRows: model.rowNames.length,
@@ -40,3 +32,5 @@ export function createHighsModel(highs, model, isMip) {
     ...(isMip ? { integrality: model.integer.map((b) => (b ? 1 : 0)) } : {}),
   });
 }
+
+export type HighsModel = ReturnType<typeof createHighsModel>;

@@ -1,0 +1,398 @@
+import type { MipModel, ModelMap } from './model';
+
+/**
+ * Lagrangian relaxation of the sole award model (see MODEL.md, "Lagrangian bound"). The rows
+ * "one vendor per region" (Σ_i z_ij = 1) are moved into the objective with multipliers u_j;
+ * what is left splits into one 0-1 knapsack per vendor — which regions vendor i would take at
+ * prices c_ij − u_j within its capacity — and the choice of vendors, kept to the aggregate
+ * capacity row Σ_i K_i y_i ≥ D (implied by the model, so the relaxation stays a relaxation).
+ * Every L(u) is a lower bound on the best award; the multipliers follow the subgradient method
+ * with the step rule of Held, Wolfe & Crowder (1974) as described by Fisher (1981). Each
+ * relaxed solution is repaired into an award (the Lagrangian heuristic) so the search also finds
+ * awards. Pure and synchronous: the neighbourhood-search worker runs it on its own thread.
+ */
+
+/** The sole award model in the shape the relaxation needs; vendors that cannot be awarded have no prices. */
+export interface SoleData {
+  m: number;
+  n: number;
+  fee: Float64Array;
+  /** Effective capacity K̄_i (0 for a vendor that cannot be awarded). */
+  cap: Float64Array;
+  demand: Float64Array;
+  required: Uint8Array;
+  /** c_ij = p_ij d_j at [i * n + j]; Infinity where vendor i cannot take region j. */
+  cost: Float64Array;
+  totalDemand: number;
+  /** Fewest vendors any award opens (the model's minimum-vendors and fewest-vendors rows; 0 when neither). */
+  fewestVendors: number;
+  /** Every cost of the model is a whole number: so is every award's total, and a bound can be rounded up. */
+  integral: boolean;
+  /** The model's columns: y_i, z_ij (-1 where absent). */
+  numCols: number;
+  open: number[];
+  supply: number[][];
+}
+
+/**
+ * Reads a sole award model (every region sole) back into SoleData, or null when the model is
+ * not one (split regions): the relaxation is written for sole award only.
+ */
+export function soleData(model: MipModel, map: Pick<ModelMap, 'open' | 'supply' | 'soleColumn'>): SoleData | null {
+  const m = map.open.length;
+  const n = map.soleColumn.length;
+  if (m === 0 || n === 0 || map.soleColumn.some((s) => !s)) return null;
+  const fee = new Float64Array(m);
+  const cap = new Float64Array(m);
+  const demand = new Float64Array(n).fill(NaN);
+  const required = new Uint8Array(m);
+  const cost = new Float64Array(m * n).fill(Infinity);
+  const rowOf = new Map(model.rowNames.map((name, r) => [name, r]));
+  for (let i = 0; i < m; i++) {
+    const y = map.open[i];
+    if (y < 0 || model.colUpper[y] < 0.5) continue;
+    const r = rowOf.get(`capacity_${i}`);
+    if (r === undefined) return null;
+    fee[i] = model.colCost[y];
+    required[i] = model.colLower[y] > 0.5 ? 1 : 0;
+    const coef = new Map<number, number>();
+    for (let k = model.rowStarts[r]; k < model.rowStarts[r + 1]; k++) coef.set(model.rowIndex[k], model.rowValue[k]);
+    cap[i] = -(coef.get(y) ?? 0);
+    for (let j = 0; j < n; j++) {
+      const c = map.supply[i][j];
+      if (c < 0) continue;
+      const d = coef.get(c);
+      if (d === undefined) return null;
+      demand[j] = d;
+      if (model.colUpper[c] >= 0.5) cost[i * n + j] = model.colCost[c];
+    }
+  }
+  if (demand.some((d) => !(d > 0))) return null;
+  const whole = (v: number) => Math.abs(v - Math.round(v)) <= 1e-9 * Math.max(1, Math.abs(v));
+  const integral = model.colCost.every(whole);
+  let fewestVendors = 0;
+  for (const name of ['min_vendors', 'fewest_vendors']) {
+    const r = rowOf.get(name);
+    if (r !== undefined && Number.isFinite(model.rowLower[r])) fewestVendors = Math.max(fewestVendors, Math.ceil(model.rowLower[r] - 1e-9));
+  }
+  return { m, n, fee, cap, demand, required, cost, totalDemand: demand.reduce((s, d) => s + d, 0), fewestVendors, integral, numCols: model.numCols, open: map.open, supply: map.supply };
+}
+
+/** The smallest total an award can have given a proven lower bound: rounded up when every total is whole. */
+export function roundedBound(data: SoleData, bound: number): number {
+  return data.integral ? Math.ceil(bound - 1e-6 * Math.max(1, Math.abs(bound))) : bound;
+}
+
+// Knapsacks are solved exactly by dynamic programming over capacity (weights and capacity
+// divided by the demands' greatest common divisor) while items × capacity stays below this;
+// beyond it, or with fractional demands, the Dantzig bound (items by value per unit, the last
+// one fractional) is used instead: never below the knapsack's optimum, so L(u) stays a valid bound.
+const DP_LIMIT = 4_000_000;
+
+function gcd(a: number, b: number): number {
+  while (b) [a, b] = [b, a % b];
+  return a;
+}
+
+/** The best value of one vendor's knapsack and the regions it takes (`take`, 1 per region taken). */
+export function knapsack(values: Float64Array, weights: Float64Array, items: number[], capacity: number, take: Uint8Array): { value: number; exact: boolean } {
+  for (const j of items) take[j] = 0;
+  let total = 0;
+  let weight = 0;
+  for (const j of items) { total += values[j]; weight += weights[j]; }
+  if (weight <= capacity + 1e-9) {
+    for (const j of items) take[j] = 1;
+    return { value: total, exact: true };
+  }
+  const allWhole = items.every((j) => Number.isInteger(weights[j])) && Number.isFinite(capacity);
+  if (allWhole) {
+    let g = 0;
+    for (const j of items) g = gcd(g, weights[j]);
+    const cap = Math.floor(capacity / g + 1e-9);
+    if (items.length * (cap + 1) <= DP_LIMIT) {
+      // best[w]: best value with total weight at most w; keep[k * (cap + 1) + w]: item k taken there.
+      const best = new Float64Array(cap + 1);
+      const keep = new Uint8Array(items.length * (cap + 1));
+      items.forEach((j, k) => {
+        const w = weights[j] / g;
+        const v = values[j];
+        for (let c = cap; c >= w; c--) {
+          const withIt = best[c - w] + v;
+          if (withIt > best[c]) { best[c] = withIt; keep[k * (cap + 1) + c] = 1; }
+        }
+      });
+      for (let k = items.length - 1, c = cap; k >= 0; k--) {
+        if (keep[k * (cap + 1) + c]) { take[items[k]] = 1; c -= weights[items[k]] / g; }
+      }
+      return { value: best[cap], exact: true };
+    }
+  }
+  const order = [...items].sort((a, b) => values[b] / weights[b] - values[a] / weights[a]);
+  let left = capacity;
+  let value = 0;
+  for (const j of order) {
+    if (weights[j] <= left) { take[j] = 1; left -= weights[j]; value += values[j]; }
+    else { value += (values[j] * left) / weights[j]; left = 0; break; }
+  }
+  return { value, exact: false };
+}
+
+interface Completion { value: number; open: [number, number][]; exact: boolean }
+
+/**
+ * The cheapest set of further vendors (`worth` ≥ 0 each) whose capacities reach `need`: exact by
+ * dynamic programming over capacity (a covering knapsack, capacities divided by their greatest
+ * common divisor) when capacities are whole and small enough, else its LP (cheapest per unit of
+ * capacity first, the last one fractional), which is never above it.
+ */
+function coverCompletion(rest: number[], worth: Float64Array, cap: Float64Array, need: number): Completion {
+  if (need <= 1e-9) return { value: 0, open: [], exact: true };
+  const whole = rest.every((i) => Number.isInteger(cap[i]));
+  let g = 0;
+  if (whole) for (const i of rest) g = gcd(g, cap[i]);
+  const target = g > 0 ? Math.ceil(need / g - 1e-9) : 0;
+  if (whole && g > 0 && rest.length * (target + 1) <= DP_LIMIT) {
+    // f[c]: cheapest worth of vendors whose capacities reach at least c (in units of g).
+    const f = new Float64Array(target + 1).fill(Infinity);
+    f[0] = 0;
+    const keep = new Uint8Array(rest.length * (target + 1));
+    rest.forEach((i, k) => {
+      const w = cap[i] / g;
+      for (let c = target; c >= 1; c--) {
+        const withIt = f[Math.max(0, c - w)] + worth[i];
+        if (withIt < f[c]) { f[c] = withIt; keep[k * (target + 1) + c] = 1; }
+      }
+    });
+    if (f[target] === Infinity) return { value: Infinity, open: [], exact: true };
+    const open: [number, number][] = [];
+    for (let k = rest.length - 1, c = target; k >= 0 && c > 0; k--) {
+      if (keep[k * (target + 1) + c]) { open.push([rest[k], 1]); c = Math.max(0, c - cap[rest[k]] / g); }
+    }
+    return { value: f[target], open, exact: true };
+  }
+  const order = [...rest].sort((a, b) => worth[a] / cap[a] - worth[b] / cap[b]);
+  const open: [number, number][] = [];
+  let value = 0;
+  let left = need;
+  for (const i of order) {
+    if (left <= 1e-9) break;
+    const share = Math.min(1, left / cap[i]);
+    open.push([i, share]);
+    value += share * worth[i];
+    left -= share * cap[i];
+  }
+  return { value: left > 1e-9 ? Infinity : value, open, exact: false };
+}
+
+/** The cheapest `count` further vendors (each `worth` ≥ 0): exact. */
+function countCompletion(rest: number[], worth: Float64Array, count: number): Completion {
+  if (count <= 0) return { value: 0, open: [], exact: true };
+  const order = [...rest].sort((a, b) => worth[a] - worth[b]).slice(0, count);
+  if (order.length < count) return { value: Infinity, open: [], exact: true };
+  return { value: order.reduce((s, i) => s + worth[i], 0), open: order.map((i) => [i, 1]), exact: true };
+}
+
+export interface RelaxedSolution {
+  /** L(u), a lower bound on every award's total. */
+  bound: number;
+  /** y_i of the relaxed solution (1, 0, or a fraction for the one vendor the capacity cover splits). */
+  open: Float64Array;
+  /** Region j's vendors in the relaxed solution, as take flags per vendor: taken[i * n + j]. */
+  taken: Uint8Array;
+  /** Every knapsack was solved exactly. */
+  exact: boolean;
+}
+
+/** Solves the relaxed problem at multipliers u. */
+export function relaxed(data: SoleData, u: Float64Array): RelaxedSolution {
+  const { m, n, fee, cap, demand, cost, required } = data;
+  const values = new Float64Array(n);
+  const take = new Uint8Array(n);
+  const taken = new Uint8Array(m * n);
+  const worth = new Float64Array(m);
+  const open = new Float64Array(m);
+  let exact = true;
+  let bound = 0;
+  for (let j = 0; j < n; j++) bound += u[j];
+  for (let i = 0; i < m; i++) {
+    if (!(cap[i] > 0)) { worth[i] = Infinity; continue; }
+    const items: number[] = [];
+    for (let j = 0; j < n; j++) {
+      const v = u[j] - cost[i * n + j];
+      if (v > 0) { values[j] = v; items.push(j); }
+    }
+    const k = knapsack(values, demand, items, cap[i], take);
+    exact &&= k.exact;
+    worth[i] = fee[i] - k.value;
+    for (const j of items) taken[i * n + j] = take[j];
+  }
+  // Choose the vendors: every vendor that pays for itself or is required, then the others the
+  // aggregate capacity row or the fewest-vendors row still asks for. Both rows hold for every
+  // award, but they are met one at a time here: the cheaper completion of the two is a relaxation
+  // of meeting both, so the dearer of the two is still a lower bound (and its vendors the solution).
+  let count = 0;
+  let covered = 0;
+  for (let i = 0; i < m; i++) {
+    if (worth[i] === Infinity) continue;
+    if (required[i] || worth[i] < 0) { open[i] = 1; bound += worth[i]; covered += cap[i]; count++; }
+  }
+  const rest: number[] = [];
+  for (let i = 0; i < m; i++) if (!open[i] && worth[i] !== Infinity) rest.push(i);
+  const cover = coverCompletion(rest, worth, cap, data.totalDemand - covered);
+  const cardinality = countCompletion(rest, worth, data.fewestVendors - count);
+  const completion = cover.value >= cardinality.value ? cover : cardinality;
+  exact &&= completion.exact;
+  bound += completion.value;
+  for (const [i, share] of completion.open) open[i] = share;
+  return { bound, open, taken, exact };
+}
+
+/**
+ * Repairs a relaxed solution into an award (the Lagrangian heuristic): the vendors it opens, each
+ * region to the vendor that took it at the lowest price and still has room, the others in order
+ * of regret (the dearer the second choice, the earlier) to the cheapest open vendor with room,
+ * then regions shifted to cheaper open vendors with room and vendors left without regions closed.
+ * Returns the model's column vector and its total, or null when the open vendors cannot cover.
+ */
+export function repair(data: SoleData, relaxedSolution: RelaxedSolution): { x: Float64Array; objective: number; owner: Int32Array } | null {
+  const { m, n, cost, cap, demand, fee } = data;
+  const isOpen = Array.from(relaxedSolution.open, (v) => v > 1e-9);
+  const residual = Float64Array.from(cap, (c, i) => (isOpen[i] ? c : 0));
+  const owner = new Int32Array(n).fill(-1);
+  const fits = (i: number, j: number) => residual[i] + 1e-9 >= demand[j] && cost[i * n + j] < Infinity;
+  // Regions the relaxation gave to an open vendor, largest first, each to its cheapest such vendor with room.
+  const byDemand = Array.from({ length: n }, (_, j) => j).sort((a, b) => demand[b] - demand[a]);
+  for (const j of byDemand) {
+    let pick = -1;
+    for (let i = 0; i < m; i++) {
+      if (isOpen[i] && relaxedSolution.taken[i * n + j] && fits(i, j) && (pick < 0 || cost[i * n + j] < cost[pick * n + j])) pick = i;
+    }
+    if (pick >= 0) { owner[j] = pick; residual[pick] -= demand[j]; }
+  }
+  for (;;) {
+    // The unassigned region whose best and second-best open vendors with room differ most goes first.
+    let next = -1;
+    let nextVendor = -1;
+    let nextRegret = -Infinity;
+    for (let j = 0; j < n; j++) {
+      if (owner[j] >= 0) continue;
+      let first = -1;
+      let second = Infinity;
+      for (let i = 0; i < m; i++) {
+        if (!isOpen[i] || !fits(i, j)) continue;
+        const c = cost[i * n + j];
+        if (first < 0 || c < cost[first * n + j]) { if (first >= 0) second = cost[first * n + j]; first = i; }
+        else if (c < second) second = c;
+      }
+      if (first < 0) return null;
+      const regret = second - cost[first * n + j];
+      if (regret > nextRegret) { next = j; nextVendor = first; nextRegret = regret; }
+    }
+    if (next < 0) break;
+    owner[next] = nextVendor;
+    residual[nextVendor] -= demand[next];
+  }
+  // Shift moves, then close vendors that serve nothing (unless required).
+  for (let pass = 0, moved = true; moved && pass < 10; pass++) {
+    moved = false;
+    for (let j = 0; j < n; j++) {
+      const a = owner[j];
+      let best = a;
+      for (let i = 0; i < m; i++) if (i !== a && isOpen[i] && fits(i, j) && cost[i * n + j] < cost[best * n + j] - 1e-9) best = i;
+      if (best !== a) { owner[j] = best; residual[a] += demand[j]; residual[best] -= demand[j]; moved = true; }
+    }
+  }
+  const serves = new Uint8Array(m);
+  for (let j = 0; j < n; j++) serves[owner[j]] = 1;
+  const x = new Float64Array(data.numCols);
+  let objective = 0;
+  for (let i = 0; i < m; i++) {
+    if (!(serves[i] || data.required[i]) || data.open[i] < 0) continue;
+    x[data.open[i]] = 1;
+    objective += fee[i];
+  }
+  for (let j = 0; j < n; j++) {
+    x[data.supply[owner[j]][j]] = 1;
+    objective += cost[owner[j] * n + j];
+  }
+  return { x, objective, owner };
+}
+
+export interface SubgradientOptions {
+  /** Starting multipliers (the LP's row duals of the assignment rows), else the cheapest price of each region. */
+  start?: Float64Array | null;
+  /** An award's total: the target of the step rule (Held, Wolfe & Crowder). */
+  upper: number;
+  /** At most this many iterations (tests count iterations, never time). */
+  iterations: number;
+  /** Called with every repaired award; may return a lower total found since (another run's), which becomes the step's target. */
+  onAward?: (award: { x: Float64Array; objective: number }) => number | void;
+  /** Stops the iterations early when it returns true (a deadline). */
+  stop?: () => boolean;
+}
+
+export interface SubgradientResult {
+  bound: number;
+  multipliers: Float64Array;
+  iterations: number;
+  /** The cheapest repaired award, or null. */
+  best: { x: Float64Array; objective: number } | null;
+}
+
+/**
+ * The subgradient method: u ← u + t·s with s_j = 1 − Σ_i y_i z_ij (the assignment rows' slack)
+ * and t = λ (U − L(u)) / ‖s‖², λ from 2, halved after 20 iterations without a better bound
+ * (Held, Wolfe & Crowder 1974; Fisher 1981). Stops when λ is below 1e-4, when the bound meets
+ * the target (rounded up when every total is whole), or at the iteration limit.
+ */
+export function subgradient(data: SoleData, options: SubgradientOptions): SubgradientResult {
+  const { m, n, cost } = data;
+  let u = new Float64Array(n);
+  if (options.start && options.start.length === n) u = Float64Array.from(options.start);
+  else {
+    for (let j = 0; j < n; j++) {
+      let low = Infinity;
+      for (let i = 0; i < m; i++) low = Math.min(low, cost[i * n + j]);
+      u[j] = Number.isFinite(low) ? low : 0;
+    }
+  }
+  let upper = options.upper;
+  let bestBound = -Infinity;
+  let bestU = Float64Array.from(u);
+  let best: SubgradientResult['best'] = null;
+  let lambda = 2;
+  let idle = 0;
+  let k = 0;
+  const s = new Float64Array(n);
+  for (; k < options.iterations && lambda > 1e-4; k++) {
+    if (options.stop?.()) break;
+    const r = relaxed(data, u);
+    if (bestBound === -Infinity || r.bound > bestBound + 1e-9 * Math.max(1, Math.abs(bestBound))) { bestBound = r.bound; bestU = Float64Array.from(u); idle = 0; }
+    else if (++idle >= 20) { lambda /= 2; idle = 0; }
+    if (k % 5 === 0 || idle === 0) {
+      const award = repair(data, r);
+      if (award && (!best || award.objective < best.objective - 1e-9)) {
+        best = { x: award.x, objective: award.objective };
+        upper = Math.min(upper, award.objective);
+      }
+      if (award) {
+        const theirs = options.onAward?.(award);
+        if (typeof theirs === 'number') upper = Math.min(upper, theirs);
+      }
+    }
+    if (roundedBound(data, bestBound) >= upper - 1e-6 * Math.max(1, Math.abs(upper))) { k++; break; }
+    let norm = 0;
+    for (let j = 0; j < n; j++) {
+      let cover = 0;
+      for (let i = 0; i < m; i++) if (r.open[i] > 0 && r.taken[i * n + j]) cover += r.open[i];
+      s[j] = 1 - cover;
+      norm += s[j] * s[j];
+    }
+    if (norm < 1e-12) { k++; break; }
+    // Step toward the target; when no award is known yet, toward 5 % above the bound (a common choice).
+    const target = Number.isFinite(upper) ? upper : r.bound + 0.05 * Math.max(1, Math.abs(r.bound));
+    const t = (lambda * Math.max(target - r.bound, 1e-6 * Math.max(1, Math.abs(target)))) / norm;
+    for (let j = 0; j < n; j++) u[j] += t * s[j];
+  }
+  return { bound: bestBound, multipliers: bestU, iterations: k, best };
+}
