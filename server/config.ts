@@ -30,7 +30,7 @@ const envSchema = z.object({
   /**
    * Niceness of a jobs-only process (`npm run worker`), 0 to 9: solves are CPU-bound for seconds
    * and should not take the CPU from the requests people wait for. The solver's helper threads
-   * step 5 to 10 further down from it (award/workers/low-priority.mjs, at most 19), so that
+   * step 5 to 10 further down from it (award/workers/low-priority.ts, at most 19), so that
    * below 10 they still give way to the main run.
    */
   WORKER_NICE: z.coerce.number().int().min(0).max(9).default(5),

@@ -12,7 +12,7 @@ import { verifyAward } from '../../server/award/verify';
 import { closeSolverPool, solverPool } from '../../server/award/workers';
 import { largeSoleProblem, prng } from './support/problems';
 
-// The large neighbourhood search (server/award/workers/lns-worker.mjs) run on its own against a
+// The large neighbourhood search (server/award/workers/lns-worker.ts) run on its own against a
 // board, the way the Tendara engine runs it beside HiGHS. Runs are bounded by a number of rounds,
 // not by time, so that what they find does not depend on how busy the machine is.
 jest.setTimeout(120_000);

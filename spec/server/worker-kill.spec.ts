@@ -87,7 +87,7 @@ test('a worker killed mid-run: the run is retried by another worker and complete
   }
   // Meanwhile every thread of the worker, its solver threads included, is in Linux's SCHED_IDLE
   // class (WORKER_SCHED=idle, the default), so the solve only takes CPU nothing else wants. The
-  // glpk.js thread is known by its niceness, 10 steps below the process's (low-priority.mjs).
+  // glpk.js thread is known by its niceness, 10 steps below the process's (low-priority.ts).
   if (process.platform === 'linux') {
     for (let i = 0; i < 100 && !threadsOf(first.pid!).some((th) => th.nice === GLPK_THREAD_NICE); i++) await new Promise((r) => setTimeout(r, 50));
     const threads = threadsOf(first.pid!);
