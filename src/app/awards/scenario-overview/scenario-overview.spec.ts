@@ -169,8 +169,11 @@ describe('ScenarioOverview while loading', () => {
     await signInAs('buyer');
     const fixture = TestBed.createComponent(ScenarioOverview);
     fixture.componentRef.setInput('id', TENDER_ID);
+    // No whenStable: it would wait for the very answers this test holds back.
     fixture.detectChanges();
-    await fixture.whenStable();
+    expect(http.match(() => true).map((request) => request.request.url).sort()).toEqual(
+      [`/api/tenders/${TENDER_ID}`, `/api/tenders/${TENDER_ID}/bids`, `/api/tenders/${TENDER_ID}/runs`, `/api/tenders/${TENDER_ID}/scenarios`]);
+    fixture.detectChanges();
     const text = (fixture.nativeElement as HTMLElement).textContent;
     expect(text).toContain('Loading runs…');
     expect(text).not.toContain('No runs yet');
