@@ -159,6 +159,45 @@ describe('ScenarioOverview', () => {
   });
 });
 
+describe('ScenarioOverview when loading fails', () => {
+  it('says why, and Try again asks for the four answers again and shows the scenarios', async () => {
+    TestBed.configureTestingModule({
+      imports: [ScenarioOverview],
+      providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
+    });
+    const http = TestBed.inject(HttpTestingController);
+    await signInAs('buyer');
+    const fixture = TestBed.createComponent(ScenarioOverview);
+    fixture.componentRef.setInput('id', TENDER_ID);
+    const loader = TestbedHarnessEnvironment.loader(fixture);
+    fixture.detectChanges();
+    http.expectOne(`/api/tenders/${TENDER_ID}`).flush(
+      { type: 'about:blank', title: 'Service Unavailable', status: 503, detail: 'The database is being restarted.' },
+      { status: 503, statusText: 'Service Unavailable' },
+    );
+    // One failure fails the page's load: the other three requests are cancelled, not waited for.
+    expect(http.match(() => true).map((request) => request.cancelled)).toEqual([true, true, true]);
+    await fixture.whenStable();
+    const alert = () => (fixture.nativeElement as HTMLElement).querySelector('[role=alert]')?.textContent ?? '';
+    expect(alert()).toContain('The database is being restarted.');
+
+    // A click, not the harness's: the harness waits for stability, that is for the very answers below.
+    const retry = [...(fixture.nativeElement as HTMLElement).querySelectorAll('button')].find((b) => b.textContent?.trim() === 'Try again');
+    expect(retry?.textContent?.trim()).toBe('Try again');
+    retry!.click();
+    fixture.detectChanges();
+    http.expectOne(`/api/tenders/${TENDER_ID}`).flush(tender);
+    http.expectOne(`/api/tenders/${TENDER_ID}/scenarios`).flush(scenarios);
+    http.expectOne(`/api/tenders/${TENDER_ID}/runs`).flush([latestRun]);
+    http.expectOne(`/api/tenders/${TENDER_ID}/bids`).flush({ submitted: 0, bids: [] as TabulatedBid[] });
+    await fixture.whenStable();
+    expect(alert()).toBe('');
+    const rows = await (await loader.getHarness(MatTableHarness.with({ selector: '[aria-labelledby="scenarios-heading"]' }))).getCellTextByColumnName();
+    expect(rows['name'].text).toHaveLength(2);
+    http.verify();
+  });
+});
+
 describe('ScenarioOverview while loading', () => {
   it('says the runs are loading, not that there are none', async () => {
     TestBed.configureTestingModule({
