@@ -6,7 +6,7 @@ import { ApiError } from '../core/http/api-error';
 import { formSubmission } from './form-submission';
 
 const form = () => new FormGroup({
-  name: new FormControl('Depot north', { nonNullable: true, validators: Validators.required }),
+  name: new FormControl('Depot north', { nonNullable: true, validators: (control) => Validators.required(control) }),
   forecast: new FormControl<number | null>(120),
 });
 

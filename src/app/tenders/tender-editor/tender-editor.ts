@@ -12,7 +12,7 @@ import { describeAwardBasis } from '@shared/award-basis';
 import { formatInZone } from '@shared/time-zone';
 import { Router, RouterLink } from '@angular/router';
 import { findDuplicateRegionCodes } from '@shared/bids';
-import { LETTER_LOCALES, tenderInputSchema, type TenderView } from '@shared/tenders';
+import { LETTER_LOCALES, tenderInputSchema } from '@shared/tenders';
 import { startWith } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { formSubmission } from '../../ui/form-submission';
