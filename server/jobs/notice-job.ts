@@ -4,6 +4,7 @@ import { Notice } from '../entities';
 import { logger } from '../logger';
 import type { Mailer } from '../mail/mailer';
 import { notifiedIfAllSent } from '../services/notices/notices.service';
+import { claimQueuedNotice } from '../services/queries/notices.queries';
 import { noticeRetryLimit, noticeRetrySeconds, queueNotice, QUEUES } from './queue';
 
 /**
@@ -17,9 +18,7 @@ import { noticeRetryLimit, noticeRetrySeconds, queueNotice, QUEUES } from './que
 export async function sendNotice(orm: MikroORM, boss: PgBoss, mailer: Mailer, noticeId: string): Promise<void> {
   const em = orm.em.fork();
   const outcome = await em.transactional(async (tx) => {
-    const [notice] = await tx.execute<{ tender_id: string; attempts: number; to_addresses: string[]; subject: string; text: string; html: string }[]>(
-      `select tender_id, attempts, to_addresses, subject, text, html from notice where id = ? and status = 'queued' for update skip locked`, [noticeId],
-    );
+    const notice = await claimQueuedNotice(tx, noticeId);
     if (!notice) return null;
     const attempts = notice.attempts + 1;
     try {

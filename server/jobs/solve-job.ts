@@ -5,6 +5,7 @@ import { AwardInputError, solveAward } from '../award';
 import { Run, RunAward } from '../entities';
 import { logger } from '../logger';
 import { audit } from '../services/audit.service';
+import { claimRunForSolving, finishRun, runStatusNow } from '../services/queries/evaluation.queries';
 import { explainRun } from './explain-job';
 import { QUEUES } from './queue';
 
@@ -17,18 +18,13 @@ const CANCEL_POLL_MS = 1000;
  */
 export async function solveRun(orm: MikroORM, runId: string): Promise<void> {
   const em = orm.em.fork();
-  const claimed = await em.execute<{ id: string }[]>(
-    `update run set status = 'solving', started_at = now(), attempts = attempts + 1, updated_at = now()
-       where id = ? and status in ('queued', 'solving') returning id`, [runId],
-  );
-  if (!claimed.length) return;
+  if (!(await claimRunForSolving(em, runId))) return;
   const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
 
   const controller = new AbortController();
   const watch = setInterval(() => {
-    orm.em.fork().getConnection()
-      .execute<{ status: string }[]>(`select status from run where id = ?`, [runId])
-      .then((rows) => { if (rows[0]?.status === 'cancelled') controller.abort(new Error('cancelled')); })
+    runStatusNow(orm.em.fork(), runId)
+      .then((status) => { if (status === 'cancelled') controller.abort(new Error('cancelled')); })
       .catch((err: unknown) => logger.warn({ err, runId }, 'could not check for cancellation'));
   }, CANCEL_POLL_MS);
 
@@ -48,11 +44,7 @@ export async function solveRun(orm: MikroORM, runId: string): Promise<void> {
   }
 
   await em.transactional(async (tx) => {
-    const done = await tx.execute<{ id: string }[]>(
-      `update run set status = ?, result = ?::jsonb, finished_at = now(), updated_at = now() where id = ? and status = 'solving' returning id`,
-      [result.status, JSON.stringify(result), runId],
-    );
-    if (!done.length) return; // cancelled meanwhile
+    if (!(await finishRun(tx, runId, result))) return; // cancelled meanwhile
     for (const award of result.awards) {
       for (const line of award.lines) {
         tx.create(RunAward, { run: runId, vendorOrganisation: award.vendor, regionCode: line.region, quantity: line.quantity, unitPrice: line.unitPrice, cost: line.cost });

@@ -1,5 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { uuidArray } from './sql';
+import { bidVendorNames, organisationNames, runScenarioNames, type NamedRow } from './queries/audit.queries';
 
 /**
  * What an audit entry says, in the buyer's words ("Bid received from Kestrelway Haulage"), for the
@@ -177,17 +177,7 @@ export async function auditNames(em: EntityManager, entries: readonly Entry[], s
   const runIds = ids(entries, 'run');
   const orgIds = [...new Set(entries.flatMap((e) => [e.detail['vendorOrganisation'], e.detail['droppedVendor'], subjectId(e, 'vendor')])
     .filter((v): v is string => typeof v === 'string' && UUID.test(v)))];
-  type Named = { id: string; name: string }[];
-  const bids = bidIds.length
-    ? await em.execute<Named>(
-      `select b.id, o.name from bid b join vendor_organisation o on o.id = b.vendor_organisation_id where b.id = any(?::uuid[])`, [uuidArray(bidIds)])
-    : [];
-  const runs = runIds.length
-    ? await em.execute<Named>(`select r.id, s.name from run r join scenario s on s.id = r.scenario_id where r.id = any(?::uuid[])`, [uuidArray(runIds)])
-    : [];
-  const orgs = orgIds.length
-    ? await em.execute<Named>(`select id, name from vendor_organisation where id = any(?::uuid[])`, [uuidArray(orgIds)])
-    : [];
-  const map = (rows: Named) => new Map(rows.map((r) => [r.id, r.name]));
+  const [bids, runs, orgs] = [await bidVendorNames(em, bidIds), await runScenarioNames(em, runIds), await organisationNames(em, orgIds)];
+  const map = (rows: readonly NamedRow[]) => new Map(rows.map((r) => [r.id, r.name]));
   return { bidVendors: map(bids), runScenarios: map(runs), organisations: map(orgs) };
 }

@@ -7,6 +7,7 @@ import { formatInZone } from '@shared/time-zone';
 import { AuditEntry, Tender, type User } from '../entities';
 import { csvCell } from '../workbooks/spreadsheet-text';
 import { auditNames, describeEntry } from './audit-words';
+import { appendAuditEntry, auditEntryRows, lastAuditHash, lockAuditChain } from './queries/audit.queries';
 
 /** The hash before the first entry of a tender's chain. */
 export const GENESIS = '0'.repeat(64);
@@ -63,14 +64,8 @@ export const auditLockKey = (tenderId: string | null) => `audit:${tenderId ?? 'g
  * when two changes race.
  */
 export async function audit(em: EntityManager, input: AuditInput): Promise<void> {
-  await em.execute(`select pg_advisory_xact_lock(hashtext(?))`, [auditLockKey(input.tenderId)]);
-  const last = await em.execute<{ hash: string }[]>(
-    input.tenderId
-      ? `select hash from audit_entry where tender_id = ? order by seq desc limit 1`
-      : `select hash from audit_entry where tender_id is null order by seq desc limit 1`,
-    input.tenderId ? [input.tenderId] : [],
-  );
-  const prevHash = last[0]?.hash ?? GENESIS;
+  await lockAuditChain(em, auditLockKey(input.tenderId));
+  const prevHash = (await lastAuditHash(em, input.tenderId)) ?? GENESIS;
   const content: EntryContent = {
     at: new Date(),
     tenderId: input.tenderId,
@@ -81,12 +76,11 @@ export async function audit(em: EntityManager, input: AuditInput): Promise<void>
     beforeDigest: input.before === undefined ? null : digestOf(input.before),
     afterDigest: input.after === undefined ? null : digestOf(input.after),
   };
-  await em.execute(
-    `insert into audit_entry (at, tender_id, actor_id, action, subject, detail, before_digest, after_digest, prev_hash, hash)
-     values (?, ?, ?, ?, ?, ?::jsonb, ?, ?, ?, ?)`,
-    [content.at, content.tenderId, content.actorId, content.action, content.subject, JSON.stringify(content.detail),
-      content.beforeDigest, content.afterDigest, prevHash, entryHash(prevHash, content)],
-  );
+  await appendAuditEntry(em, {
+    at: content.at, tender_id: content.tenderId, actor_id: content.actorId, action: content.action, subject: content.subject,
+    detail: content.detail, before_digest: content.beforeDigest, after_digest: content.afterDigest,
+    prev_hash: prevHash, hash: entryHash(prevHash, content),
+  });
 }
 
 /** A tender's trail, or with `null` the global one (administration: people, organisations, links). */
@@ -119,10 +113,7 @@ function withoutDigest(detail: Record<string, unknown>): Record<string, unknown>
 
 /** Recomputes every hash of the tender's chain from the stored content. */
 export async function verifyTrail(em: EntityManager, tenderId: string | null): Promise<AuditVerification> {
-  const rows = await em.execute<{
-    seq: string; at: Date; tender_id: string | null; actor_id: string | null; action: string; subject: string;
-    detail: Record<string, unknown>; before_digest: string | null; after_digest: string | null; prev_hash: string; hash: string;
-  }[]>(`select * from audit_entry where tender_id is not distinct from ?::uuid order by seq`, [tenderId]);
+  const rows = await auditEntryRows(em, tenderId);
   let prev = GENESIS;
   for (const [i, r] of rows.entries()) {
     const expected = entryHash(prev, {

@@ -8,6 +8,8 @@ import { AppError, ConflictError, NotFoundError, ValidationError } from '../http
 import { audit } from './audit.service';
 import { tabulate } from './bids.service';
 import { isFlagged } from './evaluation/abnormally-low';
+import { solvedVendors } from './queries/evaluation.queries';
+import { tenderForShare } from './queries/tender-rows.queries';
 import { findVisibleTender, lockTender } from './tender-access';
 import { transition } from './transition';
 
@@ -90,9 +92,7 @@ export async function decideAbnormallyLow(em: EntityManager, user: User, tenderI
  */
 export async function assertRecommendable(em: EntityManager, tenderId: string, run: Run): Promise<void> {
   const bids = new Map((await tabulate(em, { id: tenderId })).map((b) => [b.vendor.id, b]));
-  const solvedFor = await em.execute<{ id: string; name: string }[]>(
-    `select v->>'id' as id, v->>'name' as name from run, jsonb_array_elements(run.problem->'vendors') v where run.id = ?`, [run.id],
-  );
+  const solvedFor = await solvedVendors(em, run.id);
   const solvedWithExcluded = solvedFor.filter((v) => bids.get(v.id)?.compliance.decision === 'excluded');
   if (solvedWithExcluded.length) {
     throw new ConflictError(`This run was solved before the bid of ${solvedWithExcluded.map((v) => v.name).join(', ')} was excluded: run the scenario again and recommend the new run.`);
@@ -144,7 +144,7 @@ export async function extendValidity(em: EntityManager, user: User, tenderId: st
   await findVisibleTender(em, user, tenderId);
   return em.transactional(async (tx) => {
     // FOR SHARE: an approval (FOR NO KEY UPDATE) waits for this, or this sees the tender awarded.
-    const [row] = await tx.execute<{ status: string }[]>('select status from tender where id = ? for share', [tenderId]);
+    const row = await tenderForShare(tx, tenderId);
     if (row?.status !== 'closed') throw new ConflictError('A bid\'s validity is extended after closing and before the award is approved.');
     const tender = await tx.findOneOrFail(Tender, { id: tenderId });
     const bid = await tx.findOne(Bid, { tender: tenderId, vendorOrganisation: org.id, status: { $in: LIVE } });

@@ -1,9 +1,9 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { OpeningRecordContent } from '@shared/compliance';
-import { LIVE_BID_STATUSES } from '@shared/tenders';
 import { digestOf } from './audit.service';
 import { abnormallyLowFlags, isFlagged } from './evaluation/abnormally-low';
-import { sqlList } from './sql';
+import { insertOpeningRecord, openingBids, openingTender } from './queries/opening.queries';
+import { tenderRegionRows } from './queries/tender-rows.queries';
 
 /** What the closing transaction writes into the `tender.closed` audit entry besides the count. */
 export interface OpeningOutcome {
@@ -21,20 +21,8 @@ export interface OpeningOutcome {
  * record through opening-record.service.ts.
  */
 export async function writeOpeningRecord(tx: EntityManager, tenderId: string, openedAt: Date): Promise<OpeningOutcome> {
-  const [tender] = await tx.execute<{ reference: string; title: string; closes_at: Date | string; abnormally_low_percent: string | number }[]>(
-    'select reference, title, closes_at, abnormally_low_percent from tender where id = ?', [tenderId],
-  );
-  const bids = await tx.execute<{
-    vendor_id: string; vendor_name: string; status: string; submitted_at: Date | string | null; updated_at: Date | string; revision: number;
-    digest: string | null; fixed_fee: string; prices: Record<string, string | number> | null;
-  }[]>(
-    `select o.id as vendor_id, o.name as vendor_name, b.status, b.submitted_at, b.updated_at, b.revision, b.digest, b.fixed_fee,
-            (select json_object_agg(r.code, l.unit_price) from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices
-       from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
-      where b.tender_id = ? and b.status in (${sqlList([...LIVE_BID_STATUSES, 'withdrawn'])})
-      order by o.name asc, o.id asc`,
-    [tenderId],
-  );
+  const tender = await openingTender(tx, tenderId);
+  const bids = await openingBids(tx, tenderId);
   const live = bids.filter((b) => b.status !== 'withdrawn');
   const content: OpeningRecordContent = {
     tender: { id: tenderId, reference: tender.reference, title: tender.title },
@@ -48,12 +36,8 @@ export async function writeOpeningRecord(tx: EntityManager, tenderId: string, op
     })),
   };
   const digest = digestOf(content);
-  await tx.execute(
-    `insert into opening_record (id, created_at, updated_at, tender_id, content, digest) values (gen_random_uuid(), now(), now(), ?, ?::jsonb, ?)
-     on conflict (tender_id) do nothing`,
-    [tenderId, JSON.stringify(content), digest],
-  );
-  const regions = await tx.execute<{ code: string; forecast: string | number }[]>('select code, forecast from region where tender_id = ? order by position', [tenderId]);
+  await insertOpeningRecord(tx, tenderId, content, digest);
+  const regions = await tenderRegionRows(tx, tenderId);
   const flags = abnormallyLowFlags(
     live.map((b) => ({
       vendor: b.vendor_id, excluded: false, fixedFee: Number(b.fixed_fee),

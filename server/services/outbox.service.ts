@@ -2,7 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import type { OutboxMessage, OutboxPage, OutboxQuery, OutboxSummary } from '@shared/people';
 import { MailMessage } from '../entities';
 import { NotFoundError } from '../http/errors';
-import { escapeLike } from './like';
+import { outboxPageRows } from './queries/outbox.queries';
 
 function summary(m: MailMessage): OutboxSummary {
   return { id: m.id, from: m.fromAddress, to: m.toAddresses, subject: m.subject, date: m.sentAt.toISOString(), hasHtml: !!m.html };
@@ -27,20 +27,12 @@ export interface OutboxOptions {
 
 /** One page of the messages whose subject or addresses contain `q` (any case), newest first. */
 export async function listOutbox(em: EntityManager, query: OutboxQuery): Promise<OutboxPage> {
-  const where = query.q
-    ? `where m.subject ilike ? or m.from_address ilike ? or array_to_string(m.to_addresses, ' ') ilike ?`
-    : '';
-  const params = query.q ? Array<string>(3).fill(`%${escapeLike(query.q)}%`) : [];
-  const [counted] = await em.execute<{ total: string }[]>(`select count(*) as total from mail_message m ${where}`, params);
-  const ids = await em.execute<{ id: string }[]>(
-    `select m.id from mail_message m ${where} order by m.sent_at desc, m.created_at desc, m.id limit ? offset ?`,
-    [...params, query.pageSize, (query.page - 1) * query.pageSize],
-  );
-  const messages = ids.length ? await em.find(MailMessage, { id: { $in: ids.map((r) => r.id) } }) : [];
+  const { ids, total } = await outboxPageRows(em, query.q, query.page, query.pageSize);
+  const messages = ids.length ? await em.find(MailMessage, { id: { $in: ids } }) : [];
   const byId = new Map(messages.map((m) => [m.id, m]));
   return {
-    messages: ids.map((r) => summary(byId.get(r.id)!)),
-    total: Number(counted?.total ?? 0),
+    messages: ids.map((id) => summary(byId.get(id)!)),
+    total,
     page: query.page,
     pageSize: query.pageSize,
   };

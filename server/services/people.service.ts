@@ -15,6 +15,7 @@ import { renderMail } from '../mail/templates';
 import { hashPassword } from '../auth/password';
 import { refuseCommonPassword } from '../auth/common-passwords';
 import { audit } from './audit.service';
+import { deleteSessionsOf } from './queries/people.queries';
 
 /** A set-password link is valid this long. */
 export const ACCOUNT_LINK_HOURS = 72;
@@ -239,7 +240,7 @@ export async function setPasswordWithLink(em: EntityManager, secret: string, pas
     const spent = await tx.nativeUpdate(AccountToken, { id: token.id, usedAt: null }, { usedAt: new Date() });
     if (spent !== 1) throw new NotFoundError('This link is used, expired or unknown. The link');
     await tx.nativeUpdate(User, { id: token.user.id }, { passwordHash: hash });
-    const ended = await endSessions(tx, token.user.id);
+    const ended = await deleteSessionsOf(tx, token.user.id);
     await audit(tx, {
       tenderId: null, actor: token.user, action: token.purpose === 'reset' ? 'password.reset' : 'password.set', subject: 'person',
       detail: { person: token.user.id, email: token.user.email, sessionsEnded: ended },
@@ -247,11 +248,6 @@ export async function setPasswordWithLink(em: EntityManager, secret: string, pas
   });
 }
 
-/** Ends every session of a person at once (they are signed out on their next request). */
-async function endSessions(em: EntityManager, userId: string): Promise<number> {
-  const rows = await em.execute(`delete from http_session where sess #>> '{passport,user}' = ? returning sid`, [userId]);
-  return rows.length;
-}
 
 /** Deactivates a person and ends every session they have, at once; or reactivates them. */
 export async function setActive(em: EntityManager, id: string, active: boolean, actor: User): Promise<PersonView> {
@@ -262,7 +258,7 @@ export async function setActive(em: EntityManager, id: string, active: boolean, 
       throw new ConflictError('The organisation\'s contact refused this person, so the account stays closed.');
     }
     await tx.nativeUpdate(User, { id }, { active });
-    if (!active) await endSessions(tx, id);
+    if (!active) await deleteSessionsOf(tx, id);
     await audit(tx, { tenderId: null, actor, action: active ? 'person.reactivated' : 'person.deactivated', subject: 'person', detail: personDetail(u) });
     u.active = active;
     return u;

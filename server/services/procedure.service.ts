@@ -15,9 +15,12 @@ import { sendAfterCommit } from './people.service';
 import { CLOSING_GRACE_MS, findVisibleTender, lockTender } from './tender-access';
 import { clarificationsCloseAt, tenderView } from './tenders.service';
 import { transition } from './transition';
-import { uuidArray } from './sql';
 import { notifyOnce } from './notifications/notify';
 import { markSeen } from './worklist.service';
+import {
+  bidOrganisations, invitedPeopleRows, keepRemovedPrices, lastAmendmentNumber, nextAnswerNumber, returnSubmittedBidsToDraft, setAmendmentNote,
+} from './queries/procedure.queries';
+import { tenderForShare } from './queries/tender-rows.queries';
 
 /**
  * The procedure between publication and closing (DEVELOPERS.md, "Clarifications, amendments,
@@ -38,13 +41,7 @@ export interface ProcedureDeps {
 
 /** Every approved, active person of every organisation invited to the tender. */
 async function invitedPeople(em: EntityManager, tenderId: string): Promise<{ id: string; email: string; name: string; organisation: string; organisationId: string }[]> {
-  const rows = await em.execute<{ id: string; email: string; name: string; organisation: string; organisation_id: string }[]>(
-    `select u.id, u.email, u.name, o.name as organisation, o.id as organisation_id
-       from invitation i join vendor_organisation o on o.id = i.vendor_organisation_id
-       join app_user u on u.vendor_organisation_id = o.id and u.active and u.role = 'vendor' and u.membership = 'approved'
-      where i.tender_id = ? order by o.name, u.email`,
-    [tenderId],
-  );
+  const rows = await invitedPeopleRows(em, tenderId);
   return rows.map((r) => ({ id: r.id, email: r.email, name: r.name, organisation: r.organisation, organisationId: r.organisation_id }));
 }
 
@@ -71,7 +68,7 @@ export async function askQuestion(deps: ProcedureDeps, user: User, tenderId: str
   const visible = await findVisibleTender(em, user, tenderId);
   const id = await em.transactional(async (tx) => {
     // FOR SHARE, as a bid: a cancellation or amendment (FOR NO KEY UPDATE) waits for it, and it for them.
-    const [row] = await tx.execute<{ status: string; closes_at: Date | string }[]>('select status, closes_at from tender where id = ? for share', [tenderId]);
+    const row = await tenderForShare(tx, tenderId);
     if (!row || row.status !== 'open' || deps.arrivedAt.getTime() >= new Date(row.closes_at).getTime()) {
       throw new ConflictError('Questions can be asked only while the tender is open for bids.');
     }
@@ -125,8 +122,7 @@ export async function answerQuestion(deps: ProcedureDeps, user: User, questionId
   const tender = found.tender;
   await em.transactional(async (tx) => {
     await lockTender(tx, user, tenderId, ['open'], 'Questions can be answered only while the tender is open for bids.');
-    const [next] = await tx.execute<{ n: number }[]>('select coalesce(max(number), 0)::int + 1 as n from question where tender_id = ?', [tenderId]);
-    const number = next.n;
+    const number = await nextAnswerNumber(tx, tenderId);
     await transition(tx, Question, questionId, ['asked'], { status: 'answered', number, answer: input.text, answeredAt: deps.arrivedAt, answeredBy: user.id },
       'This question is already answered; its answer is published.');
     await audit(tx, { tenderId, actor: user, action: 'question.answered', subject: `question ${questionId}`, detail: { number } });
@@ -210,27 +206,16 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
     if (!Object.keys(changes).length) {
       throw new ValidationError([{ field: 'changes', message: 'This amendment changes nothing: extend the closing time, change the description or change the regions.' }]);
     }
-    const [last] = await tx.execute<{ n: number }[]>('select coalesce(max(number), 0)::int as n from amendment where tender_id = ?', [tenderId]);
-    const number = last.n + 1;
+    const number = (await lastAmendmentNumber(tx, tenderId)) + 1;
     const before = { closesAt: t.closesAt.toISOString(), description: t.description, regions: regions.map((r) => ({ code: r.code, name: r.name, forecast: r.forecast })) };
 
     const notes = new Map<string, string>();
     const returned: string[] = [];
     if (changes.regionsRemoved) {
       const removed = regions.filter((r) => changes.regionsRemoved!.some((x) => x.code === r.code));
-      const removedIds = uuidArray(removed.map((r) => r.id));
       // Every price given for a removed region is kept, with its code and name, before the region
       // (and by cascade its bid lines) goes: a receipt commits to it (DEVELOPERS.md, "Sealed bids").
-      const priced = await tx.execute<{ bid_id: string; status: string; codes: string[] }[]>(
-        `with moved as (
-           insert into bid_removed_line (id, bid_id, region_code, region_name, unit_price, amendment_number)
-           select gen_random_uuid(), l.bid_id, r.code, r.name, l.unit_price, ? from bid_line l join region r on r.id = l.region_id
-            where r.id = any(?::uuid[])
-           on conflict (bid_id, region_code) do update set region_name = excluded.region_name, unit_price = excluded.unit_price, amendment_number = excluded.amendment_number
-           returning bid_id, region_code)
-         select m.bid_id, b.status, array_agg(m.region_code order by m.region_code) as codes from moved m join bid b on b.id = m.bid_id group by m.bid_id, b.status`,
-        [number, removedIds],
-      );
+      const priced = await keepRemovedPrices(tx, number, removed.map((r) => r.id));
       for (const p of priced.filter((x) => x.status === 'submitted' || x.status === 'revised')) {
         const gone = changes.regionsRemoved.filter((r) => p.codes.includes(r.code));
         notes.set(p.bid_id, `Amendment ${number} removed ${gone.length === 1 ? 'region' : 'regions'} ${names(gone)}: your ${gone.length === 1 ? 'price for it is' : 'prices for them are'} kept with your receipt and will not be evaluated. Your bid stays submitted.`);
@@ -244,11 +229,7 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
       const added = changes.regionsAdded;
       const note = `Amendment ${number} added ${added.length === 1 ? 'region' : 'regions'} ${names(added)}: add your ${added.length === 1 ? 'price' : 'prices'} (or leave ${added.length === 1 ? 'it' : 'them'} unpriced to decline) and submit again. Until you do, your bid is a draft and will not be opened.`;
       // Guarded by the tender's lock: a bid being saved holds it FOR SHARE, so none is in flight.
-      const rows = await tx.execute<{ id: string; revision: number }[]>(
-        `update bid set status = 'draft', digest = null, nonce = null, version = version + 1, updated_at = now()
-          where tender_id = ? and status in ('submitted', 'revised') returning id, revision`,
-        [tenderId],
-      );
+      const rows = await returnSubmittedBidsToDraft(tx, tenderId);
       for (const r of rows) {
         // As every bid entry: which bid and its revision, never its vendor or figures (the trail is read before closing).
         await audit(tx, { tenderId, actor: user, action: 'bid.returned-to-draft', subject: `bid ${r.id}`, detail: { revision: r.revision, amendment: number } });
@@ -256,7 +237,7 @@ export async function issueAmendment(deps: ProcedureDeps, user: User, tenderId: 
         notes.set(r.id, notes.has(r.id) ? `${note} ${notes.get(r.id)!.replace(' Your bid stays submitted.', '')}` : note);
       }
     }
-    for (const [bidId, note] of notes) await tx.execute('update bid set amendment_note = ? where id = ?', [note, bidId]);
+    for (const [bidId, note] of notes) await setAmendmentNote(tx, bidId, note);
 
     if (input.regions) {
       const kept = new Map(regions.filter((r) => !changes.regionsRemoved?.some((x) => x.code === r.code)).map((r) => [r.code, r]));
@@ -310,8 +291,7 @@ async function notifyAmendment(
     }),
   });
   if (!a.returned.length) return;
-  const orgs = await tx.execute<{ organisation_id: string }[]>('select vendor_organisation_id as organisation_id from bid where id = any(?::uuid[])', [uuidArray(a.returned)]);
-  const affected = new Set(orgs.map((o) => o.organisation_id));
+  const affected = new Set(await bidOrganisations(tx, a.returned));
   await notifyOnce(tx, deps.boss, {
     kind: 'bid-resubmit', subjectId: a.amendmentId, tenderId: a.tenderId, recipients: people.filter((x) => affected.has(x.organisationId)),
     render: (r) => renderMail('bid-resubmit', `Submit your bid on ${tender.reference} again: amendment ${number}`, {

@@ -5,6 +5,7 @@ import type { Tender } from '../../entities';
 import { ConflictError } from '../../http/errors';
 import { digestOf } from '../audit.service';
 import { tabulate } from '../bids.service';
+import { tenderRegionRows } from '../queries/tender-rows.queries';
 
 /**
  * The engine's problem file for a closed tender: every live (submitted or revised) bid that the
@@ -20,9 +21,7 @@ export async function buildProblem(
   // Plain rows, not entities: 30 bids × 200 lines loaded as tracked entities made every run's
   // queueing cost the web server close to a second of CPU (bench:queue), most of it in the
   // change check of the flush that followed.
-  const regions = await em.execute<{ code: string; name: string; forecast: string | number }[]>(
-    'select code, name, forecast from region where tender_id = ? order by position', [tender.id],
-  );
+  const regions = await tenderRegionRows(em, tender.id);
   const all = await tabulate(em, tender);
   const excluded = new Map(all.filter((b) => b.compliance.decision === 'excluded').map((b) => [b.vendor.id, b]));
   const required = rules.require.flatMap((v, i) => {

@@ -1,10 +1,10 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { AwardRules } from '@shared/award';
 import { basisDifference } from '@shared/award-basis';
 import type { RecommendationView } from '@shared/evaluation';
 import { Recommendation, Run, Tender, type User } from '../../entities';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { audit } from '../audit.service';
+import { solvedRules } from '../queries/evaluation.queries';
 import { assertBidsValid, assertRecommendable } from '../compliance.service';
 import { lockTender } from '../tender-access';
 import { transition } from '../transition';
@@ -41,8 +41,8 @@ export async function currentRecommendation(em: EntityManager, user: User, tende
  * compliance check's exclusions of bids are not the buyer's choice of rules.
  */
 async function refuseWhatIf(em: EntityManager, tender: Tender, run: Run): Promise<void> {
-  const [row] = await em.execute<{ rules: AwardRules | null }[]>(`select problem->'rules' as rules from run where id = ?`, [run.id]);
-  const solved = row?.rules ? { ...row.rules, exclude: [] } : undefined;
+  const rules = await solvedRules(em, run.id);
+  const solved = rules ? { ...rules, exclude: [] } : undefined;
   const difference = basisDifference(run.scenario.rules, tender.awardBasis) ?? (solved ? basisDifference(solved, tender.awardBasis) : null);
   if (difference) {
     throw new ConflictError(

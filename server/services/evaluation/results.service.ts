@@ -5,6 +5,7 @@ import { recordByCode } from '@shared/bids';
 import type { Comparison, ComparedRun, ResilienceView, RunView } from '@shared/evaluation';
 import { Run, Scenario, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
+import { runNames, runProblem } from '../queries/evaluation.queries';
 import { awardability, childInput, evaluableTender, queueChildRuns, runSummary, type EvaluationDeps } from './scenarios.service';
 
 export async function findRun(em: EntityManager, user: User, runId: string): Promise<Run> {
@@ -14,20 +15,9 @@ export async function findRun(em: EntityManager, user: User, runId: string): Pro
   return run;
 }
 
-/**
- * The names of the vendors and regions a run solved for, read out of its stored problem by
- * PostgreSQL: the run screen polls every second, and parsing the whole problem (every price) for
- * each poll took the web server's CPU from everyone else while runs solved (bench:queue).
- */
+/** The names of the vendors and regions a run solved for (`runNames`: read by PostgreSQL, not parsed here). */
 async function namesOf(em: EntityManager, runId: string): Promise<Pick<RunView, 'vendors' | 'regions'>> {
-  const [row] = await em.execute<{ vendors: RunView['vendors'] | null; regions: Record<string, { name: string; forecast: number | string }> | null }[]>(
-    `select (select json_object_agg(v->>'id', json_build_object('name', coalesce(v->>'name', v->>'id'), 'sme', coalesce((v->>'sme')::boolean, false)) order by n)
-               from jsonb_array_elements(problem->'vendors') with ordinality as e(v, n)) as vendors,
-            (select json_object_agg(r->>'id', json_build_object('name', coalesce(r->>'name', r->>'id'), 'forecast', (r->>'demand')::numeric) order by n)
-               from jsonb_array_elements(problem->'regions') with ordinality as e(r, n)) as regions
-       from run where id = ?`,
-    [runId],
-  );
+  const row = await runNames(em, runId);
   const regions = recordByCode(Object.entries(row?.regions ?? {}).map(([id, r]) => [id, { name: r.name, forecast: Number(r.forecast) }] as const));
   return { vendors: row?.vendors ?? {}, regions };
 }
@@ -104,9 +94,9 @@ export async function compareRuns(em: EntityManager, user: User, tenderId: strin
 
 /** The exact problem a run solved, as stored (lazy on the entity). */
 export async function storedProblem(em: EntityManager, runId: string): Promise<AwardProblem> {
-  const [row] = await em.execute<{ problem: AwardProblem }[]>('select problem from run where id = ?', [runId]);
-  if (!row) throw new NotFoundError('The run');
-  return row.problem;
+  const problem = await runProblem(em, runId);
+  if (!problem) throw new NotFoundError('The run');
+  return problem;
 }
 
 /** The vendors a run's rules require (rule `require`): they cannot be dropped. */

@@ -10,6 +10,7 @@ import { Run, Scenario, type Tender, type User } from '../../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../../http/errors';
 import { QUEUES } from '../../jobs/queue';
 import { audit, digestOf } from '../audit.service';
+import { insertBuiltInScenarios } from '../queries/evaluation.queries';
 import { findVisibleTender, lockTender } from '../tender-access';
 import { transition } from '../transition';
 import { buildProblem, plainRules } from './problem';
@@ -74,14 +75,7 @@ export async function ensureBuiltInScenarios(em: EntityManager, tender: Tender):
   const existing = await em.count(Scenario, { tender, builtIn: { $ne: null } });
   if (existing >= 3) return;
   const published: AwardRules = awardRulesSchema.parse(tender.awardBasis);
-  await em.execute(
-    `insert into scenario (id, created_at, updated_at, tender_id, name, rules, time_limit_seconds, built_in)
-     values (gen_random_uuid(), now(), now(), ?, ?, ?::jsonb, 60, 'published'),
-            (gen_random_uuid(), now(), now(), ?, 'All regions split', ?::jsonb, 60, 'split'),
-            (gen_random_uuid(), now(), now(), ?, 'All regions sole', ?::jsonb, 60, 'sole')
-     on conflict do nothing`,
-    [tender.id, PUBLISHED_BASIS, JSON.stringify(published), tender.id, JSON.stringify(plainRules('split')), tender.id, JSON.stringify(plainRules('sole'))],
-  );
+  await insertBuiltInScenarios(em, tender.id, { publishedName: PUBLISHED_BASIS, published, split: plainRules('split'), sole: plainRules('sole') });
 }
 
 function scenarioView(s: Scenario, latest: Run | undefined, basis: AwardBasis): ScenarioView {

@@ -5,6 +5,7 @@ import { Notice, Tender, type User } from '../../entities';
 import { ConflictError, NotFoundError } from '../../http/errors';
 import { queueNotice } from '../../jobs/queue';
 import { audit } from '../audit.service';
+import { unsentNoticeCount } from '../queries/notices.queries';
 import { findVisibleTender, lockTender, tenderOwnerScope } from '../tender-access';
 import { approvedRun, composeLetters } from './letters';
 import { statusesBefore } from '@shared/tenders';
@@ -88,8 +89,7 @@ export async function readNotice(em: EntityManager, user: User, id: string): Pro
 /** Marks the tender notified once every one of its notices is sent. */
 export async function notifiedIfAllSent(em: EntityManager, tenderId: string): Promise<void> {
   await em.transactional(async (tx) => {
-    const rows = await tx.execute<{ open: string }[]>(`select count(*) as open from notice where tender_id = ? and status <> 'sent'`, [tenderId]);
-    if (Number(rows[0].open) > 0) return;
+    if ((await unsentNoticeCount(tx, tenderId)) > 0) return;
     const changed = await tx.nativeUpdate(Tender, { id: tenderId, status: { $in: statusesBefore('notified') } }, { status: 'notified' });
     if (changed) await audit(tx, { tenderId, actor: null, action: 'tender.notified', subject: 'tender', detail: {}, before: { status: 'awarded' }, after: { status: 'notified' } });
   });

@@ -26,7 +26,7 @@ export interface MatrixRegion {
         {{ more().right ? 'More regions to the right: scroll the table sideways (arrow keys once it has focus).' : 'Scrolled to the last region of this page.' }}
       </p>
     }
-    <div #box class="scroll" tabindex="0" role="region" [attr.aria-label]="caption() + ' (scrolls sideways)'"
+    <div #box class="table-card table-scroll" tabindex="0" role="region" [attr.aria-label]="caption() + ' (scrolls sideways)'"
       [class.more-right]="more().right" [class.more-left]="more().left" (scroll)="measure()">
       <table>
         <caption class="visually-hidden">{{ caption() }}</caption>
@@ -59,22 +59,7 @@ export interface MatrixRegion {
       </table>
     </div>
   `,
-  styles: `
-    .scroll { overflow-x: auto; max-width: 100%; border: 1px solid var(--mat-sys-outline-variant); border-radius: 12px; }
-    /* A shadow on the side where more columns are hidden: the table visibly continues. */
-    .scroll.more-right { box-shadow: inset -16px 0 12px -12px var(--mat-sys-outline); }
-    .scroll.more-left.more-right { box-shadow: inset -16px 0 12px -12px var(--mat-sys-outline), inset 16px 0 12px -12px var(--mat-sys-outline); }
-    .scroll-cue { margin: 0 0 4px; color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-body-small); }
-    table { border-collapse: separate; border-spacing: 0; min-width: 100%; font: var(--mat-sys-body-medium); }
-    th, td { padding: 8px 12px; border-bottom: 1px solid var(--mat-sys-outline-variant); white-space: nowrap; }
-    thead th { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-title-small); vertical-align: bottom; }
-    tbody th, tfoot th { text-align: start; font-weight: 500; }
-    tfoot td, tfoot th { color: var(--mat-sys-on-surface-variant); border-bottom: 0; }
-    .sticky { position: sticky; inset-inline-start: 0; z-index: 1; background: var(--mat-sys-surface-container-lowest); box-shadow: 1px 0 0 var(--mat-sys-outline-variant); }
-    .number { text-align: end; font-variant-numeric: tabular-nums; }
-    .empty { color: var(--mat-sys-on-surface-variant); }
-    .region-name { display: block; font: var(--mat-sys-body-small); max-width: 12ch; overflow: hidden; text-overflow: ellipsis; margin-inline-start: auto; }
-  `,
+  styleUrl: './allocation-matrix.scss',
 })
 export class AllocationMatrix {
   private readonly box = viewChild.required<ElementRef<HTMLElement>>('box');

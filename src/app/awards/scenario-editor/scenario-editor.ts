@@ -1,5 +1,5 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, inject, signal } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, inject } from '@angular/core';
+import { toSignal } from '@angular/core/rxjs-interop';
 import { ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MAT_DIALOG_DATA, MatDialogModule, MatDialogRef } from '@angular/material/dialog';
@@ -10,8 +10,7 @@ import { MatRadioModule } from '@angular/material/radio';
 import { MatSelectModule } from '@angular/material/select';
 import type { ScenarioView } from '@shared/evaluation';
 import type { RegionView } from '@shared/tenders';
-import { ApiError } from '../../core/http/api-error';
-import { applyServerErrors } from '../../ui/server-errors';
+import { formSubmission } from '../../ui/form-submission';
 import { fieldMessage } from '../../ui/zod-validator';
 import { AwardApi } from '../award-api';
 import { scenarioForm, scenarioInput } from './scenario-form';
@@ -44,14 +43,14 @@ export interface ScenarioEditorData {
 export class ScenarioEditor {
   private readonly api = inject(AwardApi);
   private readonly dialogRef = inject<MatDialogRef<ScenarioEditor, ScenarioView>>(MatDialogRef);
-  private readonly destroyRef = inject(DestroyRef);
   protected readonly data = inject<ScenarioEditorData>(MAT_DIALOG_DATA);
 
   protected readonly form = scenarioForm(this.data.scenario);
   protected readonly rules = this.form.controls.rules.controls;
   protected readonly sourcing = toSignal(this.rules.sourcing.valueChanges, { initialValue: this.rules.sourcing.value });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  protected readonly submission = formSubmission(this.form, undefined, { invalidMessage: 'Some fields need attention: see the messages under them.' });
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
   protected groupMessage(key: 'vendorCounts' | 'excludeRequire'): string | null {
@@ -60,26 +59,14 @@ export class ScenarioEditor {
   }
 
   protected submit(): void {
-    if (this.busy()) return;
-    if (this.form.invalid) {
-      this.form.markAllAsTouched();
-      this.failure.set('Some fields need attention: see the messages under them.');
-      return;
-    }
-    this.busy.set(true);
-    this.failure.set(null);
-    const body = scenarioInput(this.form);
-    const save = this.data.scenario
-      ? this.api.updateScenario(this.data.scenario.id, body)
-      : this.api.createScenario(this.data.tenderId, body);
-    save.pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
-      next: (scenario) => this.dialogRef.close(scenario),
-      error: (error: unknown) => {
-        this.busy.set(false);
-        if (!(error instanceof ApiError)) throw error;
-        const unplaced = applyServerErrors(this.form, error.fieldErrors);
-        this.failure.set([error.userMessage, ...unplaced].join(' '));
+    this.submission.send(
+      () => {
+        const body = scenarioInput(this.form);
+        return this.data.scenario
+          ? this.api.updateScenario(this.data.scenario.id, body)
+          : this.api.createScenario(this.data.tenderId, body);
       },
-    });
+      (scenario) => this.dialogRef.close(scenario),
+    );
   }
 }

@@ -66,6 +66,14 @@ const scenarios: ScenarioView[] = [
 /** Same formatter as the page, so the test does not depend on the machine's locale. */
 const eur = (value: number) => new Intl.NumberFormat(undefined, { style: 'currency', currency: 'EUR', maximumFractionDigits: 2 }).format(value);
 
+/** Answers the page's four GETs: the tender, its scenarios, its runs and its bidders. */
+function answerEveryGet(http: HttpTestingController): void {
+  http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}` }).flush(tender);
+  http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}/scenarios` }).flush(scenarios);
+  http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}/runs` }).flush([latestRun]);
+  http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}/bids` }).flush({ submitted: 0, bids: [] as TabulatedBid[] });
+}
+
 describe('ScenarioOverview', () => {
   let http: HttpTestingController;
   let loader: HarnessLoader;
@@ -87,10 +95,7 @@ describe('ScenarioOverview', () => {
     fixture.componentRef.setInput('id', TENDER_ID);
     loader = TestbedHarnessEnvironment.loader(fixture);
     fixture.detectChanges();
-    http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}` }).flush(tender);
-    http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}/scenarios` }).flush(scenarios);
-    http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}/runs` }).flush([latestRun]);
-    http.expectOne({ method: 'GET', url: `/api/tenders/${TENDER_ID}/bids` }).flush({ submitted: 0, bids: [] as TabulatedBid[] });
+    answerEveryGet(http);
     await fixture.whenStable();
   });
 
@@ -149,28 +154,63 @@ describe('ScenarioOverview', () => {
     fixture.componentRef.setInput('id', TENDER_ID);
     loader = TestbedHarnessEnvironment.loader(fixture);
     fixture.detectChanges();
-    http.expectOne(`/api/tenders/${TENDER_ID}`).flush(tender);
-    http.expectOne(`/api/tenders/${TENDER_ID}/scenarios`).flush(scenarios);
-    http.expectOne(`/api/tenders/${TENDER_ID}/runs`).flush([latestRun]);
-    http.expectOne(`/api/tenders/${TENDER_ID}/bids`).flush({ submitted: 0, bids: [] as TabulatedBid[] });
+    answerEveryGet(http);
     await fixture.whenStable();
     expect(await loader.getAllHarnesses(MatButtonHarness.with({ text: /Run|Edit|New scenario/ }))).toHaveLength(0);
     expect((await (await scenarioTable()).getCellTextByColumnName())['name'].text).toHaveLength(2);
   });
 });
 
+/** The page for a buyer, its four requests made and none answered yet. */
+async function openForBuyer(): Promise<{ http: HttpTestingController; fixture: ComponentFixture<ScenarioOverview> }> {
+  TestBed.configureTestingModule({
+    imports: [ScenarioOverview],
+    providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
+  });
+  const http = TestBed.inject(HttpTestingController);
+  await signInAs('buyer');
+  const fixture = TestBed.createComponent(ScenarioOverview);
+  fixture.componentRef.setInput('id', TENDER_ID);
+  return { http, fixture };
+}
+
+describe('ScenarioOverview when loading fails', () => {
+  it('says why, and Try again asks for the four answers again and shows the scenarios', async () => {
+    const { http, fixture } = await openForBuyer();
+    const loader = TestbedHarnessEnvironment.loader(fixture);
+    fixture.detectChanges();
+    http.expectOne(`/api/tenders/${TENDER_ID}`).flush(
+      { type: 'about:blank', title: 'Service Unavailable', status: 503, detail: 'The database is being restarted.' },
+      { status: 503, statusText: 'Service Unavailable' },
+    );
+    // One failure fails the page's load: the other three requests are cancelled, not waited for.
+    expect(http.match(() => true).map((request) => request.cancelled)).toEqual([true, true, true]);
+    await fixture.whenStable();
+    const alert = () => (fixture.nativeElement as HTMLElement).querySelector('[role=alert]')?.textContent ?? '';
+    expect(alert()).toContain('The database is being restarted.');
+
+    // A click, not the harness's: the harness waits for stability, that is for the very answers below.
+    const retry = [...(fixture.nativeElement as HTMLElement).querySelectorAll('button')].find((b) => b.textContent?.trim() === 'Try again');
+    expect(retry?.textContent?.trim()).toBe('Try again');
+    retry!.click();
+    fixture.detectChanges();
+    answerEveryGet(http);
+    await fixture.whenStable();
+    expect(alert()).toBe('');
+    const rows = await (await loader.getHarness(MatTableHarness.with({ selector: '[aria-labelledby="scenarios-heading"]' }))).getCellTextByColumnName();
+    expect(rows['name'].text).toHaveLength(2);
+    http.verify();
+  });
+});
+
 describe('ScenarioOverview while loading', () => {
   it('says the runs are loading, not that there are none', async () => {
-    TestBed.configureTestingModule({
-      imports: [ScenarioOverview],
-      providers: [provideApi(), provideHttpClientTesting(), provideRouter([]), { provide: MATERIAL_ANIMATIONS, useValue: { animationsDisabled: true } }],
-    });
-    const http = TestBed.inject(HttpTestingController);
-    await signInAs('buyer');
-    const fixture = TestBed.createComponent(ScenarioOverview);
-    fixture.componentRef.setInput('id', TENDER_ID);
+    const { http, fixture } = await openForBuyer();
+    // No whenStable: it would wait for the very answers this test holds back.
     fixture.detectChanges();
-    await fixture.whenStable();
+    expect(http.match(() => true).map((request) => request.request.url).sort()).toEqual(
+      [`/api/tenders/${TENDER_ID}`, `/api/tenders/${TENDER_ID}/bids`, `/api/tenders/${TENDER_ID}/runs`, `/api/tenders/${TENDER_ID}/scenarios`]);
+    fixture.detectChanges();
     const text = (fixture.nativeElement as HTMLElement).textContent;
     expect(text).toContain('Loading runs…');
     expect(text).not.toContain('No runs yet');

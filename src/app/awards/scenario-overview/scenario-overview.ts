@@ -1,5 +1,5 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatDialog } from '@angular/material/dialog';
@@ -14,6 +14,7 @@ import { Auth } from '../../core/auth/auth';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { localDateTime } from '../award-format';
+import { loadErrorMessage } from '../../ui/load-error';
 import { money } from '../../ui/number-format';
 import { RUN_STATUS_LABELS, hasAward } from '../run-status';
 import { describeRules } from '../rules-summary';
@@ -42,12 +43,23 @@ export class ScenarioOverview {
   /** The tender id, from the route. */
   readonly id = input.required<string>();
 
-  protected readonly tender = signal<TenderView | null>(null);
-  protected readonly scenarios = signal<ScenarioView[]>([]);
-  protected readonly runs = signal<RunSummary[]>([]);
-  private readonly vendors = signal<{ id: string; name: string; sme: boolean }[]>([]);
-  protected readonly loading = signal(true);
-  protected readonly loadError = signal<string | null>(null);
+  /** The tender, its scenarios, their runs and the bidders, in one load; a saved scenario updates it in place. */
+  private readonly page = rxResource({
+    params: () => this.id(),
+    stream: ({ params: id }) => forkJoin({
+      tender: this.api.tender(id),
+      scenarios: this.api.scenarios(id),
+      runs: this.api.runs(id),
+      vendors: this.api.bidders(id),
+    }),
+  });
+  private readonly loaded = computed(() => (this.page.hasValue() ? this.page.value() : null));
+  protected readonly tender = computed<TenderView | null>(() => this.loaded()?.tender ?? null);
+  protected readonly scenarios = computed<ScenarioView[]>(() => this.loaded()?.scenarios ?? []);
+  protected readonly runs = computed<RunSummary[]>(() => this.loaded()?.runs ?? []);
+  private readonly vendors = computed(() => this.loaded()?.vendors ?? []);
+  protected readonly loading = this.page.isLoading;
+  protected readonly loadError = computed(() => loadErrorMessage(this.page.error(), 'The scenarios could not be loaded.'));
   protected readonly status = signal('');
   protected readonly selected = signal<ReadonlySet<string>>(new Set());
 
@@ -70,33 +82,8 @@ export class ScenarioOverview {
   protected readonly when = (iso: string) => localDateTime(iso, this.tender()?.timeZone);
   protected readonly selectable = (run: RunSummary) => hasAward(run.status) || run.status === 'infeasible';
 
-  constructor() {
-    effect(() => this.load(this.id()));
-  }
-
-  protected load(id: string = this.id()): void {
-    this.loading.set(true);
-    this.loadError.set(null);
-    forkJoin({
-      tender: this.api.tender(id),
-      scenarios: this.api.scenarios(id),
-      runs: this.api.runs(id),
-      vendors: this.api.bidders(id),
-    })
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: ({ tender, scenarios, runs, vendors }) => {
-          this.tender.set(tender);
-          this.scenarios.set(scenarios);
-          this.runs.set(runs);
-          this.vendors.set(vendors);
-          this.loading.set(false);
-        },
-        error: (error: unknown) => {
-          this.loading.set(false);
-          this.loadError.set(error instanceof ApiError ? error.userMessage : 'The scenarios could not be loaded.');
-        },
-      });
+  protected load(): void {
+    this.page.reload();
   }
 
   protected rulesText(scenario: ScenarioView): string[] {
@@ -139,9 +126,10 @@ export class ScenarioOverview {
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe((saved) => {
         if (!saved) return;
-        this.scenarios.update((list) =>
-          list.some((s) => s.id === saved.id) ? list.map((s) => (s.id === saved.id ? saved : s)) : [...list, saved],
-        );
+        this.page.update((page) => page && {
+          ...page,
+          scenarios: page.scenarios.some((s) => s.id === saved.id) ? page.scenarios.map((s) => (s.id === saved.id ? saved : s)) : [...page.scenarios, saved],
+        });
         this.status.set(`Scenario “${saved.name}” saved.`);
       });
   }

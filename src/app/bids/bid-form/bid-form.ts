@@ -11,6 +11,7 @@ import { bidSaveSchema, isLiveBid, type BidSave, type BidView, type TenderView }
 import { startWith } from 'rxjs';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { formatInZone } from '@shared/time-zone';
+import { formSubmission } from '../../ui/form-submission';
 import { hasClosed, localClosingTime, minuteClock } from '../../tenders/closing-time';
 import { BID_STATUS_LABELS } from '../../tenders/tender-status';
 import { money, quantity } from '../../ui/number-format';
@@ -49,9 +50,20 @@ export class BidForm {
   private readonly formValue = signal(0);
   protected readonly bid = signal<BidView | null>(null);
   protected readonly loaded = signal(false);
-  protected readonly busy = signal(false);
+  /** Whether the save being checked submits the bid (the schema is checked with what will be sent). */
+  private submitting = false;
+  protected readonly submission = formSubmission(() => this.form, this.destroyRef, {
+    invalidMessage: 'Nothing was saved: some figures need attention; each is marked below.',
+    check: () => {
+      const parsed = bidSaveSchema.safeParse(this.body(this.submitting));
+      return parsed.success ? [] : parsed.error.issues.map((i) => ({ field: controlPath(i.path), message: i.message }));
+    },
+    place: (problems) => this.place(problems),
+  });
+  protected readonly busy = this.submission.busy;
   protected readonly status = signal('');
-  protected readonly failure = signal<string | null>(null);
+  /** Why the bid could not be loaded, or why it was not saved. */
+  protected readonly failure = this.submission.failure;
   protected readonly conflict = signal<string | null>(null);
   protected readonly uploadErrors = signal<FieldProblem[]>([]);
   protected readonly uploading = signal(false);
@@ -163,24 +175,24 @@ export class BidForm {
     if (this.unsavedChanges()) event.preventDefault();
   }
 
+  private body(submit: boolean) {
+    return { ...bidFigures(this.form), submit, version: this.bid()?.version ?? null, documentId: this.documentId() };
+  }
+
   protected save(submit: boolean): void {
     if (this.busy() || this.isClosed()) return;
     this.failure.set(null);
     this.conflict.set(null);
-    const body = { ...bidFigures(this.form), submit, version: this.bid()?.version ?? null, documentId: this.documentId() };
-    const parsed = bidSaveSchema.safeParse(body);
-    if (this.form.invalid || !parsed.success) {
-      this.form.markAllAsTouched();
-      const issues = parsed.success ? [] : parsed.error.issues.map((i) => ({ field: controlPath(i.path), message: i.message }));
-      const unplaced = this.place(issues);
-      this.failure.set(['Nothing was saved: some figures need attention; each is marked below.', ...unplaced].join(' '));
+    this.submitting = submit;
+    if (!this.submission.validate()) {
       this.status.set('Nothing was saved: some figures need attention.');
       return;
     }
+    const body = bidSaveSchema.parse(this.body(submit));
     if (submit) {
-      whenConfirmed(this.dialog, this.submitQuestion()).pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.send(parsed.data));
+      whenConfirmed(this.dialog, this.submitQuestion()).pipe(takeUntilDestroyed(this.destroyRef)).subscribe(() => this.send(body));
     } else {
-      this.send(parsed.data);
+      this.send(body);
     }
   }
 
@@ -200,25 +212,21 @@ export class BidForm {
 
   private send(body: BidSave): void {
     const submit = body.submit;
-    this.busy.set(true);
-    this.api
-      .save(this.tender().id, body)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (bid) => {
-          this.busy.set(false);
-          this.bid.set(bid);
-          this.documentId.set(null);
-          this.uploadedName.set(null);
-          this.form.markAsPristine();
-          this.status.set(
-            submit
-              ? `Bid submitted: revision ${bid.revision}. Your receipt commitment is ${bid.digest}. A receipt e-mail is on its way.`
-              : 'Draft saved. It is not submitted: buyers will not count it until you submit it.',
-          );
-        },
-        error: (error: unknown) => this.refused(error),
-      });
+    this.submission.run(
+      () => this.api.save(this.tender().id, body),
+      (bid) => {
+        this.bid.set(bid);
+        this.documentId.set(null);
+        this.uploadedName.set(null);
+        this.form.markAsPristine();
+        this.status.set(
+          submit
+            ? `Bid submitted: revision ${bid.revision}. Your receipt commitment is ${bid.digest}. A receipt e-mail is on its way.`
+            : 'Draft saved. It is not submitted: buyers will not count it until you submit it.',
+        );
+      },
+      (problem) => this.refused(problem),
+    );
   }
 
   protected withdraw(): void {
@@ -232,18 +240,14 @@ export class BidForm {
     })
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe(() => {
-        this.busy.set(true);
-        this.api
-          .withdraw(this.tender().id, bid.version)
-          .pipe(takeUntilDestroyed(this.destroyRef))
-          .subscribe({
-            next: (withdrawn) => {
-              this.busy.set(false);
-              this.bid.set(withdrawn);
-              this.status.set('Your bid is withdrawn. A receipt e-mail is on its way.');
-            },
-            error: (error: unknown) => this.refused(error),
-          });
+        this.submission.run(
+          () => this.api.withdraw(this.tender().id, bid.version),
+          (withdrawn) => {
+            this.bid.set(withdrawn);
+            this.status.set('Your bid is withdrawn. A receipt e-mail is on its way.');
+          },
+          (problem) => this.refused(problem),
+        );
       });
   }
 
@@ -288,17 +292,15 @@ export class BidForm {
       });
   }
 
-  private refused(error: unknown): void {
-    this.busy.set(false);
-    if (!(error instanceof ApiError)) throw error;
+  /** After the submission showed a refusal: a conflict (closed, changed elsewhere) has a line of its own. */
+  private refused(error: ApiError): void {
     if (error.status === 409) {
+      this.failure.set(null);
       this.conflict.set(error.userMessage);
       this.status.set(error.userMessage);
       if (/closed/i.test(error.userMessage)) this.closed.emit();
       return;
     }
-    const unplaced = this.place(error.fieldErrors);
-    this.failure.set([error.userMessage, ...unplaced].join(' '));
     this.status.set(`Not saved: ${error.userMessage}`);
   }
 

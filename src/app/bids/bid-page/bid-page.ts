@@ -4,7 +4,6 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { Title } from '@angular/platform-browser';
 import { RouterLink } from '@angular/router';
-import { ApiError } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { AwardBasisPanel } from '../../tenders/award-basis-panel/award-basis-panel';
 import { localClosingTime, minuteClock, timeLeft } from '../../tenders/closing-time';
@@ -17,6 +16,7 @@ import { TENDER_STATUS_LABELS } from '../../tenders/tender-status';
 import { BidForm } from '../bid-form/bid-form';
 import { BidValidity } from '../bid-validity/bid-validity';
 import { type HoldsUnsavedChanges } from '../../ui/unsaved-changes';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** /tenders/:id for a vendor: the tender it is invited to, and its own bid. */
 @Component({
@@ -33,11 +33,7 @@ export class BidPage implements HoldsUnsavedChanges {
   readonly id = input.required<string>();
 
   protected readonly tender = rxResource({ params: () => this.id(), stream: ({ params }) => this.api.get(params) });
-  protected readonly loadError = computed(() => {
-    const error = this.tender.error();
-    if (!error) return null;
-    return error instanceof ApiError ? error.userMessage : 'The tender could not be loaded.';
-  });
+  protected readonly loadError = computed(() => loadErrorMessage(this.tender.error(), 'The tender could not be loaded.'));
   protected readonly now = minuteClock();
   protected readonly timeLeft = computed(() => {
     const t = this.tender.value();

@@ -9,13 +9,13 @@ import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import { NOTICE_STATUSES, type NoticeStatus, type NoticeSummary } from '@shared/notices';
 import { Auth } from '../../core/auth/auth';
-import { ApiError } from '../../core/http/api-error';
 import { NoticeApi } from '../notice-api';
 import { NOTICE_KIND_LABELS, NOTICE_STATUS_LABELS, noticeDate } from '../notice-labels';
 import { NoticeStatusBadge } from '../notice-status-badge';
 import { DateTimePipe } from '../../ui/date-time.pipe';
 import { SkeletonRows } from '../../ui/skeleton-rows';
 import { ScrollFrame } from '../../ui/scroll-frame';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** /notices — a vendor's letters, or for the other roles the notices of the tenders they may see. */
 @Component({
@@ -61,7 +61,6 @@ export class NoticeList {
   }
 
   protected problem(): string {
-    const error = this.notices.error();
-    return error instanceof ApiError ? error.userMessage : 'The notices could not be loaded.';
+    return loadErrorMessage(this.notices.error(), 'The notices could not be loaded.') ?? '';
   }
 }

@@ -10,6 +10,7 @@ import { localDateTime } from '../../awards/award-format';
 import { ApiError } from '../../core/http/api-error';
 import { PeopleApi } from '../people-api';
 import { SkeletonRows } from '../../ui/skeleton-rows';
+import { loadErrorMessage } from '../../ui/load-error';
 
 /** How many of the newest entries the page shows. */
 const SHOWN = 50;
@@ -29,12 +30,7 @@ export class AdminAudit {
   protected readonly entries = rxResource({ stream: () => this.api.auditTrail() });
   protected readonly newest = computed(() => [...(this.entries.value() ?? [])].reverse().slice(0, SHOWN));
   protected readonly total = computed(() => this.entries.value()?.length ?? 0);
-  protected readonly loadError = computed(() => {
-    const error = this.entries.error();
-    if (!error) return null;
-    const cause = error instanceof ApiError ? error : (error as { cause?: unknown }).cause;
-    return cause instanceof ApiError ? cause.userMessage : 'The admin audit trail could not be loaded.';
-  });
+  protected readonly loadError = computed(() => loadErrorMessage(this.entries.error(), 'The admin audit trail could not be loaded.'));
   protected readonly columns = ['at', 'actor', 'description'];
   protected readonly verification = signal<AuditVerification | null>(null);
   protected readonly verifyMessage = signal('');

@@ -1,5 +1,5 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
@@ -11,6 +11,7 @@ import { Auth } from '../../core/auth/auth';
 import { ApiError, type FieldProblem } from '../../core/http/api-error';
 import { PRODUCT_NAME } from '../../core/page-title';
 import { ConfirmDialog, type ConfirmData } from '../../ui/confirm-dialog';
+import { loadErrorMessage } from '../../ui/load-error';
 import { money } from '../../ui/number-format';
 import { AmendmentsPanel } from '../amendments-panel/amendments-panel';
 import { AwardBasisPanel } from '../award-basis-panel/award-basis-panel';
@@ -41,8 +42,10 @@ export class TenderDetail {
 
   readonly id = input.required<string>();
 
-  protected readonly tender = signal<TenderView | null>(null);
-  protected readonly loadError = signal<string | null>(null);
+  /** The tender; a publication stores the answer in place, and a panel's change reloads it. */
+  private readonly loaded = rxResource({ params: () => this.id(), stream: ({ params: id }) => this.api.get(id) });
+  protected readonly tender = computed<TenderView | null>(() => (this.loaded.hasValue() ? this.loaded.value() : null));
+  protected readonly loadError = computed(() => loadErrorMessage(this.loaded.error(), 'The tender could not be loaded.'));
   protected readonly publishProblems = signal<FieldProblem[]>([]);
   protected readonly publishing = signal(false);
   protected readonly status = signal('');
@@ -85,24 +88,19 @@ export class TenderDetail {
   });
 
   constructor() {
-    effect(() => this.load(this.id()));
+    effect(() => {
+      const tender = this.tender();
+      if (tender) this.title.setTitle(`${tender.reference} · ${PRODUCT_NAME}`);
+    });
   }
 
-  protected load(id: string = this.id()): void {
-    this.loadError.set(null);
-    this.api
-      .get(id)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (tender) => this.show(tender),
-        error: (error: unknown) =>
-          this.loadError.set(error instanceof ApiError ? error.userMessage : 'The tender could not be loaded.'),
-      });
+  protected load(): void {
+    this.loaded.reload();
   }
 
+  /** A panel's answer (cancelled, invitations changed) is the tender as it now stands. */
   protected show(tender: TenderView): void {
-    this.tender.set(tender);
-    this.title.setTitle(`${tender.reference} · ${PRODUCT_NAME}`);
+    this.loaded.set(tender);
   }
 
   protected publish(): void {

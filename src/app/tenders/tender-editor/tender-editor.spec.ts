@@ -195,6 +195,23 @@ describe('TenderEditor', () => {
     expect(TestBed.inject(Router).url).toBe('/');
   });
 
+  it('refuses a region code used twice under the second code, then sends the corrected draft as one POST', async () => {
+    await fillCompleteDraft();
+    await fill('[aria-label="Code, region 2"]', 'hvn');
+    await save();
+    http.expectNone({ method: 'POST', url: '/api/tenders' });
+    expect((await errorsUnder('[aria-label="Code, region 2"]')).join(' ')).toMatch(/Region code "hvn" is used twice/);
+    expect((fixture.nativeElement as HTMLElement).querySelector('.form-error')?.textContent).toContain('Some fields need attention; each is marked below.');
+
+    await fill('[aria-label="Code, region 2"]', 'QSL');
+    await save();
+    const request = http.expectOne({ method: 'POST', url: '/api/tenders' });
+    expect(request.request.body).toEqual(expectedBody);
+    request.flush(tenderView({ id: '5b6c7d8e-0000-4000-8000-000000000032', status: 'draft' }), { status: 201, statusText: 'Created' });
+    await fixture.whenStable();
+    expect(TestBed.inject(Router).url).toBe('/tenders/5b6c7d8e-0000-4000-8000-000000000032');
+  });
+
   it('sends nothing for an invalid draft and says what is wrong under each field', async () => {
     await fillCompleteDraft();
     await fill('[formControlName=title]', '');

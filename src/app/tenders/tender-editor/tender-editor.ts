@@ -1,5 +1,5 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { rxResource, takeUntilDestroyed, toSignal } from '@angular/core/rxjs-interop';
 import { AbstractControl, NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -12,13 +12,15 @@ import { describeAwardBasis } from '@shared/award-basis';
 import { formatInZone } from '@shared/time-zone';
 import { Router, RouterLink } from '@angular/router';
 import { findDuplicateRegionCodes } from '@shared/bids';
-import { LETTER_LOCALES, tenderInputSchema, type TenderView } from '@shared/tenders';
+import { LETTER_LOCALES, tenderInputSchema } from '@shared/tenders';
 import { startWith } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
+import { formSubmission } from '../../ui/form-submission';
+import { loadErrorMessage } from '../../ui/load-error';
 import { fieldMessage } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
 import { quantity } from '../../ui/number-format';
-import { clearServerProblems, controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm, zonedInstant } from './tender-form';
+import { controlPath, fillForm, formBody, placeProblems, regionGroup, setRegions, tenderForm, zonedInstant } from './tender-form';
 import { ProgressNote } from '../../ui/progress-note';
 import type { Transfer } from '../../ui/transfer';
 
@@ -59,10 +61,20 @@ export class TenderEditor {
   protected readonly regions = this.form.controls.regions;
   protected readonly basis = this.form.controls.awardBasis;
   protected readonly body = this.form.controls.buyingBody;
-  protected readonly loading = signal(false);
-  protected readonly notEditable = signal<string | null>(null);
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  /** The draft being edited (none for a new tender). */
+  private readonly tender = rxResource({ params: () => this.id(), stream: ({ params: id }) => this.api.get(id) });
+  protected readonly notEditable = computed(() => {
+    const tender = this.tender.hasValue() ? this.tender.value() : null;
+    return tender && tender.status !== 'draft' ? `${tender.reference} is published; a published tender can no longer be edited.` : null;
+  });
+  protected readonly submission = formSubmission(this.form, this.destroyRef, {
+    invalidMessage: 'Some fields need attention; each is marked below.',
+    check: () => this.problemsBeforeSending(),
+    place: (problems) => placeProblems(this.form, problems),
+  });
+  protected readonly busy = this.submission.busy;
+  /** Why the draft could not be loaded, else why it was not saved. */
+  protected readonly failure = computed(() => loadErrorMessage(this.tender.error(), 'The tender could not be loaded.') ?? this.submission.failure());
   protected readonly importing = signal(false);
   /** What the import is doing: sending the file, then the server reading it. */
   protected readonly importProgress = signal<Transfer<unknown> | null>(null);
@@ -111,30 +123,13 @@ export class TenderEditor {
 
   constructor() {
     effect(() => {
-      const id = this.id();
-      if (id) this.load(id);
-    });
-  }
-
-  private load(id: string): void {
-    this.loading.set(true);
-    this.api
-      .get(id)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (tender: TenderView) => {
-          this.loading.set(false);
-          if (tender.status !== 'draft') {
-            this.notEditable.set(`${tender.reference} is published; a published tender can no longer be edited.`);
-            this.form.disable();
-          }
-          fillForm(this.fb, this.form, tender);
-        },
-        error: (error: unknown) => {
-          this.loading.set(false);
-          this.failure.set(error instanceof ApiError ? error.userMessage : 'The tender could not be loaded.');
-        },
+      const tender = this.tender.hasValue() ? this.tender.value() : null;
+      if (!tender) return;
+      untracked(() => {
+        if (tender.status !== 'draft') this.form.disable();
+        fillForm(this.fb, this.form, tender);
       });
+    });
   }
 
   protected closingMessage(): string | null {
@@ -204,35 +199,29 @@ export class TenderEditor {
       });
   }
 
-  protected save(): void {
-    if (this.busy() || this.form.disabled) return;
-    this.failure.set(null);
-    clearServerProblems(this.form);
+  /**
+   * What the request's schema refuses that no control's own validator does, and duplicate region
+   * codes. A control its own validator refuses already says why in the form's terms (a share in %,
+   * not the API's fraction).
+   */
+  private problemsBeforeSending(): { field: string; message: string }[] {
     const parsed = tenderInputSchema.safeParse(formBody(this.form));
-    const duplicates = findDuplicateRegionCodes(this.regions.getRawValue());
-    if (this.form.invalid || !parsed.success || duplicates.length) {
-      this.form.markAllAsTouched();
-      const issues = parsed.success ? [] : parsed.error.issues.map((i) => ({ field: controlPath(i.path), message: i.message }));
-      // A control its own validator refuses already says why in the form's terms (a share in %, not the API's fraction).
-      const unplaced = placeProblems(this.form, [
-        ...issues.filter((i) => i.field !== 'closesDate' && !this.form.get(i.field)?.errors),
-        ...duplicates.map((d) => ({ field: `regions.${d.index}.code`, message: d.message })),
-      ]);
-      this.failure.set(['Some fields need attention; each is marked below.', ...unplaced].join(' '));
-      return;
-    }
-    this.busy.set(true);
+    const issues = parsed.success ? [] : parsed.error.issues.map((i) => ({ field: controlPath(i.path), message: i.message }));
+    return [
+      ...issues.filter((i) => i.field !== 'closesDate' && !this.form.get(i.field)?.errors),
+      ...findDuplicateRegionCodes(this.regions.getRawValue()).map((d) => ({ field: `regions.${d.index}.code`, message: d.message })),
+    ];
+  }
+
+  protected save(): void {
+    if (this.form.disabled) return;
     const id = this.id();
-    (id ? this.api.update(id, parsed.data) : this.api.create(parsed.data))
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (tender) => void this.router.navigate(['/tenders', tender.id]),
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (!(error instanceof ApiError)) throw error;
-          const unplaced = placeProblems(this.form, error.fieldErrors);
-          this.failure.set([error.userMessage, ...unplaced].join(' '));
-        },
-      });
+    this.submission.send(
+      () => {
+        const body = tenderInputSchema.parse(formBody(this.form));
+        return id ? this.api.update(id, body) : this.api.create(body);
+      },
+      (tender) => void this.router.navigate(['/tenders', tender.id]),
+    );
   }
 }
