@@ -57,10 +57,12 @@ test('the buyer pages through the list, chooses a page size and an order, and a 
   await page.getByRole('button', { name: 'Reference' }).click();
   await page.waitForURL(/dir=desc/);
   await paginator.getByText('1 – 10 of 12').waitFor();
-  const first = page.getByRole('table', { name: 'Tenders' }).getByRole('row').nth(1);
-  await expect(first.getByRole('link').textContent()).resolves.toBe(`${PREFIX}12`);
+  // The last page stays shown until the new one arrives: wait for the new first row.
+  const firstRow = () => page.getByRole('table', { name: 'Tenders' }).getByRole('row').nth(1);
+  await firstRow().getByRole('link', { name: `${PREFIX}12`, exact: true }).waitFor();
   await page.reload();
-  await expect(page.getByRole('table', { name: 'Tenders' }).getByRole('row').nth(1).getByRole('link').textContent()).resolves.toBe(`${PREFIX}12`);
+  await firstRow().getByRole('link', { name: `${PREFIX}12`, exact: true }).waitFor();
+  await expect(firstRow().getByRole('link').textContent()).resolves.toBe(`${PREFIX}12`);
   await animationsDone(page);
   await screenshot(page, 'tender-list-sorted-1280');
   expect(await seriousViolations(page)).toEqual([]);
