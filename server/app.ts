@@ -1,6 +1,6 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { RequestContext } from '@mikro-orm/postgresql';
+import { lazyRequestContext } from './http/orm-context';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import session from 'express-session';
@@ -84,7 +84,7 @@ export function createApp(deps: AppDeps): Express {
   api.use(cookieParser());
   api.use(xsrf());
   api.use(express.json({ limit: '1mb' }));
-  api.use((_req, _res, next) => RequestContext.create(orm.em, next));
+  api.use(lazyRequestContext(orm.em));
   api.use(
     session({
       name: SESSION_COOKIE,

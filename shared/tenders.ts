@@ -172,10 +172,56 @@ export type TenderInput = z.infer<typeof tenderInputSchema>;
 /** A tender body as a client sends it (fields with a default may be left out). */
 export type TenderInputBody = z.input<typeof tenderInputSchema>;
 
+/** Tenders per page of the list: the sizes the list screen offers (the server takes any from 1 to 100). */
+export const TENDER_PAGE_SIZES = [10, 25, 50, 100] as const;
+export const TENDER_PAGE_SIZE = 25;
+/** The columns the tender list can be ordered by (on the server: the list comes a page at a time). */
+export const TENDER_SORTS = ['closesAt', 'reference', 'title', 'status'] as const;
+export type TenderSort = (typeof TENDER_SORTS)[number];
+
+const pageMessage = 'Page must be a whole number from 1 to 100,000.';
+const sizeMessage = 'Page size must be a whole number from 1 to 100.';
+
+/** GET /api/tenders?status=&q=&page=&size=&sort=&dir= — one page of the tenders the person may see. */
 export const tenderListQuerySchema = z.object({
   status: z.enum(TENDER_STATUSES, { error: 'Unknown status.' }).optional(),
   q: plainText(z.string().max(100, { error: 'Search must be at most 100 characters.' }), 'Search').optional(),
+  page: z.coerce.number({ error: pageMessage }).int({ error: pageMessage }).min(1, { error: pageMessage }).max(100_000, { error: pageMessage }).default(1),
+  size: z.coerce.number({ error: sizeMessage }).int({ error: sizeMessage }).min(1, { error: sizeMessage }).max(100, { error: sizeMessage }).default(TENDER_PAGE_SIZE),
+  sort: z.enum(TENDER_SORTS, { error: `Sort must be one of ${TENDER_SORTS.join(', ')}.` }).default('closesAt'),
+  /** Closing time sorts newest first by default; the other columns A to Z (draft first for status). */
+  dir: z.enum(['asc', 'desc'], { error: 'Direction must be asc or desc.' }).optional(),
 });
+export type TenderListQuery = z.infer<typeof tenderListQuerySchema>;
+
+export const tenderSummarySchema = z.object({
+  id: z.uuid(),
+  reference: z.string(),
+  title: z.string(),
+  commodity: z.string(),
+  unit: z.string(),
+  currency: z.string(),
+  status: z.enum(TENDER_STATUSES),
+  closesAt: z.iso.datetime(),
+  timeZone: z.string(),
+  regionCount: z.number().int(),
+  totalForecast: z.number(),
+  myBidStatus: z.enum(BID_STATUSES).nullable().optional(),
+});
+
+/** GET /api/tenders: one page of the tenders that match, and how many match in all. */
+export const tenderPageSchema = z.object({
+  items: z.array(tenderSummarySchema),
+  total: z.number().int(),
+  page: z.number().int(),
+  size: z.number().int(),
+});
+export interface TenderPage {
+  items: TenderSummary[];
+  total: number;
+  page: number;
+  size: number;
+}
 
 /** POST /api/tenders/:id/invitations: existing organisations and/or a new vendor contact. */
 export const invitationInputSchema = z

@@ -6,13 +6,13 @@ import { User as UserEntity } from '../entities';
 import { normaliseEmail } from '@shared/auth';
 import { DUMMY_HASH, verifyPassword } from './password';
 import { loadedSessionUser } from './session-store';
-import { signedInUser } from './session-user';
+import { SessionPerson, type Principal } from './session-user';
 
 declare global {
   // eslint-disable-next-line @typescript-eslint/no-namespace -- Express's own augmentation point
   namespace Express {
-    // eslint-disable-next-line @typescript-eslint/no-empty-object-type -- declaration merging: req.user is our User entity
-    interface User extends UserEntity {}
+    // eslint-disable-next-line @typescript-eslint/no-empty-object-type -- declaration merging: req.user is who is signed in (session-user.ts)
+    interface User extends Principal {}
   }
 }
 
@@ -41,9 +41,10 @@ export function configurePassport(orm: MikroORM): passport.PassportStatic {
   );
   instance.serializeUser((user, done) => done(null, user.id));
   instance.deserializeUser<string, Request>((req, id, done) => {
-    // Usually read with the session itself, in the same query (session-store.ts).
+    // Usually read with the session itself, in the same query (session-store.ts): a plain object,
+    // made an entity only by a route that uses it as one (http/route.ts, userEntity).
     const row = loadedSessionUser(req.session, id);
-    if (row !== undefined) return done(null, row ? signedInUser(em(), row) : false);
+    if (row !== undefined) return done(null, row ? new SessionPerson(row) : false);
     em()
       .findOne(UserEntity, { id, active: true }, { populate: ['vendorOrganisation'] })
       // false = no longer signed in (deactivated or removed): passport drops the session's user.

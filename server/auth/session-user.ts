@@ -28,3 +28,51 @@ export function signedInUser(em: EntityManager, row: SessionUserRow): User {
     lastSignInAt: row.last_sign_in_at ? new Date(row.last_sign_in_at) : null, vendorOrganisation: organisation,
   }, MERGE);
 }
+
+/**
+ * What a route needs to know of the signed-in person before it touches the ORM — who, which role,
+ * which organisation: `req.user`. A User entity has it; so has a SessionPerson.
+ */
+export interface Principal {
+  id: string;
+  email: string;
+  name: string;
+  role: Role;
+  vendorOrganisation?: { id: string; name: string } | null;
+}
+
+/**
+ * The signed-in person as read with the session (session-store.ts), a plain object: the role
+ * check and `GET /api/session` need no more, so they build no entity and fork no EntityManager.
+ * A route that uses the person as an entity gets one made from the same row (`userEntity`).
+ */
+export class SessionPerson implements Principal {
+  readonly id: string;
+  readonly email: string;
+  readonly name: string;
+  readonly role: Role;
+  readonly vendorOrganisation: { id: string; name: string } | null;
+  /** The entity made from the row, once per request (a SessionPerson lives as long as its request). */
+  private entity?: User;
+
+  constructor(private readonly row: SessionUserRow) {
+    this.id = row.id;
+    this.email = row.email;
+    this.name = row.name;
+    this.role = row.role as Role;
+    this.vendorOrganisation = row.vendor_organisation ? { id: row.vendor_organisation.id, name: row.vendor_organisation.name } : null;
+  }
+
+  /** This person as a User entity of `em` (the request's EntityManager), without a query. */
+  toEntity(em: EntityManager): User {
+    this.entity ??= signedInUser(em, this.row);
+    return this.entity;
+  }
+}
+
+/** The request's person as a User entity: the one sign-in found, or one made from the session's row. */
+export function userEntity(em: EntityManager, person: Principal): User {
+  if (person instanceof User) return person;
+  if (person instanceof SessionPerson) return person.toEntity(em);
+  throw new Error('The signed-in person is neither a User entity nor read with the session.');
+}

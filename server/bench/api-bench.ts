@@ -1,4 +1,6 @@
 import type autocannon from 'autocannon';
+import { Client } from 'pg';
+import { tenderListStatement } from '../services/queries/tenders.queries';
 import { deadlineRush, rushHolds, rushTable, RUSH_REGIONS, RUSH_VENDORS } from './rush';
 import { benchEnv, startBare, startServer, stopAll } from './support/processes';
 import { call, headersOf, signIn, signInAll, type Session } from './support/http';
@@ -16,8 +18,9 @@ import { BENCH_PASSWORD, seedBenchData } from './support/seed';
  *
  *   (0) GET /api/session of bare Express, 20 connections: the yardstick;
  *   (d) GET /api/session signed in, 20 connections (20 vendors' sessions in turn);
- *   (a) GET /api/tenders as vendors (27 tenders visible each), 20 connections;
- *   (e) GET /api/tenders as the buyer, 1,000 tenders and more in the list, 20 connections;
+ *   (a) GET /api/tenders as vendors (27 tenders visible each: the first page of 25), 20 connections;
+ *   (e) GET /api/tenders as the buyer, 1,000 tenders and more in the list (the first page of 25,
+ *       with the count of all, as the list screen opens), 20 connections;
  *   (b) PUT /api/tenders/:id/bid by 50 vendors at once, each on a tender of its own (40 regions,
  *       draft saves over the version each one loaded — one autocannon instance per vendor);
  *   (c) GET /api/tenders/:id/bids of a closed tender, 30 vendors × 200 regions, as a buyer;
@@ -55,12 +58,33 @@ function rotating(url: string, sessions: Session[]): DriveOptions {
   };
 }
 
+/** `--explain`: the plans of the buyer's and a vendor's first page of the tender list, on the bench data. */
+async function explainLists(databaseUrl: string, buyerId: string, vendorOrgId: string): Promise<void> {
+  const db = new Client({ connectionString: databaseUrl });
+  await db.connect();
+  try {
+    const first = { page: 1, size: 25, sort: 'closesAt', dir: 'desc' } as const;
+    for (const [label, filter] of [
+      ['buyer, first page', { ...first, vendorOrganisationId: null, ownerId: buyerId }],
+      ['buyer, page 20', { ...first, page: 20, vendorOrganisationId: null, ownerId: buyerId }],
+      ['vendor, first page', { ...first, vendorOrganisationId: vendorOrgId, ownerId: null }],
+    ] as const) {
+      const { text, values } = tenderListStatement(filter);
+      const { rows } = await db.query<{ 'QUERY PLAN': string }>(`explain (analyze, buffers, costs off) ${text}`, values);
+      process.stdout.write(`\n[bench] plan of the tender list, ${label}:\n${rows.map((r) => r['QUERY PLAN']).join('\n')}\n`);
+    }
+  } finally {
+    await db.end();
+  }
+}
+
 async function main(): Promise<void> {
   const skipRush = process.argv.includes('--skip-rush');
   const onlyAt = process.argv.indexOf('--only');
   const only = onlyAt > 0 ? new Set(['0', 'd', ...(process.argv[onlyAt + 1] ?? '').split(',')]) : new Set(['0', 'a', 'b', 'c', 'd', 'e']);
   const { databaseUrl, dir: benchDir } = benchEnv();
   const seeded = await seedBenchData(databaseUrl, { vendors: skipRush ? 200 : RUSH_VENDORS, rushRegions: RUSH_REGIONS, buyerBulk: BUYER_BULK });
+  if (process.argv.includes('--explain')) await explainLists(databaseUrl, seeded.buyerId, seeded.vendors[0].orgId);
   const bare = await startBare();
   const { proc, url } = await startServer();
   const people = skipRush ? 200 : RUSH_VENDORS;
@@ -106,7 +130,7 @@ async function main(): Promise<void> {
     { key: '0', run: barePhase, label: '(0) bare Express 5, one route' },
     { key: 'd', run: sessionPhase, label: '(d) GET /api/session signed in' },
     { key: 'a', run: listPhase, label: '(a) GET /api/tenders, vendor' },
-    { key: 'e', run: buyerListPhase, label: `(e) GET /api/tenders, buyer (${seeded.buyerTenders})` },
+    { key: 'e', run: buyerListPhase, label: `(e) GET /api/tenders, buyer (25 of ${seeded.buyerTenders})` },
     { key: 'b', run: bidPhase, label: '(b) PUT bid, 50 vendors, own tenders' },
     { key: 'c', run: tabulationPhase, label: '(c) GET bids 30x200, buyer' },
   ].filter((p) => only.has(p.key));

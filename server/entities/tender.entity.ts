@@ -1,4 +1,4 @@
-import { Collection, DecimalType, Entity, Enum, ManyToOne, OneToMany, Property, Unique, type Opt } from '@mikro-orm/core';
+import { Collection, DecimalType, Entity, Enum, Index, ManyToOne, OneToMany, Property, Unique, type Opt } from '@mikro-orm/core';
 import { TENDER_STATUSES, type AwardBasis, type BuyingBody, type TenderStatus } from '@shared/tenders';
 import { BaseEntity } from './base.entity';
 import { Region } from './region.entity';
@@ -6,6 +6,8 @@ import { User } from './user.entity';
 
 /** A call for bids over many delivery regions. Times are stored in UTC. */
 @Entity({ tableName: 'tender' })
+// A buyer's tender list, a page at a time, newest closing first (queries/tenders.queries.ts).
+@Index({ name: 'tender_created_by_id_closes_at_id_index', expression: 'create index "tender_created_by_id_closes_at_id_index" on "tender" ("created_by_id", "closes_at" desc, "id")' })
 export class Tender extends BaseEntity {
   @Unique()
   @Property({ type: 'string', length: 40 })

@@ -5,6 +5,7 @@ import multer from 'multer';
 import { z } from 'zod';
 import type { Role } from '@shared/roles';
 import type { User } from '../entities';
+import { userEntity } from '../auth/session-user';
 import { ForbiddenError, UnauthorizedError } from './errors';
 import { parseOr400 } from './validate';
 
@@ -17,9 +18,12 @@ export interface RouteInput<P, Q, B> {
   params: P;
   query: Q;
   body: B;
-  /** The signed-in person (undefined only on public routes). */
+  /**
+   * The signed-in person (undefined only on public routes) as a User entity of `em`: made from the
+   * row read with the session when the handler first reads it (auth/session-user.ts).
+   */
   user: User;
-  /** This request's own EntityManager (MikroORM RequestContext). */
+  /** This request's own EntityManager (MikroORM RequestContext), forked when first read (http/orm-context.ts). */
   em: EntityManager;
   req: Request;
   res: Response;
@@ -80,12 +84,18 @@ export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
       ? [multer({ storage: multer.memoryStorage(), limits: { fileSize: def.upload.maxBytes, files: 1, fields: 20 } }).single(def.upload.field)]
       : [];
     router[def.method](def.path, requireRole(def.access), ...upload, async (req: Request, res: Response) => {
+      // `em` and `user` are getters: a handler that reads neither forks no EntityManager and builds no entity.
+      const em = () => RequestContext.getEntityManager() as EntityManager;
       const input: RouteInput<unknown, unknown, unknown> = {
         params: def.params ? parseOr400(def.params, req.params) : req.params,
         query: def.query ? parseOr400(def.query, req.query) : {},
         body: def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
-        user: req.user as User,
-        em: RequestContext.getEntityManager() as EntityManager,
+        get user() {
+          return (req.user ? userEntity(em(), req.user) : undefined) as User;
+        },
+        get em() {
+          return em();
+        },
         req,
         res,
       };

@@ -3,12 +3,13 @@ import type passport from 'passport';
 import { signInSchema } from '@shared/auth';
 import type { SessionUser } from '@shared/roles';
 import { SESSION_COOKIE } from '../context';
+import type { Principal } from '../auth/session-user';
 import type { User } from '../entities';
 import { AppError, UnauthorizedError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import { rotateXsrf } from '../http/xsrf';
 
-export function sessionUser(user: User): SessionUser {
+export function sessionUser(user: Principal): SessionUser {
   return {
     id: user.id,
     email: user.email,

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { closureDaysInputSchema, invitationInputSchema, tenderIdParamSchema, tenderInputSchema, tenderListQuerySchema } from '@shared/tenders';
+import { closureDaysInputSchema, invitationInputSchema, tenderIdParamSchema, tenderInputSchema, tenderListQuerySchema, tenderPageSchema } from '@shared/tenders';
 import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
@@ -11,7 +11,8 @@ export function tenderRoutes(deps: AppDeps): AnyRoute[] {
   return [
     route({
       method: 'get', path: '/tenders', tag: 'Tenders', access: ['admin', 'buyer', 'compliance', 'vendor'], query: tenderListQuerySchema,
-      summary: 'Tenders, newest closing first; filter by status, search reference/title/commodity. A vendor sees only published tenders it is invited to.',
+      response: tenderPageSchema,
+      summary: 'One page of the tenders (newest closing first unless sorted otherwise) with how many match in all; filter by status, search reference/title/commodity. A vendor sees only published tenders it is invited to.',
       handler: ({ user, query }) => tenders.listTenders(deps.sessionPool, user, query),
     }),
     route({

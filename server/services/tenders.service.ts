@@ -1,10 +1,9 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Pool } from 'pg';
-import type { z } from 'zod';
 import { describeAwardBasis } from '@shared/award-basis';
 import type { RegionInput } from '@shared/bids';
-import type { InvitationInput, TenderInput, TenderStatus, TenderSummary, TenderView, tenderListQuerySchema } from '@shared/tenders';
+import type { InvitationInput, TenderInput, TenderListQuery, TenderPage, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
 import { Amendment, Bid, Invitation, Notice, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
@@ -42,18 +41,22 @@ export function regionInputs(tender: Tender): RegionInput[] {
   return tender.regions.getItems().map((r) => ({ code: r.code, name: r.name, forecast: r.forecast }));
 }
 
-export async function listTenders(pool: Pool, user: User, query: z.infer<typeof tenderListQuerySchema>): Promise<TenderSummary[]> {
+export async function listTenders(pool: Pool, user: User, query: TenderListQuery): Promise<TenderPage> {
   // No write here: closing (and its audit entry) is the close job's and the bid save's. Until the
   // job has run, a tender past its closing time is listed as closed all the same (CURRENT_STATUS).
-  // One prepared statement, counts and totals by PostgreSQL (queries/tenders.queries.ts).
+  // One prepared statement, a page at a time, counts and totals by PostgreSQL (queries/tenders.queries.ts).
   const vendor = user.role === 'vendor' ? user.vendorOrganisation!.id : null;
-  const rows = await tenderListRows(pool, { vendorOrganisationId: vendor, ownerId: tenderOwnerScope(user), status: query.status, q: query.q });
-  return rows.map((t) => ({
+  const { rows, total } = await tenderListRows(pool, {
+    vendorOrganisationId: vendor, ownerId: tenderOwnerScope(user), status: query.status, q: query.q,
+    page: query.page, size: query.size, sort: query.sort, dir: query.dir ?? (query.sort === 'closesAt' ? 'desc' : 'asc'),
+  });
+  const items = rows.map((t): TenderSummary => ({
     id: t.id, reference: t.reference, title: t.title, commodity: t.commodity, unit: t.unit, currency: t.currency,
     status: t.status, closesAt: new Date(t.closes_at).toISOString(), timeZone: t.time_zone,
     regionCount: t.region_count, totalForecast: Number(t.total_forecast),
     ...(vendor ? { myBidStatus: t.my_bid_status } : {}),
   }));
+  return { items, total, page: query.page, size: query.size };
 }
 
 export async function tenderView(em: EntityManager, user: User, id: string): Promise<TenderView> {

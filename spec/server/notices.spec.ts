@@ -187,14 +187,14 @@ test('with the mail server down, notices stay queued and go out when it returns'
     // Approved but no letter sent: a vendor sees the tender closed, not its outcome.
     const vendor = await demo(t, 'vendor1');
     expect((await vendor.get(`/api/tenders/${tenderId}`)).body.status).toBe('closed');
-    expect((await vendor.get('/api/tenders')).body.find((x: { id: string }) => x.id === tenderId).status).toBe('closed');
+    expect((await vendor.get('/api/tenders')).body.items.find((x: { id: string }) => x.id === tenderId).status).toBe('closed');
     expect((await vendor.get('/api/notices')).body).toEqual([]);
     const back = await startMailCatcher(t.orm, port);
     try {
       await waitForStatus(t, tenderId, 'notified');
       // Its letter sent, the vendor sees the outcome.
       expect((await vendor.get(`/api/tenders/${tenderId}`)).body.status).toBe('notified');
-      expect((await vendor.get('/api/tenders')).body.find((x: { id: string }) => x.id === tenderId).status).toBe('notified');
+      expect((await vendor.get('/api/tenders')).body.items.find((x: { id: string }) => x.id === tenderId).status).toBe('notified');
       expect(await t.em().count(MailMessage, {})).toBeGreaterThanOrEqual(7);
     } finally {
       await back.close();

@@ -160,9 +160,10 @@ test('the tender list and the notice list show a buyer only its own tenders; com
   const own = await other.post('/api/tenders', tenderBody());
   expect(own.status).toBe(201);
   const list = await other.get('/api/tenders');
-  expect(list.body.map((x: { id: string }) => x.id)).toEqual([own.body.id]);
-  expect((await other.get('/api/tenders').query({ q: 'Gritting' })).body.map((x: { id: string }) => x.id)).toEqual([own.body.id]);
-  expect((await owner.get('/api/tenders')).body.map((x: { id: string }) => x.id)).toEqual([ids['tender']]);
+  expect(list.body.items.map((x: { id: string }) => x.id)).toEqual([own.body.id]);
+  expect(list.body.total).toBe(1);
+  expect((await other.get('/api/tenders').query({ q: 'Gritting' })).body.items.map((x: { id: string }) => x.id)).toEqual([own.body.id]);
+  expect((await owner.get('/api/tenders')).body.items.map((x: { id: string }) => x.id)).toEqual([ids['tender']]);
   expect((await other.get('/api/notices')).body).toEqual([]);
   expect((await other.get('/api/notices').query({ tenderId: ids['tender'] })).body).toEqual([]);
   expect((await owner.get('/api/notices')).body).toHaveLength(1);
@@ -172,7 +173,7 @@ test('the tender list and the notice list show a buyer only its own tenders; com
   expect((await other.get('/api/worklist/count')).body).toEqual({ total: 1 });
   expect(await worklistLinks(owner)).toEqual([`/tenders/${ids['tender']}`]);
   for (const overseer of [compliance, admin]) {
-    const all = (await overseer.get('/api/tenders')).body.map((x: { id: string }) => x.id).sort();
+    const all = (await overseer.get('/api/tenders')).body.items.map((x: { id: string }) => x.id).sort();
     expect(all).toEqual([ids['tender'], own.body.id].sort());
     expect((await overseer.get(`/api/tenders/${ids['tender']}`)).status).toBe(200);
   }

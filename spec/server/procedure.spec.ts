@@ -304,7 +304,7 @@ describe('cancellation', () => {
     expect((await buyer.get(`/api/tenders/${id}`)).body.status).toBe('cancelled');
     expect((await buyer.get(`/api/tenders/${id}/bids`)).body).toEqual({ submitted: 1 });
     expect((await buyer.get(`/api/tenders/${id}/scenarios`)).status).toBe(409);
-    expect((await buyer.get('/api/tenders').query({ status: 'cancelled' })).body.map((x: { id: string }) => x.id)).toContain(id);
+    expect((await buyer.get('/api/tenders').query({ status: 'cancelled' })).body.items.map((x: { id: string }) => x.id)).toContain(id);
     const entry = await t.em().findOneOrFail(AuditEntry, { tender: id, action: 'tender.cancelled' });
     expect(entry.detail).toEqual({ reason: 'The budget was withdrawn by the board.' });
     expect(await t.em().count(Bid, { tender: id, status: 'submitted' })).toBe(1);
@@ -318,7 +318,7 @@ describe('cancellation', () => {
     expect(res.body.status).toBe('cancelled');
     // Never published, so its invited vendor never sees it.
     expect((await a.b.get(`/api/tenders/${created.body.id}`)).status).toBe(404);
-    expect((await a.b.get('/api/tenders')).body.map((x: { id: string }) => x.id)).not.toContain(created.body.id);
+    expect((await a.b.get('/api/tenders')).body.items.map((x: { id: string }) => x.id)).not.toContain(created.body.id);
     await drainQueue(t, QUEUES.mail);
     expect(await t.em().count(MailMessage, { subject: `Tender ${created.body.reference} is cancelled` })).toBe(0);
   });

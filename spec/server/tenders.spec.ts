@@ -70,9 +70,9 @@ test('publishing e-mails every invited vendor; only invited vendors see the tend
   expect(mail.subject).toMatch(/^Invitation to tender T-/);
   expect(mail.text).toContain(`/tenders/${id}`);
   const listA = await vendorA.get('/api/tenders');
-  expect(listA.body.map((x: { id: string }) => x.id)).toEqual([id]);
+  expect(listA.body.items.map((x: { id: string }) => x.id)).toEqual([id]);
   expect((await vendorA.get(`/api/tenders/${id}`)).body.invitations).toBeUndefined();
-  expect((await vendorB.get('/api/tenders')).body).toEqual([]);
+  expect((await vendorB.get('/api/tenders')).body).toEqual({ items: [], total: 0, page: 1, size: 25 });
   expect((await vendorB.get(`/api/tenders/${id}`)).status).toBe(404);
 });
 
@@ -87,10 +87,44 @@ test('the tender list filters by status and searches reference and title', async
   const body = tenderBody(1, 60, { title: 'Treatment chemicals for nine works' });
   await buyer.post('/api/tenders', body);
   const found = await buyer.get('/api/tenders').query({ q: 'chemicals', status: 'draft' });
-  expect(found.body.map((x: { reference: string }) => x.reference)).toEqual([body.reference]);
+  expect(found.body.items.map((x: { reference: string }) => x.reference)).toEqual([body.reference]);
   const bad = await buyer.get('/api/tenders').query({ status: 'sleeping' });
   expect(bad.status).toBe(400);
   expect(bad.body.errors[0].field).toBe('status');
+});
+
+test('the tender list comes a page at a time, newest closing first, with how many match in all; past the end it still counts them', async () => {
+  // A buyer of its own, so no other test's tender is in the list.
+  const own = await signedIn(t, await makeUser(t, 'buyer'));
+  const refs: string[] = [];
+  for (const [k, minutes] of [300, 100, 200].entries()) {
+    const body = tenderBody(1 + k, minutes, { reference: `PG-${k}-${Date.now().toString(36)}`, title: ['Brine', 'Alpha grit', 'Zinc posts'][k] });
+    expect((await own.post('/api/tenders', body)).status).toBe(201);
+    refs.push(body.reference);
+  }
+  const [late, early, middle] = refs;
+  const first = await own.get('/api/tenders').query({ size: 2 });
+  expect(first.body).toMatchObject({ total: 3, page: 1, size: 2 });
+  expect(first.body.items.map((x: { reference: string }) => x.reference)).toEqual([late, middle]);
+  // Each row is counted and summed by the database: the first tender has 1 region of 1,000 t.
+  expect(first.body.items[0]).toMatchObject({ regionCount: 1, totalForecast: 1000, status: 'draft' });
+  const second = await own.get('/api/tenders').query({ size: 2, page: 2 });
+  expect(second.body).toMatchObject({ total: 3, page: 2, size: 2 });
+  expect(second.body.items.map((x: { reference: string }) => x.reference)).toEqual([early]);
+  expect((await own.get('/api/tenders').query({ size: 2, page: 9 })).body).toEqual({ items: [], total: 3, page: 9, size: 2 });
+  const byTitle = await own.get('/api/tenders').query({ sort: 'title' });
+  expect(byTitle.body.items.map((x: { title: string }) => x.title)).toEqual(['Alpha grit', 'Brine', 'Zinc posts']);
+  const byTitleDown = await own.get('/api/tenders').query({ sort: 'title', dir: 'desc', size: 1 });
+  expect(byTitleDown.body.items.map((x: { title: string }) => x.title)).toEqual(['Zinc posts']);
+  const searched = await own.get('/api/tenders').query({ q: 'grit', size: 1 });
+  expect(searched.body).toMatchObject({ total: 1, items: [{ reference: early }] });
+});
+
+test('a page, page size, order or direction out of range is refused naming the parameter', async () => {
+  for (const [query, field] of [[{ size: 0 }, 'size'], [{ size: 101 }, 'size'], [{ page: 0 }, 'page'], [{ page: 'two' }, 'page'], [{ sort: 'price' }, 'sort'], [{ dir: 'up' }, 'dir']] as const) {
+    const res = await buyer.get('/api/tenders').query(query);
+    expect([res.status, res.type, res.body.errors[0].field]).toEqual([400, 'application/problem+json', field]);
+  }
 });
 
 test('inviting a new vendor contact registers the firm and e-mails an account link', async () => {
@@ -138,9 +172,9 @@ test('a tender past its closing time is listed as closed before the close job ru
   const id = await openTender(buyer, [orgA]);
   await passClosingTime(t, id);
   const list = await buyer.get('/api/tenders');
-  expect(list.body.find((x: { id: string }) => x.id === id).status).toBe('closed');
-  expect((await buyer.get('/api/tenders?status=closed')).body.map((x: { id: string }) => x.id)).toContain(id);
-  expect((await buyer.get('/api/tenders?status=open')).body.map((x: { id: string }) => x.id)).not.toContain(id);
+  expect(list.body.items.find((x: { id: string }) => x.id === id).status).toBe('closed');
+  expect((await buyer.get('/api/tenders?status=closed')).body.items.map((x: { id: string }) => x.id)).toContain(id);
+  expect((await buyer.get('/api/tenders?status=open')).body.items.map((x: { id: string }) => x.id)).not.toContain(id);
   // Reading the list wrote nothing: the row is still open and no closing is in the trail yet.
   expect((await t.em().findOneOrFail(Tender, { id })).status).toBe('open');
   expect(await t.em().count(AuditEntry, { tender: id, action: 'tender.closed' })).toBe(0);

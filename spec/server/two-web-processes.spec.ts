@@ -87,8 +87,8 @@ test('signed in on one web process, a vendor saves a bid on the other; each proc
   expect((await call<{ user: { id: string } }>(a, vendor, 'GET', '/api/session')).body.user.id).toBe(vendorUser.id);
 
   // The tender published on A is in the vendor's list on B; the bid submitted on B is read on A.
-  const list = await call<{ id: string; status: string }[]>(b, vendor, 'GET', '/api/tenders');
-  expect(list.body.find((x) => x.id === id)?.status).toBe('open');
+  const list = await call<{ items: { id: string; status: string }[] }>(b, vendor, 'GET', '/api/tenders');
+  expect(list.body.items.find((x) => x.id === id)?.status).toBe('open');
   const prices = { R01: 51.5, R02: 52, R03: 53.25, R04: 54 };
   const saved = await call<{ version: number; digest: string }>(b, vendor, 'PUT', `/api/tenders/${id}/bid`, { fixedFee: 12_000, capacity: null, prices, submit: true, version: null });
   expect(saved.status).toBe(200);

@@ -17,6 +17,7 @@ export interface SeededTender {
 
 export interface Seeded {
   buyerEmail: string;
+  buyerId: string;
   vendors: { email: string; orgId: string }[];
   /** Closed, 30 submitted bids × 200 regions: the tabulation and the solve queue. */
   big: SeededTender;
@@ -167,7 +168,7 @@ export async function seedBenchData(databaseUrl: string, options: SeedOptions = 
     // As autovacuum leaves a database at rest: statistics and the visibility map (index-only scans).
     await db.query('vacuum analyze');
     const { rows: counted } = await db.query<{ n: number }>(`select count(*)::int as n from tender where created_by_id = $1`, [buyerId]);
-    return { buyerEmail, vendors, big, open, rush, own, buyerTenders: counted[0].n };
+    return { buyerEmail, buyerId, vendors, big, open, rush, own, buyerTenders: counted[0].n };
   } finally {
     await db.end();
   }

@@ -1,5 +1,5 @@
 import type { Pool } from 'pg';
-import { statusesAfter, type BidStatus, type TenderStatus } from '@shared/tenders';
+import { statusesAfter, type BidStatus, type TenderSort, type TenderStatus } from '@shared/tenders';
 import { escapeLike } from '../like';
 import { sqlList } from '../sql';
 import { CURRENT_STATUS } from '../tender-access';
@@ -45,15 +45,44 @@ export interface TenderListFilter {
   ownerId: string | null;
   status?: TenderStatus;
   q?: string;
+  /** 1-based. */
+  page: number;
+  size: number;
+  sort: TenderSort;
+  dir: 'asc' | 'desc';
+}
+
+/** One page of the list and how many tenders match in all. */
+export interface TenderListPage {
+  rows: TenderListRow[];
+  total: number;
+}
+
+/** The columns a list is ordered by, over alias `a`; the id last, so pages never overlap. */
+function ordering(sort: TenderSort, dir: 'asc' | 'desc', a: string, status: string): string {
+  const column = { closesAt: `${a}.closes_at`, reference: `${a}.reference`, title: `${a}.title`, status }[sort];
+  // Closing time breaks ties of the other columns, newest first, as the list is read by default.
+  return sort === 'closesAt' ? `${column} ${dir}, ${a}.id` : `${column} ${dir}, ${a}.closes_at desc, ${a}.id`;
 }
 
 /**
- * The tender list in one statement, prepared once per connection and per shape of filter (a named
- * statement: PostgreSQL plans it once, not on every request), through the pg pool rather than the
- * ORM's query builder — the list is read on every visit of the list screen by every vendor
- * (bench:api, phases a and e). Reads only, outside any transaction.
+ * One page of the tender list in one statement, prepared once per connection and per shape of
+ * filter and order (a named statement: PostgreSQL plans it once, not on every request), through the
+ * pg pool rather than the ORM's query builder — the list is read on every visit of the list screen
+ * by every vendor (bench:api, phases a and e). The count of all matching tenders comes with the
+ * page (an uncorrelated subquery, run once), even when the page asked for lies past the end; the
+ * regions are counted and summed for the page's tenders only. A buyer's list, newest closing first,
+ * is read from the index `tender_created_by_id_closes_at_id_index` and stops after the page.
+ * Reads only, outside any transaction.
  */
-export async function tenderListRows(pool: Pool, f: TenderListFilter): Promise<TenderListRow[]> {
+export async function tenderListRows(pool: Pool, f: TenderListFilter): Promise<TenderListPage> {
+  const rows = (await pool.query<TenderListRow & { total: number }>(tenderListStatement(f))).rows;
+  // Past the end, the one row carries the count and no tender.
+  return { rows: rows.filter((r) => r.id !== null), total: rows[0]?.total ?? 0 };
+}
+
+/** The statement `tenderListRows` sends (also for `EXPLAIN` in bench:api, `--explain`). */
+export function tenderListStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
   const values: unknown[] = [];
   const param = (v: unknown) => `$${values.push(v)}`;
   const where: string[] = [];
@@ -66,14 +95,21 @@ export async function tenderListRows(pool: Pool, f: TenderListFilter): Promise<T
     const like = param(`%${escapeLike(f.q)}%`);
     where.push(`(t.reference ilike ${like} or t.title ilike ${like} or t.commodity ilike ${like})`);
   }
-  const text = `select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone,
-         coalesce(r.n, 0)::int as region_count, coalesce(r.total, 0) as total_forecast,
-         ${vendor ? `(select b.status from bid b where b.tender_id = t.id and b.vendor_organisation_id = ${vendor})` : 'null'} as my_bid_status
-    from tender t
-    left join lateral (select count(*) as n, sum(forecast) as total from region where region.tender_id = t.id) r on true
-   ${where.length ? `where ${where.join(' and ')}` : ''}
-   order by t.closes_at desc, t.id`;
-  // The text depends only on which filters are set, so that names the statement.
-  const name = `tender-list-${vendor ? 'v' : ''}${f.ownerId ? 'o' : ''}${f.status ? 's' : ''}${f.q ? 'q' : ''}`;
-  return (await pool.query<TenderListRow>({ name, text, values })).rows;
+  const matching = `from tender t ${where.length ? `where ${where.join(' and ')}` : ''}`;
+  const limit = param(f.size);
+  const offset = param((f.page - 1) * f.size);
+  const text = `select c.total, p.id, p.reference, p.title, p.commodity, p.unit, p.currency, p.status, p.closes_at, p.time_zone,
+         coalesce(r.n, 0)::int as region_count, coalesce(r.forecast, 0) as total_forecast,
+         ${vendor ? `(select b.status from bid b where b.tender_id = p.id and b.vendor_organisation_id = ${vendor})` : 'null'} as my_bid_status
+    from (select count(*)::int as total ${matching}) c
+    left join lateral (
+      select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone
+        ${matching}
+       order by ${ordering(f.sort, f.dir, 't', status)}
+       limit ${limit} offset ${offset}) p on true
+    left join lateral (select count(*) as n, sum(forecast) as forecast from region where region.tender_id = p.id) r on true
+   order by ${ordering(f.sort, f.dir, 'p', 'p.status')}`;
+  // The text depends only on which filters are set and on the order, so that names the statement.
+  const name = `tender-page-${vendor ? 'v' : ''}${f.ownerId ? 'o' : ''}${f.status ? 's' : ''}${f.q ? 'q' : ''}-${f.sort}-${f.dir}`;
+  return { name, text, values };
 }

@@ -75,9 +75,12 @@ export async function animationsDone(page: Page): Promise<void> {
   await page.evaluate(() => new Promise<void>((resolve) => requestAnimationFrame(() => resolve())));
 }
 
-/** Opens a tender from the tender list by its reference and waits for its page. */
+/**
+ * Opens a tender from the tender list by its reference and waits for its page. The list comes a
+ * page at a time, so it is searched for the reference first, as a person would.
+ */
 export async function openTender(page: Page, reference: string): Promise<void> {
-  await page.goto(`${baseUrl()}/tenders`);
+  await page.goto(`${baseUrl()}/tenders?q=${encodeURIComponent(reference)}`);
   await page.getByRole('link', { name: reference }).click();
   await page.getByRole('heading', { level: 1 }).waitFor();
 }

@@ -3,7 +3,7 @@ import { Injectable, inject } from '@angular/core';
 import type { RegionInput } from '@shared/bids';
 import type { AbnormallyLowInput, ComplianceInput } from '@shared/compliance';
 import type { VendorOrganisationView } from '@shared/people';
-import type { BidsAnswer, InvitationInput, TabulatedBid, TenderInput, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
+import { TENDER_PAGE_SIZE, type BidsAnswer, type InvitationInput, type TabulatedBid, type TenderInput, type TenderPage, type TenderSort, type TenderStatus, type TenderView } from '@shared/tenders';
 import { Observable } from 'rxjs';
 import { API_BASE_URL } from '../core/http/api-base-url';
 import { transferProgress, type Transfer } from '../ui/transfer';
@@ -14,12 +14,17 @@ export class TenderApi {
   private readonly http = inject(HttpClient);
   private readonly base = inject(API_BASE_URL);
 
-  list(filter: { status?: TenderStatus | null; q?: string }): Observable<TenderSummary[]> {
+  /** One page of the list; parameters at their defaults are left out of the address. */
+  list(filter: { status?: TenderStatus | null; q?: string; page?: number; size?: number; sort?: TenderSort; dir?: 'asc' | 'desc' }): Observable<TenderPage> {
     let params = new HttpParams();
     if (filter.status) params = params.set('status', filter.status);
     const q = filter.q?.trim();
     if (q) params = params.set('q', q);
-    return this.http.get<TenderSummary[]>(`${this.base}/tenders`, { params });
+    if (filter.page && filter.page > 1) params = params.set('page', filter.page);
+    if (filter.size && filter.size !== TENDER_PAGE_SIZE) params = params.set('size', filter.size);
+    if (filter.sort && filter.sort !== 'closesAt') params = params.set('sort', filter.sort);
+    if (filter.dir) params = params.set('dir', filter.dir);
+    return this.http.get<TenderPage>(`${this.base}/tenders`, { params });
   }
 
   get(id: string): Observable<TenderView> {

@@ -3,11 +3,13 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { HarnessLoader } from '@angular/cdk/testing';
 import { TestbedHarnessEnvironment } from '@angular/cdk/testing/testbed';
 import { MatChipListboxHarness } from '@angular/material/chips/testing';
+import { MatPaginatorHarness } from '@angular/material/paginator/testing';
+import { MatSortHarness } from '@angular/material/sort/testing';
 import { MatTableHarness } from '@angular/material/table/testing';
 import { Router, provideRouter, withComponentInputBinding } from '@angular/router';
 import { RouterTestingHarness } from '@angular/router/testing';
 import type { SessionUser } from '@shared/roles';
-import type { TenderSummary } from '@shared/tenders';
+import type { TenderPage, TenderSummary } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
 import { provideApi } from '../../core/http/provide-api';
 import { TenderList } from './tender-list';
@@ -33,6 +35,11 @@ const closed = summary({
   closesAt: new Date(Date.now() - 2 * DAY).toISOString(), regionCount: 12, totalForecast: 52400,
 });
 
+/** One page as the server answers it: `total` tenders match in all. */
+function pageOf(items: TenderSummary[], total = items.length, page = 1, size = 25): TenderPage {
+  return { items, total, page, size };
+}
+
 function signInAs(role: SessionUser['role']): void {
   const user: SessionUser = { id: 'u1', email: 'someone@example.test', name: 'Ada Fenn', role, vendorOrganisation: null };
   // The Auth service keeps the person in a signal; restore() would ask the server, so set it directly.
@@ -44,7 +51,8 @@ describe('TenderList', () => {
   let loader: HarnessLoader;
   let fixture: ComponentFixture<TenderList>;
 
-  async function start(role: SessionUser['role'], tenders: TenderSummary[], url = '/tenders', request = '/api/tenders'): Promise<void> {
+  async function start(role: SessionUser['role'], tenders: TenderSummary[] | TenderPage, url = '/tenders', request = '/api/tenders'): Promise<void> {
+    const answer = Array.isArray(tenders) ? pageOf(tenders) : tenders;
     TestBed.configureTestingModule({
       providers: [provideApi(), provideHttpClientTesting(), provideRouter([{ path: 'tenders', component: TenderList }], withComponentInputBinding())],
     });
@@ -53,7 +61,7 @@ describe('TenderList', () => {
     const harness = await RouterTestingHarness.create();
     const navigated = harness.navigateByUrl(url);
     // A request in flight keeps the app unstable, so it is answered before waiting.
-    for (let i = 0; i < 100 && !http.match({ method: 'GET', url: request }).some((r) => (r.flush(tenders), true)); i++) {
+    for (let i = 0; i < 100 && !http.match({ method: 'GET', url: request }).some((r) => (r.flush(answer), true)); i++) {
       await new Promise((resolve) => setTimeout(resolve, 5));
     }
     await navigated;
@@ -69,8 +77,18 @@ describe('TenderList', () => {
     return Promise.all((await table.getRows()).map((row) => row.getCellTextByColumnName()));
   }
 
-  it('lists tenders, latest closing first, with the time left and the total forecast', async () => {
-    await start('buyer', [closed, open]);
+  /** Answers the one request to `url` while `action` (a harness call, which waits for it) runs. */
+  async function answering<T>(action: Promise<T>, url: string, page: TenderPage): Promise<T> {
+    for (let i = 0; i < 100 && !http.match({ method: 'GET', url }).some((r) => (r.flush(page), true)); i++) {
+      await new Promise((resolve) => setTimeout(resolve, 5));
+    }
+    const done = await action;
+    await fixture.whenStable();
+    return done;
+  }
+
+  it('lists the page in the order the server gave, with the time left and the total forecast', async () => {
+    await start('buyer', [open, closed]);
     const shown = await rows();
     expect(shown.map((r) => r['reference'])).toEqual(['WCX-2027-001', 'WCX-2026-009']);
     expect(shown[0]['closesAt']).toMatch(/closes in 13 days 4 h$/);
@@ -85,7 +103,7 @@ describe('TenderList', () => {
     const chips = await loader.getHarness(MatChipListboxHarness);
     // The harness waits for stability, which the new request holds up: answer it meanwhile.
     const selected = chips.selectChips({ text: 'Closed' });
-    for (let i = 0; i < 100 && !http.match({ url: '/api/tenders?status=closed' }).some((r) => (r.flush([closed]), true)); i++) {
+    for (let i = 0; i < 100 && !http.match({ url: '/api/tenders?status=closed' }).some((r) => (r.flush(pageOf([closed])), true)); i++) {
       await new Promise((resolve) => setTimeout(resolve, 5));
     }
     await selected;
@@ -108,5 +126,32 @@ describe('TenderList', () => {
     const chips = await (await loader.getHarness(MatChipListboxHarness)).getChips();
     expect(await Promise.all(chips.map((c) => c.getText()))).not.toContain('Draft');
     expect(fixture.nativeElement.querySelector('h1').textContent).toBe('My tenders');
+  });
+
+  it('asks the server for the next page and keeps the page in the address', async () => {
+    await start('buyer', pageOf([open], 26));
+    expect((fixture.nativeElement as HTMLElement).querySelector('.count')!.textContent.trim()).toBe('26 tenders');
+    const paginator = await loader.getHarness(MatPaginatorHarness);
+    expect(await paginator.getRangeLabel()).toBe('1 – 25 of 26');
+    await answering(paginator.goToNextPage(), '/api/tenders?page=2', pageOf([closed], 26, 2));
+    expect((await rows()).map((r) => r['reference'])).toEqual(['WCX-2026-009']);
+    expect(TestBed.inject(Router).url).toBe('/tenders?page=2');
+  });
+
+  it('opens on the page, page size and order named in the address', async () => {
+    await start('buyer', pageOf([closed], 60, 3, 10), '/tenders?page=3&size=10&sort=reference&dir=desc', '/api/tenders?page=3&size=10&sort=reference&dir=desc');
+    const paginator = await loader.getHarness(MatPaginatorHarness);
+    expect(await paginator.getRangeLabel()).toBe('21 – 30 of 60');
+    expect(await paginator.getPageSize()).toBe(10);
+    const active = await (await loader.getHarness(MatSortHarness)).getActiveHeader();
+    expect([await active!.getLabel(), await active!.getSortDirection()]).toEqual(['Reference', 'desc']);
+  });
+
+  it('orders by a column on the server, from the first page', async () => {
+    await start('buyer', pageOf([open], 40), '/tenders?page=2', '/api/tenders?page=2');
+    const [reference] = await (await loader.getHarness(MatSortHarness)).getSortHeaders({ label: 'Reference' });
+    await answering(reference.click(), '/api/tenders?sort=reference', pageOf([closed, open], 40));
+    expect((await rows()).map((r) => r['reference'])).toEqual(['WCX-2026-009', 'WCX-2027-001']);
+    expect(TestBed.inject(Router).url).toBe('/tenders?sort=reference');
   });
 });
