@@ -88,3 +88,8 @@ const EXPLAIN_EXPIRE_SECONDS = 6 * 3600;
 export async function queueExplanation(boss: PgBoss, runId: string): Promise<void> {
   await boss.send(QUEUES.solve, { runId, explain: true }, { retryLimit: 2, retryDelay: 5, expireInSeconds: EXPLAIN_EXPIRE_SECONDS });
 }
+
+/** Queues one vendor's debrief of a run on the solve queue (server/jobs/explain-job.ts `debriefRun`). */
+export async function queueDebrief(boss: PgBoss, runId: string, vendorId: string): Promise<void> {
+  await boss.send(QUEUES.solve, { runId, debriefVendor: vendorId }, { retryLimit: 2, retryDelay: 5, expireInSeconds: EXPLAIN_EXPIRE_SECONDS });
+}
