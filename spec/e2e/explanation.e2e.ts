@@ -54,7 +54,7 @@ test('the buyer asks why, sees progress, then each depot with the cheapest bid n
   // debrief price for E1 (7 − 250 / 100 = 4.50 for all of it).
   const saltmere = page.getByRole('region', { name: /no award/ });
   await saltmere.getByRole('button', { name: 'Work out what it would have needed' }).click();
-  await saltmere.getByText(/A cut of [\d.]+ % to all its prices, fixed fee included, would have won it an award\./).waitFor();
+  await saltmere.getByText(/A cut of [\d.]+ % to all its prices, fixed fee included, would have won it an award\./).waitFor({ timeout: 150_000 });
   await saltmere.scrollIntoViewIfNeeded();
   await animationsDone(page);
   await screenshot(page, 'run-explanation-debrief-1280');
