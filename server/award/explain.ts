@@ -205,9 +205,10 @@ function explainContext(input: unknown, run: AwardResult, options: ExplainOption
 
   /**
    * Vendor i made to supply all of region j: the cheapest award, or (not proven in `limitSeconds`)
-   * the best found with its proven bound. `limitSeconds` 0: no MIP, only the incumbent and the LP bound.
+   * the best found with its proven bound. `limitSeconds` null: no MIP, only the incumbent and the
+   * LP bound; 0 (the budget spent): a MIP only when there is no incumbent, for MIN_SLICE_SECONDS.
    */
-  async function forcedSolve(vendor: string, region: string, limitSeconds: number): Promise<AwardResult> {
+  async function forcedSolve(vendor: string, region: string, limitSeconds: number | null): Promise<AwardResult> {
     options.signal?.throwIfAborted();
     const started = performance.now();
     const seconds = () => Math.round((performance.now() - started) / 10) / 100;
@@ -229,7 +230,10 @@ function explainContext(input: unknown, run: AwardResult, options: ExplainOption
     const incumbent = repaired(forcedModel, i, j);
     const upper = incumbent ? costOf(model, incumbent) : Infinity;
     if (incumbent && upper - lower <= tol(upper)) return asResult(incumbent, 'optimal', lower, seconds()) ?? infeasible();
-    if (limitSeconds <= 0 && incumbent) return asResult(incumbent, 'feasible', lower, seconds()) ?? infeasible();
+    if ((limitSeconds === null || limitSeconds <= 0) && incumbent) return asResult(incumbent, 'feasible', lower, seconds()) ?? infeasible();
+    if (limitSeconds === null) {
+      return emptyResult({ status: 'failed', engine: 'explanation', solveSeconds: seconds(), diagnosis: ['No forced award without a re-solve.'], bound: Number.isFinite(lower) ? lower : null });
+    }
 
     counter.solves++;
     const o = await runInWorker(HIGHS_WORKER, {
@@ -294,7 +298,7 @@ function explainContext(input: unknown, run: AwardResult, options: ExplainOption
     return 'price';
   }
 
-  async function forceOne(vendor: string, region: string, limitSeconds: number): Promise<Forced> {
+  async function forceOne(vendor: string, region: string, limitSeconds: number | null): Promise<Forced> {
     const result = await forcedSolve(vendor, region, limitSeconds);
     const reason = usable(result) ? reasonFromForced(vendor, region, result)
       : result.status === 'infeasible' ? await blockingRule(vendor, region) : 'unsettled';
@@ -351,7 +355,7 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
   // each with its share of the time left (wall time, `concurrency` at once).
   const open: typeof todo = [];
   await pool(todo, concurrency, async (c) => {
-    const f = await x.forceOne(c.vendor, c.region, 0);
+    const f = await x.forceOne(c.vendor, c.region, null);
     if (f.result.status === 'feasible' || (f.result.status === 'failed' && f.reason === 'unsettled')) open.push(c);
     else { forced.set(c.region, f); options.onProgress?.(++done, todo.length); }
   });
