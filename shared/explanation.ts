@@ -91,6 +91,14 @@ export const vendorDebriefSchema = z.object({
   }).nullable(),
 });
 
+/** A vendor whose debrief can be asked for (POST /api/runs/:id/debrief/:vendorId). */
+export const debriefVendorSchema = z.object({
+  vendor: z.string(),
+  vendorName: z.string(),
+  /** It won something (its debrief covers the regions it bid and did not win). */
+  awarded: z.boolean(),
+});
+
 export const explanationResultSchema = z.object({
   currency: z.string(),
   unit: z.string(),
@@ -98,10 +106,27 @@ export const explanationResultSchema = z.object({
   /** The run is the proven best award (else extra costs are stated against its own total, with bounds). */
   runProven: z.boolean(),
   regions: z.array(regionExplanationSchema),
-  debrief: z.array(vendorDebriefSchema),
+  /** The vendors with a debrief to ask for, one at a time (computed on demand, not here). */
+  debriefVendors: z.array(debriefVendorSchema),
   /** How many re-solves the figures took, and how long in all. */
   solves: z.number(),
   seconds: z.number(),
+  /** The time the re-solves were allowed (a multiple of the run's solve time). */
+  budgetSeconds: z.number(),
+  /** Regions whose extra cost is a range (its re-solve not proven within its share of the time). */
+  ranges: z.number(),
+});
+
+export const DEBRIEF_STATUSES = ['queued', 'running', 'done', 'failed'] as const;
+
+/** One vendor's debrief as asked for: where its job is, and its figures once done. */
+export const debriefViewSchema = z.object({
+  vendor: z.string(),
+  status: z.enum(DEBRIEF_STATUSES),
+  progress: z.object({ done: z.number(), total: z.number() }),
+  result: vendorDebriefSchema.nullable(),
+  error: z.string().nullable(),
+  computedAt: z.string().nullable(),
 });
 
 /** GET /api/runs/:id/explanation */
@@ -114,12 +139,16 @@ export const explanationViewSchema = z.object({
   /** When it was first asked for, and when its figures were stored. */
   queuedAt: z.string().nullable(),
   computedAt: z.string().nullable(),
+  /** The debriefs asked for so far (per vendor, cached per run). */
+  debriefs: z.array(debriefViewSchema),
 });
 
 export type RegionChallenger = z.infer<typeof regionChallengerSchema>;
 export type RegionExplanation = z.infer<typeof regionExplanationSchema>;
 export type DebriefRegion = z.infer<typeof debriefRegionSchema>;
 export type VendorDebrief = z.infer<typeof vendorDebriefSchema>;
+export type DebriefVendor = z.infer<typeof debriefVendorSchema>;
+export type DebriefView = z.infer<typeof debriefViewSchema>;
 export type ExplanationResult = z.infer<typeof explanationResultSchema>;
 export type ExplanationView = z.infer<typeof explanationViewSchema>;
 

@@ -204,10 +204,19 @@ async function main(): Promise<void> {
   if (EXPLAIN_MINUTES > 0) await explanationRow(url, buyer, results[0].runs, deadline);
 }
 
+/** Regions whose extra cost is exact, and those given as a range (re-solve not proven in its share of the budget). */
+function exactAndRanges(view: ExplanationView): string {
+  if (!view.result) return '-';
+  const challenged = view.result.regions.filter((r) => r.challenger && r.challenger.extraCost !== null);
+  return `${challenged.filter((r) => r.challenger!.exact).length} / ${view.result.ranges}`;
+}
+
 /**
  * The explanation of the 'Sole' run (30 × 200, every region sole-awarded) on one worker, asked for
  * through the API and followed as the run screen does; prints the run's own solve seconds, the
- * explanation's seconds and their ratio (target: at most 10). An explanation still running after
+ * explanation's seconds (asked → done, as the screen sees it, and the job's own) and their ratio to
+ * the run's solve time (target: at most 10), the budget the job was given, and how many regions'
+ * extra costs are exact or a range. An explanation still running after
  * `--explain-minutes` is reported with its progress and the time it would take at that pace.
  */
 async function explanationRow(url: string, buyer: Session, runs: RunView[], deadline: number): Promise<void> {
@@ -230,8 +239,9 @@ async function explanationRow(url: string, buyer: Session, runs: RunView[], dead
   const finished = view.status === 'done';
   const pace = view.progress.done > 0 ? (seconds * view.progress.total) / view.progress.done : NaN;
   process.stdout.write(`\nExplanation of the 'Sole' run (30 x 200, each region to one vendor), one worker:\n${table(
-    ['run solve s', 'explanation s', 'ratio (target <= 10)', 'status', 're-solves', 'progress', 'projected s at this pace'],
-    [[fmt(solveSeconds), fmt(seconds), fmt(seconds / solveSeconds), view.status, String(view.result?.solves ?? '-'),
+    ['run solve s', 'explanation s', 'ratio (target <= 10)', 'job s', 'job ratio', 'budget s', 'status', 're-solves', 'regions exact / range', 'progress', 'projected s at this pace'],
+    [[fmt(solveSeconds), fmt(seconds), fmt(seconds / solveSeconds), fmt(view.result?.seconds ?? null), fmt(view.result ? view.result.seconds / solveSeconds : null),
+      fmt(view.result?.budgetSeconds ?? null), view.status, String(view.result?.solves ?? '-'), exactAndRanges(view),
       `${view.progress.done}/${view.progress.total}`, finished ? fmt(seconds) : fmt(pace, 0)]],
   )}\n`);
 }

@@ -18,6 +18,7 @@ import { Recommendation } from './recommendation.entity';
 import { Region } from './region.entity';
 import { Run } from './run.entity';
 import { RunAward } from './run-award.entity';
+import { RunDebrief } from './run-debrief.entity';
 import { RunExplanation } from './run-explanation.entity';
 import { Scenario } from './scenario.entity';
 import { SeenMark } from './seen-mark.entity';
@@ -27,8 +28,8 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
-  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, Contract, ContractLine,
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, RunDebrief, Contract, ContractLine,
   NotificationSent, NotificationSetting, SeenMark];
 export {
-  AccountToken, Amendment, Contract, NotificationSent, NotificationSetting, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunExplanation, Scenario, SeenMark, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, Amendment, Contract, NotificationSent, NotificationSetting, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunDebrief, RunExplanation, Scenario, SeenMark, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

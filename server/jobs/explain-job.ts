@@ -1,11 +1,26 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
-import { explainAward, solveAward } from '../award';
+import { debriefVendor, explainAward, solveAward } from '../award';
 import { Run } from '../entities';
 import { logger } from '../logger';
 import { audit } from '../services/audit.service';
 
 /** Progress is written at most this often (the run screen polls each second). */
 const PROGRESS_EVERY_MS = 500;
+
+/** Progress of a job row, written at most every PROGRESS_EVERY_MS (and at the start and the end). */
+function progressWriter(orm: MikroORM, table: 'run_explanation' | 'run_debrief', where: string, params: unknown[]) {
+  let written = 0;
+  let pending: Promise<unknown> = Promise.resolve();
+  const onProgress = (done: number, total: number) => {
+    const now = Date.now();
+    if (done !== 0 && done !== total && now - written < PROGRESS_EVERY_MS) return;
+    written = now;
+    pending = pending.then(() => orm.em.fork().getConnection().execute(
+      `update ${table} set progress_done = ?, progress_total = ?, updated_at = now() where ${where} and status = 'running'`, [done, total, ...params],
+    )).catch((err: unknown) => logger.warn({ err, table, params }, 'could not store progress'));
+  };
+  return { onProgress, flushed: () => pending };
+}
 
 /**
  * Computes the explanation of one run (server/award/explain.ts) and stores it. Safe to run again:
@@ -19,22 +34,13 @@ export async function explainRun(orm: MikroORM, runId: string): Promise<void> {
   );
   if (!claimed.length) return;
   const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
-  let written = 0;
-  let pending: Promise<unknown> = Promise.resolve();
-  const onProgress = (done: number, total: number) => {
-    const now = Date.now();
-    if (done !== 0 && done !== total && now - written < PROGRESS_EVERY_MS) return;
-    written = now;
-    pending = pending.then(() => orm.em.fork().getConnection().execute(
-      `update run_explanation set progress_done = ?, progress_total = ?, updated_at = now() where run_id = ? and status = 'running'`, [done, total, runId],
-    )).catch((err: unknown) => logger.warn({ err, runId }, 'could not store explanation progress'));
-  };
+  const { onProgress, flushed } = progressWriter(orm, 'run_explanation', 'run_id = ?', [runId]);
   try {
     const result = await explainAward(run.problem, run.result!, {
       solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
       onProgress,
     });
-    await pending;
+    await flushed();
     await em.transactional(async (tx) => {
       const done = await tx.execute<{ id: string }[]>(
         `update run_explanation set status = 'done', result = ?::jsonb, error = null, computed_at = now(), progress_done = progress_total, updated_at = now()
@@ -45,9 +51,47 @@ export async function explainRun(orm: MikroORM, runId: string): Promise<void> {
     });
     logger.info({ runId, solves: result.solves, seconds: result.seconds }, 'run explained');
   } catch (err) {
-    await pending;
+    await flushed();
     logger.error({ err, runId }, 'explanation failed');
     await em.execute(`update run_explanation set status = 'failed', error = ?, updated_at = now() where run_id = ? and status = 'running'`,
       ['The explanation could not be computed; the error is in the server log. Ask for it again.', runId]);
+  }
+}
+
+/**
+ * Computes one vendor's debrief of a run (`debriefVendor`, each forced re-solve with the run's time
+ * limit) and stores it in `run_debrief`; claimed and retried as the explanation is.
+ */
+export async function debriefRun(orm: MikroORM, runId: string, vendorId: string): Promise<void> {
+  const em = orm.em.fork();
+  const claimed = await em.execute<{ id: string }[]>(
+    `update run_debrief set status = 'running', started_at = now(), attempts = attempts + 1, updated_at = now()
+       where run_id = ? and vendor_id = ? and status in ('queued', 'running') returning id`, [runId, vendorId],
+  );
+  if (!claimed.length) return;
+  const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
+  const { onProgress, flushed } = progressWriter(orm, 'run_debrief', 'run_id = ? and vendor_id = ?', [runId, vendorId]);
+  try {
+    const found = await debriefVendor(run.problem, run.result!, vendorId, {
+      solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
+      budgetSeconds: run.timeLimitSeconds,
+      onProgress,
+    });
+    await flushed();
+    // Nothing to debrief (it won every region it bid): an empty debrief says so.
+    const result = found ?? { vendor: vendorId, vendorName: vendorId, awarded: true, regions: [], uniformReduction: null };
+    await em.transactional(async (tx) => {
+      const done = await tx.execute<{ id: string }[]>(
+        `update run_debrief set status = 'done', result = ?::jsonb, error = null, computed_at = now(), progress_done = progress_total, updated_at = now()
+           where run_id = ? and vendor_id = ? and status = 'running' returning id`, [JSON.stringify(result), runId, vendorId],
+      );
+      if (!done.length) return;
+      await audit(tx, { tenderId: run.tender.id, actor: null, action: 'run.debriefed', subject: `run ${runId}`, detail: { vendorOrganisation: vendorId } });
+    });
+  } catch (err) {
+    await flushed();
+    logger.error({ err, runId, vendorId }, 'debrief failed');
+    await em.execute(`update run_debrief set status = 'failed', error = ?, updated_at = now() where run_id = ? and vendor_id = ? and status = 'running'`,
+      ['The debrief could not be computed; the error is in the server log. Ask for it again.', runId, vendorId]);
   }
 }

@@ -102,3 +102,8 @@ export async function startReminderWorker(boss: PgBoss, pass: () => Promise<void
   });
   await boss.schedule(QUEUES.reminders, '* * * * *', {});
 }
+
+/** Queues one vendor's debrief of a run on the solve queue (server/jobs/explain-job.ts `debriefRun`). */
+export async function queueDebrief(boss: PgBoss, runId: string, vendorId: string): Promise<void> {
+  await boss.send(QUEUES.solve, { runId, debriefVendor: vendorId }, { retryLimit: 2, retryDelay: 5, expireInSeconds: EXPLAIN_EXPIRE_SECONDS });
+}

@@ -1,13 +1,13 @@
 import { z } from 'zod';
 import { compareQuerySchema, decisionInputSchema, recommendationInputSchema, returnInputSchema, scenarioInputSchema, sensitivityInputSchema } from '@shared/evaluation';
-import { explanationViewSchema } from '@shared/explanation';
+import { debriefViewSchema, explanationViewSchema } from '@shared/explanation';
 import { tenderIdParamSchema } from '@shared/tenders';
 import type { AppDeps } from '../context';
 import { route, type AnyRoute } from '../http/route';
 import { auditCsv, auditTrail, verifyTrail } from '../services/audit.service';
 import { markSeen } from '../services/worklist.service';
 import { currentRecommendation, decide, recommend } from '../services/evaluation/recommendation.service';
-import { explanationOf, startExplanation } from '../services/evaluation/explanation.service';
+import { explanationOf, startDebrief, startExplanation } from '../services/evaluation/explanation.service';
 import { compareRuns, findRun, resilienceOf, runView, startResilience } from '../services/evaluation/results.service';
 import { findVisibleTender } from '../services/tender-access';
 import { sensitivityOf, startSensitivity } from '../services/evaluation/sensitivity.service';
@@ -16,6 +16,7 @@ import { buildAwardWorkbook } from '../workbooks/award-workbook';
 import { CSV, exportName, sendDownload, XLSX } from '../http/download';
 
 const id = z.object({ id: z.uuid({ error: 'Must be a valid id.' }) });
+const runVendor = id.extend({ vendorId: z.uuid({ error: 'Must be a valid vendor id.' }) });
 const EVALUATORS = ['buyer', 'compliance'] as const;
 
 export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
@@ -91,7 +92,7 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'post', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, status: 202, response: explanationViewSchema,
-      summary: "Explain the run's award, region by region, and debrief the vendors who lost (re-solves on the solve queue; poll GET). Idempotent: one per run; a failed one is queued again.",
+      summary: "Explain the run's award, region by region: one forced re-solve per region, within 8 × the run's solve time (on the solve queue; poll GET). Idempotent: one per run; a failed one is queued again. Debriefs are asked for per vendor (POST /runs/{id}/debrief/{vendorId}).",
       responses: { 200: 'The explanation already exists (queued, running or done): nothing queued', 202: 'Queued', 409: 'The run has no award' },
       handler: async ({ em, user, params, res }) => {
         const { view, queued } = await startExplanation(ctx(em), user, params.id);
@@ -100,8 +101,17 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'get', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, response: explanationViewSchema,
-      summary: 'Why each region went where it did (the cheapest bid not awarded there, the reason and the extra cost of forcing it), and each losing vendor\'s debrief: the unit price per region and the uniform cut it would have needed. Buyer and compliance only.',
+      summary: 'Why each region went where it did (the cheapest bid not awarded there, the reason and the extra cost of forcing it, exact or as a range), and the debriefs asked for so far (`debriefs`): the unit price per region and the uniform cut each vendor would have needed. Buyer and compliance only.',
       handler: ({ em, user, params }) => explanationOf(em, user, params.id),
+    }),
+    route({
+      method: 'post', path: '/runs/:id/debrief/:vendorId', tag: 'Evaluation', access: EVALUATORS, params: runVendor, status: 202, response: debriefViewSchema,
+      summary: "Work out one vendor's debrief of the run: the unit price at which it would have been awarded each region it bid and did not win, and (no award) the uniform cut of all its prices that would have won it one (re-solves on the solve queue; the result appears in GET /runs/{id}/explanation `debriefs`). Cached per run and vendor; a failed one is queued again. Never for vendors.",
+      responses: { 200: 'This debrief already exists (queued, running or done): nothing queued', 202: 'Queued', 404: 'No such run, or the vendor has no compliant bid in it', 409: 'The run has no award' },
+      handler: async ({ em, user, params, res }) => {
+        const { view, queued } = await startDebrief(ctx(em), user, params.id, params.vendorId);
+        res.status(queued ? 202 : 200).json(view);
+      },
     }),
     route({
       method: 'post', path: '/runs/:id/sensitivity', tag: 'Evaluation', access: EVALUATORS, params: id, body: sensitivityInputSchema, status: 202,

@@ -132,8 +132,10 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
     const what = change === null ? '' : ` at ${change > 0 ? '+' : change < 0 ? '−' : ''}${Math.abs(change)} %${region ? ` for region ${region}` : ''}`;
     return `Forecast check${scenarioOf(e, n)}${what} started`;
   },
-  'run.explanation-queued': (e, n) => `Explanation and debrief of the award${scenarioOf(e, n)} requested`,
-  'run.explained': (e, n) => `Explanation and debrief of the award${scenarioOf(e, n)} worked out`,
+  'run.explanation-queued': (e, n) => `Explanation of the award${scenarioOf(e, n)} requested`,
+  'run.explained': (e, n) => `Explanation of the award${scenarioOf(e, n)} worked out`,
+  'run.debrief-queued': (e, n) => `Debrief of ${organisation(e.detail['vendorOrganisation'], n)} on the award${scenarioOf(e, n)} requested`,
+  'run.debriefed': (e, n) => `Debrief of ${organisation(e.detail['vendorOrganisation'], n)} on the award${scenarioOf(e, n)} worked out`,
   'run.finished': (e, n) => `Award calculation${scenarioOf(e, n)} finished`,
   'run.cancelled': (e, n) => `Award calculation${scenarioOf(e, n)} cancelled`,
   'recommendation.made': (e) => withReason('Award recommended for approval', { ...e, detail: { reason: e.detail['justification'] } }),

@@ -1,7 +1,7 @@
-import type { AwardProblem } from '../../shared/award';
-import type { ExplanationResult } from '../../shared/explanation';
+import type { AwardProblem, AwardResult } from '../../shared/award';
+import type { ExplanationResult, VendorDebrief } from '../../shared/explanation';
 import loadHighs from 'highs';
-import { closeSolverPool, explainAward, solveAward } from '../../server/award/index';
+import { closeSolverPool, debriefVendor, explainAward, solveAward } from '../../server/award/index';
 import { prng } from './support/problems';
 import { referenceLp } from './support/reference-lp';
 
@@ -14,14 +14,25 @@ import { referenceLp } from './support/reference-lp';
 jest.setTimeout(180_000);
 afterAll(() => closeSolverPool());
 
-const explain = async (p: AwardProblem): Promise<ExplanationResult> => {
+type Explained = ExplanationResult & { debrief: VendorDebrief[] };
+/** The explanation, and the debrief of every vendor it offers one for (asked for one by one, as the screen does). */
+const explainRun = async (p: AwardProblem, run: AwardResult): Promise<Explained> => {
+  const e = await explainAward(p, run, { solve: (q) => solveAward(q) });
+  const debrief: VendorDebrief[] = [];
+  for (const v of e.debriefVendors) {
+    const d = await debriefVendor(p, run, v.vendor, { solve: (q) => solveAward(q) });
+    if (d) debrief.push(d);
+  }
+  return { ...e, debrief };
+};
+const explain = async (p: AwardProblem): Promise<Explained> => {
   const run = await solveAward(p);
   expect(run.status).toBe('optimal');
-  return explainAward(p, run, { solve: (q) => solveAward(q) });
+  return explainRun(p, run);
 };
 const sole = (demands: Record<string, number>) => Object.entries(demands).map(([id, demand]) => ({ id, name: id, demand }));
-const challenger = (e: ExplanationResult, region: string) => e.regions.find((r) => r.region === region)!.challenger;
-const debrief = (e: ExplanationResult, vendor: string) => e.debrief.find((d) => d.vendor === vendor)!;
+const challenger = (e: Explained, region: string) => e.regions.find((r) => r.region === region)!.challenger;
+const debrief = (e: Explained, vendor: string) => e.debrief.find((d) => d.vendor === vendor)!;
 
 describe('hand-worked examples (sole award, forecasts North 100 t and South 100 t unless said)', () => {
   test('B is not awarded North: its fee 500 is not recovered (forced 500 + 700 + 1,000 = 2,200 − 2,000 = 200 more); it needed 4.99 (7 − 200 / 100 = 5.00 ties) or a cut of 16.7 % (200 / 1,200 = 1/6)', async () => {
@@ -151,7 +162,7 @@ describe('random small tenders: every figure recomputed by HiGHS on the independ
       return;
     }
     const run = await solveAward(p);
-    const e = await explainAward(p, run, { solve: (q) => solveAward(q) });
+    const e = await explainRun(p, run);
     expect(e.objective).toBeCloseTo(runOpt, 6);
     const excluded = new Set(p.rules?.exclude ?? []);
     const supplies = (vendor: string, region: string) => run.awards.some((a) => a.vendor === vendor && a.lines.some((l) => l.region === region && l.quantity > 0));

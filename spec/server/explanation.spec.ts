@@ -1,5 +1,6 @@
-import type { ExplanationView } from '@shared/explanation';
-import { AuditEntry, RunExplanation, VendorOrganisation, type User } from '../../server/entities';
+import { randomUUID } from 'node:crypto';
+import type { DebriefView, ExplanationView } from '@shared/explanation';
+import { AuditEntry, RunDebrief, RunExplanation, VendorOrganisation, type User } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
@@ -52,7 +53,7 @@ afterAll(() => t.close());
 test('before anyone asks, the explanation is not started and no row exists', async () => {
   const res = await compliance.get(`/api/runs/${runId}/explanation`);
   expect(res.status).toBe(200);
-  expect(res.body).toEqual({ runId, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null });
+  expect(res.body).toEqual({ runId, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, debriefs: [] });
 });
 
 describe('asked for once, computed on the solve queue', () => {
@@ -88,11 +89,9 @@ describe('asked for once, computed on the solve queue', () => {
     expect(done.result!.regions.find((r) => r.region === 'R02')!.challenger).toBeNull();
   });
 
-  test("B's debrief: R01 at 4.99 or less (7 − 2,000 / 1,000 = 5.00, a tie), and a uniform cut of 16.7 % (1/6 rounded up)", () => {
-    const b = done.result!.debrief.find((d) => d.vendor === userB.vendorOrganisation!.id)!;
-    expect(b.awarded).toBe(false);
-    expect(b.regions.map((r) => [r.region, r.neededPrice, r.tolerance])).toEqual([['R01', 4.99, 'cent']]);
-    expect(b.uniformReduction).toEqual({ fraction: 0.167, tolerance: 'percent', words: 'A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.' });
+  test('the explanation offers a debrief for B (no award) and none for A (it won every region it bid)', () => {
+    expect(done.result!.debriefVendors).toEqual([{ vendor: userB.vendorOrganisation!.id, vendorName: 'Birchfield Minerals', awarded: false }]);
+    expect(done.debriefs).toEqual([]);
   });
 
   test('the finished explanation is in the audit trail with the number of re-solves', async () => {
@@ -102,10 +101,50 @@ describe('asked for once, computed on the solve queue', () => {
   });
 });
 
+describe("B's debrief, asked for on its own, computed on the solve queue and cached", () => {
+  let first: { status: number; body: DebriefView };
+  let second: { status: number; body: DebriefView };
+  let view: ExplanationView;
+  beforeAll(async () => {
+    const b = userB.vendorOrganisation!.id;
+    first = await buyer.post(`/api/runs/${runId}/debrief/${b}`);
+    second = await compliance.post(`/api/runs/${runId}/debrief/${b}`);
+    await drainQueue(t, QUEUES.solve, 150_000);
+    view = (await compliance.get(`/api/runs/${runId}/explanation`)).body as ExplanationView;
+  });
+
+  test('the first request queues it (202), the second answers the same one (200); one row, one audit entry', async () => {
+    expect([first.status, first.body.status, first.body.vendor]).toEqual([202, 'queued', userB.vendorOrganisation!.id]);
+    expect(second.status).toBe(200);
+    expect(await t.em().fork().count(RunDebrief, { run: runId })).toBe(1);
+    expect(await t.em().fork().count(AuditEntry, { tender: tenderId, action: 'run.debrief-queued' })).toBe(1);
+    expect(await t.em().fork().count(AuditEntry, { tender: tenderId, action: 'run.debriefed' })).toBe(1);
+  });
+
+  test("B: R01 at 4.99 or less (7 − 2,000 / 1,000 = 5.00, a tie), and a uniform cut of 16.7 % (1/6 rounded up)", () => {
+    expect(view.debriefs).toHaveLength(1);
+    const d = view.debriefs[0];
+    expect([d.status, d.progress.done, d.progress.total]).toEqual(['done', 2, 2]);
+    const b = d.result!;
+    expect(b.awarded).toBe(false);
+    expect(b.regions.map((r) => [r.region, r.neededPrice, r.tolerance])).toEqual([['R01', 4.99, 'cent']]);
+    expect(b.uniformReduction).toEqual({ fraction: 0.167, tolerance: 'percent', words: 'A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.' });
+  });
+
+  test('a vendor without a bid in the run gets no debrief: 404, nothing stored', async () => {
+    const res = await buyer.post(`/api/runs/${runId}/debrief/${randomUUID()}`);
+    expect([res.status, res.headers['content-type']]).toEqual([404, 'application/problem+json; charset=utf-8']);
+    expect(await t.em().fork().count(RunDebrief, { run: runId })).toBe(1);
+  });
+});
+
 test('a vendor never gets the explanation or the debrief (403), even its own', async () => {
   const res = await vendorB.get(`/api/runs/${runId}/explanation`);
   expect(res.status).toBe(403);
   expect(JSON.stringify(res.body)).not.toContain('4.99');
+  const asked = await vendorB.post(`/api/runs/${runId}/debrief/${userB.vendorOrganisation!.id}`);
+  expect(asked.status).toBe(403);
+  expect(JSON.stringify(asked.body)).not.toContain('4.99');
 });
 
 test('a run without an award cannot be explained: 409, nothing stored', async () => {

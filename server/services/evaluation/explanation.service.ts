@@ -1,11 +1,11 @@
 import { randomUUID } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { AwardResult } from '@shared/award';
-import type { ExplanationView } from '@shared/explanation';
+import type { DebriefView, ExplanationView } from '@shared/explanation';
 import { SEALED_TENDER_STATUSES, TENDER_STATUSES } from '@shared/tenders';
-import { RunExplanation, type User } from '../../entities';
-import { ConflictError } from '../../http/errors';
-import { queueExplanation } from '../../jobs/queue';
+import { RunDebrief, RunExplanation, type User } from '../../entities';
+import { ConflictError, NotFoundError } from '../../http/errors';
+import { queueDebrief, queueExplanation } from '../../jobs/queue';
 import { audit } from '../audit.service';
 import { lockTender } from '../tender-access';
 import { findRun } from './results.service';
@@ -44,7 +44,8 @@ export async function startExplanation(deps: EvaluationDeps, user: User, runId: 
 export async function explanationOf(em: EntityManager, user: User, runId: string): Promise<ExplanationView> {
   const run = await findRun(em, user, runId);
   const row = await em.fork().findOne(RunExplanation, { run: run.id });
-  if (!row) return { runId: run.id, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null };
+  const debriefs = await debriefsOf(em, run.id);
+  if (!row) return { runId: run.id, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, debriefs };
   return {
     runId: run.id,
     status: row.status,
@@ -53,5 +54,51 @@ export async function explanationOf(em: EntityManager, user: User, runId: string
     error: row.error ?? null,
     queuedAt: row.createdAt.toISOString(),
     computedAt: row.computedAt?.toISOString() ?? null,
+    debriefs,
   };
+}
+
+async function debriefsOf(em: EntityManager, runId: string): Promise<DebriefView[]> {
+  const rows = await em.fork().find(RunDebrief, { run: runId }, { orderBy: { createdAt: 'asc' } });
+  return rows.map((d) => ({
+    vendor: d.vendor.id,
+    status: d.status,
+    progress: { done: d.progressDone, total: d.progressTotal },
+    result: d.status === 'done' ? d.result ?? null : null,
+    error: d.error ?? null,
+    computedAt: d.computedAt?.toISOString() ?? null,
+  }));
+}
+
+/**
+ * Queues one vendor's debrief of a run (what it would have needed; on the solve queue). Cached per
+ * run and vendor: a queued, running or done one is answered as it is (`queued: false`), a failed one
+ * is queued again. The vendor must have a compliant bid in the run's problem (else 404).
+ */
+export async function startDebrief(deps: EvaluationDeps, user: User, runId: string, vendorId: string): Promise<{ view: DebriefView; queued: boolean }> {
+  const run = await findRun(deps.em, user, runId);
+  if (!usable(run.result)) throw new ConflictError('Only a run with an award can be explained.');
+  const [bid] = await deps.em.execute<{ found: boolean }[]>(
+    `select exists (select 1 from jsonb_array_elements(problem->'vendors') v
+        where v->>'id' = ? and v->'prices' <> '{}'::jsonb
+          and not coalesce(problem->'rules'->'exclude', '[]'::jsonb) @> jsonb_build_array(v->>'id')) as found
+       from run where id = ?`, [vendorId, run.id],
+  );
+  if (!bid?.found) throw new NotFoundError("The vendor's compliant bid in this run");
+  const queued = await deps.em.transactional(async (tx) => {
+    await lockTender(tx, user, run.tender.id, UNSEALED, 'The bids of this tender are sealed.');
+    const rows = await tx.execute<{ id: string }[]>(
+      `insert into run_debrief (id, run_id, vendor_id, requested_by_id, status) values (?, ?, ?, ?, 'queued')
+         on conflict (run_id, vendor_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
+         where run_debrief.status = 'failed'
+       returning id`,
+      [randomUUID(), run.id, vendorId, user.id],
+    );
+    if (!rows.length) return false;
+    await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.debrief-queued', subject: `run ${run.id}`, detail: { vendorOrganisation: vendorId } });
+    return true;
+  });
+  if (queued) await queueDebrief(deps.boss, run.id, vendorId);
+  const view = (await debriefsOf(deps.em, run.id)).find((d) => d.vendor === vendorId)!;
+  return { view, queued };
 }

@@ -13,7 +13,7 @@ import type {
   ScenarioView,
   SensitivityView,
 } from '@shared/evaluation';
-import type { ExplanationView } from '@shared/explanation';
+import type { DebriefView, ExplanationView } from '@shared/explanation';
 import type { BidsAnswer, TenderView } from '@shared/tenders';
 import { Observable, map } from 'rxjs';
 import { API_BASE_URL } from '../core/http/api-base-url';
@@ -88,7 +88,7 @@ export class AwardApi {
     return this.http.get<ResilienceView>(`${this.runUrl(runId)}/resilience`);
   }
 
-  /** Why each region went where it did, and the losing vendors' debrief (status 'not-started' until asked for). */
+  /** Why each region went where it did, and the debriefs asked for so far (status 'not-started' until asked for). */
   explanation(runId: string): Observable<ExplanationView> {
     return this.http.get<ExplanationView>(`${this.runUrl(runId)}/explanation`);
   }
@@ -96,6 +96,11 @@ export class AwardApi {
   /** Asks for the explanation (queued on the solve queue; answered with its state). */
   explain(runId: string): Observable<ExplanationView> {
     return this.http.post<ExplanationView>(`${this.runUrl(runId)}/explanation`, {});
+  }
+
+  /** Asks for one vendor's debrief of the run (queued on the solve queue; cached per run and vendor; shown in `explanation().debriefs`). */
+  debrief(runId: string, vendorId: string): Observable<DebriefView> {
+    return this.http.post<DebriefView>(`${this.runUrl(runId)}/debrief/${encodeURIComponent(vendorId)}`, {});
   }
 
   /** Queues the forecast sensitivity re-solves (all regions, or one region alone); cached per run. */

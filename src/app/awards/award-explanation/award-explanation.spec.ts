@@ -1,7 +1,7 @@
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { MATERIAL_ANIMATIONS } from '@angular/material/core';
-import type { ExplanationResult, ExplanationView } from '@shared/explanation';
+import type { DebriefView, ExplanationResult, ExplanationView, VendorDebrief } from '@shared/explanation';
 import { provideApi } from '../../core/http/provide-api';
 import { RUN_ID } from '../testing/award-fixtures';
 import { AwardExplanation, EXPLANATION_POLL_MS } from './award-explanation';
@@ -19,14 +19,20 @@ const result: ExplanationResult = {
       words: 'Brackwater Haulage bid €7.00 per t but was not awarded it: its fixed fee would not be recovered by its lower unit price; it would have cost €2,000.00 more.',
     },
   }],
-  debrief: [{
-    vendor: 'v-brack', vendorName: 'Brackwater Haulage', awarded: false,
-    regions: [{ region: 'R01', regionName: 'North depot', unitPrice: 7, neededPrice: 4.99, tolerance: 'cent', reason: 'fixedFee', words: 'It would have been awarded this region at €4.99 per t or less (its bid: €7.00, 28.7 % lower).' }],
-    uniformReduction: { fraction: 0.167, tolerance: 'percent', words: 'A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.' },
-  }],
+  debriefVendors: [{ vendor: 'v-brack', vendorName: 'Brackwater Haulage', awarded: false }],
+  budgetSeconds: 4, ranges: 0,
 };
+const brackDebrief: VendorDebrief = {
+  vendor: 'v-brack', vendorName: 'Brackwater Haulage', awarded: false,
+  regions: [{ region: 'R01', regionName: 'North depot', unitPrice: 7, neededPrice: 4.99, tolerance: 'cent', reason: 'fixedFee', words: 'It would have been awarded this region at €4.99 per t or less (its bid: €7.00, 28.7 % lower).' }],
+  uniformReduction: { fraction: 0.167, tolerance: 'percent', words: 'A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.' },
+};
+const debriefUrl = `/api/runs/${RUN_ID}/debrief/v-brack`;
+const debriefView = (over: Partial<DebriefView>): DebriefView => ({
+  vendor: 'v-brack', status: 'queued', progress: { done: 0, total: 0 }, result: null, error: null, computedAt: null, ...over,
+});
 const view = (over: Partial<ExplanationView>): ExplanationView => ({
-  runId: RUN_ID, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, ...over,
+  runId: RUN_ID, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, debriefs: [], ...over,
 });
 
 describe('AwardExplanation', () => {
@@ -64,13 +70,13 @@ describe('AwardExplanation', () => {
     http.expectNone(url);
   });
 
-  it('asks for it, shows the progress while the figures are worked out, then the region table and the debrief', async () => {
+  it('asks for it, shows the progress while the figures are worked out, then the region table, and offers the debrief', async () => {
     await answer('GET', view({}));
     [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Explain this award'))!.click();
     http.expectOne({ method: 'POST', url }).flush(view({ status: 'queued' }));
     fixture.detectChanges();
     await answer('GET', view({ status: 'running', progress: { done: 1, total: 4 } }));
-    expect(page().querySelector('[role=status]')!.textContent).toContain('1 of 4 done');
+    expect(page().querySelector('[role=status]')!.textContent).toContain('1 of 4 regions done');
     expect(page().querySelector('mat-progress-bar')!.getAttribute('aria-valuenow')).toBe('25');
 
     await answer('GET', view({ status: 'done', progress: { done: 4, total: 4 }, result }), EXPLANATION_POLL_MS);
@@ -79,11 +85,34 @@ describe('AwardExplanation', () => {
       'North depot1,000 t', 'Northfell Minerals: 1,000 t at €10.00', 'Brackwater Haulage at €7.00',
       'Brackwater Haulage bid €7.00 per t but was not awarded it: its fixed fee would not be recovered by its lower unit price; it would have cost €2,000.00 more.',
     ]]);
-    expect(page().textContent).toContain('A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.');
-    const debrief = [...page().querySelectorAll('table')[1].querySelectorAll('tbody td')].map((c) => c.textContent.trim());
-    expect(debrief.slice(0, 2)).toEqual(['€7.00', '€4.99']);
     expect(page().textContent).toContain('For the buyer and compliance only');
+    // The debrief is not worked out until asked for.
+    expect(page().querySelectorAll('table')).toHaveLength(1);
+    expect(page().textContent).not.toContain('A cut of 16.7 %');
     // Done: no further request.
+    await jest.advanceTimersByTimeAsync(EXPLANATION_POLL_MS * 5);
+    http.expectNone(url);
+  });
+
+  it("says how many regions' extra costs are ranges and the time the explanation was allowed", async () => {
+    await answer('GET', view({ status: 'done', progress: { done: 4, total: 4 }, result: { ...result, ranges: 3, budgetSeconds: 57 } }));
+    expect(page().textContent.replace(/\s+/g, ' ')).toContain('For 3 regions the extra cost is given as a range');
+    expect(page().textContent).toContain('(57 s)');
+  });
+
+  it("asks for a vendor's debrief, shows its progress, then its needed prices and uniform cut", async () => {
+    const done = view({ status: 'done', progress: { done: 4, total: 4 }, result });
+    await answer('GET', done);
+    [...page().querySelectorAll('button')].find((b) => b.textContent.includes('Work out what it would have needed'))!.click();
+    http.expectOne({ method: 'POST', url: debriefUrl }).flush(debriefView({}));
+    fixture.detectChanges();
+    expect(page().querySelector('.vendor-debrief [role=status]')!.textContent).toContain('Waiting for a free solver');
+    await answer('GET', { ...done, debriefs: [debriefView({ status: 'running', progress: { done: 1, total: 2 } })] });
+    expect(page().querySelector('.vendor-debrief [role=status]')!.textContent).toContain('1 of 2 done');
+    await answer('GET', { ...done, debriefs: [debriefView({ status: 'done', progress: { done: 2, total: 2 }, result: brackDebrief })] }, EXPLANATION_POLL_MS);
+    expect(page().textContent).toContain('A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.');
+    const cells = [...page().querySelectorAll('table')[1].querySelectorAll('tbody td')].map((c) => c.textContent.trim());
+    expect(cells.slice(0, 2)).toEqual(['€7.00', '€4.99']);
     await jest.advanceTimersByTimeAsync(EXPLANATION_POLL_MS * 5);
     http.expectNone(url);
   });

@@ -3,7 +3,7 @@ import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
-import type { ExplanationView } from '@shared/explanation';
+import type { DebriefView, ExplanationView } from '@shared/explanation';
 import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
@@ -12,12 +12,15 @@ import { fractionPercent, money, quantity } from '../../ui/number-format';
 /** How often an explanation being computed is asked for again. */
 export const EXPLANATION_POLL_MS = 1000;
 
-const busy = (v: ExplanationView | null) => v !== null && (v.status === 'queued' || v.status === 'running');
+const working = (s: string) => s === 'queued' || s === 'running';
+/** Polled while the explanation or any debrief asked for is being worked out. */
+const busy = (v: ExplanationView | null) => v !== null && (working(v.status) || v.debriefs.some((d) => working(d.status)));
 
 /**
- * "Why this award" beside the allocation matrix, and the losing vendors' debrief, of one run with
- * an award (buyer and compliance only). Asked for with a button; its progress shown while the
- * figures are re-computed on the server.
+ * "Why this award" beside the allocation matrix, and the vendors' debriefs, of one run with an
+ * award (buyer and compliance only). The explanation is asked for with a button, each vendor's
+ * debrief with its own (worked out on demand: it takes many re-solves); their progress is shown
+ * while the figures are re-computed on the server.
  */
 @Component({
   selector: 'app-award-explanation',
@@ -46,12 +49,13 @@ export class AwardExplanation {
     const v = this.view();
     if (!v) return '';
     if (v.status === 'queued') return 'Waiting for a free solver…';
-    if (v.status === 'running') return `Re-computing the award with each alternative: ${v.progress.done} of ${v.progress.total} done.`;
+    if (v.status === 'running') return `Re-computing the award with each alternative: ${v.progress.done} of ${v.progress.total} regions done.`;
     if (v.status === 'done') return 'Explanation ready.';
     return '';
   });
-  protected readonly losers = computed(() => (this.result()?.debrief ?? []).filter((d) => !d.awarded));
-  protected readonly winners = computed(() => (this.result()?.debrief ?? []).filter((d) => d.awarded));
+  /** Vendor → its debrief as asked for (absent: not asked for yet). */
+  protected readonly debriefs = computed(() => new Map((this.view()?.debriefs ?? []).map((d) => [d.vendor, d])));
+  protected readonly askingDebrief = signal<string | null>(null);
 
   constructor() {
     // Asked at once; again every second while queued or running; a new run id starts over.
@@ -91,6 +95,32 @@ export class AwardExplanation {
           this.error.set(error instanceof ApiError ? error.userMessage : 'The explanation could not be started.');
         },
       });
+  }
+
+  /** Asks for one vendor's debrief, then polls until it is worked out. */
+  protected askDebrief(vendor: string): void {
+    this.askingDebrief.set(vendor);
+    this.error.set(null);
+    this.api
+      .debrief(this.runId(), vendor)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (d) => {
+          this.askingDebrief.set(null);
+          this.view.update((v) => (v ? { ...v, debriefs: [...v.debriefs.filter((x) => x.vendor !== d.vendor), d] } : v));
+          this.attempt.update((n) => n + 1);
+        },
+        error: (error: unknown) => {
+          this.askingDebrief.set(null);
+          this.error.set(error instanceof ApiError ? error.userMessage : 'The debrief could not be started.');
+        },
+      });
+  }
+
+  protected debriefStatus(d: DebriefView): string {
+    if (d.status === 'queued') return 'Waiting for a free solver…';
+    if (d.status === 'running') return `Working out what it would have needed: ${d.progress.done} of ${d.progress.total} done.`;
+    return '';
   }
 
   protected money(value: number | null): string {

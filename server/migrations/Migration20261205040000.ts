@@ -1,0 +1,25 @@
+import { Migration } from '@mikro-orm/migrations';
+
+/**
+ * Debriefs on demand (issue 14, point 4): `run_debrief`, one per run and vendor, computed by a job
+ * on the solve queue (server/jobs/explain-job.ts) and cached; the explanation itself no longer
+ * carries every vendor's debrief. In the form `migration:create` writes, plus a check of its own.
+ */
+export class Migration20261205040000 extends Migration {
+
+  override async up(): Promise<void> {
+    this.addSql(`create table "run_debrief" ("id" uuid not null, "created_at" timestamptz not null default now(), "updated_at" timestamptz not null default now(), "run_id" uuid not null, "vendor_id" uuid not null, "status" varchar(10) not null default 'queued', "requested_by_id" uuid not null, "progress_done" int not null default 0, "progress_total" int not null default 0, "result" jsonb null, "error" text null, "started_at" timestamptz null, "computed_at" timestamptz null, "attempts" int not null default 0, constraint "run_debrief_pkey" primary key ("id"));`);
+    this.addSql(`alter table "run_debrief" add constraint "run_debrief_run_id_vendor_id_unique" unique ("run_id", "vendor_id");`);
+    this.addSql(`alter table "run_debrief" add constraint "run_debrief_run_id_foreign" foreign key ("run_id") references "run" ("id") on update cascade on delete cascade;`);
+    this.addSql(`alter table "run_debrief" add constraint "run_debrief_vendor_id_foreign" foreign key ("vendor_id") references "vendor_organisation" ("id") on update cascade on delete restrict;`);
+    this.addSql(`alter table "run_debrief" add constraint "run_debrief_requested_by_id_foreign" foreign key ("requested_by_id") references "app_user" ("id") on update cascade on delete restrict;`);
+    // Written by hand: the job's states, and a result exactly when done.
+    this.addSql(`alter table "run_debrief" add constraint "run_debrief_status_check" check (
+      status in ('queued', 'running', 'done', 'failed') and ((status = 'done') = (result is not null)));`);
+  }
+
+  override async down(): Promise<void> {
+    this.addSql(`drop table if exists "run_debrief" cascade;`);
+  }
+
+}
