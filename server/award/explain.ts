@@ -437,12 +437,14 @@ export async function debriefVendor(input: unknown, run: AwardResult, vendor: st
   });
   const fullElsewhere = v.capacity !== null && qtyOf(run, v.id) >= v.capacity - EPS * v.capacity;
   const priceTolerance = (price: number) => (0.005 * price > 0.01 ? { step: 0.005 * price, tolerance: 'percent' as const } : { step: 0.01, tolerance: 'cent' as const });
-  function debriefWords(region: string, neededPrice: number | null, reason: ExplanationReason): string {
+  function debriefWords(region: string, neededPrice: number | null, reason: ExplanationReason, proven = true): string {
     const price = priceOf(vendor, region)!;
     if (neededPrice === null && reason === 'unsettled') return 'Not worked out: working the award out again did not finish within the time limit.';
     if (neededPrice === null) return `No unit price would have won it this region: ${reasonWords(reason, { capacity: v!.capacity, forecast: regionById.get(region)!.demand, unit, fullElsewhere })}.`;
     const cut = price > 0 ? (price - neededPrice) / price : 0;
-    return `It would have been awarded this region at ${moneyWords(neededPrice, ctx)} per ${unit} or less (its bid: ${moneyWords(price, ctx)}, ${percentWords(cut)} lower).`;
+    const words = `It would have been awarded this region at ${moneyWords(neededPrice, ctx)} per ${unit} or less (its bid: ${moneyWords(price, ctx)}, ${percentWords(cut)} lower).`;
+    // From awards not proven best: a price at which it surely wins, possibly below the highest that would.
+    return proven ? words : `${words} The awards compared were not proven best in the time allowed, so it might also have won at a somewhat higher price.`;
   }
   const winsRegion = async (region: string, price: number) => {
     const r = await solve(withVendor((w) => ({ prices: recordByCode([...Object.entries(w.prices).filter(([c]) => c !== region), [region, price] as const]) })));
@@ -459,7 +461,8 @@ export async function debriefVendor(input: unknown, run: AwardResult, vendor: st
     const threshold = usable(f) ? price - (f.objective! - runObjective) / demand : null;
     if (isSole(region)) {
       const neededPrice = threshold !== null && threshold > 0 ? Math.max(0, floorCent(threshold)) : null;
-      needed.set(region, { region, regionName, unitPrice: price, neededPrice, tolerance: 'cent', reason, words: debriefWords(region, neededPrice, reason) });
+      const proven = x.runProven && f.status === 'optimal';
+      needed.set(region, { region, regionName, unitPrice: price, neededPrice, tolerance: 'cent', reason, words: debriefWords(region, neededPrice, reason, proven) });
       tick();
       return;
     }
