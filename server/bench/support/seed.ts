@@ -2,6 +2,7 @@ import { Client } from 'pg';
 import { hashPassword } from '../../auth/password';
 import { commitBid } from '../../services/bid-commitment';
 import { DEFAULT_AWARD_BASIS } from '@shared/tenders';
+import { randomSource } from '../../award/kernel';
 
 /**
  * Fictional data for the benchmarks, written with plain SQL (thousands of rows in a second or two,
@@ -39,17 +40,8 @@ export interface SeedOptions {
   buyerBulk?: number;
 }
 
-/** A small deterministic generator, so two runs of a benchmark price the same bids. */
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The engine's seeded generator (mulberry32), so two runs price the same bids. */
+export const prng = randomSource;
 
 /** The award basis of a tender whose buyer sets no rule (a constant, so written into the SQL). */
 const AWARD_BASIS = `'${JSON.stringify(DEFAULT_AWARD_BASIS)}'::jsonb`;

@@ -1,4 +1,5 @@
 import type { AwardProblem } from '../../../shared/award';
+import { randomSource } from '../../../server/award/kernel';
 
 /**
  * Small hand-solvable problems. Base: regions A and B (100 units each);
@@ -20,17 +21,8 @@ export function baseProblem(rules: NonNullable<AwardProblem['rules']> = {}): Awa
   };
 }
 
-/** A deterministic pseudo-random generator (mulberry32), so generated instances are repeatable. */
-export function prng(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** The engine's seeded generator (mulberry32), so two runs price the same bids. */
+export const prng = randomSource;
 
 /** A random capacitated sole-award instance, hard enough to run into a time limit at 30 × 150. */
 export function largeSoleProblem(vendors: number, regions: number, seed: number): AwardProblem {
