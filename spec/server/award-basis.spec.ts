@@ -135,7 +135,7 @@ describe('vendors see the basis before bidding, never the estimate', () => {
     expect(mine.timeZone).toBe('Europe/Dublin');
     expect('estimatedValue' in mine).toBe(false);
     expect((await buyer.get(`/api/tenders/${id}`)).body.estimatedValue).toBe(ESTIMATE);
-    const listed = (await vendors[0].get('/api/tenders')).body.find((x: { id: string }) => x.id === id);
+    const listed = (await vendors[0].get('/api/tenders')).body.items.find((x: { id: string }) => x.id === id);
     expect(listed.timeZone).toBe('Europe/Dublin');
     expect('estimatedValue' in listed).toBe(false);
   });
