@@ -40,7 +40,7 @@ beforeAll(async () => {
   notifiedId = closed;
   splitRunId = await runScenario(await ApiSession.signIn('buyer@demo.tendara.test'), closed, 'split');
   basisRunId = await awardAndNotify(closed);
-  openId = (await (await ApiSession.signIn(VENDOR)).call<{ id: string; reference: string }[]>('GET', '/tenders')).find((t) => t.reference === OPEN)!.id;
+  openId = (await (await ApiSession.signIn(VENDOR)).call<{ items: { id: string; reference: string }[] }>('GET', `/tenders?q=${OPEN}`)).items.find((t) => t.reference === OPEN)!.id;
 });
 
 let b: Awaited<ReturnType<typeof openBrowser>>;

@@ -66,7 +66,7 @@ describe('NoticeReader', () => {
 
     expect(facts).toContain('Standstill period ends');
     expect(facts).toContain('23:59 GMT (Europe/Dublin)');
-    expect(facts).toContain('Tue 15 Dec 2026');
+    expect(facts).toContain('Tue, 15 Dec 2026');
     expect(facts).toContain('10:00 GMT (Europe/Dublin)');
     expect(page.querySelector('.zone-note')!.textContent).toContain('Europe/Dublin');
   });
