@@ -1,5 +1,5 @@
 import type { Page } from 'playwright-core';
-import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, SHOTS, signIn, waitForDialogFocus } from './support/browser';
+import { animationsDone, baseUrl, openBrowser, openTender as openTenderByReference, screenshot, seriousViolations, SHOTS, signIn, waitForDialogFocus } from './support/browser';
 
 /**
  * The evaluation of the closed demo tender NHP-2026-014 (seven bids), end to end in the browser:
@@ -22,9 +22,7 @@ beforeAll(async () => {
 afterAll(() => b.close());
 
 async function openTender(page: Page): Promise<void> {
-  await page.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Tenders' }).click();
-  await page.getByRole('link', { name: TENDER }).click();
-  await page.getByRole('heading', { level: 1 }).waitFor();
+  await openTenderByReference(page, TENDER);
 }
 
 async function openEvaluation(page: Page): Promise<void> {

@@ -81,7 +81,8 @@ export async function animationsDone(page: Page): Promise<void> {
  */
 export async function openTender(page: Page, reference: string): Promise<void> {
   await page.goto(`${baseUrl()}/tenders?q=${encodeURIComponent(reference)}`);
-  await page.getByRole('link', { name: reference }).click();
+  // In the list's own table: the home page's worklist links also begin with a tender's reference.
+  await page.getByRole('table', { name: 'Tenders' }).getByRole('link', { name: reference, exact: true }).click();
   await page.getByRole('heading', { level: 1 }).waitFor();
 }
 
