@@ -192,7 +192,9 @@ describe('the contract step', () => {
     expect(contractReleases).toHaveLength(2);
     // Each release shows the whole picture at its date: the last one carries both contracts.
     const items = (contractReleases.at(-1)!.contracts ?? []).flatMap((c) => c.items ?? []);
-    expect(items.map((i) => [i.quantity, i.unit.value.amount]).sort((x, y) => x[0] - y[0])).toEqual([[950, 10], [1800, 10], [3100, 9.5]]);
+    // Either of the two racing records may have won (answers come in the order the requests were made).
+    const won = answers[0].status === 201 ? 950 : 1200;
+    expect(items.map((i) => [i.quantity, i.unit.value.amount]).sort((x, y) => x[0] - y[0])).toEqual([[won, 10], [1800, 10], [3100, 9.5]]);
     if (ocdsReferenceAvailable()) {
       // OCDS 1.1.5 release package schema, ../shared/reference/ocds-1.1.5 (skipped where the folder is absent).
       expect(schemaErrors(pkg)).toEqual([]);
