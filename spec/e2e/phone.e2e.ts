@@ -210,9 +210,15 @@ describe('every main screen passes axe at 1366 and at 390 px', () => {
     ...ADMIN_SCREENS.map(([name, path]) => ({ role: 'admin', email: 'admin@demo.tendara.test', name, path })),
   ];
 
+  // Signed in once per role, not per screen (each test still signs in when it runs alone).
+  let signedInAs: string | null = null;
   test.each(screens)("the $role's $name screen passes axe at 1366 and 390 px", async ({ role, email, name, path: pathOf }) => {
     const { page } = b;
-    await signIn(page, email);
+    if (signedInAs !== email) {
+      signedInAs = null;
+      await signIn(page, email);
+      signedInAs = email;
+    }
     const found: Record<number, unknown[]> = {};
     for (const width of [1366, 390]) {
       await page.setViewportSize(width === 390 ? { width: 390, height: 844 } : { width: 1366, height: 768 });
