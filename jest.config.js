@@ -16,6 +16,9 @@ module.exports = {
   // asserted. Jest reads testTimeout here only (a project's own is ignored); a file that needs more
   // sets jest.setTimeout.
   testTimeout: 60_000,
+  // Two workers even on two cores: most of a server test's time is spent waiting on PostgreSQL,
+  // so a second file runs in that time (jest's default here would be one, cores − 1).
+  maxWorkers: 2,
   projects: [
     {
       displayName: 'award',
