@@ -29,7 +29,8 @@ test('a vendor turns closing reminders off with the keyboard, saves, finds the c
 
   await toggle.focus();
   await page.keyboard.press('Space');
-  await expect(toggle.getAttribute('aria-checked')).resolves.toBe('false');
+  // The switch's state is rendered after the key press: wait for it rather than read it at once.
+  await page.getByRole('switch', { name: 'Closing reminders', checked: false }).waitFor();
   await page.keyboard.press('Tab');
   await expect(page.evaluate(() => document.activeElement?.textContent?.trim())).resolves.toBe('Save settings');
   await page.keyboard.press('Enter');
@@ -37,12 +38,12 @@ test('a vendor turns closing reminders off with the keyboard, saves, finds the c
 
   await page.reload();
   await page.getByRole('switch', { name: 'Closing reminders' }).waitFor();
-  await expect(page.getByRole('switch', { name: 'Closing reminders' }).getAttribute('aria-checked')).resolves.toBe('false');
+  await page.getByRole('switch', { name: 'Closing reminders', checked: false }).waitFor();
   await page.getByRole('switch', { name: 'Closing reminders' }).focus();
   await page.keyboard.press('Space');
   await page.getByRole('button', { name: 'Save settings' }).press('Enter');
   await page.getByRole('status').filter({ hasText: 'Your notification settings are saved.' }).waitFor();
-  await expect(page.getByRole('switch', { name: 'Closing reminders' }).getAttribute('aria-checked')).resolves.toBe('true');
+  await page.getByRole('switch', { name: 'Closing reminders', checked: true }).waitFor();
 });
 
 test('at phone width the buyer opens the settings from the account menu and is offered updates on recommendations and the standstill', async () => {
