@@ -230,7 +230,7 @@ async function explanationRow(url: string, buyer: Session, runs: RunView[], dead
   if (asked.status !== 202 && asked.status !== 200) throw new Error(`POST explanation: ${asked.status} ${JSON.stringify(asked.body)}`);
   let view = asked.body;
   while ((view.status === 'queued' || view.status === 'running') && Date.now() < until) {
-    await new Promise((resolve) => setTimeout(resolve, 2000));
+    await new Promise((resolve) => setTimeout(resolve, 1000)); // as the screen polls (EXPLANATION_POLL_MS)
     view = (await call<ExplanationView>(url, buyer, 'GET', `/api/runs/${sole.id}/explanation`)).body;
   }
   const seconds = (performance.now() - t0) / 1000;
