@@ -129,6 +129,20 @@ export const debriefViewSchema = z.object({
   computedAt: z.string().nullable(),
 });
 
+/**
+ * One region worked out exactly on demand (POST /api/runs/:id/explanation/regions/:region): its
+ * forced re-solve given the run's whole time limit. Once done, its figures replace the region's in
+ * `result.regions` (and `result.ranges` counts again); the explanation as first computed is kept.
+ */
+export const regionCheckViewSchema = z.object({
+  region: z.string(),
+  status: z.enum(DEBRIEF_STATUSES),
+  result: regionExplanationSchema.nullable(),
+  error: z.string().nullable(),
+  queuedAt: z.string(),
+  computedAt: z.string().nullable(),
+});
+
 /** GET /api/runs/:id/explanation */
 export const explanationViewSchema = z.object({
   runId: z.string(),
@@ -141,6 +155,8 @@ export const explanationViewSchema = z.object({
   computedAt: z.string().nullable(),
   /** The debriefs asked for so far (per vendor, cached per run). */
   debriefs: z.array(debriefViewSchema),
+  /** The regions asked to be worked out exactly so far (their figures are already in `result`). */
+  regionChecks: z.array(regionCheckViewSchema),
 });
 
 export type RegionChallenger = z.infer<typeof regionChallengerSchema>;
@@ -151,6 +167,7 @@ export type DebriefVendor = z.infer<typeof debriefVendorSchema>;
 export type DebriefView = z.infer<typeof debriefViewSchema>;
 export type ExplanationResult = z.infer<typeof explanationResultSchema>;
 export type ExplanationView = z.infer<typeof explanationViewSchema>;
+export type RegionCheckView = z.infer<typeof regionCheckViewSchema>;
 
 /** Words for the figures: money in the tender's currency, quantities in its unit. */
 export interface WordsContext {

@@ -320,6 +320,64 @@ function explainContext(input: unknown, run: AwardResult, options: ExplainOption
   };
 }
 
+type ExplainContext = ReturnType<typeof explainContext>;
+
+/** How many regions' extra costs are a range (a forced re-solve not proven in the time it had). */
+export const rangesOf = (regions: RegionExplanation[]) =>
+  regions.filter((r) => r.challenger && !r.challenger.exact && r.challenger.extraCost !== null).length;
+
+/** The cheapest compliant bid for a region that got none of it (its forced re-solve explains the region). */
+function challengerOf(x: ExplainContext, region: string): { region: string; vendor: string; price: number } | null {
+  const best = x.problem.vendors
+    .filter((v) => x.unawardedBids(v.id).includes(region))
+    .map((v) => ({ vendor: v.id, price: x.priceOf(v.id, region)! }))
+    .sort((a, b) => a.price - b.price)[0];
+  return best ? { region, ...best } : null;
+}
+
+/** One region of the explanation: who was awarded it, and why its cheapest unawarded bid was not, with the figure. */
+function regionExplanation(x: ExplainContext, region: string, best: { vendor: string; price: number } | null, forced: Forced | undefined): RegionExplanation {
+  const { problem, run, ctx, runObjective, vendorName } = x;
+  const r = x.regionById.get(region)!;
+  const awarded = run.awards.flatMap((a) => a.lines.filter((l) => l.region === region && l.quantity > 0)
+    .map((l) => ({ vendor: a.vendor, vendorName: vendorName(a.vendor), quantity: l.quantity, unitPrice: l.unitPrice })));
+  let challenger: RegionChallenger | null = null;
+  if (best && forced) {
+    const { result: f, reason } = forced;
+    const { extraCost, exact, extraCostAtLeast } = extraOf(f, runObjective, x.runProven);
+    const v = problem.vendors.find((y) => y.id === best.vendor)!;
+    const fullElsewhere = v.capacity !== null && qtyOf(run, v.id) >= v.capacity - EPS * v.capacity;
+    const why = reasonWords(reason, { capacity: v.capacity, forecast: r.demand, unit: ctx.unit, fullElsewhere });
+    const figure = reason === 'unsettled' ? 'no extra cost can be stated'
+      : extraCost !== null && exact && extraCost <= EPS * Math.max(1, runObjective)
+      ? 'an equally cheap award with it exists; the award kept the other'
+      : extraCostWords({ extraCost, exact, extraCostAtLeast }, ctx);
+    challenger = {
+      vendor: best.vendor, vendorName: vendorName(best.vendor), unitPrice: best.price, reason,
+      words: `${vendorName(best.vendor)} bid ${moneyWords(best.price, ctx)} per ${ctx.unit} but was not awarded it: ${why}; ${figure}.`,
+      extraCost, exact, extraCostAtLeast,
+    };
+  }
+  return { region, regionName: r.name ?? region, forecast: r.demand, awarded, challenger };
+}
+
+/**
+ * One region worked out exactly, on demand (after an explanation left its extra cost as a range):
+ * the same forced re-solve, with the whole of `options.budgetSeconds` (default: the problem's time
+ * limit) instead of a share of the explanation's budget. Null when no compliant bid lost the region.
+ */
+export async function explainRegion(input: unknown, run: AwardResult, region: string, options: ExplainOptions): Promise<RegionExplanation | null> {
+  const x = explainContext(input, run, options);
+  if (!x.regionById.has(region)) throw new Error(`No region ${region} in the run's problem.`);
+  const best = challengerOf(x, region);
+  if (!best) return null;
+  const limit = options.budgetSeconds ?? x.problem.options?.timeLimitSeconds ?? 60;
+  options.onProgress?.(0, 1);
+  const forced = await x.forceOne(best.vendor, region, limit);
+  options.onProgress?.(1, 1);
+  return regionExplanation(x, region, best, forced);
+}
+
 /** The figure of a forced re-solve against the run: exact, or the range its bound allows. */
 function extraOf(f: AwardResult, runObjective: number, runProven: boolean) {
   const ok = usable(f);
@@ -336,17 +394,10 @@ function extraOf(f: AwardResult, runObjective: number, runProven: boolean) {
 export async function explainAward(input: unknown, run: AwardResult, options: ExplainOptions): Promise<ExplanationResult> {
   const started = performance.now();
   const x = explainContext(input, run, options);
-  const { problem, ctx, runObjective, priceOf, vendorName } = x;
-  const unit = ctx.unit;
+  const { problem, ctx, runObjective, vendorName } = x;
 
   // The cheapest compliant unawarded bid of each region: the one forced re-solve it gets.
-  const challengers = problem.regions.map((r) => {
-    const candidates = problem.vendors
-      .filter((v) => x.unawardedBids(v.id).includes(r.id))
-      .map((v) => ({ vendor: v.id, price: priceOf(v.id, r.id)! }))
-      .sort((a, b) => a.price - b.price);
-    return candidates[0] ? { region: r.id, ...candidates[0] } : null;
-  });
+  const challengers = problem.regions.map((r) => challengerOf(x, r.id));
   const todo = challengers.filter((c): c is NonNullable<typeof c> => c !== null);
   const budget = options.budgetSeconds ?? Math.max(MIN_BUDGET_SECONDS, BUDGET_FACTOR * (run.solveSeconds ?? 0));
   const deadline = started + budget * 1000;
@@ -373,29 +424,7 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
     options.onProgress?.(++done, todo.length);
   });
 
-  const regions: RegionExplanation[] = problem.regions.map((r, k) => {
-    const awarded = run.awards.flatMap((a) => a.lines.filter((l) => l.region === r.id && l.quantity > 0)
-      .map((l) => ({ vendor: a.vendor, vendorName: vendorName(a.vendor), quantity: l.quantity, unitPrice: l.unitPrice })));
-    const best = challengers[k];
-    let challenger: RegionChallenger | null = null;
-    if (best) {
-      const { result: f, reason } = forced.get(r.id)!;
-      const { extraCost, exact, extraCostAtLeast } = extraOf(f, runObjective, x.runProven);
-      const v = problem.vendors.find((y) => y.id === best.vendor)!;
-      const fullElsewhere = v.capacity !== null && qtyOf(run, v.id) >= v.capacity - EPS * v.capacity;
-      const why = reasonWords(reason, { capacity: v.capacity, forecast: r.demand, unit, fullElsewhere });
-      const figure = reason === 'unsettled' ? 'no extra cost can be stated'
-        : extraCost !== null && exact && extraCost <= EPS * Math.max(1, runObjective)
-        ? 'an equally cheap award with it exists; the award kept the other'
-        : extraCostWords({ extraCost, exact, extraCostAtLeast }, ctx);
-      challenger = {
-        vendor: best.vendor, vendorName: vendorName(best.vendor), unitPrice: best.price, reason,
-        words: `${vendorName(best.vendor)} bid ${moneyWords(best.price, ctx)} per ${unit} but was not awarded it: ${why}; ${figure}.`,
-        extraCost, exact, extraCostAtLeast,
-      };
-    }
-    return { region: r.id, regionName: r.name ?? r.id, forecast: r.demand, awarded, challenger };
-  });
+  const regions: RegionExplanation[] = problem.regions.map((r, k) => regionExplanation(x, r.id, challengers[k], forced.get(r.id)));
 
   // The vendors a debrief can be asked for: a compliant bid in a region it did not win, or no award.
   const debriefVendors: DebriefVendor[] = problem.vendors
@@ -404,10 +433,10 @@ export async function explainAward(input: unknown, run: AwardResult, options: Ex
 
   const seconds = (performance.now() - started) / 1000;
   return {
-    currency: ctx.currency, unit, objective: runObjective, runProven: x.runProven, regions, debriefVendors,
+    currency: ctx.currency, unit: ctx.unit, objective: runObjective, runProven: x.runProven, regions, debriefVendors,
     solves: x.counter.solves, seconds: Math.round(seconds * 100) / 100,
     budgetSeconds: Math.round(budget * 100) / 100,
-    ranges: regions.filter((r) => r.challenger && !r.challenger.exact && r.challenger.extraCost !== null).length,
+    ranges: rangesOf(regions),
   };
 }
 

@@ -10,7 +10,7 @@ import { verifyAward } from './verify';
 
 export { AwardInputError, type AwardFieldError } from './errors';
 export { closeSolverPool } from './workers';
-export { debriefVendor, explainAward, type ExplainOptions, type SolveFn } from './explain';
+export { debriefVendor, explainAward, explainRegion, rangesOf, type ExplainOptions, type SolveFn } from './explain';
 export type { EngineId } from './solve';
 
 export interface SolveAwardOptions {

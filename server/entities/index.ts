@@ -20,6 +20,7 @@ import { Run } from './run.entity';
 import { RunAward } from './run-award.entity';
 import { RunDebrief } from './run-debrief.entity';
 import { RunExplanation } from './run-explanation.entity';
+import { RunRegionCheck } from './run-region-check.entity';
 import { Scenario } from './scenario.entity';
 import { SeenMark } from './seen-mark.entity';
 import { Tender } from './tender.entity';
@@ -28,8 +29,8 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 
 /** Every entity MikroORM knows; add new ones here. */
 export const ENTITIES = [VendorOrganisation, User, AccountToken, MailMessage, Tender, Region, Invitation, Bid, BidLine, BidDocument,
-  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, RunDebrief, Contract, ContractLine,
+  Scenario, Run, RunAward, Recommendation, AuditEntry, Notice, OpeningRecord, Question, Amendment, BidRemovedLine, RunExplanation, RunDebrief, RunRegionCheck, Contract, ContractLine,
   NotificationSent, NotificationSetting, SeenMark];
 export {
-  AccountToken, Amendment, Contract, NotificationSent, NotificationSetting, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunDebrief, RunExplanation, Scenario, SeenMark, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
+  AccountToken, Amendment, Contract, NotificationSent, NotificationSetting, ContractLine, AuditEntry, BidRemovedLine, Question, Notice, OpeningRecord, Recommendation, Run, RunAward, RunDebrief, RunExplanation, RunRegionCheck, Scenario, SeenMark, Bid, BidDocument, BidLine, Invitation, MailMessage, Region, Tender, User, VendorOrganisation,
 };

@@ -1,5 +1,5 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
-import { debriefVendor, explainAward, solveAward } from '../award';
+import { debriefVendor, explainAward, explainRegion, solveAward } from '../award';
 import { Run } from '../entities';
 import { logger } from '../logger';
 import { audit } from '../services/audit.service';
@@ -93,5 +93,39 @@ export async function debriefRun(orm: MikroORM, runId: string, vendorId: string)
     logger.error({ err, runId, vendorId }, 'debrief failed');
     await em.execute(`update run_debrief set status = 'failed', error = ?, updated_at = now() where run_id = ? and vendor_id = ? and status = 'running'`,
       ['The debrief could not be computed; the error is in the server log. Ask for it again.', runId, vendorId]);
+  }
+}
+
+/**
+ * Works one region of an explanation out exactly (`explainRegion`: its forced re-solve with the
+ * run's whole time limit) and stores it in `run_region_check`; claimed and retried as the
+ * explanation is. Not proven even then: the region keeps a range, now with the longer re-solve's bounds.
+ */
+export async function regionCheckRun(orm: MikroORM, runId: string, region: string): Promise<void> {
+  const em = orm.em.fork();
+  const claimed = await em.execute<{ id: string }[]>(
+    `update run_region_check set status = 'running', started_at = now(), attempts = attempts + 1, updated_at = now()
+       where run_id = ? and region = ? and status in ('queued', 'running') returning id`, [runId, region],
+  );
+  if (!claimed.length) return;
+  const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
+  try {
+    const result = await explainRegion(run.problem, run.result!, region, {
+      solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
+      budgetSeconds: run.timeLimitSeconds,
+    });
+    if (!result) throw new Error(`No compliant bid lost region ${region}.`);
+    await em.transactional(async (tx) => {
+      const done = await tx.execute<{ id: string }[]>(
+        `update run_region_check set status = 'done', result = ?::jsonb, error = null, computed_at = now(), updated_at = now()
+           where run_id = ? and region = ? and status = 'running' returning id`, [JSON.stringify(result), runId, region],
+      );
+      if (!done.length) return;
+      await audit(tx, { tenderId: run.tender.id, actor: null, action: 'run.region-checked', subject: `run ${runId}`, detail: { region, exact: result.challenger?.exact ?? null } });
+    });
+  } catch (err) {
+    logger.error({ err, runId, region }, 'region check failed');
+    await em.execute(`update run_region_check set status = 'failed', error = ?, updated_at = now() where run_id = ? and region = ? and status = 'running'`,
+      ['This region could not be worked out; the error is in the server log. Ask for it again.', runId, region]);
   }
 }

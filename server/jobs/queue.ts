@@ -107,3 +107,8 @@ export async function startReminderWorker(boss: PgBoss, pass: () => Promise<void
 export async function queueDebrief(boss: PgBoss, runId: string, vendorId: string): Promise<void> {
   await boss.send(QUEUES.solve, { runId, debriefVendor: vendorId }, { retryLimit: 2, retryDelay: 5, expireInSeconds: EXPLAIN_EXPIRE_SECONDS });
 }
+
+/** One region of an explanation worked out exactly (server/jobs/explain-job.ts `regionCheckRun`). */
+export async function queueRegionCheck(boss: PgBoss, runId: string, region: string): Promise<void> {
+  await boss.send(QUEUES.solve, { runId, exactRegion: region }, { retryLimit: 2, retryDelay: 5, expireInSeconds: EXPLAIN_EXPIRE_SECONDS });
+}

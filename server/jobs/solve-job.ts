@@ -6,7 +6,7 @@ import { Run, RunAward } from '../entities';
 import { logger } from '../logger';
 import { audit } from '../services/audit.service';
 import { claimRunForSolving, finishRun, runStatusNow } from '../services/queries/evaluation.queries';
-import { debriefRun, explainRun } from './explain-job';
+import { debriefRun, explainRun, regionCheckRun } from './explain-job';
 import { QUEUES } from './queue';
 
 /** How often a solving run looks whether someone cancelled it. */
@@ -64,10 +64,11 @@ export async function solveRun(orm: MikroORM, runId: string): Promise<void> {
 export async function startSolveWorker(boss: PgBoss, orm: MikroORM, concurrency = 1): Promise<void> {
   // One pg-boss worker per concurrent solve (each fetches one job at a time).
   for (let i = 0; i < concurrency; i++) {
-    await boss.work<{ runId: string; explain?: boolean; debriefVendor?: string }>(QUEUES.solve, { batchSize: 1, pollingIntervalSeconds: 1 }, async (jobs) => {
-      // The same queue carries runs, their explanations and their debriefs (server/jobs/explain-job.ts).
+    await boss.work<{ runId: string; explain?: boolean; debriefVendor?: string; exactRegion?: string }>(QUEUES.solve, { batchSize: 1, pollingIntervalSeconds: 1 }, async (jobs) => {
+      // The same queue carries runs, their explanations, debriefs and regions worked out exactly (server/jobs/explain-job.ts).
       for (const job of jobs) {
         await (job.data.debriefVendor ? debriefRun(orm, job.data.runId, job.data.debriefVendor)
+          : job.data.exactRegion ? regionCheckRun(orm, job.data.runId, job.data.exactRegion)
           : job.data.explain ? explainRun(orm, job.data.runId) : solveRun(orm, job.data.runId));
       }
     });

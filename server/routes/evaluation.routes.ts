@@ -7,7 +7,7 @@ import { route, type AnyRoute } from '../http/route';
 import { auditCsv, auditTrail, verifyTrail } from '../services/audit.service';
 import { markSeen } from '../services/worklist.service';
 import { currentRecommendation, decide, recommend } from '../services/evaluation/recommendation.service';
-import { explanationOf, startDebrief, startExplanation } from '../services/evaluation/explanation.service';
+import { explanationOf, startDebrief, startExplanation, startRegionCheck } from '../services/evaluation/explanation.service';
 import { compareRuns, findRun, resilienceOf, runView, startResilience } from '../services/evaluation/results.service';
 import { findVisibleTender } from '../services/tender-access';
 import { sensitivityOf, startSensitivity } from '../services/evaluation/sensitivity.service';
@@ -17,6 +17,7 @@ import { CSV, exportName, sendDownload, XLSX } from '../http/download';
 
 const id = z.object({ id: z.uuid({ error: 'Must be a valid id.' }) });
 const runVendor = id.extend({ vendorId: z.uuid({ error: 'Must be a valid vendor id.' }) });
+const runRegion = id.extend({ region: z.string().min(1, { error: 'Must be a region code.' }).max(64, { error: 'Must be a region code of at most 64 characters.' }) });
 const EVALUATORS = ['buyer', 'compliance'] as const;
 
 export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
@@ -92,7 +93,7 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'post', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, status: 202, response: explanationViewSchema,
-      summary: "Explain the run's award, region by region: one forced re-solve per region, within 8 × the run's solve time (on the solve queue; poll GET). Idempotent: one per run; a failed one is queued again. Debriefs are asked for per vendor (POST /runs/{id}/debrief/{vendorId}).",
+      summary: "Explain the run's award, region by region: one forced re-solve per region, within 7 × the run's solve time (a region not proven in its share keeps a range; ask for it exactly with POST /runs/{id}/explanation/regions/{region}) (on the solve queue; poll GET). Idempotent: one per run; a failed one is queued again. Debriefs are asked for per vendor (POST /runs/{id}/debrief/{vendorId}).",
       responses: { 200: 'The explanation already exists (queued, running or done): nothing queued', 202: 'Queued', 409: 'The run has no award' },
       handler: async ({ em, user, params, res }) => {
         const { view, queued } = await startExplanation(ctx(em), user, params.id);
@@ -103,6 +104,15 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
       method: 'get', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, response: explanationViewSchema,
       summary: 'Why each region went where it did (the cheapest bid not awarded there, the reason and the extra cost of forcing it, exact or as a range), and the debriefs asked for so far (`debriefs`): the unit price per region and the uniform cut each vendor would have needed. Buyer and compliance only.',
       handler: ({ em, user, params }) => explanationOf(em, user, params.id),
+    }),
+    route({
+      method: 'post', path: '/runs/:id/explanation/regions/:region', tag: 'Evaluation', access: EVALUATORS, params: runRegion, status: 202, response: explanationViewSchema,
+      summary: "Work one region of a done explanation out exactly: the forced re-solve of its cheapest unawarded bid, given the run's whole time limit (on the solve queue; the figures then replace the region's in GET /runs/{id}/explanation, listed in `regionChecks`). Cached per run and region; a failed one is queued again.",
+      responses: { 200: 'This region is already queued, being worked out or done: nothing queued', 202: 'Queued', 404: 'No such run, or no compliant bid lost this region', 409: 'The explanation is not done yet' },
+      handler: async ({ em, user, params, res }) => {
+        const { view, queued } = await startRegionCheck(ctx(em), user, params.id, params.region);
+        res.status(queued ? 202 : 200).json(view);
+      },
     }),
     route({
       method: 'post', path: '/runs/:id/debrief/:vendorId', tag: 'Evaluation', access: EVALUATORS, params: runVendor, status: 202, response: debriefViewSchema,

@@ -135,6 +135,8 @@ export const AUDIT_WORDS: Readonly<Record<string, Words>> = {
   'run.explanation-queued': (e, n) => `Explanation of the award${scenarioOf(e, n)} requested`,
   'run.explained': (e, n) => `Explanation of the award${scenarioOf(e, n)} worked out`,
   'run.debrief-queued': (e, n) => `Debrief of ${organisation(e.detail['vendorOrganisation'], n)} on the award${scenarioOf(e, n)} requested`,
+  'run.region-check-queued': (e, n) => `Exact figure for region ${str(e.detail['region']) ?? '?'} of the award${scenarioOf(e, n)} requested`,
+  'run.region-checked': (e, n) => `Exact figure for region ${str(e.detail['region']) ?? '?'} of the award${scenarioOf(e, n)} worked out${e.detail['exact'] === false ? ' (still a range: not proven within the time limit)' : ''}`,
   'run.debriefed': (e, n) => `Debrief of ${organisation(e.detail['vendorOrganisation'], n)} on the award${scenarioOf(e, n)} worked out`,
   'run.finished': (e, n) => `Award calculation${scenarioOf(e, n)} finished`,
   'run.cancelled': (e, n) => `Award calculation${scenarioOf(e, n)} cancelled`,

@@ -1,7 +1,7 @@
 import type { AwardProblem, AwardResult } from '../../shared/award';
 import type { ExplanationResult, VendorDebrief } from '../../shared/explanation';
 import loadHighs from 'highs';
-import { closeSolverPool, debriefVendor, explainAward, solveAward } from '../../server/award/index';
+import { closeSolverPool, debriefVendor, explainAward, explainRegion, solveAward } from '../../server/award/index';
 import { prng } from './support/problems';
 import { referenceLp } from './support/reference-lp';
 
@@ -213,5 +213,46 @@ describe('random small tenders: every figure recomputed by HiGHS on the independ
         expect(optimum(highs, cut(p, d.vendor, 1)) ?? Infinity).toBeGreaterThanOrEqual(runOpt - tol);
       }
     }
+  });
+});
+
+describe('a region left as a range is worked out exactly on demand, checked by HiGHS on the independent model', () => {
+  let highs: Highs;
+  beforeAll(async () => { highs = await loadHighs(); });
+
+  test('with no time for re-solves the explanation leaves ranges; each region asked for alone then carries the exact extra cost HiGHS finds for the forced award', async () => {
+    let ranged = 0;
+    for (let seed = 0; seed < 12; seed++) {
+      const p = randomTender(seed);
+      const runOpt = optimum(highs, p);
+      if (runOpt === null) continue;
+      const run = await solveAward(p);
+      // A budget of 0 s: only the repaired award and the LP bound, no MIP re-solve.
+      const quick = await explainAward(p, run, { solve: (q) => solveAward(q), budgetSeconds: 0 });
+      for (const region of quick.regions.filter((r) => r.challenger && !r.challenger.exact && r.challenger.extraCost !== null)) {
+        ranged++;
+        const worked = await explainRegion(p, run, region.region, { solve: (q) => solveAward(q), budgetSeconds: 30 });
+        const forced = optimum(highs, forcedIn(p, region.challenger!.vendor, region.region))!;
+        expect([worked!.region, worked!.challenger!.vendor, worked!.challenger!.exact]).toEqual([region.region, region.challenger!.vendor, true]);
+        expect(worked!.challenger!.extraCost!).toBeCloseTo(forced - runOpt, 4);
+        expect(worked!.challenger!.extraCostAtLeast).toBeNull();
+        // The range it replaces held the exact figure.
+        expect(region.challenger!.extraCostAtLeast!).toBeLessThanOrEqual(forced - runOpt + 1e-6);
+        expect(region.challenger!.extraCost!).toBeGreaterThanOrEqual(forced - runOpt - 1e-6);
+      }
+    }
+    // Not vacuous: the quick explanations left some regions as ranges.
+    expect(ranged).toBeGreaterThan(0);
+  });
+
+  test('a region no compliant bid lost has nothing to work out (null); an unknown region is an error naming it', async () => {
+    const p: AwardProblem = {
+      currency: 'EUR', unit: 't', regions: sole({ North: 100 }),
+      vendors: [{ id: 'A', fixedFee: 0, capacity: null, sme: false, prices: { North: 5 } }],
+      rules: { sourcing: 'sole' }, options: { timeLimitSeconds: 10 },
+    };
+    const run = await solveAward(p);
+    expect(await explainRegion(p, run, 'North', { solve: (q) => solveAward(q) })).toBeNull();
+    await expect(explainRegion(p, run, 'South', { solve: (q) => solveAward(q) })).rejects.toThrow('No region South');
   });
 });

@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import type { DebriefView, ExplanationView } from '@shared/explanation';
-import { AuditEntry, RunDebrief, RunExplanation, VendorOrganisation, type User } from '../../server/entities';
+import { AuditEntry, RunDebrief, RunExplanation, RunRegionCheck, VendorOrganisation, type User } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { type Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
@@ -50,10 +50,13 @@ beforeAll(async () => {
 });
 afterAll(() => t.close());
 
-test('before anyone asks, the explanation is not started and no row exists', async () => {
+test('before anyone asks, the explanation is not started and no row exists; a region cannot be worked out exactly yet (409, nothing stored)', async () => {
   const res = await compliance.get(`/api/runs/${runId}/explanation`);
   expect(res.status).toBe(200);
-  expect(res.body).toEqual({ runId, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, debriefs: [] });
+  expect(res.body).toEqual({ runId, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, debriefs: [], regionChecks: [] });
+  const early = await buyer.post(`/api/runs/${runId}/explanation/regions/R01`);
+  expect([early.status, early.body.detail]).toEqual([409, 'Ask for the explanation first; a region is worked out exactly once the explanation is done.']);
+  expect(await t.em().fork().count(RunRegionCheck, { run: runId })).toBe(0);
 });
 
 describe('asked for once, computed on the solve queue', () => {
@@ -138,13 +141,58 @@ describe("B's debrief, asked for on its own, computed on the solve queue and cac
   });
 });
 
-test('a vendor never gets the explanation or the debrief (403), even its own', async () => {
+describe('one region worked out exactly on demand, on the solve queue, cached and laid over the explanation', () => {
+  let first: { status: number; body: ExplanationView };
+  let second: { status: number; body: ExplanationView };
+  let view: ExplanationView;
+  beforeAll(async () => {
+    // The explanation is done (the describe above, or here if run alone).
+    await buyer.post(`/api/runs/${runId}/explanation`);
+    await drainQueue(t, QUEUES.solve, 150_000);
+    first = await buyer.post(`/api/runs/${runId}/explanation/regions/R01`);
+    second = await compliance.post(`/api/runs/${runId}/explanation/regions/R01`);
+    await drainQueue(t, QUEUES.solve, 150_000);
+    view = (await compliance.get(`/api/runs/${runId}/explanation`)).body as ExplanationView;
+  });
+
+  test('the first request queues it (202), the second answers the same one (200); one row, one audit entry each for asking and working out', async () => {
+    expect(first.status).toBe(202);
+    expect(first.body.regionChecks.map((c) => [c.region, c.status])).toEqual([['R01', 'queued']]);
+    expect(second.status).toBe(200);
+    expect(await t.em().fork().count(RunRegionCheck, { run: runId })).toBe(1);
+    expect(await t.em().fork().count(AuditEntry, { tender: tenderId, action: 'run.region-check-queued' })).toBe(1);
+    const done = await t.em().fork().findOneOrFail(AuditEntry, { tender: tenderId, action: 'run.region-checked' });
+    expect(done.detail).toEqual({ region: 'R01', exact: true });
+  });
+
+  test('done: R01 re-solved with B forced in costs 2,000 more (32,000 − 30,000), exact, and the explanation shows that figure', () => {
+    expect(view.regionChecks).toHaveLength(1);
+    const check = view.regionChecks[0];
+    expect([check.region, check.status, check.error]).toEqual(['R01', 'done', null]);
+    expect(check.computedAt).not.toBeNull();
+    expect(check.result!.challenger).toEqual(expect.objectContaining({ vendor: userB.vendorOrganisation!.id, reason: 'fixedFee', extraCost: 2000, exact: true, extraCostAtLeast: null }));
+    expect(view.result!.regions.find((r) => r.region === 'R01')).toEqual(check.result);
+    expect(view.result!.ranges).toBe(0);
+  });
+
+  test('a region no compliant bid lost (R02) or not in the tender has nothing to work out: 404, nothing stored', async () => {
+    const r02 = await buyer.post(`/api/runs/${runId}/explanation/regions/R02`);
+    const none = await buyer.post(`/api/runs/${runId}/explanation/regions/R99`);
+    expect([r02.status, none.status]).toEqual([404, 404]);
+    expect(await t.em().fork().count(RunRegionCheck, { run: runId })).toBe(1);
+  });
+});
+
+test('a vendor never gets the explanation, the debrief or a region worked out (403), even its own', async () => {
   const res = await vendorB.get(`/api/runs/${runId}/explanation`);
   expect(res.status).toBe(403);
   expect(JSON.stringify(res.body)).not.toContain('4.99');
   const asked = await vendorB.post(`/api/runs/${runId}/debrief/${userB.vendorOrganisation!.id}`);
   expect(asked.status).toBe(403);
   expect(JSON.stringify(asked.body)).not.toContain('4.99');
+  const region = await vendorB.post(`/api/runs/${runId}/explanation/regions/R01`);
+  expect(region.status).toBe(403);
+  expect(JSON.stringify(region.body)).not.toContain('2000');
 });
 
 test('a run without an award cannot be explained: 409, nothing stored', async () => {

@@ -93,7 +93,7 @@ function concrete(r: AnyRoute): string {
     tenders: ids['tender'], scenarios: ids['scenario'], runs: ids['run'], notices: ids['notice'], questions: ids['question'],
   };
   return '/api' + r.path.replace(/:([A-Za-z]+)/g, (_m, name: string) => {
-    const named: Record<string, string | undefined> = { documentId: ids['document'], organisationId: ids['organisation'], bidId: ids['bid'], vendorId: ids['organisation'] };
+    const named: Record<string, string | undefined> = { documentId: ids['document'], organisationId: ids['organisation'], bidId: ids['bid'], vendorId: ids['organisation'], region: 'R01' };
     const id = name === 'id' ? byPrefix[prefix] : named[name];
     if (!id) throw new Error(`${key(r)}: no id for :${name} — teach this test the new parameter`);
     return id;
