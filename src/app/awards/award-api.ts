@@ -103,6 +103,11 @@ export class AwardApi {
     return this.http.post<DebriefView>(`${this.runUrl(runId)}/debrief/${encodeURIComponent(vendorId)}`, {});
   }
 
+  /** Asks for one region of a done explanation to be worked out exactly (queued; shown in `explanation().regionChecks` and laid over its region). */
+  exactRegion(runId: string, region: string): Observable<ExplanationView> {
+    return this.http.post<ExplanationView>(`${this.runUrl(runId)}/explanation/regions/${encodeURIComponent(region)}`, {});
+  }
+
   /** Queues the forecast sensitivity re-solves (all regions, or one region alone); cached per run. */
   startSensitivity(runId: string, regionCode?: string): Observable<{ queued: number }> {
     return this.http.post<{ queued: number }>(`${this.runUrl(runId)}/sensitivity`, regionCode ? { regionCode } : {});

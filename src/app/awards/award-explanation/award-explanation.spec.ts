@@ -1,7 +1,7 @@
 import { HttpTestingController, provideHttpClientTesting } from '@angular/common/http/testing';
 import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { MATERIAL_ANIMATIONS } from '@angular/material/core';
-import type { DebriefView, ExplanationResult, ExplanationView, VendorDebrief } from '@shared/explanation';
+import type { DebriefView, ExplanationResult, ExplanationView, RegionCheckView, VendorDebrief } from '@shared/explanation';
 import { provideApi } from '../../core/http/provide-api';
 import { RUN_ID } from '../testing/award-fixtures';
 import { AwardExplanation, EXPLANATION_POLL_MS } from './award-explanation';
@@ -32,7 +32,7 @@ const debriefView = (over: Partial<DebriefView>): DebriefView => ({
   vendor: 'v-brack', status: 'queued', progress: { done: 0, total: 0 }, result: null, error: null, computedAt: null, ...over,
 });
 const view = (over: Partial<ExplanationView>): ExplanationView => ({
-  runId: RUN_ID, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, debriefs: [], ...over,
+  runId: RUN_ID, status: 'not-started', progress: { done: 0, total: 0 }, result: null, error: null, queuedAt: null, computedAt: null, debriefs: [], regionChecks: [], ...over,
 });
 
 describe('AwardExplanation', () => {
@@ -113,6 +113,31 @@ describe('AwardExplanation', () => {
     expect(page().textContent).toContain('A cut of 16.7 % to all its prices, fixed fee included, would have won it an award.');
     const cells = [...page().querySelectorAll('table')[1].querySelectorAll('tbody td')].map((c) => c.textContent.trim());
     expect(cells.slice(0, 2)).toEqual(['€7.00', '€4.99']);
+    await jest.advanceTimersByTimeAsync(EXPLANATION_POLL_MS * 5);
+    http.expectNone(url);
+  });
+
+  it('offers to work a ranged region out exactly, shows that it is being worked out, then the exact figure, and stops asking', async () => {
+    const ranged: ExplanationResult = {
+      ...result, ranges: 1,
+      regions: [{ ...result.regions[0], challenger: { ...result.regions[0].challenger!, exact: false, extraCost: 2500, extraCostAtLeast: 1500, words: 'Brackwater Haulage bid €7.00 per t but was not awarded it: its fixed fee would not be recovered by its lower unit price; it would have cost between €1,500.00 and €2,500.00 more.' } }],
+    };
+    const done = view({ status: 'done', progress: { done: 4, total: 4 }, result: ranged });
+    const check = (over: Partial<RegionCheckView>): RegionCheckView => ({ region: 'R01', status: 'queued', result: null, error: null, queuedAt: '2026-12-03T10:00:00.000Z', computedAt: null, ...over });
+    await answer('GET', done);
+    const button = page().querySelector<HTMLButtonElement>('button.region-check')!;
+    expect(button.getAttribute('aria-label')).toBe('Work out the exact extra cost for North depot');
+    button.click();
+    http.expectOne({ method: 'POST', url: `${url}/regions/R01` }).flush({ ...done, regionChecks: [check({})] });
+    fixture.detectChanges();
+    expect(page().querySelector('span.region-check[role=status]')!.textContent).toContain('Waiting for a free solver');
+    await answer('GET', { ...done, regionChecks: [check({ status: 'running' })] });
+    expect(page().querySelector('span.region-check[role=status]')!.textContent).toContain('Working out the exact figure');
+    // Done: the server lays the exact figure over the region.
+    await answer('GET', { ...done, result: { ...result, ranges: 0 }, regionChecks: [check({ status: 'done', result: result.regions[0], computedAt: '2026-12-03T10:01:00.000Z' })] }, EXPLANATION_POLL_MS);
+    expect(page().textContent).toContain('it would have cost €2,000.00 more.');
+    expect(page().textContent).toContain('Worked out with the full time limit.');
+    expect(page().querySelector('button.region-check')).toBeNull();
     await jest.advanceTimersByTimeAsync(EXPLANATION_POLL_MS * 5);
     http.expectNone(url);
   });

@@ -3,7 +3,7 @@ import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
-import type { DebriefView, ExplanationView } from '@shared/explanation';
+import type { DebriefView, ExplanationView, RegionCheckView } from '@shared/explanation';
 import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
@@ -13,8 +13,9 @@ import { fractionPercent, money, quantity } from '../../ui/number-format';
 export const EXPLANATION_POLL_MS = 1000;
 
 const working = (s: string) => s === 'queued' || s === 'running';
-/** Polled while the explanation or any debrief asked for is being worked out. */
-const busy = (v: ExplanationView | null) => v !== null && (working(v.status) || v.debriefs.some((d) => working(d.status)));
+/** Polled while the explanation, any debrief or any region asked for is being worked out. */
+const busy = (v: ExplanationView | null) => v !== null
+  && (working(v.status) || v.debriefs.some((d) => working(d.status)) || v.regionChecks.some((c) => working(c.status)));
 
 /**
  * "Why this award" beside the allocation matrix, and the vendors' debriefs, of one run with an
@@ -56,6 +57,9 @@ export class AwardExplanation {
   /** Vendor → its debrief as asked for (absent: not asked for yet). */
   protected readonly debriefs = computed(() => new Map((this.view()?.debriefs ?? []).map((d) => [d.vendor, d])));
   protected readonly askingDebrief = signal<string | null>(null);
+  /** Region → its exact re-solve as asked for (absent: not asked for). */
+  protected readonly regionChecks = computed(() => new Map((this.view()?.regionChecks ?? []).map((c) => [c.region, c])));
+  protected readonly askingRegion = signal<string | null>(null);
 
   constructor() {
     // Asked at once; again every second while queued or running; a new run id starts over.
@@ -115,6 +119,30 @@ export class AwardExplanation {
           this.error.set(error instanceof ApiError ? error.userMessage : 'The debrief could not be started.');
         },
       });
+  }
+
+  /** Asks for one region whose extra cost is a range to be worked out exactly, then polls until it is. */
+  protected askRegion(region: string): void {
+    this.askingRegion.set(region);
+    this.error.set(null);
+    this.api
+      .exactRegion(this.runId(), region)
+      .pipe(takeUntilDestroyed(this.destroyRef))
+      .subscribe({
+        next: (v) => {
+          this.askingRegion.set(null);
+          this.view.set(v);
+          this.attempt.update((n) => n + 1);
+        },
+        error: (error: unknown) => {
+          this.askingRegion.set(null);
+          this.error.set(error instanceof ApiError ? error.userMessage : 'The region could not be worked out.');
+        },
+      });
+  }
+
+  protected regionCheckStatus(c: RegionCheckView): string {
+    return c.status === 'queued' ? 'Waiting for a free solver…' : c.status === 'running' ? 'Working out the exact figure…' : '';
   }
 
   protected debriefStatus(d: DebriefView): string {
