@@ -28,6 +28,13 @@ export class RunRegionCheck extends BaseEntity {
   @ManyToOne({ entity: () => User, deleteRule: 'restrict' })
   requestedBy!: User;
 
+  /** Re-solves done and to do (one: its forced re-solve). */
+  @Property({ type: 'integer', default: 0 })
+  progressDone: number & Opt = 0;
+
+  @Property({ type: 'integer', default: 0 })
+  progressTotal: number & Opt = 0;
+
   @Property({ type: 'json', nullable: true })
   result?: RegionExplanation | null;
 
