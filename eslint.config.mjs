@@ -95,6 +95,27 @@ export default tseslint.config(
     },
   },
 
+  // SQL of our own lives in query modules (`*.queries.ts`: server/services/queries/, or beside the
+  // store of the auth/http layer and the seed script), each statement a named function with its row
+  // type. Elsewhere no statement is run and no SQL text is written. Migrations and benchmarks
+  // (which seed with plain SQL) are their own places.
+  {
+    files: ['server/**/*.ts', 'shared/**/*.ts', 'seeds/**/*.ts'],
+    ignores: ['server/**/*.queries.ts', 'server/migrations/**', 'server/bench/**'],
+    rules: {
+      'no-restricted-syntax': ['error', {
+        selector: 'CallExpression[callee.property.name=/^(execute|query|raw|getKnex|createQueryBuilder)$/]',
+        message: 'Run SQL through a function of a query module (server/services/queries/*.queries.ts or a *.queries.ts beside the store).',
+      }, {
+        selector: 'Literal[value=/^\\s*(select\\s[\\s\\S]*\\sfrom\\s|insert\\s+into\\s|update\\s+\\w+\\s+set\\s|delete\\s+from\\s|with\\s+\\w+\\s+as\\s*\\()/]',
+        message: 'SQL text belongs in a query module (*.queries.ts), with its row type.',
+      }, {
+        selector: 'TemplateElement[value.raw=/^\\s*(select\\s[\\s\\S]*\\sfrom\\s|insert\\s+into\\s|update\\s+\\w+\\s+set\\s|delete\\s+from\\s|with\\s+\\w+\\s+as\\s*\\()/]',
+        message: 'SQL text belongs in a query module (*.queries.ts), with its row type.',
+      }],
+    },
+  },
+
   // MikroORM's generated migrations: up() and down() are async by its Migration API, whether they
   // await or not.
   { files: ['server/migrations/*.ts'], rules: { '@typescript-eslint/require-await': 'off' } },

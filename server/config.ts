@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { fieldPath } from '@shared/field-path';
 
 /**
  * Configuration, read and validated once at start-up from the environment.
@@ -76,7 +77,7 @@ export type Config = {
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const parsed = envSchema.safeParse(env);
   if (!parsed.success) {
-    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
+    const lines = parsed.error.issues.map((i) => `  ${fieldPath(i.path)}: ${i.message}`);
     throw new Error(`Invalid configuration:\n${lines.join('\n')}`);
   }
   const e = parsed.data;

@@ -1,31 +1,15 @@
-import type { MembershipState } from '../entities/user.entity';
 import connectPgSimple from 'connect-pg-simple';
 import session from 'express-session';
 import type { Pool } from 'pg';
 import type { RequestHandler } from 'express';
 import { createHmac } from 'node:crypto';
+import { sessionWithPerson, type SessionUserRow } from './session.queries';
 
 /** A session's expiry in the store moves forward at most this often (and its row is written no more). */
 export const TOUCH_EVERY_MS = 60_000;
 
 /** What the store read along with a session: its row's expiry and the signed-in person's row. */
 const LOADED = Symbol('tendara.session.loaded');
-
-/** The signed-in person's row, read with the session in the same query (null: none, or deactivated). */
-export interface SessionUserRow {
-  id: string;
-  created_at: string;
-  updated_at: string;
-  email: string;
-  name: string;
-  role: string;
-  active: boolean;
-  membership: MembershipState;
-  last_sign_in_at: string | null;
-  vendor_organisation: {
-    id: string; created_at: string; updated_at: string; name: string; registration_number: string; sme: boolean; contact_email: string;
-  } | null;
-}
 
 interface Loaded {
   expireMs: number;
@@ -34,24 +18,6 @@ interface Loaded {
 }
 
 type WithLoaded = { [LOADED]?: Loaded };
-
-/**
- * The session, read with one query that also reads the person it names (only if active and, in a
- * vendor organisation, approved by its contact) and their
- * organisation — the session store read and the user lookup were two round trips on every request
- * (bench:api, phase d). The person is read afresh on every request, so a deactivation, a role
- * change or a password reset that deletes the person's sessions takes effect on the very next one.
- */
-const GET = `
-  select s.sess, s.expire,
-         (select to_jsonb(u) - 'password_hash'
-                 || jsonb_build_object('vendor_organisation', (select to_jsonb(o) from vendor_organisation o where o.id = u.vendor_organisation_id))
-            from app_user u
-           where u.id = case when s.sess #>> '{passport,user}' ~ '^[0-9a-fA-F-]{36}$' then (s.sess #>> '{passport,user}')::uuid end
-             and u.active and u.membership = 'approved') as person,
-         s.sess #>> '{passport,user}' is not null as names_person
-    from http_session s
-   where s.sid = $1 and s.expire >= now()`;
 
 /** The person read with this request's session, if the store read one (see `deserializeUser`). */
 export function loadedSessionUser(sess: unknown, id: string): SessionUserRow | null | undefined {
@@ -105,10 +71,7 @@ export function createSessionStore(pool: Pool, options: { pruneSessionInterval?:
   const PgStore = connectPgSimple(session);
   class TendaraSessionStore extends PgStore {
     override get(sid: string, callback: (err: unknown, session?: session.SessionData | null) => void): void {
-      pool.query<{ sess: session.SessionData & WithLoaded; expire: Date; person: SessionUserRow | null; names_person: boolean }>(
-        { name: 'tendara-session-get', text: GET, values: [sid] },
-      ).then(({ rows }) => {
-        const row = rows[0];
+      sessionWithPerson<session.SessionData & WithLoaded>(pool, sid).then((row) => {
         if (!row) return callback(null, null);
         Object.defineProperty(row.sess, LOADED, { value: { expireMs: row.expire.getTime(), user: row.names_person ? row.person : undefined } satisfies Loaded, enumerable: false });
         callback(null, row.sess);

@@ -1,7 +1,7 @@
 import type { EntityManager } from '@mikro-orm/core';
 import type { Role } from '@shared/roles';
 import { User, VendorOrganisation } from '../entities';
-import type { SessionUserRow } from './session-store';
+import type { SessionUserRow } from './session.queries';
 
 /**
  * The rows come from the database, so there is nothing to validate, and the organisation is merged

@@ -3,21 +3,23 @@ import { debriefVendor, explainAward, explainRegion, solveAward } from '../award
 import { Run } from '../entities';
 import { logger } from '../logger';
 import { audit } from '../services/audit.service';
+import {
+  claimExplainJob, type ExplainJobKey, failExplainJob, finishExplainJob, storeExplainProgress,
+} from '../services/queries/explanation.queries';
 
 /** Progress is written at most this often (the run screen polls each second). */
 const PROGRESS_EVERY_MS = 500;
 
 /** Progress of a job row, written at most every PROGRESS_EVERY_MS (and at the start and the end). */
-function progressWriter(orm: MikroORM, table: 'run_explanation' | 'run_debrief', where: string, params: unknown[]) {
+function progressWriter(orm: MikroORM, key: ExplainJobKey) {
   let written = 0;
   let pending: Promise<unknown> = Promise.resolve();
   const onProgress = (done: number, total: number) => {
     const now = Date.now();
     if (done !== 0 && done !== total && now - written < PROGRESS_EVERY_MS) return;
     written = now;
-    pending = pending.then(() => orm.em.fork().getConnection().execute(
-      `update ${table} set progress_done = ?, progress_total = ?, updated_at = now() where ${where} and status = 'running'`, [done, total, ...params],
-    )).catch((err: unknown) => logger.warn({ err, table, params }, 'could not store progress'));
+    pending = pending.then(() => storeExplainProgress(orm.em.fork(), key, done, total))
+      .catch((err: unknown) => logger.warn({ err, ...key }, 'could not store progress'));
   };
   return { onProgress, flushed: () => pending };
 }
@@ -28,13 +30,10 @@ function progressWriter(orm: MikroORM, table: 'run_explanation' | 'run_debrief',
  */
 export async function explainRun(orm: MikroORM, runId: string): Promise<void> {
   const em = orm.em.fork();
-  const claimed = await em.execute<{ id: string }[]>(
-    `update run_explanation set status = 'running', started_at = now(), attempts = attempts + 1, updated_at = now()
-       where run_id = ? and status in ('queued', 'running') returning id`, [runId],
-  );
-  if (!claimed.length) return;
+  const key: ExplainJobKey = { runId };
+  if (!(await claimExplainJob(em, key))) return;
   const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
-  const { onProgress, flushed } = progressWriter(orm, 'run_explanation', 'run_id = ?', [runId]);
+  const { onProgress, flushed } = progressWriter(orm, key);
   try {
     const result = await explainAward(run.problem, run.result!, {
       solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
@@ -42,19 +41,14 @@ export async function explainRun(orm: MikroORM, runId: string): Promise<void> {
     });
     await flushed();
     await em.transactional(async (tx) => {
-      const done = await tx.execute<{ id: string }[]>(
-        `update run_explanation set status = 'done', result = ?::jsonb, error = null, computed_at = now(), progress_done = progress_total, updated_at = now()
-           where run_id = ? and status = 'running' returning id`, [JSON.stringify(result), runId],
-      );
-      if (!done.length) return;
+      if (!(await finishExplainJob(tx, key, result))) return;
       await audit(tx, { tenderId: run.tender.id, actor: null, action: 'run.explained', subject: `run ${runId}`, detail: { solves: result.solves, seconds: result.seconds } });
     });
     logger.info({ runId, solves: result.solves, seconds: result.seconds }, 'run explained');
   } catch (err) {
     await flushed();
     logger.error({ err, runId }, 'explanation failed');
-    await em.execute(`update run_explanation set status = 'failed', error = ?, updated_at = now() where run_id = ? and status = 'running'`,
-      ['The explanation could not be computed; the error is in the server log. Ask for it again.', runId]);
+    await failExplainJob(em, key, 'The explanation could not be computed; the error is in the server log. Ask for it again.');
   }
 }
 
@@ -64,13 +58,10 @@ export async function explainRun(orm: MikroORM, runId: string): Promise<void> {
  */
 export async function debriefRun(orm: MikroORM, runId: string, vendorId: string): Promise<void> {
   const em = orm.em.fork();
-  const claimed = await em.execute<{ id: string }[]>(
-    `update run_debrief set status = 'running', started_at = now(), attempts = attempts + 1, updated_at = now()
-       where run_id = ? and vendor_id = ? and status in ('queued', 'running') returning id`, [runId, vendorId],
-  );
-  if (!claimed.length) return;
+  const key: ExplainJobKey = { runId, vendorId };
+  if (!(await claimExplainJob(em, key))) return;
   const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
-  const { onProgress, flushed } = progressWriter(orm, 'run_debrief', 'run_id = ? and vendor_id = ?', [runId, vendorId]);
+  const { onProgress, flushed } = progressWriter(orm, key);
   try {
     const found = await debriefVendor(run.problem, run.result!, vendorId, {
       solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
@@ -81,18 +72,13 @@ export async function debriefRun(orm: MikroORM, runId: string, vendorId: string)
     // Nothing to debrief (it won every region it bid): an empty debrief says so.
     const result = found ?? { vendor: vendorId, vendorName: vendorId, awarded: true, regions: [], uniformReduction: null };
     await em.transactional(async (tx) => {
-      const done = await tx.execute<{ id: string }[]>(
-        `update run_debrief set status = 'done', result = ?::jsonb, error = null, computed_at = now(), progress_done = progress_total, updated_at = now()
-           where run_id = ? and vendor_id = ? and status = 'running' returning id`, [JSON.stringify(result), runId, vendorId],
-      );
-      if (!done.length) return;
+      if (!(await finishExplainJob(tx, key, result))) return;
       await audit(tx, { tenderId: run.tender.id, actor: null, action: 'run.debriefed', subject: `run ${runId}`, detail: { vendorOrganisation: vendorId } });
     });
   } catch (err) {
     await flushed();
     logger.error({ err, runId, vendorId }, 'debrief failed');
-    await em.execute(`update run_debrief set status = 'failed', error = ?, updated_at = now() where run_id = ? and vendor_id = ? and status = 'running'`,
-      ['The debrief could not be computed; the error is in the server log. Ask for it again.', runId, vendorId]);
+    await failExplainJob(em, key, 'The debrief could not be computed; the error is in the server log. Ask for it again.');
   }
 }
 

@@ -4,6 +4,7 @@ import { logger } from '../logger';
 import { ormConfig } from '../mikro-orm.config';
 import { loadDemo } from '../../seeds/demo';
 import { setting } from '../config';
+import { recordSeedOnce } from './seed.queries';
 
 /** Named data sets. Each loads once per database (recorded in seed_history). */
 export const SEEDS: Record<string, (em: EntityManager) => Promise<void>> = {
@@ -16,10 +17,7 @@ export async function seed(em: EntityManager, name: string): Promise<boolean> {
   if (!load) throw new Error(`Unknown data set "${name}". Known: ${Object.keys(SEEDS).join(', ')}`);
   return em.transactional(async (tx) => {
     // The row lock makes two concurrent starts load it once.
-    const inserted = await tx.execute<{ name: string }[]>(
-      `insert into seed_history (name) values (?) on conflict do nothing returning name`, [name],
-    );
-    if (inserted.length === 0) return false;
+    if (!(await recordSeedOnce(tx, name))) return false;
     await load(tx);
     return true;
   });

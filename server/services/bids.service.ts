@@ -2,7 +2,7 @@ import { createHash } from 'node:crypto';
 import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { recordByCode, type BidFigures } from '@shared/bids';
-import { bidsValidUntil, type ComplianceDecision, type ExclusionGround } from '@shared/compliance';
+import { bidsValidUntil } from '@shared/compliance';
 import { describeAwardBasis } from '@shared/award-basis';
 import { formatInZone } from '@shared/time-zone';
 import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
@@ -20,7 +20,9 @@ import { audit } from './audit.service';
 import { bidCommitment, commitBid } from './bid-commitment';
 import { closeIfDue, findVisibleTender } from './tender-access';
 import { isLiveBid, isSealed, LIVE_BID_STATUSES } from '@shared/tenders';
-import { sqlList } from './sql';
+import { biddingTenderForShare, replaceBidLines, tabulationRows } from './queries/bids.queries';
+import { openingTender } from './queries/opening.queries';
+import { tenderRegionRows } from './queries/tender-rows.queries';
 import { abnormallyLowFlags } from './evaluation/abnormally-low';
 import { exportName } from '../http/download';
 
@@ -133,17 +135,7 @@ interface BiddingTender {
  * region as an entity.
  */
 async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
-  const rows = await tx.execute<{
-    status: string; reference: string; title: string; closes_at: Date | string; time_zone: string; published: boolean; invited: boolean; regions: Record<string, string> | null; amendment: number;
-  }[]>(
-    `select t.status, t.reference, t.title, t.closes_at, t.time_zone, t.published_at is not null as published,
-            (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = t.id) as amendment,
-            exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited,
-            (select json_object_agg(r.code, r.id) from region r where r.tender_id = t.id) as regions
-       from tender t where t.id = ? for share`,
-    [vendorId, tenderId],
-  );
-  const row = rows[0];
+  const row = await biddingTenderForShare(tx, tenderId, vendorId);
   if (!row || !row.invited || row.status === 'draft' || !row.published) throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
   if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt, row.time_zone, row.status === 'cancelled');
@@ -202,17 +194,7 @@ export async function saveBid(deps: BidDeps, user: User, tenderId: string, input
     // save replaces every figure of the bid, so they go too (the vendor's own act, not a silent
     // loss), in the same statement: one round trip less while the bid holds its locks.
     await tx.flush();
-    await tx.execute(
-      `with kept as (
-         insert into bid_line (id, bid_id, region_id, unit_price)
-         select gen_random_uuid(), ?, l.region_id, l.unit_price from jsonb_to_recordset(?::jsonb) as l(region_id uuid, unit_price numeric)
-         on conflict (bid_id, region_id) do update set unit_price = excluded.unit_price, updated_at = now()
-         returning region_id),
-       removed as (delete from bid_removed_line where bid_id = ?)
-       delete from bid_line where bid_id = ? and region_id not in (select region_id from kept)`,
-      // JSON, not arrays: the query builder would spread an array into a list of parameters.
-      [bid.id, JSON.stringify(codes.map((c) => ({ region_id: bidding.regions.get(c), unit_price: input.prices[c] }))), bid.id, bid.id],
-    );
+    await replaceBidLines(tx, bid.id, codes.map((c) => ({ region_id: bidding.regions.get(c)!, unit_price: input.prices[c] })));
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
     return { bid, tender: bidding };
   });
@@ -297,29 +279,9 @@ export async function bidsOf(em: EntityManager, user: User, tenderId: string): P
  * and whether the stored figures still give that commitment (`receiptVerified`).
  */
 export async function tabulate(em: EntityManager, tender: Pick<Tender, 'id'>): Promise<TabulatedBid[]> {
-  const rows = await em.execute<{
-    id: string; vendor_id: string; vendor_name: string; sme: boolean; fixed_fee: string; capacity: string | null;
-    submitted_at: Date | string; digest: string; nonce: string | null; revision: number; reference: string; document_id: string | null;
-    prices: Record<string, number | string> | null; removed: Record<string, number | string> | null;
-    compliance_decision: ComplianceDecision | null; compliance_ground: ExclusionGround | null; compliance_note: string | null; compliance_decided_at: Date | string | null;
-    low_price_explanation_requested_at: Date | string | null; low_price_accepted: boolean | null; low_price_note: string | null; low_price_decided_at: Date | string | null;
-  }[]>(
-    `select b.id, o.id as vendor_id, o.name as vendor_name, o.sme, b.fixed_fee, b.capacity, b.submitted_at, b.digest, b.nonce, b.revision,
-            (select t.reference from tender t where t.id = b.tender_id) as reference, b.document_id,
-            (select json_object_agg(r.code, l.unit_price order by r.position)
-               from bid_line l join region r on r.id = l.region_id where l.bid_id = b.id) as prices,
-            (select json_object_agg(x.region_code, x.unit_price order by x.region_code) from bid_removed_line x where x.bid_id = b.id) as removed,
-            b.compliance_decision, b.compliance_ground, b.compliance_note, b.compliance_decided_at,
-            b.low_price_explanation_requested_at, b.low_price_accepted, b.low_price_note, b.low_price_decided_at
-       from bid b join vendor_organisation o on o.id = b.vendor_organisation_id
-      where b.tender_id = ? and b.status in (${sqlList(LIVE_BID_STATUSES)})
-      order by o.name asc, o.id asc`,
-    [tender.id],
-  );
-  const [regions, [settings]] = await Promise.all([
-    em.execute<{ code: string; forecast: string | number }[]>('select code, forecast from region where tender_id = ? order by position', [tender.id]),
-    em.execute<{ abnormally_low_percent: string | number }[]>('select abnormally_low_percent from tender where id = ?', [tender.id]),
-  ]);
+  const rows = await tabulationRows(em, tender.id);
+  // The abnormally-low percent is read with the tender's fields the opening record uses.
+  const [regions, settings] = await Promise.all([tenderRegionRows(em, tender.id), openingTender(em, tender.id)]);
   const iso = (d: Date | string | null) => (d === null ? null : new Date(d).toISOString());
   const bids = rows.map((b) => {
     const fixedFee = Number(b.fixed_fee);

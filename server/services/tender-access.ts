@@ -3,9 +3,8 @@ import type { TenderStatus } from '@shared/tenders';
 import { Invitation, Tender, type User } from '../entities';
 import { ConflictError, NotFoundError } from '../http/errors';
 import { audit } from './audit.service';
-import { LIVE_BID_STATUSES } from '@shared/tenders';
 import { writeOpeningRecord } from './opening';
-import { sqlList, uuidArray } from './sql';
+import { lockDueTenders, lockTenderRow, markTendersClosed, openTenderDue } from './queries/tender-rows.queries';
 
 /**
  * How long after its closing time a tender is closed and its bids opened. A bid is on time when its
@@ -19,52 +18,34 @@ import { sqlList, uuidArray } from './sql';
 export const CLOSING_GRACE_MS = 30_000;
 
 /**
- * A tender's status as of now, in SQL over `tender t`: an open tender whose closing time has
- * passed is closed, whether or not the close job has written it yet. For reads that must not write.
- */
-export const CURRENT_STATUS = `(case when t.status = 'open' and t.closes_at <= now() then 'closed'::tender_status else t.status end)`;
-
-/**
  * Closes the tender if its closing time plus the grace has passed by `now` (this process's clock,
  * the one arrival stamps are taken by; the database's is never used for it). Atomic and
  * idempotent: the scheduled close job and any read may race it, only one changes the row.
  */
 export async function closeIfDue(em: EntityManager, tenderId: string, now = new Date()): Promise<boolean> {
-  return (await closeWhere(em, 'id = ?', [tenderId], now)) > 0;
+  return (await closeDue(em, tenderId, now)) > 0;
 }
 
 /** Closes every open tender whose time has come (run at start-up and by the close job). */
 export async function closeAllDue(em: EntityManager, now = new Date()): Promise<number> {
-  return closeWhere(em, 'true', [], now);
+  return closeDue(em, null, now);
 }
 
 /**
- * Closes the due tenders matching `condition`, each with its opening record and its audit entry
+ * Closes the due tender (or, with null, every due tender), each with its opening record and its audit entry
  * (which carries the record's digest), in one transaction. The
  * rows are locked first: a bid being stored holds its tender's row FOR SHARE, so closing waits for
  * every bid in flight; the bids are counted by a later statement, which (read committed) sees them.
  */
-async function closeWhere(em: EntityManager, condition: string, params: unknown[], now: Date): Promise<number> {
+async function closeDue(em: EntityManager, tenderId: string | null, now: Date): Promise<number> {
   const cutoff = new Date(now.getTime() - CLOSING_GRACE_MS);
   // Lists and reads call this on every request: a plain look first (one round trip), the
   // transaction (three at least) only when a tender is due.
-  const [due] = await em.execute<{ due: boolean }[]>(
-    `select exists (select 1 from tender where ${condition} and status = 'open' and closes_at <= ?) as due`, [...params, cutoff],
-  );
-  if (!due?.due) return 0;
+  if (!(await openTenderDue(em, tenderId, cutoff))) return 0;
   return em.transactional(async (tx) => {
-    const locked = await tx.execute<{ id: string }[]>(
-      // NO KEY UPDATE, as the update itself: it waits for bids (FOR SHARE) but not for audit
-      // entries being appended (their foreign key takes KEY SHARE), which may hold the chain's lock.
-      `select id from tender where ${condition} and status = 'open' and closes_at <= ? order by id for no key update`, [...params, cutoff],
-    );
+    const locked = await lockDueTenders(tx, tenderId, cutoff);
     if (!locked.length) return 0;
-    const rows = await tx.execute<{ id: string; bids: string }[]>(
-      `update tender set status = 'closed', closed_at = closes_at, updated_at = now()
-         where id = any(?::uuid[])
-         returning id, (select count(*) from bid where bid.tender_id = tender.id and bid.status in (${sqlList(LIVE_BID_STATUSES)})) as bids`,
-      [uuidArray(locked.map((r) => r.id))],
-    );
+    const rows = await markTendersClosed(tx, locked);
     for (const row of rows) {
       // The opening record (and the first abnormally-low screen) in the same transaction: its
       // digest is in the closing entry, so the record cannot change unseen afterwards.
@@ -135,9 +116,7 @@ export async function findVisibleTender(em: EntityManager, user: User, id: strin
 export async function lockTender(
   tx: EntityManager, user: User, tenderId: string, allowed: readonly TenderStatus[], conflict: string,
 ): Promise<{ id: string; status: TenderStatus }> {
-  const [row] = await tx.execute<{ status: TenderStatus; created_by_id: string }[]>(
-    'select status, created_by_id from tender where id = ? for no key update', [tenderId],
-  );
+  const row = await lockTenderRow(tx, tenderId);
   // Vendors decide nothing on a tender (their bids take a lock of their own, in bids.service).
   if (!row || user.role === 'vendor' || !ownsOrOversees(user, row.created_by_id)) throw new NotFoundError('The tender');
   if (!allowed.includes(row.status)) throw new ConflictError(conflict);

@@ -3,7 +3,7 @@ import type { Pool } from 'pg';
 import { WORKLIST_SECTIONS, type Worklist, type WorklistItem, type WorklistKind } from '@shared/worklist';
 import type { User } from '../entities';
 import type { SeenMarkKind } from '../entities/seen-mark.entity';
-import { CLOSING_SOON_HOURS, worklistRows, type WorklistRow } from './queries/worklist.queries';
+import { CLOSING_SOON_HOURS, upsertSeenMark, worklistRows, type WorklistRow } from './queries/worklist.queries';
 
 /**
  * The home page's worklist: what waits for the signed-in person, by role, computed in one statement
@@ -29,11 +29,7 @@ export async function worklistCount(pool: Pool, user: User): Promise<{ total: nu
  * `at` (taken before the read, so anything written during it still counts as new).
  */
 export async function markSeen(em: EntityManager, user: User, tenderId: string, kind: SeenMarkKind, at: Date): Promise<void> {
-  await em.execute(
-    `insert into seen_mark (id, user_id, tender_id, kind, seen_at) values (gen_random_uuid(), ?, ?, ?, ?)
-     on conflict (user_id, tender_id, kind) do update set seen_at = greatest(seen_mark.seen_at, excluded.seen_at), updated_at = now()`,
-    [user.id, tenderId, kind, at],
-  );
+  await upsertSeenMark(em, user.id, tenderId, kind, at);
 }
 
 function rowsOf(pool: Pool, user: User): Promise<WorklistRow[]> {

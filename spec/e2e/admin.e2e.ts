@@ -1,6 +1,7 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { MailMessage } from '../../server/entities';
 import { ormConfig } from '../../server/mikro-orm.config';
+import { waitFor } from '../support/wait';
 import { animationsDone, baseUrl, openBrowser, screenshot, seriousViolations, signIn } from './support/browser';
 
 /** The administrator's pages, and a new person's path from invitation e-mail to first sign-in. */
@@ -13,13 +14,11 @@ afterAll(() => b.close());
 async function latestLinkTo(email: string): Promise<string> {
   const orm = await MikroORM.init(ormConfig(process.env['E2E_DATABASE_URL']!));
   try {
-    for (let i = 0; i < 75; i++) {
+    const link = await waitFor(`a set-password e-mail to ${email}`, async () => {
       const mail = await orm.em.fork().findOne(MailMessage, { toAddresses: { $contains: [email] } }, { orderBy: { createdAt: 'desc' } });
-      const link = mail?.text.match(/https?:\/\/\S+\/account-setup\/[A-Za-z0-9_-]+/)?.[0];
-      if (link) return new URL(link).pathname;
-      await new Promise((r) => setTimeout(r, 200));
-    }
-    throw new Error(`no set-password e-mail to ${email}`);
+      return mail?.text.match(/https?:\/\/\S+\/account-setup\/[A-Za-z0-9_-]+/)?.[0];
+    }, { timeoutMs: 15_000, everyMs: 200 });
+    return new URL(link).pathname;
   } finally {
     await orm.close();
   }

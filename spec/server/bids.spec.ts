@@ -144,6 +144,8 @@ test('bids racing the deadline are each stored whole before it or refused, never
   const results = await Promise.all(saving);
   for (const r of results) expect([200, 409]).toContain(r.status);
   const bids = await t.em().find(Bid, { tender: id });
+  // One stored bid per accepted save, none for a refused one; each whole.
+  expect(bids).toHaveLength(results.filter((r) => r.status === 200).length);
   for (const b of bids) expect(await t.em().count(BidLine, { bid: b })).toBe(40);
   expect(bids.length).toBe(results.filter((r) => r.status === 200).length);
 });

@@ -4,6 +4,7 @@ import { seed } from '../../server/ops/seed';
 import { DEMO_PASSWORD } from '../../seeds/demo-people';
 import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
+import { waitFor } from '../support/wait';
 import { openTender, passClosingTime, tenderBody } from '../support/tenders';
 
 /** The buyer → compliance flow on the demo salt tender, through the API with the real engine. */
@@ -131,12 +132,10 @@ test('resilience: the award re-solved without each awarded vendor, the worst cas
   const res = await compliance.post(`/api/runs/${split.id}/resilience`);
   expect(res.status).toBe(202);
   expect(res.body.queued).toBe(split.result!.awards.length);
-  let view;
-  for (let i = 0; i < 240; i++) {
-    view = (await compliance.get(`/api/runs/${split.id}/resilience`)).body;
-    if (view.rows.every((r: { status: string }) => !['queued', 'solving'].includes(r.status))) break;
-    await new Promise((r) => setTimeout(r, 250));
-  }
+  const view = await waitFor('every resilience re-solve to finish', async () => {
+    const body = (await compliance.get(`/api/runs/${split.id}/resilience`)).body;
+    return body.rows.every((r: { status: string }) => !['queued', 'solving'].includes(r.status)) && body;
+  }, { everyMs: 250 });
   expect(view.rows).toHaveLength(split.result!.awards.length);
   for (const row of view.rows) {
     if (row.status === 'optimal') expect(row.increase).toBeGreaterThanOrEqual(-1e-6);

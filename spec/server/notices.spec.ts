@@ -8,6 +8,7 @@ import { seed } from '../../server/ops/seed';
 import { DEMO_PASSWORD } from '../../seeds/demo-people';
 import { Browser, startTestApp, type TestApp } from '../support/app';
 import { waitForRun } from '../support/evaluation';
+import { waitFor } from '../support/wait';
 
 /** Award notices on the demo salt tender, after the buyer → compliance approval. */
 jest.setTimeout(120_000);
@@ -33,12 +34,8 @@ async function approvedAward(t: TestApp): Promise<{ tenderId: string; run: RunVi
   return { tenderId, run, buyer };
 }
 
-async function waitForStatus(t: TestApp, tenderId: string, status: string, ms = 60_000): Promise<void> {
-  const deadline = Date.now() + ms;
-  while ((await t.em().findOneOrFail(Tender, { id: tenderId })).status !== status) {
-    if (Date.now() > deadline) throw new Error(`tender not ${status} after ${ms} ms`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
+async function waitForStatus(t: TestApp, tenderId: string, status: string): Promise<void> {
+  await waitFor(`the tender to be ${status}`, async () => (await t.em().findOneOrFail(Tender, { id: tenderId })).status === status, { everyMs: 250 });
 }
 
 describe('with the mail server up', () => {
@@ -176,11 +173,7 @@ test('with the mail server down, notices stay queued and go out when it returns'
     await t.catcher.close();
     expect((await buyer.post(`/api/tenders/${tenderId}/notices`)).body).toEqual({ queued: 7 });
     // Wait until every notice has failed at least once.
-    for (let i = 0; i < 120; i++) {
-      const notices = await t.em().find(Notice, { tender: tenderId });
-      if (notices.every((n) => n.attempts > 0)) break;
-      await new Promise((r) => setTimeout(r, 250));
-    }
+    await waitFor('every notice to have failed once', async () => (await t.em().find(Notice, { tender: tenderId })).every((n) => n.attempts > 0), { everyMs: 250 });
     const waiting = await t.em().find(Notice, { tender: tenderId });
     expect(waiting.map((n) => n.status)).toEqual(Array(7).fill('queued'));
     expect(waiting.every((n) => n.attempts > 0 && n.lastError)).toBe(true);

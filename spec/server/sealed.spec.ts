@@ -112,6 +112,7 @@ test('before closing, the vendor is served its own figures (so the figures looke
 test('before closing, the vendor itself is never served the nonce that keys its receipt', async () => {
   const { nonce } = await derivedSecrets();
   const gets = apiRoutes(t.deps).filter((r) => r.method === 'get' && !r.path.includes('outbox') && !r.path.includes(':documentId'));
+  expect(gets.length).toBeGreaterThan(10);
   for (const r of gets) {
     const path = '/api' + r.path.replace(':id', tenderId).replace(':token', 'x'.repeat(43));
     const res = await vendorBrowser.get(path).buffer(true);

@@ -3,6 +3,7 @@ import { readdirSync, readFileSync } from 'node:fs';
 import path from 'node:path';
 import { Bid, BidLine, Invitation, Region, Run, Scenario, Tender, VendorOrganisation } from '../../server/entities';
 import { makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
+import { waitFor } from '../support/wait';
 
 /**
  * A solve worker killed in the middle of a run: the job expires, another worker process takes it,
@@ -84,19 +85,15 @@ test('a worker killed mid-run: the run is retried by another worker and complete
   const runId = queued.body.id as string;
 
   // Kill the first worker as soon as it has claimed the run.
-  for (let i = 0; i < 600; i++) {
-    const run = await t.em().findOneOrFail(Run, { id: runId });
-    if (run.status === 'solving') break;
-    await new Promise((r) => setTimeout(r, 50));
-  }
+  await waitFor('the first worker to claim the run', async () => (await t.em().findOneOrFail(Run, { id: runId })).status === 'solving', { everyMs: 50 });
   // Meanwhile every thread of the worker, its solver threads included, is in Linux's SCHED_IDLE
   // class (WORKER_SCHED=idle, the default), so the solve only takes CPU nothing else wants. The
   // helper solver thread (glpk.js, or the neighbourhood search on a model this large) is known by
   // its niceness, at least 5 steps below the process's (low-priority.ts).
   if (process.platform === 'linux') {
-    for (let i = 0; i < 100 && !threadsOf(first.pid!).some((th) => th.nice >= HELPER_THREAD_NICE_AT_LEAST); i++) await new Promise((r) => setTimeout(r, 50));
-    const threads = threadsOf(first.pid!);
-    expect(threads.some((th) => th.nice >= HELPER_THREAD_NICE_AT_LEAST)).toBe(true);
+    const threads = await waitFor('the helper solver thread at its lower priority',
+      () => { const all = threadsOf(first.pid!); return all.some((th) => th.nice >= HELPER_THREAD_NICE_AT_LEAST) && all; },
+      { timeoutMs: 10_000, everyMs: 50 });
     expect(new Set(threads.map((th) => th.policy))).toEqual(new Set([SCHED_IDLE]));
   }
   first.kill('SIGKILL');
@@ -104,13 +101,11 @@ test('a worker killed mid-run: the run is retried by another worker and complete
   expect((await t.em().findOneOrFail(Run, { id: runId })).status).toBe('solving');
 
   startWorker();
-  let run: Run | null = null;
-  for (let i = 0; i < 1200; i++) {
-    run = await t.em().findOneOrFail(Run, { id: runId });
-    if (!['queued', 'solving'].includes(run.status)) break;
-    await new Promise((r) => setTimeout(r, 100));
-  }
-  expect(['optimal', 'feasible']).toContain(run!.status);
-  expect(run!.attempts).toBe(2);
-  expect(run!.result!.awards.length).toBeGreaterThan(0);
+  const run = await waitFor('the second worker to finish the run', async () => {
+    const r = await t.em().findOneOrFail(Run, { id: runId });
+    return !['queued', 'solving'].includes(r.status) && r;
+  }, { timeoutMs: 120_000 });
+  expect(['optimal', 'feasible']).toContain(run.status);
+  expect(run.attempts).toBe(2);
+  expect(run.result!.awards.length).toBeGreaterThan(0);
 });

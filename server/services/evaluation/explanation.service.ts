@@ -8,6 +8,7 @@ import { RunDebrief, RunExplanation, RunRegionCheck, type User } from '../../ent
 import { ConflictError, NotFoundError } from '../../http/errors';
 import { queueDebrief, queueExplanation, queueRegionCheck } from '../../jobs/queue';
 import { audit } from '../audit.service';
+import { queueExplainJob, runHasCompliantBid } from '../queries/explanation.queries';
 import { lockTender } from '../tender-access';
 import { findRun } from './results.service';
 import type { EvaluationDeps } from './scenarios.service';
@@ -26,14 +27,7 @@ export async function startExplanation(deps: EvaluationDeps, user: User, runId: 
   if (!usable(run.result)) throw new ConflictError('Only a run with an award can be explained.');
   const queued = await deps.em.transactional(async (tx) => {
     await lockTender(tx, user, run.tender.id, UNSEALED, 'The bids of this tender are sealed.');
-    const rows = await tx.execute<{ id: string }[]>(
-      `insert into run_explanation (id, run_id, requested_by_id, status) values (?, ?, ?, 'queued')
-         on conflict (run_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
-         where run_explanation.status = 'failed'
-       returning id`,
-      [randomUUID(), run.id, user.id],
-    );
-    if (!rows.length) return false;
+    if (!(await queueExplainJob(tx, { runId: run.id }, randomUUID(), user.id))) return false;
     await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.explanation-queued', subject: `run ${run.id}` });
     return true;
   });
@@ -133,23 +127,10 @@ async function debriefsOf(em: EntityManager, runId: string): Promise<DebriefView
 export async function startDebrief(deps: EvaluationDeps, user: User, runId: string, vendorId: string): Promise<{ view: DebriefView; queued: boolean }> {
   const run = await findRun(deps.em, user, runId);
   if (!usable(run.result)) throw new ConflictError('Only a run with an award can be explained.');
-  const [bid] = await deps.em.execute<{ found: boolean }[]>(
-    `select exists (select 1 from jsonb_array_elements(problem->'vendors') v
-        where v->>'id' = ? and v->'prices' <> '{}'::jsonb
-          and not coalesce(problem->'rules'->'exclude', '[]'::jsonb) @> jsonb_build_array(v->>'id')) as found
-       from run where id = ?`, [vendorId, run.id],
-  );
-  if (!bid?.found) throw new NotFoundError("The vendor's compliant bid in this run");
+  if (!(await runHasCompliantBid(deps.em, run.id, vendorId))) throw new NotFoundError("The vendor's compliant bid in this run");
   const queued = await deps.em.transactional(async (tx) => {
     await lockTender(tx, user, run.tender.id, UNSEALED, 'The bids of this tender are sealed.');
-    const rows = await tx.execute<{ id: string }[]>(
-      `insert into run_debrief (id, run_id, vendor_id, requested_by_id, status) values (?, ?, ?, ?, 'queued')
-         on conflict (run_id, vendor_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
-         where run_debrief.status = 'failed'
-       returning id`,
-      [randomUUID(), run.id, vendorId, user.id],
-    );
-    if (!rows.length) return false;
+    if (!(await queueExplainJob(tx, { runId: run.id, vendorId }, randomUUID(), user.id))) return false;
     await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.debrief-queued', subject: `run ${run.id}`, detail: { vendorOrganisation: vendorId } });
     return true;
   });

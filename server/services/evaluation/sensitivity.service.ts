@@ -3,6 +3,7 @@ import { awardRulesSchema, type AwardProblem, type AwardResult } from '@shared/a
 import { FINISHED_RUN_STATUSES, FORECAST_STEPS, type SensitivityCase, type SensitivityCheck, type SensitivityInput, type SensitivityView } from '@shared/evaluation';
 import { Run, type User } from '../../entities';
 import { ConflictError, ValidationError } from '../../http/errors';
+import { runLabels } from '../queries/evaluation.queries';
 import { findRun, storedProblem } from './results.service';
 import { childInput, evaluableTender, queueChildRuns, type EvaluationDeps } from './scenarios.service';
 
@@ -152,14 +153,7 @@ export async function startSensitivity(deps: EvaluationDeps, user: User, runId: 
 export async function sensitivityOf(em: EntityManager, user: User, runId: string): Promise<SensitivityView> {
   const run = await findRun(em, user, runId);
   // Names and the increment only, read by PostgreSQL: the screen polls while re-solves run.
-  const [row] = await em.execute<{ increment: string | null; vendors: Record<string, string> | null; regions: Record<string, string> | null; codes: string[] | null }[]>(
-    `select problem->'rules'->>'awardIncrement' as increment,
-            (select json_object_agg(v->>'id', coalesce(v->>'name', v->>'id')) from jsonb_array_elements(problem->'vendors') v) as vendors,
-            (select json_object_agg(r->>'id', coalesce(r->>'name', r->>'id')) from jsonb_array_elements(problem->'regions') r) as regions,
-            (select json_agg(r->>'id' order by n) from jsonb_array_elements(problem->'regions') with ordinality as e(r, n)) as codes
-       from run where id = ?`,
-    [run.id],
-  );
+  const row = await runLabels(em, run.id);
   const vendors = new Map(Object.entries(row?.vendors ?? {}));
   const regions = new Map(Object.entries(row?.regions ?? {}));
   const vendorName = (id: string) => vendors.get(id) ?? id;

@@ -1,27 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { formatInZone } from '@shared/time-zone';
 import { renderMail } from '../../mail/templates';
-import { notifyOnce, type NotifyDeps, type Recipient } from './notify';
-
-interface TenderRow {
-  reference: string;
-  title: string;
-  time_zone: string;
-  standstill_ends_at: Date | string | null;
-  buyer_id: string;
-  buyer_email: string;
-  buyer_name: string;
-  buyer_active: boolean;
-}
-
-async function tenderRow(tx: EntityManager, tenderId: string): Promise<TenderRow> {
-  const [row] = await tx.execute<TenderRow[]>(
-    `select t.reference, t.title, t.time_zone, t.standstill_ends_at, u.id as buyer_id, u.email as buyer_email, u.name as buyer_name, u.active as buyer_active
-       from tender t join app_user u on u.id = t.created_by_id where t.id = ?`,
-    [tenderId],
-  );
-  return row;
-}
+import { activeComplianceOfficers, decisionTenderRow } from '../queries/notifications.queries';
+import { notifyOnce, type NotifyDeps } from './notify';
 
 const recommendationLink = (deps: NotifyDeps, tenderId: string) => `${deps.publicUrl}/tenders/${tenderId}/evaluation/recommendation`;
 const settingsLink = (deps: NotifyDeps) => `${deps.publicUrl}/settings`;
@@ -33,8 +14,8 @@ const settingsLink = (deps: NotifyDeps) => `${deps.publicUrl}/settings`;
 export async function notifyRecommendationWaiting(
   tx: EntityManager, deps: NotifyDeps, input: { tenderId: string; recommendationId: string; recommendedBy: string; justification: string },
 ): Promise<void> {
-  const t = await tenderRow(tx, input.tenderId);
-  const officers = await tx.execute<Recipient[]>(`select id, email, name from app_user where role = 'compliance' and active order by email`);
+  const t = await decisionTenderRow(tx, input.tenderId);
+  const officers = await activeComplianceOfficers(tx);
   await notifyOnce(tx, deps.boss, {
     kind: 'recommendation-waiting', subjectId: input.recommendationId, tenderId: input.tenderId, recipients: officers,
     render: (r) => renderMail('recommendation-waiting', `Recommendation awaiting your decision: ${t.reference}`, {
@@ -48,7 +29,7 @@ export async function notifyRecommendationWaiting(
 export async function notifyRecommendationDecided(
   tx: EntityManager, deps: NotifyDeps, input: { tenderId: string; recommendationId: string; decision: 'approved' | 'returned'; decidedBy: string; comment: string },
 ): Promise<void> {
-  const t = await tenderRow(tx, input.tenderId);
+  const t = await decisionTenderRow(tx, input.tenderId);
   if (!t.buyer_active) return;
   const approved = input.decision === 'approved';
   await notifyOnce(tx, deps.boss, {

@@ -4,7 +4,7 @@ import { NOTIFICATION_SETTING, type NotificationKind } from '@shared/notificatio
 import { QUEUES } from '../../jobs/queue';
 import type { OutgoingMail } from '../../mail/mailer';
 import type { RenderedMail } from '../../mail/templates';
-import { uuidArray } from '../sql';
+import { recordNotificationOnce, usersWithSettingOff } from '../queries/notifications.queries';
 
 /** What a service needs to send notifications: the queue, and the address links point to. */
 export interface NotifyDeps {
@@ -42,6 +42,7 @@ function inTransaction(tx: EntityManager) {
         bindings.push(value !== null && typeof value === 'object' && !(value instanceof Date) ? JSON.stringify(value) : value);
         return '?';
       });
+      // eslint-disable-next-line no-restricted-syntax -- runs pg-boss's own statement in our transaction; no SQL of ours
       return { rows: await tx.execute<unknown[]>(sql, bindings) };
     },
   };
@@ -65,22 +66,14 @@ export async function notifyOnce(tx: EntityManager, boss: PgBoss, n: Notificatio
   let off = new Set<string>();
   if (setting) {
     const column = setting === 'closingReminders' ? 'closing_reminders' : 'decision_updates';
-    const rows = await tx.execute<{ user_id: string }[]>(
-      `select user_id from notification_setting where user_id = any(?::uuid[]) and not ${column}`,
-      [uuidArray(n.recipients.map((r) => r.id))],
-    );
-    off = new Set(rows.map((r) => r.user_id));
+    off = new Set(await usersWithSettingOff(tx, n.recipients.map((r) => r.id), column));
   }
   let queued = 0;
   for (const recipient of n.recipients) {
     if (off.has(recipient.id)) continue;
     const mail = n.render(recipient);
-    const inserted = await tx.execute<{ id: string }[]>(
-      `insert into notification_sent (id, kind, subject_id, recipient_id, tender_id, subject)
-       values (gen_random_uuid(), ?, ?, ?, ?, ?) on conflict on constraint notification_sent_once do nothing returning id`,
-      [n.kind, n.subjectId, recipient.id, n.tenderId, mail.subject],
-    );
-    if (!inserted.length) continue;
+    const recorded = await recordNotificationOnce(tx, { kind: n.kind, subjectId: n.subjectId, recipientId: recipient.id, tenderId: n.tenderId, subject: mail.subject });
+    if (!recorded) continue;
     await enqueueMailIn(tx, boss, { to: recipient.email, subject: mail.subject, text: mail.text, html: mail.html });
     queued += 1;
   }

@@ -2,12 +2,11 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { DEFAULT_NOTIFICATION_SETTINGS, type NotificationSettings } from '@shared/notifications';
 import type { User } from '../../entities';
 import { audit } from '../audit.service';
+import { notificationSettingRow, upsertNotificationSetting } from '../queries/notifications.queries';
 
 /** The signed-in person's reminders (no row yet: all on). */
 export async function notificationSettings(em: EntityManager, user: User): Promise<NotificationSettings> {
-  const [row] = await em.execute<{ closing_reminders: boolean; decision_updates: boolean }[]>(
-    'select closing_reminders, decision_updates from notification_setting where user_id = ?', [user.id],
-  );
+  const row = await notificationSettingRow(em, user.id);
   return row ? { closingReminders: row.closing_reminders, decisionUpdates: row.decision_updates } : { ...DEFAULT_NOTIFICATION_SETTINGS };
 }
 
@@ -18,11 +17,7 @@ export async function notificationSettings(em: EntityManager, user: User): Promi
  */
 export async function saveNotificationSettings(em: EntityManager, user: User, input: NotificationSettings): Promise<NotificationSettings> {
   await em.transactional(async (tx) => {
-    await tx.execute(
-      `insert into notification_setting (user_id, closing_reminders, decision_updates, updated_at) values (?, ?, ?, now())
-       on conflict (user_id) do update set closing_reminders = excluded.closing_reminders, decision_updates = excluded.decision_updates, updated_at = now()`,
-      [user.id, input.closingReminders, input.decisionUpdates],
-    );
+    await upsertNotificationSetting(tx, user.id, { closing_reminders: input.closingReminders, decision_updates: input.decisionUpdates });
     await audit(tx, {
       tenderId: null, actor: user, action: 'notification-settings.changed', subject: `person ${user.id}`,
       detail: { person: user.id, name: user.name, email: user.email, closingReminders: input.closingReminders, decisionUpdates: input.decisionUpdates },

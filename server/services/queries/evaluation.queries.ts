@@ -96,3 +96,27 @@ export async function finishRun(tx: EntityManager, runId: string, result: AwardR
   );
   return done.length > 0;
 }
+
+/** What the sensitivity panel names, read out of a run's stored problem (increment numeric as text). */
+export interface RunLabelsRow {
+  increment: string | null;
+  /** Vendor id → name. */
+  vendors: Record<string, string> | null;
+  /** Region code → name. */
+  regions: Record<string, string> | null;
+  /** The region codes in the problem's order (an object's keys would put number-like codes first). */
+  codes: string[] | null;
+}
+
+/** The award increment and the names of a run's vendors and regions, without parsing its problem (the panel polls while re-solves run). */
+export async function runLabels(em: EntityManager, runId: string): Promise<RunLabelsRow | null> {
+  const [row] = await em.execute<RunLabelsRow[]>(
+    `select problem->'rules'->>'awardIncrement' as increment,
+            (select json_object_agg(v->>'id', coalesce(v->>'name', v->>'id')) from jsonb_array_elements(problem->'vendors') v) as vendors,
+            (select json_object_agg(r->>'id', coalesce(r->>'name', r->>'id')) from jsonb_array_elements(problem->'regions') r) as regions,
+            (select json_agg(r->>'id' order by n) from jsonb_array_elements(problem->'regions') with ordinality as e(r, n)) as codes
+       from run where id = ?`,
+    [runId],
+  );
+  return row ?? null;
+}

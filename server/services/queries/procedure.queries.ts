@@ -1,5 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { uuidArray } from '../sql';
+import { LIVE_BID_STATUSES } from '@shared/tenders';
+import { sqlList, uuidArray } from '../sql';
 
 /** An approved, active person of an organisation invited to a tender. */
 export interface InvitedPersonRow {
@@ -57,11 +58,11 @@ export async function keepRemovedPrices(tx: EntityManager, amendmentNumber: numb
   );
 }
 
-/** Returns every submitted bid of the tender to draft (receipt and nonce cleared); their ids and revisions. */
+/** Returns every live (submitted or revised) bid of the tender to draft (receipt and nonce cleared); their ids and revisions. */
 export async function returnSubmittedBidsToDraft(tx: EntityManager, tenderId: string): Promise<{ id: string; revision: number }[]> {
   return tx.execute<{ id: string; revision: number }[]>(
     `update bid set status = 'draft', digest = null, nonce = null, version = version + 1, updated_at = now()
-      where tender_id = ? and status in ('submitted', 'revised') returning id, revision`,
+      where tender_id = ? and status in (${sqlList(LIVE_BID_STATUSES)}) returning id, revision`,
     [tenderId],
   );
 }

@@ -2,7 +2,7 @@ import type { Pool } from 'pg';
 import { statusesAfter, type BidStatus, type TenderSort, type TenderStatus } from '@shared/tenders';
 import { escapeLike } from '../like';
 import { sqlList } from '../sql';
-import { CURRENT_STATUS } from '../tender-access';
+import { CURRENT_STATUS } from './tender-rows.queries';
 
 /** The statuses in which a vendor sees the outcome only once its own letter is sent. */
 export const AFTER_AWARD: TenderStatus[] = ['awarded', ...statusesAfter('awarded')];

@@ -1,7 +1,9 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
 import type { Pool } from 'pg';
+import type { SeenMarkKind } from '../../entities/seen-mark.entity';
 import { LIVE_BID_STATUSES } from '@shared/tenders';
 import { sqlList } from '../sql';
-import { CURRENT_STATUS } from '../tender-access';
+import { CURRENT_STATUS } from './tender-rows.queries';
 
 /**
  * One row of a worklist, whatever its kind: the tender it is about (if any), its due time and the
@@ -185,4 +187,13 @@ export async function worklistRows(
     case 'admin':
       return (await pool.query<WorklistRow>({ name: 'worklist-admin', text: `select * from (${ADMIN}) w${ORDER}`, values: [] })).rows;
   }
+}
+
+/** Records that the person has seen the tender's `kind` as of `at` (a later mark never moves back). */
+export async function upsertSeenMark(em: EntityManager, userId: string, tenderId: string, kind: SeenMarkKind, at: Date): Promise<void> {
+  await em.execute(
+    `insert into seen_mark (id, user_id, tender_id, kind, seen_at) values (gen_random_uuid(), ?, ?, ?, ?)
+     on conflict (user_id, tender_id, kind) do update set seen_at = greatest(seen_mark.seen_at, excluded.seen_at), updated_at = now()`,
+    [userId, tenderId, kind, at],
+  );
 }
