@@ -1,5 +1,6 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { debriefVendor, explainAward, explainRegion, solveAward } from '../award';
+import type { ExplainOptions } from '../award';
 import { Run } from '../entities';
 import { logger } from '../logger';
 import { audit } from '../services/audit.service';
@@ -24,94 +25,74 @@ function progressWriter(orm: MikroORM, key: ExplainJobKey) {
   return { onProgress, flushed: () => pending };
 }
 
-/**
- * Computes the explanation of one run (server/award/explain.ts) and stores it. Safe to run again:
- * a worker that died leaves it `running`, and the retried job claims it again; a done one is left.
- */
-export async function explainRun(orm: MikroORM, runId: string): Promise<void> {
-  const em = orm.em.fork();
-  const key: ExplainJobKey = { runId };
-  if (!(await claimExplainJob(em, key))) return;
-  const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
-  const { onProgress, flushed } = progressWriter(orm, key);
-  try {
-    const result = await explainAward(run.problem, run.result!, {
-      solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
-      onProgress,
-    });
-    await flushed();
-    await em.transactional(async (tx) => {
-      if (!(await finishExplainJob(tx, key, result))) return;
-      await audit(tx, { tenderId: run.tender.id, actor: null, action: 'run.explained', subject: `run ${runId}`, detail: { solves: result.solves, seconds: result.seconds } });
-    });
-    logger.info({ runId, solves: result.solves, seconds: result.seconds }, 'run explained');
-  } catch (err) {
-    await flushed();
-    logger.error({ err, runId }, 'explanation failed');
-    await failExplainJob(em, key, 'The explanation could not be computed; the error is in the server log. Ask for it again.');
-  }
+/** What one kind of job computes, how its end is audited, and what its reader sees when it fails. */
+interface JobKind<T> {
+  compute: (run: Run, options: ExplainOptions) => Promise<T>;
+  audited: (result: T) => { action: string; detail: Record<string, unknown> };
+  failed: string;
+  name: string;
 }
 
 /**
- * Computes one vendor's debrief of a run (`debriefVendor`, each forced re-solve with the run's time
- * limit) and stores it in `run_debrief`; claimed and retried as the explanation is.
+ * Claims the job row of `key`, computes it with the run's own time limit and stores it with its
+ * audit entry in one transaction. Safe to run again: a worker that died leaves it `running`, and
+ * the retried job claims it again; a done one is left.
  */
-export async function debriefRun(orm: MikroORM, runId: string, vendorId: string): Promise<void> {
+async function runJob<T>(orm: MikroORM, key: ExplainJobKey, kind: JobKind<T>): Promise<void> {
   const em = orm.em.fork();
-  const key: ExplainJobKey = { runId, vendorId };
   if (!(await claimExplainJob(em, key))) return;
-  const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
+  const run = await em.findOneOrFail(Run, { id: key.runId }, { populate: ['problem'] });
   const { onProgress, flushed } = progressWriter(orm, key);
   try {
-    const found = await debriefVendor(run.problem, run.result!, vendorId, {
-      solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
-      budgetSeconds: run.timeLimitSeconds,
-      onProgress,
-    });
+    const result = await kind.compute(run, { solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }), onProgress });
     await flushed();
+    await em.transactional(async (tx) => {
+      if (!(await finishExplainJob(tx, key, result))) return;
+      await audit(tx, { tenderId: run.tender.id, actor: null, subject: `run ${key.runId}`, ...kind.audited(result) });
+    });
+    logger.info({ ...key }, `${kind.name} done`);
+  } catch (err) {
+    await flushed();
+    logger.error({ err, ...key }, `${kind.name} failed`);
+    await failExplainJob(em, key, kind.failed);
+  }
+}
+
+/** The explanation of one run (server/award/explain.ts `explainAward`), within its budget. */
+export function explainRun(orm: MikroORM, runId: string): Promise<void> {
+  return runJob(orm, { runId }, {
+    name: 'explanation',
+    compute: (run, options) => explainAward(run.problem, run.result!, options),
+    audited: (result) => ({ action: 'run.explained', detail: { solves: result.solves, seconds: result.seconds } }),
+    failed: 'The explanation could not be computed; the error is in the server log. Ask for it again.',
+  });
+}
+
+/** One vendor's debrief of a run (`debriefVendor`), each forced re-solve with the run's time limit. */
+export function debriefRun(orm: MikroORM, runId: string, vendorId: string): Promise<void> {
+  return runJob(orm, { runId, vendorId }, {
+    name: 'debrief',
     // Nothing to debrief (it won every region it bid): an empty debrief says so.
-    const result = found ?? { vendor: vendorId, vendorName: vendorId, awarded: true, regions: [], uniformReduction: null };
-    await em.transactional(async (tx) => {
-      if (!(await finishExplainJob(tx, key, result))) return;
-      await audit(tx, { tenderId: run.tender.id, actor: null, action: 'run.debriefed', subject: `run ${runId}`, detail: { vendorOrganisation: vendorId } });
-    });
-  } catch (err) {
-    await flushed();
-    logger.error({ err, runId, vendorId }, 'debrief failed');
-    await failExplainJob(em, key, 'The debrief could not be computed; the error is in the server log. Ask for it again.');
-  }
+    compute: async (run, options) => (await debriefVendor(run.problem, run.result!, vendorId, { ...options, budgetSeconds: run.timeLimitSeconds }))
+      ?? { vendor: vendorId, vendorName: vendorId, awarded: true, regions: [], uniformReduction: null },
+    audited: () => ({ action: 'run.debriefed', detail: { vendorOrganisation: vendorId } }),
+    failed: 'The debrief could not be computed; the error is in the server log. Ask for it again.',
+  });
 }
 
 /**
- * Works one region of an explanation out exactly (`explainRegion`: its forced re-solve with the
- * run's whole time limit) and stores it in `run_region_check`; claimed and retried as the
- * explanation is. Not proven even then: the region keeps a range, now with the longer re-solve's bounds.
+ * One region of an explanation worked out exactly (`explainRegion`: its forced re-solve with the
+ * run's whole time limit). Not proven even then: the region keeps a range, with the longer re-solve's bounds.
  */
-export async function regionCheckRun(orm: MikroORM, runId: string, region: string): Promise<void> {
-  const em = orm.em.fork();
-  const claimed = await em.execute<{ id: string }[]>(
-    `update run_region_check set status = 'running', started_at = now(), attempts = attempts + 1, updated_at = now()
-       where run_id = ? and region = ? and status in ('queued', 'running') returning id`, [runId, region],
-  );
-  if (!claimed.length) return;
-  const run = await em.findOneOrFail(Run, { id: runId }, { populate: ['problem'] });
-  try {
-    const result = await explainRegion(run.problem, run.result!, region, {
-      solve: (problem) => solveAward(problem, { timeLimitSeconds: run.timeLimitSeconds }),
-      budgetSeconds: run.timeLimitSeconds,
-    });
-    if (!result) throw new Error(`No compliant bid lost region ${region}.`);
-    await em.transactional(async (tx) => {
-      const done = await tx.execute<{ id: string }[]>(
-        `update run_region_check set status = 'done', result = ?::jsonb, error = null, computed_at = now(), updated_at = now()
-           where run_id = ? and region = ? and status = 'running' returning id`, [JSON.stringify(result), runId, region],
-      );
-      if (!done.length) return;
-      await audit(tx, { tenderId: run.tender.id, actor: null, action: 'run.region-checked', subject: `run ${runId}`, detail: { region, exact: result.challenger?.exact ?? null } });
-    });
-  } catch (err) {
-    logger.error({ err, runId, region }, 'region check failed');
-    await em.execute(`update run_region_check set status = 'failed', error = ?, updated_at = now() where run_id = ? and region = ? and status = 'running'`,
-      ['This region could not be worked out; the error is in the server log. Ask for it again.', runId, region]);
-  }
+export function regionCheckRun(orm: MikroORM, runId: string, region: string): Promise<void> {
+  return runJob(orm, { runId, region }, {
+    name: 'region check',
+    compute: async (run, options) => {
+      const result = await explainRegion(run.problem, run.result!, region, { ...options, budgetSeconds: run.timeLimitSeconds });
+      if (!result) throw new Error(`No compliant bid lost region ${region}.`);
+      return result;
+    },
+    audited: (result) => ({ action: 'run.region-checked', detail: { region, exact: result.challenger?.exact ?? null } }),
+    failed: 'This region could not be worked out; the error is in the server log. Ask for it again.',
+  });
 }

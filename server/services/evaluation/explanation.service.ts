@@ -92,14 +92,7 @@ export async function startRegionCheck(deps: EvaluationDeps, user: User, runId: 
   if (!entry?.challenger) throw new NotFoundError('A region of this run that a compliant bid lost');
   const queued = await deps.em.transactional(async (tx) => {
     await lockTender(tx, user, run.tender.id, UNSEALED, 'The bids of this tender are sealed.');
-    const rows = await tx.execute<{ id: string }[]>(
-      `insert into run_region_check (id, run_id, region, requested_by_id, status) values (?, ?, ?, ?, 'queued')
-         on conflict (run_id, region) do update set status = 'queued', error = null, requested_by_id = excluded.requested_by_id, updated_at = now()
-         where run_region_check.status = 'failed'
-       returning id`,
-      [randomUUID(), run.id, region, user.id],
-    );
-    if (!rows.length) return false;
+    if (!(await queueExplainJob(tx, { runId: run.id, region }, randomUUID(), user.id))) return false;
     await audit(tx, { tenderId: run.tender.id, actor: user, action: 'run.region-check-queued', subject: `run ${run.id}`, detail: { region } });
     return true;
   });

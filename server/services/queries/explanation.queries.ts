@@ -1,15 +1,19 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 
 /**
- * The job row of an explanation (`run_explanation`, one per run) or of a vendor's debrief
- * (`run_debrief`, one per run and vendor): both are queued, claimed, advanced and finished alike.
+ * The job row of an explanation (`run_explanation`, one per run), of a vendor's debrief
+ * (`run_debrief`, one per run and vendor) or of a region worked out exactly (`run_region_check`,
+ * one per run and region): all are queued, claimed, advanced and finished alike.
  */
-export type ExplainJobKey = { runId: string; vendorId?: undefined } | { runId: string; vendorId: string };
+export type ExplainJobKey =
+  | { runId: string; vendorId?: undefined; region?: undefined }
+  | { runId: string; vendorId: string; region?: undefined }
+  | { runId: string; vendorId?: undefined; region: string };
 
-function target(key: ExplainJobKey): { table: 'run_explanation' | 'run_debrief'; where: string; params: string[] } {
-  return key.vendorId === undefined
-    ? { table: 'run_explanation', where: 'run_id = ?', params: [key.runId] }
-    : { table: 'run_debrief', where: 'run_id = ? and vendor_id = ?', params: [key.runId, key.vendorId] };
+function target(key: ExplainJobKey): { table: 'run_explanation' | 'run_debrief' | 'run_region_check'; where: string; params: string[] } {
+  if (key.vendorId !== undefined) return { table: 'run_debrief', where: 'run_id = ? and vendor_id = ?', params: [key.runId, key.vendorId] };
+  if (key.region !== undefined) return { table: 'run_region_check', where: 'run_id = ? and region = ?', params: [key.runId, key.region] };
+  return { table: 'run_explanation', where: 'run_id = ?', params: [key.runId] };
 }
 
 /**
@@ -17,20 +21,28 @@ function target(key: ExplainJobKey): { table: 'run_explanation' | 'run_debrief';
  * one is left as it is. Returns whether it was queued now.
  */
 export async function queueExplainJob(tx: EntityManager, key: ExplainJobKey, id: string, requestedById: string): Promise<boolean> {
-  const rows = key.vendorId === undefined
+  const rows = key.vendorId !== undefined
     ? await tx.execute<{ id: string }[]>(
-      `insert into run_explanation (id, run_id, requested_by_id, status) values (?, ?, ?, 'queued')
-         on conflict (run_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
-         where run_explanation.status = 'failed'
-       returning id`,
-      [id, key.runId, requestedById],
-    )
-    : await tx.execute<{ id: string }[]>(
       `insert into run_debrief (id, run_id, vendor_id, requested_by_id, status) values (?, ?, ?, ?, 'queued')
          on conflict (run_id, vendor_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
          where run_debrief.status = 'failed'
        returning id`,
       [id, key.runId, key.vendorId, requestedById],
+    )
+    : key.region !== undefined
+    ? await tx.execute<{ id: string }[]>(
+      `insert into run_region_check (id, run_id, region, requested_by_id, status) values (?, ?, ?, ?, 'queued')
+         on conflict (run_id, region) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
+         where run_region_check.status = 'failed'
+       returning id`,
+      [id, key.runId, key.region, requestedById],
+    )
+    : await tx.execute<{ id: string }[]>(
+      `insert into run_explanation (id, run_id, requested_by_id, status) values (?, ?, ?, 'queued')
+         on conflict (run_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
+         where run_explanation.status = 'failed'
+       returning id`,
+      [id, key.runId, requestedById],
     );
   return rows.length > 0;
 }
