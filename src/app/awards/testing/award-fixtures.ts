@@ -3,6 +3,7 @@ import { HttpTestingController } from '@angular/common/http/testing';
 import type { Role } from '@shared/roles';
 import type { RunView } from '@shared/evaluation';
 import { Auth } from '../../core/auth/auth';
+import { waitFor } from '../../testing/wait-for';
 
 /** Fictional test data and small helpers shared by the award screens' specs. */
 
@@ -87,14 +88,9 @@ export function runView(overrides: Partial<RunView> = {}): RunView {
  */
 export async function answerWhenAsked(url: string, body: object, render: () => void): Promise<void> {
   const http = TestBed.inject(HttpTestingController);
-  for (let attempt = 0; attempt < 100; attempt++) {
+  const request = await waitFor(`the page to ask for ${url}`, () => {
     render();
-    const [request] = http.match({ method: 'GET', url });
-    if (request) {
-      request.flush(body);
-      return;
-    }
-    await new Promise((resolve) => setTimeout(resolve, 5));
-  }
-  throw new Error(`The page never asked for ${url}`);
+    return http.match({ method: 'GET', url })[0];
+  });
+  request.flush(body);
 }

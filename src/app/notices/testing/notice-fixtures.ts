@@ -2,6 +2,7 @@ import { HttpTestingController, TestRequest } from '@angular/common/http/testing
 import { TestBed } from '@angular/core/testing';
 import type { HttpRequest } from '@angular/common/http';
 import type { NoticePreview, NoticeSummary, NoticeView } from '@shared/notices';
+import { waitFor } from '../../testing/wait-for';
 
 /** Fictional letters of one fictional tender, shared by the notice screens' specs. */
 
@@ -74,16 +75,12 @@ export async function answerWhenAsked(
   init: { status?: number; statusText?: string } = {},
 ): Promise<TestRequest> {
   const http = TestBed.inject(HttpTestingController);
-  for (let attempt = 0; attempt < 200; attempt++) {
+  const request = await waitFor('the page to make the expected request', () => {
     render();
-    const [request] = http.match(match);
-    if (request) {
-      request.flush(body, init);
-      return request;
-    }
-    await new Promise((resolve) => setTimeout(resolve, 5));
-  }
-  throw new Error('The page never made the expected request');
+    return http.match(match)[0];
+  });
+  request.flush(body, init);
+  return request;
 }
 
 /** GET /api/notices for one tender, whatever other parameters it carries. */

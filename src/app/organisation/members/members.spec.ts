@@ -9,6 +9,7 @@ import { MatTableHarness } from '@angular/material/table/testing';
 import { provideRouter } from '@angular/router';
 import type { MemberView } from '@shared/people';
 import { provideApi } from '../../core/http/provide-api';
+import { waitFor } from '../../testing/wait-for';
 import { Members } from './members';
 
 const view = (youAreContact: boolean, nadia: 'pending' | 'approved' = 'pending'): MemberView => ({
@@ -47,15 +48,8 @@ describe('Members', () => {
   afterEach(() => http.verify());
 
   async function answerWhenAsked(url: string, body: object): Promise<void> {
-    for (let attempt = 0; attempt < 200; attempt++) {
-      const [request] = http.match({ method: 'POST', url });
-      if (request) {
-        request.flush(body);
-        return;
-      }
-      await new Promise((resolve) => setTimeout(resolve, 5));
-    }
-    throw new Error(`The app never posted to ${url}`);
+    const request = await waitFor(`the app to post to ${url}`, () => http.match({ method: 'POST', url })[0]);
+    request.flush(body);
   }
 
   it('the contact approves a person an administrator added, after confirming, and the table shows them as a member', async () => {

@@ -14,6 +14,7 @@ import { provideRouter } from '@angular/router';
 import type { PersonView, VendorOrganisationView } from '@shared/people';
 import { provideApi } from '../../core/http/provide-api';
 import { AdminAudit } from '../admin-audit/admin-audit';
+import { waitFor } from '../../testing/wait-for';
 import { PeopleList } from './people-list';
 
 /** The admin audit trail below the table loads on its own; these tests are about the list. */
@@ -131,15 +132,8 @@ describe('PeopleList', () => {
     }
 
     async function answerWhenAsked(url: string, body: object): Promise<void> {
-      for (let attempt = 0; attempt < 100; attempt++) {
-        const [request] = http.match({ method: 'GET', url });
-        if (request) {
-          request.flush(body);
-          return;
-        }
-        await new Promise((resolve) => setTimeout(resolve, 5));
-      }
-      throw new Error(`The app never asked for ${url}`);
+      const request = await waitFor(`the app to ask for ${url}`, () => http.match({ method: 'GET', url })[0]);
+      request.flush(body);
     }
 
     async function errorsIn(dialog: MatDialogHarness): Promise<string[]> {
