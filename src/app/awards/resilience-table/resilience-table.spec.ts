@@ -3,7 +3,8 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import type { ResilienceView } from '@shared/evaluation';
 import { provideApi } from '../../core/http/provide-api';
-import { RUN_ID, TENDER_ID, answerWhenAsked, runView } from '../testing/award-fixtures';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
+import { RUN_ID, TENDER_ID, runView } from '../testing/award-fixtures';
 import { ResilienceTable } from './resilience-table';
 
 /** Same formatter as the page, so the test does not depend on the machine's locale. */

@@ -3,7 +3,6 @@ import { HttpTestingController } from '@angular/common/http/testing';
 import type { Role } from '@shared/roles';
 import type { RunView } from '@shared/evaluation';
 import { Auth } from '../../core/auth/auth';
-import { waitFor } from '../../testing/wait-for';
 
 /** Fictional test data and small helpers shared by the award screens' specs. */
 
@@ -80,17 +79,4 @@ export function runView(overrides: Partial<RunView> = {}): RunView {
     },
     ...overrides,
   };
-}
-
-/**
- * Answers a GET the page makes once an earlier answer has settled (a resource that depends on
- * another). Waiting for stability would wait on that very request, so this looks for it instead.
- */
-export async function answerWhenAsked(url: string, body: object, render: () => void): Promise<void> {
-  const http = TestBed.inject(HttpTestingController);
-  const request = await waitFor(`the page to ask for ${url}`, () => {
-    render();
-    return http.match({ method: 'GET', url })[0];
-  });
-  request.flush(body);
 }

@@ -12,7 +12,8 @@ import type { TenderStatus, TenderView } from '@shared/tenders';
 import { provideApi } from '../../core/http/provide-api';
 import { signInAs } from '../../awards/testing/award-fixtures';
 import { NOTICE_POLL_MS } from '../notice-api';
-import { PREVIEWS, TENDER_ID, answerWhenAsked, notice, tenderNotices } from '../testing/notice-fixtures';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
+import { PREVIEWS, TENDER_ID, notice, tenderNotices } from '../testing/notice-fixtures';
 import { waitFor } from '../../testing/wait-for';
 import { NOTICE_CAUTION, NoticeSender } from './notice-sender';
 

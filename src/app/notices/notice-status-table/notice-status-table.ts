@@ -35,7 +35,7 @@ import { ScrollFrame } from '../../ui/scroll-frame';
           </td>
         </ng-container>
         <ng-container matColumnDef="attempts">
-          <th mat-header-cell *matHeaderCellDef scope="col">Attempts</th>
+          <th mat-header-cell *matHeaderCellDef scope="col" class="number">Attempts</th>
           <td mat-cell *matCellDef="let notice" class="number">{{ notice.attempts }}</td>
         </ng-container>
         <ng-container matColumnDef="sentAt">

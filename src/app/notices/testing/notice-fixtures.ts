@@ -1,8 +1,5 @@
-import { HttpTestingController, TestRequest } from '@angular/common/http/testing';
-import { TestBed } from '@angular/core/testing';
 import type { HttpRequest } from '@angular/common/http';
 import type { NoticePreview, NoticeSummary, NoticeView } from '@shared/notices';
-import { waitFor } from '../../testing/wait-for';
 
 /** Fictional letters of one fictional tender, shared by the notice screens' specs. */
 
@@ -63,25 +60,6 @@ export const PREVIEWS: NoticePreview[] = [
     text: 'Successful vendor: Northfell Minerals.',
   },
 ];
-
-/**
- * Answers a request the page makes once earlier answers have settled. Waiting for stability
- * would wait on that very request (a pending request keeps the app busy), so this looks for it.
- */
-export async function answerWhenAsked(
-  match: (request: HttpRequest<unknown>) => boolean,
-  body: object | null,
-  render: () => void,
-  init: { status?: number; statusText?: string } = {},
-): Promise<TestRequest> {
-  const http = TestBed.inject(HttpTestingController);
-  const request = await waitFor('the page to make the expected request', () => {
-    render();
-    return http.match(match)[0];
-  });
-  request.flush(body, init);
-  return request;
-}
 
 /** GET /api/notices for one tender, whatever other parameters it carries. */
 export function tenderNotices(request: HttpRequest<unknown>): boolean {

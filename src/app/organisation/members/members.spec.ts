@@ -9,7 +9,7 @@ import { MatTableHarness } from '@angular/material/table/testing';
 import { provideRouter } from '@angular/router';
 import type { MemberView } from '@shared/people';
 import { provideApi } from '../../core/http/provide-api';
-import { waitFor } from '../../testing/wait-for';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
 import { Members } from './members';
 
 const view = (youAreContact: boolean, nadia: 'pending' | 'approved' = 'pending'): MemberView => ({
@@ -47,11 +47,6 @@ describe('Members', () => {
 
   afterEach(() => http.verify());
 
-  async function answerWhenAsked(url: string, body: object): Promise<void> {
-    const request = await waitFor(`the app to post to ${url}`, () => http.match({ method: 'POST', url })[0]);
-    request.flush(body);
-  }
-
   it('the contact approves a person an administrator added, after confirming, and the table shows them as a member', async () => {
     await open(view(true));
     const table = await loader.getHarness(MatTableHarness);
@@ -61,7 +56,7 @@ describe('Members', () => {
     const dialog = await documentLoader.getHarness(MatDialogHarness);
     // The click settles only once the request it makes is answered.
     const clicked = (await dialog.getHarness(MatButtonHarness.with({ text: 'Approve' }))).click();
-    await answerWhenAsked('/api/organisation/members/u2/approve', view(true, 'approved'));
+    await answerWhenAsked({ method: 'POST', url: '/api/organisation/members/u2/approve' }, view(true, 'approved'));
     await clicked;
     await fixture.whenStable();
 

@@ -14,7 +14,7 @@ import { provideRouter } from '@angular/router';
 import type { PersonView, VendorOrganisationView } from '@shared/people';
 import { provideApi } from '../../core/http/provide-api';
 import { AdminAudit } from '../admin-audit/admin-audit';
-import { waitFor } from '../../testing/wait-for';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
 import { PeopleList } from './people-list';
 
 /** The admin audit trail below the table loads on its own; these tests are about the list. */
@@ -129,11 +129,6 @@ describe('PeopleList', () => {
       await answerWhenAsked('/api/vendor-organisations', [saltmarsh]);
       await clicked;
       return documentLoader.getHarness(MatDialogHarness);
-    }
-
-    async function answerWhenAsked(url: string, body: object): Promise<void> {
-      const request = await waitFor(`the app to ask for ${url}`, () => http.match({ method: 'GET', url })[0]);
-      request.flush(body);
     }
 
     async function errorsIn(dialog: MatDialogHarness): Promise<string[]> {

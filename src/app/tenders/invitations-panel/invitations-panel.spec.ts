@@ -10,8 +10,8 @@ import { MatInputHarness } from '@angular/material/input/testing';
 import { MatSelectHarness } from '@angular/material/select/testing';
 import type { VendorOrganisationView } from '@shared/people';
 import type { TenderView } from '@shared/tenders';
-import { answerWhenAsked } from '../../awards/testing/award-fixtures';
 import { provideApi } from '../../core/http/provide-api';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
 import { TENDER_UUID, tenderView } from '../testing/tender-fixtures';
 import { InvitationsPanel } from './invitations-panel';
 
