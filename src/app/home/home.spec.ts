@@ -5,6 +5,7 @@ import type { SessionUser } from '@shared/roles';
 import type { Worklist } from '@shared/worklist';
 import { Auth } from '../core/auth/auth';
 import { provideApi } from '../core/http/provide-api';
+import { waitFor } from '../testing/wait-for';
 import { Home } from './home';
 
 /** A vendor's worklist (fictional): one draft closing soon; the other sections empty. */
@@ -68,10 +69,10 @@ describe('Home', () => {
     expect(alert?.textContent).toContain('Try again');
     (alert!.querySelector('button') as HTMLButtonElement).click();
     // The resource asks again once the click's change detection has run.
-    for (let i = 0; i < 100 && !http.match('/api/worklist').some((r) => (r.flush(WORKLIST), true)); i++) {
+    await waitFor('the worklist to be asked for again', () => {
       fixture.detectChanges();
-      await new Promise((resolve) => setTimeout(resolve, 5));
-    }
+      return http.match('/api/worklist').some((r) => (r.flush(WORKLIST), true));
+    });
     await fixture.whenStable();
     expect((fixture.nativeElement as HTMLElement).querySelector('[role="alert"]')).toBeNull();
   });

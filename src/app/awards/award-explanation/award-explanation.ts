@@ -1,21 +1,21 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { DebriefView, ExplanationView, RegionCheckView } from '@shared/explanation';
-import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
+import { loadErrorMessage } from '../../ui/load-error';
 import { fractionPercent, money, quantity } from '../../ui/number-format';
+import { polledResource } from '../../ui/polled-resource';
 
 /** How often an explanation being computed is asked for again. */
 export const EXPLANATION_POLL_MS = 1000;
 
 const working = (s: string) => s === 'queued' || s === 'running';
 /** Polled while the explanation, any debrief or any region asked for is being worked out. */
-const busy = (v: ExplanationView | null) => v !== null
-  && (working(v.status) || v.debriefs.some((d) => working(d.status)) || v.regionChecks.some((c) => working(c.status)));
+const busy = (v: ExplanationView) => working(v.status) || v.debriefs.some((d) => working(d.status)) || v.regionChecks.some((c) => working(c.status));
 
 /**
  * "Why this award" beside the allocation matrix, and the vendors' debriefs, of one run with an
@@ -36,10 +36,18 @@ export class AwardExplanation {
 
   readonly runId = input.required<string>();
 
-  protected readonly view = signal<ExplanationView | null>(null);
-  protected readonly error = signal<string | null>(null);
+  /** Asked at once; again every second while queued or running; asked again after each request. */
+  private readonly polled = polledResource({
+    params: () => this.runId(),
+    load: (runId: string) => this.api.explanation(runId),
+    everyMs: EXPLANATION_POLL_MS,
+    running: busy,
+  });
+  protected readonly view = computed(() => this.polled.value() ?? null);
+  /** A refused request to explain or to debrief, shown until the next one. */
+  private readonly actionError = signal<string | null>(null);
+  protected readonly error = computed(() => this.actionError() ?? loadErrorMessage(this.polled.error(), 'The explanation could not be loaded.'));
   protected readonly asking = signal(false);
-  private readonly attempt = signal(0);
 
   protected readonly result = computed(() => this.view()?.result ?? null);
   protected readonly percentDone = computed(() => {
@@ -61,42 +69,21 @@ export class AwardExplanation {
   protected readonly regionChecks = computed(() => new Map((this.view()?.regionChecks ?? []).map((c) => [c.region, c])));
   protected readonly askingRegion = signal<string | null>(null);
 
-  constructor() {
-    // Asked at once; again every second while queued or running; a new run id starts over.
-    toObservable(computed(() => ({ runId: this.runId(), attempt: this.attempt() })))
-      .pipe(
-        switchMap(({ runId }) =>
-          timer(0, EXPLANATION_POLL_MS).pipe(
-            exhaustMap(() => this.api.explanation(runId)),
-            takeWhile((v) => busy(v), true),
-            catchError((error: unknown) => {
-              this.error.set(error instanceof ApiError ? error.userMessage : 'The explanation could not be loaded.');
-              return of(null);
-            }),
-          ),
-        ),
-        takeUntilDestroyed(),
-      )
-      .subscribe((v) => {
-        if (v) this.view.set(v);
-      });
-  }
-
   protected explain(): void {
     this.asking.set(true);
-    this.error.set(null);
+    this.actionError.set(null);
     this.api
       .explain(this.runId())
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: (v) => {
           this.asking.set(false);
-          this.view.set(v);
-          this.attempt.update((n) => n + 1);
+          this.polled.set(v);
+          this.polled.reload();
         },
         error: (error: unknown) => {
           this.asking.set(false);
-          this.error.set(error instanceof ApiError ? error.userMessage : 'The explanation could not be started.');
+          this.actionError.set(error instanceof ApiError ? error.userMessage : 'The explanation could not be started.');
         },
       });
   }
@@ -104,19 +91,20 @@ export class AwardExplanation {
   /** Asks for one vendor's debrief, then polls until it is worked out. */
   protected askDebrief(vendor: string): void {
     this.askingDebrief.set(vendor);
-    this.error.set(null);
+    this.actionError.set(null);
     this.api
       .debrief(this.runId(), vendor)
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: (d) => {
           this.askingDebrief.set(null);
-          this.view.update((v) => (v ? { ...v, debriefs: [...v.debriefs.filter((x) => x.vendor !== d.vendor), d] } : v));
-          this.attempt.update((n) => n + 1);
+          const v = this.view();
+          if (v) this.polled.set({ ...v, debriefs: [...v.debriefs.filter((x) => x.vendor !== d.vendor), d] });
+          this.polled.reload();
         },
         error: (error: unknown) => {
           this.askingDebrief.set(null);
-          this.error.set(error instanceof ApiError ? error.userMessage : 'The debrief could not be started.');
+          this.actionError.set(error instanceof ApiError ? error.userMessage : 'The debrief could not be started.');
         },
       });
   }
@@ -124,19 +112,19 @@ export class AwardExplanation {
   /** Asks for one region whose extra cost is a range to be worked out exactly, then polls until it is. */
   protected askRegion(region: string): void {
     this.askingRegion.set(region);
-    this.error.set(null);
+    this.actionError.set(null);
     this.api
       .exactRegion(this.runId(), region)
       .pipe(takeUntilDestroyed(this.destroyRef))
       .subscribe({
         next: (v) => {
           this.askingRegion.set(null);
-          this.view.set(v);
-          this.attempt.update((n) => n + 1);
+          this.polled.set(v);
+          this.polled.reload();
         },
         error: (error: unknown) => {
           this.askingRegion.set(null);
-          this.error.set(error instanceof ApiError ? error.userMessage : 'The region could not be worked out.');
+          this.actionError.set(error instanceof ApiError ? error.userMessage : 'The region could not be worked out.');
         },
       });
   }

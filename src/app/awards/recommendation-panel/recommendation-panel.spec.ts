@@ -8,7 +8,8 @@ import { provideRouter } from '@angular/router';
 import type { RecommendationView } from '@shared/evaluation';
 import { provideApi } from '../../core/http/provide-api';
 import { AWARD_CAUTION } from '../award-caution';
-import { RUN_ID, TENDER_ID, answerWhenAsked, runView, signInAs } from '../testing/award-fixtures';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
+import { RUN_ID, TENDER_ID, runView, signInAs } from '../testing/award-fixtures';
 import { tenderView } from '../../tenders/testing/tender-fixtures';
 import { RecommendationPanel } from './recommendation-panel';
 

@@ -3,6 +3,7 @@ import { ComponentFixture, TestBed } from '@angular/core/testing';
 import { provideRouter } from '@angular/router';
 import type { ResilienceView } from '@shared/evaluation';
 import { provideApi } from '../../core/http/provide-api';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
 import { RUN_ID, TENDER_ID, runView } from '../testing/award-fixtures';
 import { ResilienceTable } from './resilience-table';
 
@@ -30,9 +31,9 @@ describe('ResilienceTable', () => {
     fixture.componentRef.setInput('id', TENDER_ID);
     fixture.componentRef.setInput('runId', RUN_ID);
     fixture.detectChanges();
+    // Stability waits for both resources' answers, so they are answered first (the poll asks on its timer's first tick).
     http.expectOne(`/api/runs/${RUN_ID}`).flush(runView());
-    await fixture.whenStable();
-    http.expectOne(`/api/runs/${RUN_ID}/resilience`).flush(view);
+    await answerWhenAsked(`/api/runs/${RUN_ID}/resilience`, view, () => fixture.detectChanges());
     await fixture.whenStable();
   });
 

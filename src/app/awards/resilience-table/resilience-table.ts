@@ -1,16 +1,16 @@
-import { ChangeDetectionStrategy, Component, computed, inject, input, signal } from '@angular/core';
-import { rxResource, takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, computed, inject, input } from '@angular/core';
+import { rxResource } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { MatTableModule } from '@angular/material/table';
 import { RouterLink } from '@angular/router';
 import type { ResilienceView, RunStatus } from '@shared/evaluation';
-import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
-import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { percent } from '../award-format';
+import { loadErrorMessage } from '../../ui/load-error';
 import { money } from '../../ui/number-format';
+import { polledResource } from '../../ui/polled-resource';
 import { RUN_STATUS_LABELS, isFinished } from '../run-status';
 
 /** Re-solves take a while each; every two seconds is enough to see them land. */
@@ -33,33 +33,20 @@ export class ResilienceTable {
   readonly runId = input.required<string>();
 
   protected readonly run = rxResource({ params: () => this.runId(), stream: ({ params }) => this.api.run(params) });
-  protected readonly view = signal<ResilienceView | null>(null);
-  protected readonly loadError = signal<string | null>(null);
+  /** Asked at once, then every two seconds while a re-solve runs. */
+  private readonly polled = polledResource({
+    params: () => this.runId(),
+    load: (runId: string) => this.api.resilience(runId),
+    everyMs: RESILIENCE_POLL_MS,
+    running: (view: ResilienceView) => view.rows.some((row) => !isFinished(row.status)),
+  });
+  protected readonly view = computed(() => this.polled.value() ?? null);
+  protected readonly loadError = computed(() => loadErrorMessage(this.polled.error(), 'The resilience check could not be loaded.'));
   protected readonly pending = computed(() => (this.view()?.rows ?? []).filter((row) => !isFinished(row.status)).length);
   protected readonly columns = ['vendor', 'outcome', 'increase', 'increasePercent'];
   /** Table rows are untyped in templates, so the lookup goes through a typed method. */
   protected statusText(status: RunStatus): string {
     return RUN_STATUS_LABELS[status];
-  }
-
-  constructor() {
-    toObservable(this.runId)
-      .pipe(
-        switchMap((runId) =>
-          timer(0, RESILIENCE_POLL_MS).pipe(
-            exhaustMap(() => this.api.resilience(runId)),
-            takeWhile((view) => view.rows.some((row) => !isFinished(row.status)), true),
-            catchError((error: unknown) => {
-              this.loadError.set(error instanceof ApiError ? error.userMessage : 'The resilience check could not be loaded.');
-              return of(null);
-            }),
-          ),
-        ),
-        takeUntilDestroyed(),
-      )
-      .subscribe((view) => {
-        if (view) this.view.set(view);
-      });
   }
 
   private currency(): string {

@@ -1,12 +1,11 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
-import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatTableModule } from '@angular/material/table';
 import { ActivatedRoute, Router, RouterLink } from '@angular/router';
 import type { RecommendationView, RunView } from '@shared/evaluation';
-import { catchError, exhaustMap, of, switchMap, takeWhile, timer } from 'rxjs';
 import { Auth } from '../../core/auth/auth';
 import { ApiError } from '../../core/http/api-error';
 import { AllocationMatrix, type MatrixRegion } from '../allocation-matrix/allocation-matrix';
@@ -24,6 +23,8 @@ import { whenConfirmed } from '../../ui/confirm-dialog';
 import { DownloadLink } from '../../ui/download-link';
 import { ProgressNote } from '../../ui/progress-note';
 import { ScrollFrame } from '../../ui/scroll-frame';
+import { loadErrorMessage } from '../../ui/load-error';
+import { polledResource } from '../../ui/polled-resource';
 
 /** How often an unfinished run is asked for again. */
 export const RUN_POLL_MS = 1000;
@@ -59,13 +60,17 @@ export class RunResult {
   readonly id = input.required<string>();
   readonly runId = input.required<string>();
 
-  protected readonly run = signal<RunView | null>(null);
-  /** The clock of the last answer, so the progress bar moves with each poll. */
-  private readonly now = signal(Date.now());
-  protected readonly loadError = signal<string | null>(null);
+  /** Asked at once, then every second until the run has finished; a new run id or "Try again" starts over. */
+  private readonly polled = polledResource({
+    params: () => this.runId(),
+    load: (runId: string) => this.api.run(runId),
+    everyMs: RUN_POLL_MS,
+    running: (run: RunView) => !isFinished(run.status),
+  });
+  protected readonly run = computed(() => this.polled.value() ?? null);
+  protected readonly loadError = computed(() => loadErrorMessage(this.polled.error(), 'The run could not be loaded.'));
   protected readonly actionMessage = signal('');
   protected readonly cancelling = signal(false);
-  private readonly attempt = signal(0);
 
   protected readonly isBuyer = computed(() => this.auth.user()?.role === 'buyer');
   protected readonly finished = computed(() => {
@@ -85,7 +90,8 @@ export class RunResult {
   protected readonly elapsedSeconds = computed(() => {
     const run = this.run();
     if (!run?.startedAt) return 0;
-    const end = run.finishedAt ? Date.parse(run.finishedAt) : this.now();
+    // The clock of the last answer, so the progress bar moves with each poll.
+    const end = run.finishedAt ? Date.parse(run.finishedAt) : this.polled.answeredAt();
     return Math.max(0, Math.round((end - Date.parse(run.startedAt)) / 1000));
   });
   protected readonly progress = computed(() => {
@@ -149,31 +155,6 @@ export class RunResult {
     return run?.droppedVendor ? (run.vendors[run.droppedVendor]?.name ?? run.droppedVendor) : null;
   });
 
-  constructor() {
-    // Ask at once, then every second until the run has finished; a new run id or "Try again"
-    // starts over, and leaving the page ends it.
-    toObservable(computed(() => ({ runId: this.runId(), attempt: this.attempt() })))
-      .pipe(
-        switchMap(({ runId }) =>
-          timer(0, RUN_POLL_MS).pipe(
-            // exhaustMap: a slow answer is waited for rather than cancelled by the next tick.
-            exhaustMap(() => this.api.run(runId)),
-            takeWhile((run) => !isFinished(run.status), true),
-            catchError((error: unknown) => {
-              this.loadError.set(error instanceof ApiError ? error.userMessage : 'The run could not be loaded.');
-              return of(null);
-            }),
-          ),
-        ),
-        takeUntilDestroyed(),
-      )
-      .subscribe((run) => {
-        if (!run) return;
-        this.now.set(Date.now());
-        this.run.set(run);
-      });
-  }
-
   protected money(value: number | null): string {
     return value === null ? '—' : money(value, this.run()?.currency ?? 'EUR');
   }
@@ -183,8 +164,7 @@ export class RunResult {
   }
 
   protected retry(): void {
-    this.loadError.set(null);
-    this.attempt.update((n) => n + 1);
+    this.polled.reload();
   }
 
   protected cancel(): void {
@@ -195,7 +175,9 @@ export class RunResult {
       .subscribe({
         next: (summary) => {
           this.cancelling.set(false);
-          this.run.update((run) => (run ? { ...run, ...summary } : run));
+          // Shown at once; the next poll brings the whole run (and is the last once it has finished).
+          const run = this.run();
+          if (run) this.polled.set({ ...run, ...summary });
         },
         error: (error: unknown) => {
           this.cancelling.set(false);

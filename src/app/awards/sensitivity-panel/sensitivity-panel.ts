@@ -1,6 +1,6 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, ElementRef, afterRenderEffect, computed, inject, input, signal, viewChild } from '@angular/core';
 import { NgTemplateOutlet } from '@angular/common';
-import { takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { FormControl, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatFormFieldModule } from '@angular/material/form-field';
@@ -10,9 +10,10 @@ import { MatSelectModule } from '@angular/material/select';
 import { RouterLink } from '@angular/router';
 import type { SensitivityCase, SensitivityCheck, SensitivityView } from '@shared/evaluation';
 import { CategoryScale, Chart, Legend, LinearScale, LineController, LineElement, PointElement, Tooltip } from 'chart.js';
-import { Subject, catchError, exhaustMap, of, startWith, switchMap, takeWhile, timer } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
+import { loadErrorMessage } from '../../ui/load-error';
 import { money } from '../../ui/number-format';
+import { polledResource } from '../../ui/polled-resource';
 import { ProgressNote } from '../../ui/progress-note';
 import { AwardApi } from '../award-api';
 import type { MatrixRegion } from '../allocation-matrix/allocation-matrix';
@@ -24,6 +25,11 @@ Chart.register(LineController, LineElement, PointElement, CategoryScale, LinearS
 
 /** Re-solves take a few seconds each; every two seconds is enough to see them land. */
 export const SENSITIVITY_POLL_MS = 2000;
+
+/** Re-solves not finished yet, over the all-regions check and each region's. */
+function pendingOf(view: SensitivityView): number {
+  return [view.all, ...view.regions].reduce((n, check) => n + (check?.pending ?? 0), 0);
+}
 
 /** One row of a check's table: the run itself (0 %) and each tested change. */
 export interface SensitivityRow {
@@ -65,8 +71,15 @@ export class SensitivityPanel {
   readonly currency = input('EUR');
   readonly regions = input<readonly MatrixRegion[]>([]);
 
-  protected readonly view = signal<SensitivityView | null>(null);
-  protected readonly loadError = signal<string | null>(null);
+  /** Asked at once, then every two seconds while a re-solve is pending; asked again after queuing. */
+  private readonly polled = polledResource({
+    params: () => this.runId(),
+    load: (runId: string) => this.api.sensitivity(runId),
+    everyMs: SENSITIVITY_POLL_MS,
+    running: (view: SensitivityView) => pendingOf(view) > 0,
+  });
+  protected readonly view = computed(() => this.polled.value() ?? null);
+  protected readonly loadError = computed(() => loadErrorMessage(this.polled.error(), 'The forecast check could not be loaded.'));
   protected readonly actionMessage = signal<string | null>(null);
   /** Re-solves queued by the last request: said while they run, then that they have finished. */
   private readonly queued = signal(0);
@@ -77,12 +90,9 @@ export class SensitivityPanel {
   });
   protected readonly starting = signal(false);
   protected readonly region = new FormControl<string | null>(null);
-  /** Asks for the view again (after queuing), polling until every re-solve has finished. */
-  private readonly refresh = new Subject<void>();
-
   protected readonly pending = computed(() => {
     const v = this.view();
-    return v ? [v.all, ...v.regions].reduce((n, check) => n + (check?.pending ?? 0), 0) : 0;
+    return v ? pendingOf(v) : 0;
   });
   protected readonly allRows = computed(() => this.rowsOf(this.view()?.all ?? null));
   protected readonly regionChecks = computed(() => (this.view()?.regions ?? []).map((check) => ({ check, rows: this.rowsOf(check) })));
@@ -96,31 +106,6 @@ export class SensitivityPanel {
   private chart: Chart | null = null;
 
   constructor() {
-    toObservable(this.runId)
-      .pipe(
-        switchMap((runId) =>
-          this.refresh.pipe(
-            startWith(undefined),
-            switchMap(() =>
-              timer(0, SENSITIVITY_POLL_MS).pipe(
-                exhaustMap(() => this.api.sensitivity(runId)),
-                takeWhile((v) => [v.all, ...v.regions].some((check) => (check?.pending ?? 0) > 0), true),
-                catchError((error: unknown) => {
-                  this.loadError.set(error instanceof ApiError ? error.userMessage : 'The forecast check could not be loaded.');
-                  return of(null);
-                }),
-              ),
-            ),
-          ),
-        ),
-        takeUntilDestroyed(),
-      )
-      .subscribe((v) => {
-        if (v) {
-          this.loadError.set(null);
-          this.view.set(v);
-        }
-      });
     afterRenderEffect(() => this.draw());
     this.destroyRef.onDestroy(() => this.chart?.destroy());
   }
@@ -139,7 +124,7 @@ export class SensitivityPanel {
           this.starting.set(false);
           this.queued.set(queued);
           this.actionMessage.set(queued ? null : 'This check was already made: its figures are shown.');
-          this.refresh.next();
+          this.polled.reload();
         },
         error: (error: unknown) => {
           this.starting.set(false);

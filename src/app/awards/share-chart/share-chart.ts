@@ -69,16 +69,7 @@ export function palette(host: HTMLElement, count: number): string[] {
       </table>
     </figure>
   `,
-  styles: `
-    figure { margin: 0; }
-    figcaption { margin-bottom: 8px; font: var(--mat-sys-title-small); }
-    .canvas-box { position: relative; height: 220px; }
-    .canvas-box.bar { height: 260px; }
-    .figures { margin-top: 12px; border-collapse: collapse; font: var(--mat-sys-body-small); }
-    .figures th, .figures td { padding: 2px 12px 2px 0; text-align: start; font-weight: normal; }
-    .figures thead th { color: var(--mat-sys-on-surface-variant); font-weight: 500; }
-    .number { text-align: end !important; font-variant-numeric: tabular-nums; }
-  `,
+  styleUrl: './share-chart.scss',
 })
 export class ShareChart {
   readonly kind = input<'doughnut' | 'bar'>('doughnut');

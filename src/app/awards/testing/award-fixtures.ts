@@ -80,21 +80,3 @@ export function runView(overrides: Partial<RunView> = {}): RunView {
     ...overrides,
   };
 }
-
-/**
- * Answers a GET the page makes once an earlier answer has settled (a resource that depends on
- * another). Waiting for stability would wait on that very request, so this looks for it instead.
- */
-export async function answerWhenAsked(url: string, body: object, render: () => void): Promise<void> {
-  const http = TestBed.inject(HttpTestingController);
-  for (let attempt = 0; attempt < 100; attempt++) {
-    render();
-    const [request] = http.match({ method: 'GET', url });
-    if (request) {
-      request.flush(body);
-      return;
-    }
-    await new Promise((resolve) => setTimeout(resolve, 5));
-  }
-  throw new Error(`The page never asked for ${url}`);
-}

@@ -10,6 +10,7 @@ import type { BidView, TenderView } from '@shared/tenders';
 import { provideApi } from '../../core/http/provide-api';
 import { withCents } from '../../ui/money-input';
 import { totalAtForecast } from '../bid-total';
+import { waitFor } from '../../testing/wait-for';
 import { BidForm } from './bid-form';
 
 const tender: TenderView = {
@@ -151,9 +152,7 @@ describe('BidForm', () => {
     await fixture.whenStable();
     expect(text()).toContain('Changed elsewhere — reload');
     const reloaded = (await loader.getHarness(MatButtonHarness.with({ text: /Reload/ }))).click();
-    for (let i = 0; i < 100 && !http.match({ url: `/api/tenders/${tender.id}/bid` }).some((r) => (r.flush({ bid: { ...draft, version: 5, fixedFee: 750 } }), true)); i++) {
-      await new Promise((resolve) => setTimeout(resolve, 5));
-    }
+    await waitFor('the bid to be read again', () => http.match({ url: `/api/tenders/${tender.id}/bid` }).some((r) => (r.flush({ bid: { ...draft, version: 5, fixedFee: 750 } }), true)));
     await reloaded;
     expect(text()).not.toContain('Changed elsewhere');
     expect(await (await loader.getHarness(MatInputHarness.with({ selector: '[formControlName=fixedFee]' }))).getValue()).toBe('750.00');

@@ -10,7 +10,8 @@ import type { Role } from '@shared/roles';
 import type { NoticeSummary } from '@shared/notices';
 import { provideApi } from '../../core/http/provide-api';
 import { signInAs } from '../../awards/testing/award-fixtures';
-import { answerWhenAsked, notice } from '../testing/notice-fixtures';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
+import { notice } from '../testing/notice-fixtures';
 import { NoticeList } from './notice-list';
 
 const awarded = notice({ id: 'a1b2c3d4-0000-4000-8000-000000000001' });

@@ -12,7 +12,9 @@ import type { TenderStatus, TenderView } from '@shared/tenders';
 import { provideApi } from '../../core/http/provide-api';
 import { signInAs } from '../../awards/testing/award-fixtures';
 import { NOTICE_POLL_MS } from '../notice-api';
-import { PREVIEWS, TENDER_ID, answerWhenAsked, notice, tenderNotices } from '../testing/notice-fixtures';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
+import { PREVIEWS, TENDER_ID, notice, tenderNotices } from '../testing/notice-fixtures';
+import { waitFor } from '../../testing/wait-for';
 import { NOTICE_CAUTION, NoticeSender } from './notice-sender';
 
 /** Short, so the spec sees several rounds of polling; the real interval is 2 s. */
@@ -106,12 +108,7 @@ describe('NoticeSender', () => {
     const confirm = await dialog.getHarness(MatButtonHarness.with({ text: 'Send notices' }));
     // Clicking waits for stability, which the POST holds up until it is answered: do not await here.
     void confirm.click();
-    for (let attempt = 0; attempt < 200; attempt++) {
-      const [post] = http.match({ method: 'POST', url: `/api/tenders/${TENDER_ID}/notices` });
-      if (post) return post;
-      await wait(5);
-    }
-    throw new Error('Confirming sent nothing');
+    return waitFor('confirming to post the notices', () => http.match({ method: 'POST', url: `/api/tenders/${TENDER_ID}/notices` })[0]);
   }
 
   afterEach(() => {

@@ -1,12 +1,12 @@
-import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, signal } from '@angular/core';
-import { rxResource, takeUntilDestroyed, toObservable } from '@angular/core/rxjs-interop';
+import { ChangeDetectionStrategy, Component, DestroyRef, computed, effect, inject, input, signal, untracked } from '@angular/core';
+import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
 import { MatDialog } from '@angular/material/dialog';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import { RouterLink } from '@angular/router';
 import type { NoticeSummary } from '@shared/notices';
-import { EMPTY, Observable, Subject, catchError, defer, exhaustMap, filter, finalize, startWith, switchMap, takeWhile, tap, timer } from 'rxjs';
+import { filter, switchMap, tap } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { TENDER_STATUS_LABELS } from '../../tenders/tender-status';
 import { TenderApi } from '../../tenders/tender-api';
@@ -16,6 +16,8 @@ import { NOTICE_POLL_MS, NoticeApi } from '../notice-api';
 import { NOTICE_KIND_LABELS, anyQueued } from '../notice-labels';
 import { NoticeStatusTable } from '../notice-status-table/notice-status-table';
 import { DownloadLink } from '../../ui/download-link';
+import { loadErrorMessage } from '../../ui/load-error';
+import { polledResource } from '../../ui/polled-resource';
 
 /** Shown beside the send button: the product prepares the letters, the buyer answers for the duty. */
 export const NOTICE_CAUTION =
@@ -60,10 +62,17 @@ export class NoticeSender {
     return { award, regret: letters.length - award, total: letters.length };
   });
 
+  /** The tender's notices, asked at once and every interval until none is queued (the last answer included). */
+  private readonly delivery = polledResource({
+    params: () => this.id(),
+    load: (tenderId: string) => this.api.list({ tenderId }),
+    everyMs: this.pollMs,
+    running: (notices: NoticeSummary[]) => anyQueued(notices),
+  });
   /** The tender's notices as last polled; null until the first answer. */
-  protected readonly notices = signal<NoticeSummary[] | null>(null);
-  protected readonly polling = signal(false);
-  protected readonly statusError = signal<string | null>(null);
+  protected readonly notices = computed(() => this.delivery.value() ?? null);
+  protected readonly polling = this.delivery.polling;
+  protected readonly statusError = computed(() => loadErrorMessage(this.delivery.error(), 'The state of the notices could not be loaded.'));
 
   protected readonly sending = signal(false);
   protected readonly sendResult = signal('');
@@ -91,25 +100,19 @@ export class NoticeSender {
 
   /** True once this page has seen (or just queued) notices that are not out yet. */
   private awaitingDelivery = false;
-  /** Asks for a new round of polling (after a send); the current round, if any, is dropped. */
-  private readonly restart = new Subject<void>();
 
   constructor() {
-    toObservable(this.id)
-      .pipe(
-        switchMap((id) => this.restart.pipe(startWith(undefined), switchMap(() => this.watch(id)))),
-        takeUntilDestroyed(),
-      )
-      .subscribe((notices) => {
-        this.notices.set(notices);
-        // The server marks the tender notified when the last notice is out: show it without a reload.
-        if (anyQueued(notices)) {
-          this.awaitingDelivery = true;
-        } else if (this.awaitingDelivery) {
-          this.awaitingDelivery = false;
-          this.tender.reload();
-        }
-      });
+    // The server marks the tender notified when the last notice is out: show it without a reload.
+    effect(() => {
+      const notices = this.notices();
+      if (!notices) return;
+      if (anyQueued(notices)) {
+        this.awaitingDelivery = true;
+      } else if (this.awaitingDelivery) {
+        this.awaitingDelivery = false;
+        untracked(() => this.tender.reload());
+      }
+    });
   }
 
   protected select(index: number): void {
@@ -149,7 +152,7 @@ export class NoticeSender {
               ? `${plural(queued, 'notice', 'notices')} queued for sending. The table below follows their delivery.`
               : "Nothing new was queued: every bidder's notice had already been sent or queued.",
           );
-          this.restart.next();
+          this.delivery.reload();
         },
         error: (error: unknown) => {
           this.sending.set(false);
@@ -167,24 +170,6 @@ export class NoticeSender {
   }
 
   protected refresh(): void {
-    this.restart.next();
-  }
-
-  /** Polls the tender's notices until none is queued (the last answer included), or fails once. */
-  private watch(tenderId: string): Observable<NoticeSummary[]> {
-    return defer(() => {
-      this.polling.set(true);
-      this.statusError.set(null);
-      return timer(0, this.pollMs);
-    }).pipe(
-      // A slow answer is never overtaken: ticks that arrive while one is pending are skipped.
-      exhaustMap(() => this.api.list({ tenderId })),
-      takeWhile((notices) => anyQueued(notices), true),
-      catchError((error: unknown) => {
-        this.statusError.set(message(error, 'The state of the notices could not be loaded.'));
-        return EMPTY;
-      }),
-      finalize(() => this.polling.set(false)),
-    );
+    this.delivery.reload();
   }
 }

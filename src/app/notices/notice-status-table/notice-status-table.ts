@@ -13,7 +13,7 @@ import { ScrollFrame } from '../../ui/scroll-frame';
   changeDetection: ChangeDetectionStrategy.OnPush,
   imports: [ScrollFrame, DateTimePipe, RouterLink, MatTableModule, NoticeStatusBadge],
   template: `
-    <div class="table-scroll" appScrollFrame="Delivery of the notices">
+    <div class="table-card table-scroll" appScrollFrame="Delivery of the notices">
       <table mat-table [dataSource]="notices()" aria-label="Delivery of the notices">
         <ng-container matColumnDef="vendor">
           <th mat-header-cell *matHeaderCellDef scope="col">Vendor</th>
@@ -35,7 +35,7 @@ import { ScrollFrame } from '../../ui/scroll-frame';
           </td>
         </ng-container>
         <ng-container matColumnDef="attempts">
-          <th mat-header-cell *matHeaderCellDef scope="col">Attempts</th>
+          <th mat-header-cell *matHeaderCellDef scope="col" class="number">Attempts</th>
           <td mat-cell *matCellDef="let notice" class="number">{{ notice.attempts }}</td>
         </ng-container>
         <ng-container matColumnDef="sentAt">
@@ -53,16 +53,7 @@ import { ScrollFrame } from '../../ui/scroll-frame';
       </table>
     </div>
   `,
-  styles: `
-    :host { display: block; }
-    .table-scroll { overflow-x: auto; }
-    table { width: 100%; --mat-table-background-color: transparent; }
-    th.mat-mdc-header-cell { color: var(--mat-sys-on-surface-variant); font: var(--mat-sys-title-small); }
-    .nowrap { white-space: nowrap; }
-    .number { font-variant-numeric: tabular-nums; text-align: end; }
-    .error-detail { display: block; margin-top: 4px; color: var(--mat-sys-error); font: var(--mat-sys-body-small); }
-    .empty-row td { padding: 24px 16px; color: var(--mat-sys-on-surface-variant); text-align: center; }
-  `,
+  styleUrl: './notice-status-table.scss',
 })
 export class NoticeStatusTable {
   readonly notices = input.required<readonly NoticeSummary[]>();

@@ -1,5 +1,3 @@
-import { HttpTestingController, TestRequest } from '@angular/common/http/testing';
-import { TestBed } from '@angular/core/testing';
 import type { HttpRequest } from '@angular/common/http';
 import type { NoticePreview, NoticeSummary, NoticeView } from '@shared/notices';
 
@@ -62,29 +60,6 @@ export const PREVIEWS: NoticePreview[] = [
     text: 'Successful vendor: Northfell Minerals.',
   },
 ];
-
-/**
- * Answers a request the page makes once earlier answers have settled. Waiting for stability
- * would wait on that very request (a pending request keeps the app busy), so this looks for it.
- */
-export async function answerWhenAsked(
-  match: (request: HttpRequest<unknown>) => boolean,
-  body: object | null,
-  render: () => void,
-  init: { status?: number; statusText?: string } = {},
-): Promise<TestRequest> {
-  const http = TestBed.inject(HttpTestingController);
-  for (let attempt = 0; attempt < 200; attempt++) {
-    render();
-    const [request] = http.match(match);
-    if (request) {
-      request.flush(body, init);
-      return request;
-    }
-    await new Promise((resolve) => setTimeout(resolve, 5));
-  }
-  throw new Error('The page never made the expected request');
-}
 
 /** GET /api/notices for one tender, whatever other parameters it carries. */
 export function tenderNotices(request: HttpRequest<unknown>): boolean {

@@ -9,6 +9,7 @@ import { MatTableHarness } from '@angular/material/table/testing';
 import { provideRouter } from '@angular/router';
 import type { MemberView } from '@shared/people';
 import { provideApi } from '../../core/http/provide-api';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
 import { Members } from './members';
 
 const view = (youAreContact: boolean, nadia: 'pending' | 'approved' = 'pending'): MemberView => ({
@@ -46,18 +47,6 @@ describe('Members', () => {
 
   afterEach(() => http.verify());
 
-  async function answerWhenAsked(url: string, body: object): Promise<void> {
-    for (let attempt = 0; attempt < 200; attempt++) {
-      const [request] = http.match({ method: 'POST', url });
-      if (request) {
-        request.flush(body);
-        return;
-      }
-      await new Promise((resolve) => setTimeout(resolve, 5));
-    }
-    throw new Error(`The app never posted to ${url}`);
-  }
-
   it('the contact approves a person an administrator added, after confirming, and the table shows them as a member', async () => {
     await open(view(true));
     const table = await loader.getHarness(MatTableHarness);
@@ -67,7 +56,7 @@ describe('Members', () => {
     const dialog = await documentLoader.getHarness(MatDialogHarness);
     // The click settles only once the request it makes is answered.
     const clicked = (await dialog.getHarness(MatButtonHarness.with({ text: 'Approve' }))).click();
-    await answerWhenAsked('/api/organisation/members/u2/approve', view(true, 'approved'));
+    await answerWhenAsked({ method: 'POST', url: '/api/organisation/members/u2/approve' }, view(true, 'approved'));
     await clicked;
     await fixture.whenStable();
 

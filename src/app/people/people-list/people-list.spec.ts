@@ -14,6 +14,7 @@ import { provideRouter } from '@angular/router';
 import type { PersonView, VendorOrganisationView } from '@shared/people';
 import { provideApi } from '../../core/http/provide-api';
 import { AdminAudit } from '../admin-audit/admin-audit';
+import { answerWhenAsked } from '../../testing/answer-when-asked';
 import { PeopleList } from './people-list';
 
 /** The admin audit trail below the table loads on its own; these tests are about the list. */
@@ -128,18 +129,6 @@ describe('PeopleList', () => {
       await answerWhenAsked('/api/vendor-organisations', [saltmarsh]);
       await clicked;
       return documentLoader.getHarness(MatDialogHarness);
-    }
-
-    async function answerWhenAsked(url: string, body: object): Promise<void> {
-      for (let attempt = 0; attempt < 100; attempt++) {
-        const [request] = http.match({ method: 'GET', url });
-        if (request) {
-          request.flush(body);
-          return;
-        }
-        await new Promise((resolve) => setTimeout(resolve, 5));
-      }
-      throw new Error(`The app never asked for ${url}`);
     }
 
     async function errorsIn(dialog: MatDialogHarness): Promise<string[]> {

@@ -66,13 +66,7 @@ import { ContractsApi } from './contracts-api';
       <button mat-flat-button type="submit" [disabled]="busy()">{{ busy() ? 'Recording…' : 'Record contract' }}</button>
     </form>
   `,
-  styles: `
-    form { display: grid; gap: 12px; justify-items: start; }
-    .schedule { border-collapse: collapse; max-width: 100%; }
-    .schedule caption { text-align: left; font: var(--mat-sys-body-medium); padding-bottom: 4px; }
-    .schedule th, .schedule td { padding: 4px 8px 4px 0; text-align: left; vertical-align: top; }
-    .schedule mat-form-field { width: 11rem; max-width: 40vw; }
-  `,
+  styleUrl: './contract-form.scss',
 })
 export class ContractForm implements OnInit {
   private readonly api = inject(ContractsApi);
@@ -161,16 +155,7 @@ export class ContractForm implements OnInit {
       </section>
     }
   `,
-  styles: `
-    :host { display: block; }
-    .pending { display: flex; gap: 8px; align-items: center; }
-    .vendors { list-style: none; padding: 0; margin: 0; display: grid; gap: 16px; }
-    .vendors li { border: 1px solid var(--mat-sys-outline-variant); border-radius: 8px; padding: 12px 16px; }
-    h3 { margin: 0 0 8px; font: var(--mat-sys-title-medium); }
-    .schedule { border-collapse: collapse; }
-    .schedule th, .schedule td { padding: 4px 12px 4px 0; text-align: left; }
-    .schedule .num { text-align: right; }
-  `,
+  styleUrl: './contracts-panel.scss',
 })
 export class ContractsPanel {
   private readonly api = inject(ContractsApi);

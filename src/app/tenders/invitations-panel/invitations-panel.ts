@@ -1,14 +1,16 @@
 import { ChangeDetectionStrategy, Component, DestroyRef, computed, inject, input, output, signal } from '@angular/core';
 import { rxResource, takeUntilDestroyed } from '@angular/core/rxjs-interop';
-import { FormControl, NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
+import { NonNullableFormBuilder, ReactiveFormsModule } from '@angular/forms';
 import { MatButtonModule } from '@angular/material/button';
 import { MatCheckboxModule } from '@angular/material/checkbox';
 import { MatFormFieldModule } from '@angular/material/form-field';
 import { MatIconModule } from '@angular/material/icon';
 import { MatInputModule } from '@angular/material/input';
 import { MatSelectModule } from '@angular/material/select';
-import { invitationInputSchema, type TenderView } from '@shared/tenders';
+import { fieldPath } from '@shared/field-path';
+import { invitationInputSchema, type InvitationInput, type TenderView } from '@shared/tenders';
 import { ApiError } from '../../core/http/api-error';
+import { formSubmission } from '../../ui/form-submission';
 import { fieldMessage, zodValidator } from '../../ui/zod-validator';
 import { TenderApi } from '../tender-api';
 import { localClosingTime } from '../closing-time';
@@ -48,62 +50,63 @@ export class InvitationsPanel {
     return (this.allOrganisations.value() ?? []).filter((o) => !invited.has(o.id)).sort((a, b) => a.name.localeCompare(b.name));
   });
 
-  protected readonly chosen = new FormControl<string[]>([], { nonNullable: true });
-  protected readonly addNew = signal(false);
-  protected readonly newVendor = this.fb.group({
-    organisationName: ['', zodValidator(newVendorFields.organisationName)],
-    registrationNumber: ['', zodValidator(newVendorFields.registrationNumber)],
-    sme: [false],
-    contactName: ['', zodValidator(newVendorFields.contactName)],
-    contactEmail: ['', zodValidator(newVendorFields.contactEmail)],
+  /** The request's own shape, so the server's field paths (`newVendor.contactEmail`) name its controls. */
+  protected readonly form = this.fb.group({
+    vendorOrganisationIds: this.fb.control<string[]>([]),
+    // Enabled only while "Also invite a new vendor contact" is ticked: a disabled group is not checked.
+    newVendor: this.fb.group({
+      organisationName: ['', zodValidator(newVendorFields.organisationName)],
+      registrationNumber: ['', zodValidator(newVendorFields.registrationNumber)],
+      sme: [false],
+      contactName: ['', zodValidator(newVendorFields.contactName)],
+      contactEmail: ['', zodValidator(newVendorFields.contactEmail)],
+    }),
   });
-  protected readonly busy = signal(false);
-  protected readonly failure = signal<string | null>(null);
+  protected readonly chosen = this.form.controls.vendorOrganisationIds;
+  protected readonly newVendor = this.form.controls.newVendor;
+  protected readonly addNew = signal(false);
+  private readonly submission = formSubmission(this.form, this.destroyRef, {
+    // The rule over the whole request (someone to invite) is the schema's own; its problem goes under the list.
+    check: () => {
+      const parsed = invitationInputSchema.safeParse(this.body());
+      return parsed.success ? [] : parsed.error.issues.map((issue) => ({ field: fieldPath(issue.path), message: issue.message }));
+    },
+  });
+  protected readonly busy = this.submission.busy;
+  protected readonly failure = this.submission.failure;
   protected readonly fieldMessage = fieldMessage;
 
-  protected invite(): void {
-    if (this.busy()) return;
-    this.failure.set(null);
-    const withNew = this.addNew();
-    if (withNew && this.newVendor.invalid) {
-      this.newVendor.markAllAsTouched();
-      return;
-    }
-    const parsed = invitationInputSchema.safeParse({
+  constructor() {
+    this.newVendor.disable();
+  }
+
+  protected setAddNew(checked: boolean): void {
+    this.addNew.set(checked);
+    if (checked) this.newVendor.enable();
+    else this.newVendor.disable();
+  }
+
+  private body(): InvitationInput {
+    return {
       vendorOrganisationIds: this.chosen.value,
-      newVendor: withNew ? this.newVendor.getRawValue() : undefined,
-    });
-    if (!parsed.success) {
-      this.failure.set(parsed.error.issues[0]?.message ?? 'Choose who to invite.');
-      return;
-    }
-    this.busy.set(true);
-    const count = parsed.data.vendorOrganisationIds.length + (parsed.data.newVendor ? 1 : 0);
-    this.api
-      .invite(this.tender().id, parsed.data)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (tender) => {
-          this.busy.set(false);
-          this.chosen.setValue([]);
-          this.newVendor.reset();
-          this.addNew.set(false);
-          this.changed.emit(tender);
-          this.allOrganisations.reload();
-          const mailed = tender.status === 'open' ? ' They are e-mailed now.' : ' They are e-mailed when you publish.';
-          this.announce.emit(`${count} ${count === 1 ? 'organisation' : 'organisations'} invited.${mailed}`);
-        },
-        error: (error: unknown) => {
-          this.busy.set(false);
-          if (!(error instanceof ApiError)) throw error;
-          const messages = error.fieldErrors.map((e) => e.message);
-          for (const e of error.fieldErrors) {
-            const control = this.newVendor.get(e.field.replace(/^newVendor\./, ''));
-            if (control) control.setErrors({ server: e.message });
-          }
-          this.failure.set([error.userMessage, ...messages].join(' '));
-        },
-      });
+      newVendor: this.addNew() ? this.newVendor.getRawValue() : undefined,
+    };
+  }
+
+  protected invite(): void {
+    const body = this.body();
+    const count = body.vendorOrganisationIds.length + (body.newVendor ? 1 : 0);
+    this.submission.send(
+      () => this.api.invite(this.tender().id, body),
+      (tender) => {
+        this.form.reset();
+        this.setAddNew(false);
+        this.changed.emit(tender);
+        this.allOrganisations.reload();
+        const mailed = tender.status === 'open' ? ' They are e-mailed now.' : ' They are e-mailed when you publish.';
+        this.announce.emit(`${count} ${count === 1 ? 'organisation' : 'organisations'} invited.${mailed}`);
+      },
+    );
   }
 
   protected remove(organisationId: string, name: string): void {

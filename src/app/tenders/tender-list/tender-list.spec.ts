@@ -12,6 +12,7 @@ import type { SessionUser } from '@shared/roles';
 import type { TenderPage, TenderSummary } from '@shared/tenders';
 import { Auth } from '../../core/auth/auth';
 import { provideApi } from '../../core/http/provide-api';
+import { waitFor } from '../../testing/wait-for';
 import { TenderList } from './tender-list';
 
 const DAY = 86_400_000;
@@ -61,9 +62,7 @@ describe('TenderList', () => {
     const harness = await RouterTestingHarness.create();
     const navigated = harness.navigateByUrl(url);
     // A request in flight keeps the app unstable, so it is answered before waiting.
-    for (let i = 0; i < 100 && !http.match({ method: 'GET', url: request }).some((r) => (r.flush(answer), true)); i++) {
-      await new Promise((resolve) => setTimeout(resolve, 5));
-    }
+    await waitFor(`the list to ask for ${request}`, () => http.match({ method: 'GET', url: request }).some((r) => (r.flush(answer), true)));
     await navigated;
     fixture = harness.fixture as unknown as ComponentFixture<TenderList>;
     loader = TestbedHarnessEnvironment.loader(harness.fixture);
@@ -79,9 +78,7 @@ describe('TenderList', () => {
 
   /** Answers the one request to `url` while `action` (a harness call, which waits for it) runs. */
   async function answering<T>(action: Promise<T>, url: string, page: TenderPage): Promise<T> {
-    for (let i = 0; i < 100 && !http.match({ method: 'GET', url }).some((r) => (r.flush(page), true)); i++) {
-      await new Promise((resolve) => setTimeout(resolve, 5));
-    }
+    await waitFor(`the list to ask for ${url}`, () => http.match({ method: 'GET', url }).some((r) => (r.flush(page), true)));
     const done = await action;
     await fixture.whenStable();
     return done;
@@ -103,9 +100,7 @@ describe('TenderList', () => {
     const chips = await loader.getHarness(MatChipListboxHarness);
     // The harness waits for stability, which the new request holds up: answer it meanwhile.
     const selected = chips.selectChips({ text: 'Closed' });
-    for (let i = 0; i < 100 && !http.match({ url: '/api/tenders?status=closed' }).some((r) => (r.flush(pageOf([closed])), true)); i++) {
-      await new Promise((resolve) => setTimeout(resolve, 5));
-    }
+    await waitFor('the list to ask for the closed tenders', () => http.match({ url: '/api/tenders?status=closed' }).some((r) => (r.flush(pageOf([closed])), true)));
     await selected;
     await fixture.whenStable();
     expect((await rows()).map((r) => r['reference'])).toEqual(['WCX-2026-009']);
