@@ -192,7 +192,7 @@ export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, 
       submittedAt: input.submit ? deps.arrivedAt : null,
       digest: commitment?.digest ?? null, nonce: commitment?.nonce ?? null,
       revision, answersAmendment: own.amendment, documentId: document?.document_id ?? null,
-      codes, prices: codes.map((code) => input.prices[code]!),
+      codes, prices: codes.map((code) => input.prices[code]),
     });
     if (!saved) throw new ConflictError(CHANGED_ELSEWHERE);
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });

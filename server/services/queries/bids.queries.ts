@@ -71,7 +71,8 @@ export async function lockOwnBid(
        left join bid_document d on d.id = coalesce(?::uuid, b.document_id) and d.tender_id = ? and d.vendor_organisation_id = ?`,
     [q.tenderId, q.vendorId, q.tenderId, textArray(q.codes), q.tenderId, q.documentId, q.tenderId, q.vendorId],
   );
-  return row!;
+  // Always one row: the bid, if any, is joined to a row of its own.
+  return row;
 }
 
 /** Every column of a bid a save sets; `revision` etc. as they are after this save. */
