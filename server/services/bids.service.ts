@@ -9,7 +9,7 @@ import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders
 import { Bid, BidDocument, BidRemovedLine, type Tender, type User } from '../entities';
 import type { Principal } from '../auth/session-user';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../http/errors';
-import { enqueueMailIn } from './notifications/notify';
+import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { buildBidWorkbook } from '../workbooks/bid-workbook';
 import { parseBidWorkbookOffThread } from '../workbooks/workbook-pool';
@@ -160,13 +160,12 @@ const CHANGED_ELSEWHERE = 'This bid was changed elsewhere (another tab or a coll
  * Save a draft, submit, or revise — only before closing, and only over the version loaded. One
  * transaction of few round trips (SQL in queries/bids.queries.ts): the tender row locked and the
  * closing time checked; the vendor's bid locked and read with its workbook, the last amendment and
- * the codes that are no region; the bid row and every line written in one statement; for a
- * submission, its receipt queued and its audit entry appended (the chain's lock last, just before
- * the commit) — so a bid is stored if and only if it is receipted and on the trail.
+ * the codes that are no region; the bid row and every line written in one statement. A submission's
+ * audit entry and receipt follow the commit (see `auditBid`), before the answer.
  */
 export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, input: BidSave): Promise<BidView> {
   const org = vendorOf(user);
-  return whileOpen(deps, tenderId, async (tx) => {
+  const { fields, bidding, document } = await whileOpen(deps, tenderId, async (tx) => {
     const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
     const codes = Object.keys(input.prices);
     const own = await lockOwnBid(tx, { tenderId, vendorId: org.id, documentId: input.documentId ?? null, codes });
@@ -177,11 +176,11 @@ export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, 
     if (own.status && !input.submit && isLiveBid(own.status)) {
       throw new ConflictError('This bid is submitted. Submit your changes as a revision, or withdraw the bid.');
     }
-    let document = own.document_id === null ? null : own;
+    let attached = own.document_id === null ? null : own;
     if (input.documentId) {
-      if (!document) throw new ValidationError([{ field: 'documentId', message: 'This uploaded workbook is not yours or does not exist.' }]);
-      assertBidMatchesDocument({ figures: document.document_figures }, input);
-    } else if (document && !keepsDocument(document.document_figures, input)) document = null;
+      if (!attached) throw new ValidationError([{ field: 'documentId', message: 'This uploaded workbook is not yours or does not exist.' }]);
+      assertBidMatchesDocument({ figures: attached.document_figures }, input);
+    } else if (attached && !keepsDocument(attached.document_figures, input)) attached = null;
     const revision = (own.revision ?? 0) + (input.submit ? 1 : 0);
     // A fresh nonce for every submission: the receipt of each revision is its own commitment.
     const commitment = input.submit ? commitBid({ tender: bidding.reference, vendor: org.id, revision, ...input }) : null;
@@ -191,7 +190,7 @@ export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, 
       fixedFee: input.fixedFee, capacity: input.capacity,
       submittedAt: input.submit ? deps.arrivedAt : null,
       digest: commitment?.digest ?? null, nonce: commitment?.nonce ?? null,
-      revision, answersAmendment: own.amendment, documentId: document?.document_id ?? null,
+      revision, answersAmendment: own.amendment, documentId: attached?.document_id ?? null,
       codes, prices: codes.map((code) => input.prices[code]),
     });
     if (!saved) throw new ConflictError(CHANGED_ELSEWHERE);
@@ -201,20 +200,22 @@ export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, 
       submittedAt: saved.submitted_at === null ? null : new Date(saved.submitted_at), digest: saved.digest,
       updatedAt: new Date(saved.updated_at), answersAmendment: saved.answers_amendment, amendmentNote: saved.amendment_note,
     };
-    if (input.submit) {
-      await sendReceipt(tx, deps, user, bidding, fields, 'submitted');
-      await auditBid(tx, deps, tenderId, fields.revision > 1 ? 'bid.revised' : 'bid.submitted', fields);
-    }
-    // The prices stored are the ones sent: at most 4 decimals, exact in numeric(16,4).
-    return bidView(fields, input.prices, document && {
-      id: document.document_id!, filename: document.document_filename!, size: document.document_size!, digest: document.document_digest!,
-    });
+    const document = attached && {
+      id: attached.document_id!, filename: attached.document_filename!, size: attached.document_size!, digest: attached.document_digest!,
+    };
+    return { fields, bidding, document };
   });
+  if (input.submit) {
+    await auditBid(deps, tenderId, fields.revision > 1 ? 'bid.revised' : 'bid.submitted', fields);
+    await sendReceipt(deps, user, bidding, fields, 'submitted');
+  }
+  // The prices stored are the ones sent: at most 4 decimals, exact in numeric(16,4).
+  return bidView(fields, input.prices, document);
 }
 
 export async function withdrawBid(deps: BidDeps, user: Principal, tenderId: string, version: number): Promise<BidView> {
   const org = vendorOf(user);
-  const bid = await whileOpen(deps, tenderId, async (tx) => {
+  const withdrawn = await whileOpen(deps, tenderId, async (tx) => {
     const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
     const b = await tx.findOne(Bid, { tender: tenderId, vendorOrganisation: org.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
     if (!b) throw new NotFoundError('Your bid');
@@ -225,10 +226,11 @@ export async function withdrawBid(deps: BidDeps, user: Principal, tenderId: stri
     b.nonce = null;
     await tx.flush();
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
-    await sendReceipt(tx, deps, user, bidding, b, 'withdrawn');
-    await auditBid(tx, deps, tenderId, 'bid.withdrawn', b);
-    return b;
+    return { b, bidding };
   });
+  const { b: bid, bidding } = withdrawn;
+  await auditBid(deps, tenderId, 'bid.withdrawn', bid);
+  await sendReceipt(deps, user, bidding, bid, 'withdrawn');
   const fresh = await deps.em.fork().findOneOrFail(Bid, { id: bid.id }, { populate: ['lines.region', 'document'] });
   return bidView(fresh, linePrices(fresh), documentView(fresh.document));
 }
@@ -236,23 +238,21 @@ export async function withdrawBid(deps: BidDeps, user: Principal, tenderId: stri
 /**
  * The trail records that a bid arrived, was revised or was withdrawn — its revision and when it
  * was received — never its figures, its vendor or anything computed from the figures (not even
- * the receipt's commitment: the trail is readable before closing). In the bid's own transaction,
- * as its last statements: the chain's per-tender lock is then held only while the entry is
- * appended and the transaction commits, and a bid is never stored without its entry. Closing
- * waits for the bids in flight (their tender row lock), so every entry of a bid received in time
- * comes before the tender's closing entry.
+ * the receipt's commitment: the trail is readable before closing). Written just after the bid's
+ * own transaction rather than inside it: the chain's per-tender lock would otherwise make every
+ * vendor's save wait for the others' while holding its locks and connection (tried: in the
+ * deadline rush, 500 vendors on one tender, every save then took about 10 s). So a bid received
+ * just before the closing time may be recorded after the tender's closing entry; `receivedAt`
+ * says when it came.
  */
-async function auditBid(tx: EntityManager, deps: BidDeps, tenderId: string, action: string, bid: Pick<BidFields, 'id' | 'revision'>): Promise<void> {
+async function auditBid(deps: BidDeps, tenderId: string, action: string, bid: Pick<BidFields, 'id' | 'revision'>): Promise<void> {
   const detail = { revision: bid.revision, receivedAt: deps.arrivedAt.toISOString() };
-  await audit(tx, { tenderId, actor: null, action, subject: `bid ${bid.id}`, detail });
+  await deps.em.fork().transactional((tx) => audit(tx, { tenderId, actor: null, action, subject: `bid ${bid.id}`, detail }));
 }
 
-/**
- * Queued in the bid's transaction (`enqueueMailIn`): sent if and only if the bid is stored. The
- * receipt never carries figures: the admin can read the outbox before closing.
- */
+/** The receipt never carries figures: the admin can read the outbox before closing. */
 async function sendReceipt(
-  tx: EntityManager, deps: BidDeps, user: Principal, tender: BiddingTender, bid: Pick<BidFields, 'revision' | 'digest' | 'answersAmendment'>, what: 'submitted' | 'withdrawn',
+  deps: BidDeps, user: Principal, tender: BiddingTender, bid: Pick<BidFields, 'revision' | 'digest' | 'answersAmendment'>, what: 'submitted' | 'withdrawn',
 ): Promise<void> {
   const subject = what === 'submitted'
     ? `Receipt: your bid on ${tender.reference} (revision ${bid.revision})`
@@ -271,7 +271,7 @@ async function sendReceipt(
     timeZone: tender.timeZone,
     link: `${deps.publicUrl}/tenders/${tender.id}`,
   });
-  await enqueueMailIn(tx, deps.boss, { to: user.email, ...mail });
+  await enqueueMail(deps.boss, { to: user.email, ...mail });
 }
 
 /** Sealed until closing: before it, only the count of submitted bids. */
