@@ -114,8 +114,9 @@ export interface SavedBidRow {
 /**
  * The bid row and all its lines in one statement: the row inserted, or updated over the version the
  * vendor loaded (every save is a new version); its lines upserted from two arrays (code, price) —
- * a line whose price did not change is not written again (a vendor saves a draft many times over,
- * changing a few prices) — and the lines of regions no longer priced deleted; the prices of regions an amendment removed deleted
+ * a line whose price did not change is neither written nor locked again (a vendor saves a draft
+ * many times over, changing a few prices; the bid row's lock keeps its lines as read) — and the
+ * lines of regions no longer priced deleted; the prices of regions an amendment removed deleted
  * too (they belonged to the receipt of an earlier submission, and this save replaces every figure:
  * the vendor's own act, not a silent loss). The deletes cannot see the rows the upsert writes (one
  * snapshot per statement) and touch only regions not priced now. No row back: the version is not the
@@ -143,9 +144,11 @@ export async function writeBid(tx: EntityManager, w: BidWrite): Promise<SavedBid
          from unnest(?::text[], ?::numeric[]) as l(code, unit_price) join region r on r.tender_id = ? and r.code = l.code),
      upserted as (
        insert into bid_line (id, bid_id, region_id, unit_price)
-       select gen_random_uuid(), s.id, p.region_id, p.unit_price from saved s cross join priced p
-       on conflict (bid_id, region_id) do update set unit_price = excluded.unit_price, updated_at = now()
-         where bid_line.unit_price <> excluded.unit_price),
+       select gen_random_uuid(), s.id, p.region_id, p.unit_price
+         from saved s cross join priced p
+         left join bid_line l on l.bid_id = s.id and l.region_id = p.region_id
+        where l.unit_price is distinct from p.unit_price
+       on conflict (bid_id, region_id) do update set unit_price = excluded.unit_price, updated_at = now()),
      unpriced as (delete from bid_line l using saved s where l.bid_id = s.id and l.region_id not in (select region_id from priced)),
      removed as (delete from bid_removed_line x using saved s where x.bid_id = s.id)
      select * from saved`,
