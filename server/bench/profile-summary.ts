@@ -10,6 +10,11 @@ import { table } from './support/measure';
  * as `node:…`), inclusive time by package (a sample counts once for every package on its stack,
  * so a library's callees are in its figure) and self time by function. With `--requests N` (the
  * requests the process answered while profiled) every figure is also given in µs per request.
+ *
+ * A bench run profiles one process through several phases. `--spans` lists its busy spans (CPU
+ * separated by a second or more of idle: bench:api's 4-second slices) with the route modules seen
+ * in each; `--between 12.0-16.1,20.3-24.4` (seconds from the profile's start) then sums only those
+ * spans, so one phase's requests can be costed on their own.
  */
 interface CallFrame { functionName: string; url: string; lineNumber: number }
 interface ProfileNode { id: number; callFrame: CallFrame; children?: number[] }
@@ -98,6 +103,58 @@ export function summarise(profile: CpuProfile): { self: Map<string, number>; inc
   return { self, inclusive, fn, charged, parts, totalUs };
 }
 
+/** The time of each sample, in µs from the profile's start. */
+function sampleTimes(profile: CpuProfile): number[] {
+  let at = 0;
+  return profile.timeDeltas.map((d) => (at += d));
+}
+
+/** The profile restricted to the samples taken within `windows` (seconds from its start). */
+export function within(profile: CpuProfile, windows: Array<[number, number]>): CpuProfile {
+  const times = sampleTimes(profile);
+  const samples: number[] = [];
+  // `summarise` reads sample k's duration from timeDeltas[k + 1]: keep that pairing.
+  const timeDeltas = [0];
+  profile.samples.forEach((id, k) => {
+    if (!windows.some(([from, to]) => times[k] >= from * 1e6 && times[k] < to * 1e6)) return;
+    samples.push(id);
+    timeDeltas.push(profile.timeDeltas[k + 1] ?? 0);
+  });
+  return { ...profile, samples, timeDeltas };
+}
+
+/**
+ * Busy spans: runs of half-seconds in which the main thread was on the CPU a fifth of the time or
+ * more (the jobs' polling between bench slices stays below), with the route modules seen most.
+ */
+function spans(profile: CpuProfile, bucketMs = 500): Array<{ from: number; to: number; cpuMs: number; modules: string[] }> {
+  const byId = new Map(profile.nodes.map((n) => [n.id, n]));
+  const times = sampleTimes(profile);
+  const buckets = new Map<number, { cpuMs: number; modules: Map<string, number> }>();
+  profile.samples.forEach((id, k) => {
+    const f = byId.get(id)!.callFrame;
+    if (f.functionName === '(idle)' || (f.functionName === '(program)' && !f.url)) return;
+    const key = Math.floor(times[k] / 1000 / bucketMs);
+    const bucket = buckets.get(key) ?? { cpuMs: 0, modules: new Map<string, number>() };
+    buckets.set(key, bucket);
+    bucket.cpuMs += (profile.timeDeltas[k + 1] ?? 0) / 1000;
+    const m = /\/dist\/server\/(services|routes|auth)\/([^/]+)\.js$/.exec(f.url);
+    if (m) bucket.modules.set(m[2], (bucket.modules.get(m[2]) ?? 0) + 1);
+  });
+  const out: Array<{ from: number; to: number; cpuMs: number; modules: Map<string, number> }> = [];
+  for (const key of [...buckets.keys()].sort((x, y) => x - y)) {
+    const bucket = buckets.get(key)!;
+    if (bucket.cpuMs < bucketMs / 5) continue;
+    const from = (key * bucketMs) / 1000;
+    let span = out[out.length - 1];
+    if (!span || span.to < from) out.push((span = { from, to: from, cpuMs: 0, modules: new Map() }));
+    span.to = from + bucketMs / 1000;
+    span.cpuMs += bucket.cpuMs;
+    for (const [name, n] of bucket.modules) span.modules.set(name, (span.modules.get(name) ?? 0) + n);
+  }
+  return out.map((s) => ({ ...s, modules: [...s.modules.entries()].sort((a, b) => b[1] - a[1]).slice(0, 3).map(([name]) => name) }));
+}
+
 function main(): void {
   const args = process.argv.slice(2);
   const file = args.find((a) => !a.startsWith('--') && !/^\d+$/.test(a));
@@ -108,7 +165,16 @@ function main(): void {
   };
   const requests = opt('--requests');
   const top = opt('--top') ?? 25;
-  const profile = JSON.parse(fs.readFileSync(file, 'utf8')) as CpuProfile;
+  let profile = JSON.parse(fs.readFileSync(file, 'utf8')) as CpuProfile;
+  if (args.includes('--spans')) {
+    process.stdout.write(table(['from s', 'to s', 'CPU ms', 'our modules seen most'],
+      spans(profile).map((s) => [s.from.toFixed(1), s.to.toFixed(1), s.cpuMs, s.modules.join(', ')])));
+    return;
+  }
+  const between = args[args.indexOf('--between') + 1];
+  if (args.includes('--between') && between) {
+    profile = within(profile, between.split(',').map((w) => w.split('-').map(Number) as [number, number]));
+  }
   const { self, inclusive, fn, charged, parts, totalUs } = summarise(profile);
   const wall = (profile.endTime - profile.startTime) / 1e6;
   process.stdout.write(`${path.basename(file)}: ${(totalUs / 1e6).toFixed(2)} s on the CPU (main thread) of ${wall.toFixed(1)} s; idle ${((self.get('(idle)') ?? 0) / 1e6).toFixed(2)} s\n`);

@@ -80,13 +80,14 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       method: 'put', path: '/tenders/:id/bid', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, body: bidSaveSchema,
       summary: 'Save a draft (submit: false) or submit/revise (submit: true) before closing: a request whose body arrived in full before the closing time is accepted and stamped with that time. Send the version you loaded (null for a first save).',
       responses: { 409: 'Closed, or changed elsewhere since loaded' },
-      handler: ({ em, user, params, body, req }) => bids.saveBid(ctx(em, req), user, params.id, body),
+      // The person as read with the session (no User entity): the save is SQL of its own.
+      handler: ({ em, params, body, req }) => bids.saveBid(ctx(em, req), req.user!, params.id, body),
     }),
     route({
       method: 'post', path: '/tenders/:id/bid/withdraw', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,
       body: z.object({ version: z.number({ error: 'Version is required.' }).int().min(1) }),
       summary: 'Withdraw the bid before closing.',
-      handler: ({ em, user, params, body, req }) => bids.withdrawBid(ctx(em, req), user, params.id, body.version),
+      handler: ({ em, params, body, req }) => bids.withdrawBid(ctx(em, req), req.user!, params.id, body.version),
     }),
     route({
       method: 'get', path: '/tenders/:id/bid-workbook', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, produces: XLSX,

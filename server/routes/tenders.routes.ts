@@ -13,7 +13,8 @@ export function tenderRoutes(deps: AppDeps): AnyRoute[] {
       method: 'get', path: '/tenders', tag: 'Tenders', access: ['admin', 'buyer', 'compliance', 'vendor'], query: tenderListQuerySchema,
       response: tenderPageSchema,
       summary: 'One page of the tenders (newest closing first unless sorted otherwise) with how many match in all; filter by status, search reference/title/commodity. A vendor sees only published tenders it is invited to.',
-      handler: ({ user, query }) => tenders.listTenders(deps.sessionPool, user, query),
+      // The person as read with the session: the list forks no EntityManager and builds no entity.
+      handler: ({ req, query }) => tenders.listTenders(deps.sessionPool, req.user!, query),
     }),
     route({
       method: 'post', path: '/tenders', tag: 'Tenders', access: ['buyer'], body: tenderInputSchema, status: 201,

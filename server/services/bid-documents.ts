@@ -1,7 +1,6 @@
 import type { BidFigures } from '@shared/bids';
 import { byCode } from '@shared/bids';
-import type { EntityManager } from '@mikro-orm/postgresql';
-import { BidDocument, type Bid } from '../entities';
+import type { BidDocument } from '../entities';
 import type { BidDocumentFigures } from '../entities/bid-document.entity';
 import { AppError, ValidationError, type FieldError } from '../http/errors';
 import { BID_LAYOUT, cellRef } from '../workbooks/bid-layout';
@@ -35,7 +34,7 @@ function differences(figures: BidDocumentFigures, bid: BidFigures): FieldError[]
  * document on record always says what the bid says. Every difference is named by its field and
  * the workbook cell. A workbook stored before its figures were kept is not checked.
  */
-export function assertBidMatchesDocument(doc: BidDocument, bid: BidFigures): void {
+export function assertBidMatchesDocument(doc: { figures?: BidDocumentFigures | null }, bid: BidFigures): void {
   const errors = doc.figures ? differences(doc.figures, bid) : [];
   if (errors.length > 0) throw new ValidationError(errors, 'The bid does not match the uploaded workbook attached to it; nothing was saved.');
 }
@@ -45,10 +44,8 @@ export function assertBidMatchesDocument(doc: BidDocument, bid: BidFigures): voi
  * the workbook's; a revision typed into the form detaches it, so the record never shows a workbook
  * that says something else than the bid.
  */
-export async function keepDocumentIfMatching(tx: EntityManager, bid: Bid, figures: BidFigures): Promise<void> {
-  if (!bid.document) return;
-  const doc = await tx.findOne(BidDocument, { id: bid.document.id });
-  if (!doc?.figures || differences(doc.figures, figures).length > 0) bid.document = null;
+export function keepsDocument(figures: BidDocumentFigures | null, bid: BidFigures): boolean {
+  return figures !== null && differences(figures, bid).length === 0;
 }
 
 /**

@@ -6,21 +6,22 @@ import { bidsValidUntil } from '@shared/compliance';
 import { describeAwardBasis } from '@shared/award-basis';
 import { formatInZone } from '@shared/time-zone';
 import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
-import { wrap } from '@mikro-orm/core';
-import { Bid, BidDocument, BidRemovedLine, Tender, type User } from '../entities';
+import { Bid, BidDocument, BidRemovedLine, type Tender, type User } from '../entities';
+import type { Principal } from '../auth/session-user';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { buildBidWorkbook } from '../workbooks/bid-workbook';
 import { parseBidWorkbookOffThread } from '../workbooks/workbook-pool';
-import { assertBidMatchesDocument, keepDocumentIfMatching } from './bid-documents';
+import { assertBidMatchesDocument, keepsDocument } from './bid-documents';
+import { lockOwnBid, lockTenderForBid, writeBid } from './queries/bids.queries';
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
 import { audit } from './audit.service';
 import { bidCommitment, commitBid } from './bid-commitment';
 import { closeIfDue, findVisibleTender } from './tender-access';
 import { isLiveBid, isSealed, LIVE_BID_STATUSES } from '@shared/tenders';
-import { biddingTenderForShare, replaceBidLines, tabulationRows } from './queries/bids.queries';
+import { tabulationRows } from './queries/bids.queries';
 import { openingTender } from './queries/opening.queries';
 import { tenderRegionRows } from './queries/tender-rows.queries';
 import { abnormallyLowFlags } from './evaluation/abnormally-low';
@@ -46,8 +47,24 @@ export interface BidHooks {
 
 
 
+/** What a bid's view shows of it: a Bid entity, or the row its save returned. */
+interface BidFields {
+  id: string;
+  status: Bid['status'];
+  fixedFee: number;
+  capacity?: number | null;
+  revision: number;
+  version: number;
+  submittedAt?: Date | null;
+  digest?: string | null;
+  nonce?: string | null;
+  updatedAt: Date;
+  answersAmendment: number;
+  amendmentNote?: string | null;
+}
+
 /** `nonce` only once the tender is closed: before, it would let a reader test guesses of the figures. */
-function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), document = bid.document ?? null, revealNonce = false): BidView {
+function bidView(bid: BidFields, prices: Record<string, number>, document: BidView['document'], revealNonce = false): BidView {
   return {
     id: bid.id,
     status: bid.status,
@@ -60,26 +77,29 @@ function bidView(bid: Bid, prices: Record<string, number> = linePrices(bid), doc
     digest: bid.digest ?? null,
     ...(revealNonce ? { nonce: bid.nonce ?? null } : {}),
     updatedAt: bid.updatedAt.toISOString(),
-    document: document ? { id: document.id, filename: document.filename, size: document.size, digest: document.digest } : null,
+    document,
     answersAmendment: bid.answersAmendment,
     amendmentNote: bid.amendmentNote ?? null,
   };
 }
 
+const documentView = (d: BidDocument | null | undefined): BidView['document'] =>
+  (d ? { id: d.id, filename: d.filename, size: d.size, digest: d.digest } : null);
+
 function linePrices(bid: Bid): Record<string, number> {
   return recordByCode(bid.lines.getItems().map((line) => [line.region.code, line.unitPrice] as const));
 }
 
-function vendorOf(user: User) {
+function vendorOf(user: Principal) {
   if (!user.vendorOrganisation) throw new AppError(403, 'Not allowed', 'Only vendors bid.');
   return user.vendorOrganisation;
 }
 
 export async function ownBid(em: EntityManager, user: User, tenderId: string): Promise<BidView | null> {
   const tender = await findVisibleTender(em, user, tenderId);
-  const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user) }, { populate: ['lines.region', 'document'] });
+  const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user).id }, { populate: ['lines.region', 'document'] });
   if (!bid) return null;
-  const view = bidView(bid, undefined, undefined, !isSealed(tender.status));
+  const view = bidView(bid, linePrices(bid), documentView(bid.document), !isSealed(tender.status));
   // Its own prices for regions an amendment removed: part of its receipt, shown apart.
   const removed = await em.find(BidRemovedLine, { bid }, { orderBy: { regionCode: 'asc' } });
   if (removed.length) view.removedPrices = recordByCode(removed.map((r) => [r.regionCode, r.unitPrice] as const));
@@ -119,99 +139,87 @@ interface BiddingTender {
   closesAt: Date;
   /** The procedure's IANA time zone, in which closing times are shown. */
   timeZone: string;
-  /** Region code → region id. */
-  regions: Map<string, string>;
-  /** The number of the last amendment issued (0: none), which a submission answers. */
-  amendment: number;
 }
 
 /**
- * One query: locks the tender row for sharing (bids of many vendors proceed together; closing
- * waits for them), checks that `vendorId` was invited (otherwise "not found", as on every read),
- * that the request arrived before the closing time (`arrivedAt`, this server's clock at its edge)
- * and that the tender is still open — not yet closed and opened, which happens CLOSING_GRACE_MS
- * after the closing time (tender-access.ts); and reads the region codes. Saving a bid was the
- * slowest vendor request (bench:api, phase b) while this took five round trips and hydrated every
- * region as an entity.
+ * The first statement of a bid's transaction (`lockTenderForBid`): locks the tender row for sharing
+ * (bids of many vendors proceed together; closing waits for them), checks that `vendorId` was
+ * invited (otherwise "not found", as on every read), that the request arrived before the closing
+ * time (`arrivedAt`, this server's clock at its edge) and that the tender is still open — not yet
+ * closed and opened, which happens CLOSING_GRACE_MS after the closing time (tender-access.ts).
  */
 async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
-  const row = await biddingTenderForShare(tx, tenderId, vendorId);
+  const row = await lockTenderForBid(tx, tenderId, vendorId);
   if (!row || !row.invited || row.status === 'draft' || !row.published) throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
   if (row.status !== 'open' || arrivedAt.getTime() >= closesAt.getTime()) throw new BiddingClosed(closesAt, row.time_zone, row.status === 'cancelled');
-  return { id: tenderId, reference: row.reference, title: row.title, closesAt, timeZone: row.time_zone, regions: new Map(Object.entries(row.regions ?? {})), amendment: row.amendment };
+  return { id: tenderId, reference: row.reference, title: row.title, closesAt, timeZone: row.time_zone };
 }
 
-/** Save a draft, submit, or revise — only before closing, and only over the version loaded. */
-export async function saveBid(deps: BidDeps, user: User, tenderId: string, input: BidSave): Promise<BidView> {
+const CHANGED_ELSEWHERE = 'This bid was changed elsewhere (another tab or a colleague) since you loaded it. Reload it to see the current figures; nothing was saved.';
+
+/**
+ * Save a draft, submit, or revise — only before closing, and only over the version loaded. One
+ * transaction of few round trips (SQL in queries/bids.queries.ts): the tender row locked and the
+ * closing time checked; the vendor's bid locked and read with its workbook, the last amendment and
+ * the codes that are no region; the bid row and every line written in one statement. A submission's
+ * audit entry and receipt follow the commit (see `auditBid`), before the answer.
+ */
+export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, input: BidSave): Promise<BidView> {
   const org = vendorOf(user);
-  const { bid: saved, tender: bidding } = await whileOpen(deps, tenderId, async (tx) => {
+  const { fields, bidding, document } = await whileOpen(deps, tenderId, async (tx) => {
     const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
     const codes = Object.keys(input.prices);
-    const unknown = codes.filter((code) => !bidding.regions.has(code));
-    if (unknown.length) {
-      throw new ValidationError(unknown.map((code) => ({ field: `prices.${code}`, message: `Region ${code} is not part of this tender.` })));
+    const own = await lockOwnBid(tx, { tenderId, vendorId: org.id, documentId: input.documentId ?? null, codes });
+    if (own.unknown_codes.length) {
+      throw new ValidationError(own.unknown_codes.map((code) => ({ field: `prices.${code}`, message: `Region ${code} is not part of this tender.` })));
     }
-    const tender = tx.getReference(Tender, tenderId);
-    const existing: Bid | null = await tx.findOne(Bid, { tender, vendorOrganisation: org }, { lockMode: LockMode.PESSIMISTIC_WRITE });
-    const loaded = input.version ?? null;
-    if ((existing?.version ?? null) !== loaded) {
-      throw new ConflictError('This bid was changed elsewhere (another tab or a colleague) since you loaded it. Reload it to see the current figures; nothing was saved.');
-    }
-    if (existing && !input.submit && isLiveBid(existing.status)) {
+    if (own.version !== (input.version ?? null)) throw new ConflictError(CHANGED_ELSEWHERE);
+    if (own.status && !input.submit && isLiveBid(own.status)) {
       throw new ConflictError('This bid is submitted. Submit your changes as a revision, or withdraw the bid.');
     }
-    const bid = existing ?? tx.create(Bid, { tender, vendorOrganisation: org, fixedFee: input.fixedFee, capacity: input.capacity });
-    bid.fixedFee = input.fixedFee;
-    bid.capacity = input.capacity;
-    // Every save is a new version, even one that changes only prices (the lines are another table).
-    bid.updatedAt = new Date();
+    let attached = own.document_id === null ? null : own;
     if (input.documentId) {
-      const doc = await tx.findOne(BidDocument, { id: input.documentId, tender, vendorOrganisation: org });
-      if (!doc) throw new ValidationError([{ field: 'documentId', message: 'This uploaded workbook is not yours or does not exist.' }]);
-      assertBidMatchesDocument(doc, input);
-      bid.document = doc;
-    } else await keepDocumentIfMatching(tx, bid, input);
-    if (input.submit) {
-      bid.status = bid.revision > 0 ? 'revised' : 'submitted';
-      bid.revision += 1;
-      bid.submittedAt = deps.arrivedAt;
-      // A fresh nonce for every submission: the receipt of each revision is its own commitment.
-      const { nonce, digest } = commitBid({ tender: bidding.reference, vendor: org.id, revision: bid.revision, ...input });
-      bid.nonce = nonce;
-      bid.digest = digest;
-      bid.answersAmendment = bidding.amendment;
-      bid.amendmentNote = null;
-    } else {
-      bid.status = 'draft';
-      bid.digest = null;
-      bid.nonce = null;
-    }
-    // The bid row first (a new bid's lines refer to it), then its lines replaced in one statement:
-    // as entities, 200 lines cost 200 change sets. The delete cannot see the rows the upsert
-    // writes (one snapshot per statement), so it removes only regions no longer priced.
-    // Prices of regions an amendment removed belonged to the receipt of an earlier submission; this
-    // save replaces every figure of the bid, so they go too (the vendor's own act, not a silent
-    // loss), in the same statement: one round trip less while the bid holds its locks.
-    await tx.flush();
-    await replaceBidLines(tx, bid.id, codes.map((c) => ({ region_id: bidding.regions.get(c)!, unit_price: input.prices[c] })));
+      if (!attached) throw new ValidationError([{ field: 'documentId', message: 'This uploaded workbook is not yours or does not exist.' }]);
+      assertBidMatchesDocument({ figures: attached.document_figures }, input);
+    } else if (attached && !keepsDocument(attached.document_figures, input)) attached = null;
+    const revision = (own.revision ?? 0) + (input.submit ? 1 : 0);
+    // A fresh nonce for every submission: the receipt of each revision is its own commitment.
+    const commitment = input.submit ? commitBid({ tender: bidding.reference, vendor: org.id, revision, ...input }) : null;
+    const saved = await writeBid(tx, {
+      tenderId, vendorId: org.id, loadedVersion: input.version ?? null, submit: input.submit,
+      status: input.submit ? (revision > 1 ? 'revised' : 'submitted') : 'draft',
+      fixedFee: input.fixedFee, capacity: input.capacity,
+      submittedAt: input.submit ? deps.arrivedAt : null,
+      digest: commitment?.digest ?? null, nonce: commitment?.nonce ?? null,
+      revision, answersAmendment: own.amendment, documentId: attached?.document_id ?? null,
+      codes, prices: codes.map((code) => input.prices[code]),
+    });
+    if (!saved) throw new ConflictError(CHANGED_ELSEWHERE);
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
-    return { bid, tender: bidding };
+    const fields: BidFields = {
+      id: saved.id, status: saved.status, fixedFee: input.fixedFee, capacity: input.capacity, revision: saved.revision, version: saved.version,
+      submittedAt: saved.submitted_at === null ? null : new Date(saved.submitted_at), digest: saved.digest,
+      updatedAt: new Date(saved.updated_at), answersAmendment: saved.answers_amendment, amendmentNote: saved.amendment_note,
+    };
+    const document = attached && {
+      id: attached.document_id!, filename: attached.document_filename!, size: attached.document_size!, digest: attached.document_digest!,
+    };
+    return { fields, bidding, document };
   });
   if (input.submit) {
-    await auditBid(deps, tenderId, saved.revision > 1 ? 'bid.revised' : 'bid.submitted', saved);
-    await sendReceipt(deps, user, bidding, saved, 'submitted');
+    await auditBid(deps, tenderId, fields.revision > 1 ? 'bid.revised' : 'bid.submitted', fields);
+    await sendReceipt(deps, user, bidding, fields, 'submitted');
   }
   // The prices stored are the ones sent: at most 4 decimals, exact in numeric(16,4).
-  const doc = saved.document && !wrap(saved.document).isInitialized() ? await deps.em.fork().findOneOrFail(BidDocument, saved.document.id) : saved.document;
-  return bidView(saved, input.prices, doc ?? null);
+  return bidView(fields, input.prices, document);
 }
 
-export async function withdrawBid(deps: BidDeps, user: User, tenderId: string, version: number): Promise<BidView> {
+export async function withdrawBid(deps: BidDeps, user: Principal, tenderId: string, version: number): Promise<BidView> {
   const org = vendorOf(user);
-  const { bid, tender } = await whileOpen(deps, tenderId, async (tx) => {
+  const withdrawn = await whileOpen(deps, tenderId, async (tx) => {
     const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
-    const b = await tx.findOne(Bid, { tender: tenderId, vendorOrganisation: org }, { lockMode: LockMode.PESSIMISTIC_WRITE });
+    const b = await tx.findOne(Bid, { tender: tenderId, vendorOrganisation: org.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
     if (!b) throw new NotFoundError('Your bid');
     if (b.version !== version) throw new ConflictError('This bid was changed elsewhere since you loaded it. Reload it; nothing was withdrawn.');
     if (b.status === 'withdrawn') throw new ConflictError('This bid is already withdrawn.');
@@ -220,12 +228,13 @@ export async function withdrawBid(deps: BidDeps, user: User, tenderId: string, v
     b.nonce = null;
     await tx.flush();
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
-    return { bid: b, tender: bidding };
+    return { b, bidding };
   });
+  const { b: bid, bidding } = withdrawn;
   await auditBid(deps, tenderId, 'bid.withdrawn', bid);
-  await sendReceipt(deps, user, tender, bid, 'withdrawn');
+  await sendReceipt(deps, user, bidding, bid, 'withdrawn');
   const fresh = await deps.em.fork().findOneOrFail(Bid, { id: bid.id }, { populate: ['lines.region', 'document'] });
-  return bidView(fresh);
+  return bidView(fresh, linePrices(fresh), documentView(fresh.document));
 }
 
 /**
@@ -233,16 +242,20 @@ export async function withdrawBid(deps: BidDeps, user: User, tenderId: string, v
  * was received — never its figures, its vendor or anything computed from the figures (not even
  * the receipt's commitment: the trail is readable before closing). Written just after the bid's
  * own transaction rather than inside it: the chain's per-tender lock would otherwise make every
- * vendor's save wait for the others'. So a bid received just before the closing time may be
- * recorded after the tender's closing entry; `receivedAt` says when it came.
+ * vendor's save wait for the others' while holding its locks and connection (tried: in the
+ * deadline rush, 500 vendors on one tender, every save then took about 10 s). So a bid received
+ * just before the closing time may be recorded after the tender's closing entry; `receivedAt`
+ * says when it came.
  */
-async function auditBid(deps: BidDeps, tenderId: string, action: string, bid: Bid): Promise<void> {
+async function auditBid(deps: BidDeps, tenderId: string, action: string, bid: Pick<BidFields, 'id' | 'revision'>): Promise<void> {
   const detail = { revision: bid.revision, receivedAt: deps.arrivedAt.toISOString() };
   await deps.em.fork().transactional((tx) => audit(tx, { tenderId, actor: null, action, subject: `bid ${bid.id}`, detail }));
 }
 
 /** The receipt never carries figures: the admin can read the outbox before closing. */
-async function sendReceipt(deps: BidDeps, user: User, tender: BiddingTender, bid: Bid, what: 'submitted' | 'withdrawn'): Promise<void> {
+async function sendReceipt(
+  deps: BidDeps, user: Principal, tender: BiddingTender, bid: Pick<BidFields, 'revision' | 'digest' | 'answersAmendment'>, what: 'submitted' | 'withdrawn',
+): Promise<void> {
   const subject = what === 'submitted'
     ? `Receipt: your bid on ${tender.reference} (revision ${bid.revision})`
     : `Receipt: your bid on ${tender.reference} is withdrawn`;
@@ -346,8 +359,8 @@ export async function bidDocument(em: EntityManager, user: User, tenderId: strin
 
 export async function vendorWorkbook(em: EntityManager, user: User, tenderId: string): Promise<{ filename: string; content: Buffer }> {
   const tender = await findVisibleTender(em, user, tenderId);
-  const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user) }, { populate: ['lines.region'] });
-  const own = bid ? bidView(bid) : null;
+  const bid = await em.findOne(Bid, { tender, vendorOrganisation: vendorOf(user).id }, { populate: ['lines.region'] });
+  const own = bid ? { fixedFee: bid.fixedFee, capacity: bid.capacity ?? null, prices: linePrices(bid) } : null;
   const content = await buildBidWorkbook({
     reference: tender.reference, title: tender.title, currency: tender.currency, unit: tender.unit,
     closesAt: tender.closesAt.toISOString(), timeZone: tender.timeZone, vendorName: vendorOf(user).name, regions: regionInputs(tender),
@@ -370,7 +383,7 @@ export async function uploadWorkbook(
     throw new ValidationError(parsed.errors.map((e) => ({ field: e.cell || 'file', message: e.message })), 'The workbook has problems; nothing was saved.');
   }
   const doc = em.create(BidDocument, {
-    tender, vendorOrganisation: org, uploadedBy: user,
+    tender, vendorOrganisation: org.id, uploadedBy: user,
     filename: file.originalname.slice(0, 255) || 'bid.xlsx',
     size: file.size,
     digest: createHash('sha256').update(file.buffer).digest('hex'),

@@ -10,3 +10,11 @@ export function sqlList(values: readonly string[]): string {
 export function uuidArray(ids: readonly string[]): string {
   return `{${ids.join(',')}}`;
 }
+
+/**
+ * Texts as one PostgreSQL array parameter (`unnest(?::text[])`), each element quoted — so that a
+ * code such as NULL stays text — with `"` and `\` escaped as the array syntax asks.
+ */
+export function textArray(values: readonly string[]): string {
+  return `{${values.map((v) => `"${v.replace(/[\\"]/g, (c) => `\\${c}`)}"`).join(',')}}`;
+}

@@ -69,7 +69,7 @@ async function closeDue(em: EntityManager, tenderId: string | null, now: Date): 
  * For lists: the buyer whose tenders `user` may see (its own id), or null when the role is not
  * limited to its own tenders (vendors are limited by invitation instead).
  */
-export function tenderOwnerScope(user: User): string | null {
+export function tenderOwnerScope(user: Pick<User, 'id' | 'role'>): string | null {
   return user.role === 'buyer' ? user.id : null;
 }
 

@@ -12,6 +12,7 @@ import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from '
 import { audit } from './audit.service';
 import { AFTER_AWARD, tenderListRows } from './queries/tenders.queries';
 import { CLOSING_GRACE_MS, closeIfDue, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
+import type { Principal } from '../auth/session-user';
 import { LIVE_BID_STATUSES, statusesBefore } from '@shared/tenders';
 import { isWholeMultiple } from '@shared/award';
 
@@ -41,7 +42,7 @@ export function regionInputs(tender: Tender): RegionInput[] {
   return tender.regions.getItems().map((r) => ({ code: r.code, name: r.name, forecast: r.forecast }));
 }
 
-export async function listTenders(pool: Pool, user: User, query: TenderListQuery): Promise<TenderPage> {
+export async function listTenders(pool: Pool, user: Principal, query: TenderListQuery): Promise<TenderPage> {
   // No write here: closing (and its audit entry) is the close job's and the bid save's. Until the
   // job has run, a tender past its closing time is listed as closed all the same (CURRENT_STATUS).
   // One prepared statement, a page at a time, counts and totals by PostgreSQL (queries/tenders.queries.ts).

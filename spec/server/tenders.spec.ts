@@ -120,6 +120,33 @@ test('the tender list comes a page at a time, newest closing first, with how man
   expect(searched.body).toMatchObject({ total: 1, items: [{ reference: early }] });
 });
 
+test("a vendor's list comes a page at a time with the count of its invitations only, its own bid's status, and still counts past the end", async () => {
+  // A vendor of its own, invited to three tenders; a fourth it is not invited to and a draft stay out.
+  const u = await makeUser(t, 'vendor');
+  const vendor = await signedIn(t, u);
+  const org = u.vendorOrganisation!.id;
+  const refs: string[] = [];
+  for (const minutes of [300, 100, 200]) {
+    const body = tenderBody(2, minutes);
+    await openTender(buyer, [org], body);
+    refs.push(body.reference);
+  }
+  await openTender(buyer, [orgA]);
+  const invitedDraft = await buyer.post('/api/tenders', tenderBody());
+  expect((await buyer.post(`/api/tenders/${invitedDraft.body.id}/invitations`, { vendorOrganisationIds: [org] })).status).toBe(200);
+  const [late, early, middle] = refs;
+  const first = await vendor.get('/api/tenders').query({ size: 2 });
+  expect(first.body).toMatchObject({ total: 3, page: 1, size: 2 });
+  expect(first.body.items.map((x: { reference: string }) => x.reference)).toEqual([late, middle]);
+  expect(first.body.items[0]).toMatchObject({ regionCount: 2, totalForecast: 3000, status: 'open', myBidStatus: null });
+  const second = await vendor.get('/api/tenders').query({ size: 2, page: 2 });
+  expect(second.body).toMatchObject({ total: 3, page: 2, size: 2 });
+  expect(second.body.items.map((x: { reference: string }) => x.reference)).toEqual([early]);
+  expect((await vendor.get('/api/tenders').query({ size: 2, page: 9 })).body).toEqual({ items: [], total: 3, page: 9, size: 2 });
+  const searched = await vendor.get('/api/tenders').query({ q: early, size: 1 });
+  expect(searched.body).toMatchObject({ total: 1, items: [{ reference: early }] });
+});
+
 test('a page, page size, order or direction out of range is refused naming the parameter', async () => {
   for (const [query, field] of [[{ size: 0 }, 'size'], [{ size: 101 }, 'size'], [{ page: 0 }, 'page'], [{ page: 'two' }, 'page'], [{ sort: 'price' }, 'sort'], [{ dir: 'up' }, 'dir']] as const) {
     const res = await buyer.get('/api/tenders').query(query);

@@ -1,9 +1,10 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { ComplianceDecision, ExclusionGround } from '@shared/compliance';
-import { LIVE_BID_STATUSES, type TenderStatus } from '@shared/tenders';
-import { sqlList } from '../sql';
+import { LIVE_BID_STATUSES, type BidStatus, type TenderStatus } from '@shared/tenders';
+import type { BidDocumentFigures } from '../../entities/bid-document.entity';
+import { sqlList, textArray } from '../sql';
 
-/** What a bid save needs of its tender, read in the statement that holds the row FOR SHARE. */
+/** The tender of a bid being saved or withdrawn, read under its row lock. */
 export interface BiddingTenderRow {
   status: TenderStatus;
   reference: string;
@@ -13,52 +14,152 @@ export interface BiddingTenderRow {
   published: boolean;
   /** Whether the vendor's organisation was invited. */
   invited: boolean;
-  /** Region code → region id. */
-  regions: Record<string, string> | null;
-  /** The number of the latest amendment (0: none). */
-  amendment: number;
 }
 
 /**
- * The tender as a bid save sees it, the row held FOR SHARE until the caller's transaction ends
- * (bids of many vendors proceed together; closing, which takes it FOR NO KEY UPDATE, waits for
- * them): one round trip for the status, the invitation of `vendorId`, the regions and the amendment.
+ * Locks the tender row FOR SHARE — bids of many vendors proceed together, while closing (FOR NO
+ * KEY UPDATE) and every decision on the tender wait for them — and reads what the closing-time check
+ * and the receipt need. The first statement of a bid's transaction; what may change under a
+ * decision (regions, amendments) is read by the next statement, whose snapshot is taken once the
+ * lock is held.
  */
-export async function biddingTenderForShare(tx: EntityManager, tenderId: string, vendorId: string): Promise<BiddingTenderRow | null> {
+export async function lockTenderForBid(tx: EntityManager, tenderId: string, vendorId: string): Promise<BiddingTenderRow | undefined> {
   const [row] = await tx.execute<BiddingTenderRow[]>(
     `select t.status, t.reference, t.title, t.closes_at, t.time_zone, t.published_at is not null as published,
-            (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = t.id) as amendment,
-            exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited,
-            (select json_object_agg(r.code, r.id) from region r where r.tender_id = t.id) as regions
+            exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited
        from tender t where t.id = ? for share`,
     [vendorId, tenderId],
   );
-  return row ?? null;
+  return row;
 }
 
-/** A bid line to store: the region's id and the unit price. */
-export interface BidLineInput {
-  region_id: string;
-  unit_price: number;
+/** The vendor's bid as it stands (all null when it has none), and what its save must check. */
+export interface OwnBidRow {
+  id: string | null;
+  status: BidStatus | null;
+  revision: number | null;
+  version: number | null;
+  /** The workbook asked for (or, when none was, the one attached), if it is this vendor's on this tender. */
+  document_id: string | null;
+  document_filename: string | null;
+  document_size: number | null;
+  document_digest: string | null;
+  document_figures: BidDocumentFigures | null;
+  /** The number of the last amendment issued (0: none), which a submission answers. */
+  amendment: number;
+  /** The codes sent that are no region of the tender. */
+  unknown_codes: string[];
 }
 
 /**
- * Replaces the bid's lines with `lines` in one statement (upserts them, deletes the regions no
- * longer priced, and the prices kept for regions an amendment removed). The delete cannot see the
- * rows the upsert writes (one snapshot per statement), so it removes only regions no longer priced.
+ * One statement, after `lockTenderForBid`: locks the vendor's bid row (FOR UPDATE: two tabs of
+ * one vendor save one after the other), reads the workbook `documentId` names — or, without one,
+ * the workbook already attached — only if it is this vendor's on this tender, the last amendment's
+ * number, and which of `codes` are not regions of the tender.
  */
-export async function replaceBidLines(tx: EntityManager, bidId: string, lines: readonly BidLineInput[]): Promise<void> {
-  await tx.execute(
-    `with kept as (
-       insert into bid_line (id, bid_id, region_id, unit_price)
-       select gen_random_uuid(), ?, l.region_id, l.unit_price from jsonb_to_recordset(?::jsonb) as l(region_id uuid, unit_price numeric)
-       on conflict (bid_id, region_id) do update set unit_price = excluded.unit_price, updated_at = now()
-       returning region_id),
-     removed as (delete from bid_removed_line where bid_id = ?)
-     delete from bid_line where bid_id = ? and region_id not in (select region_id from kept)`,
-    // JSON, not arrays: the query builder would spread an array into a list of parameters.
-    [bidId, JSON.stringify(lines), bidId, bidId],
+export async function lockOwnBid(
+  tx: EntityManager, q: { tenderId: string; vendorId: string; documentId: string | null; codes: readonly string[] },
+): Promise<OwnBidRow> {
+  const [row] = await tx.execute<OwnBidRow[]>(
+    `with b as (select id, status, revision, version, document_id from bid where tender_id = ? and vendor_organisation_id = ? for update)
+     select b.id, b.status, b.revision, b.version,
+            d.id as document_id, d.filename as document_filename, d.size as document_size, d.digest as document_digest, d.figures as document_figures,
+            (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = ?) as amendment,
+            array(select c.code from unnest(?::text[]) as c(code)
+                   where not exists (select 1 from region r where r.tender_id = ? and r.code = c.code)) as unknown_codes
+       from (select 1) as one
+       left join b on true
+       left join bid_document d on d.id = coalesce(?::uuid, b.document_id) and d.tender_id = ? and d.vendor_organisation_id = ?`,
+    [q.tenderId, q.vendorId, q.tenderId, textArray(q.codes), q.tenderId, q.documentId, q.tenderId, q.vendorId],
   );
+  // Always one row: the bid, if any, is joined to a row of its own.
+  return row;
+}
+
+/** Every column of a bid a save sets; `revision` etc. as they are after this save. */
+export interface BidWrite {
+  tenderId: string;
+  vendorId: string;
+  /** The version the vendor loaded (null: it had no bid); the save is refused if it is no longer the stored one. */
+  loadedVersion: number | null;
+  submit: boolean;
+  status: BidStatus;
+  fixedFee: number;
+  capacity: number | null;
+  /** Set by a submission; a draft keeps the stored one. */
+  submittedAt: Date | null;
+  digest: string | null;
+  nonce: string | null;
+  revision: number;
+  /** Set by a submission (clearing the amendment note); a draft keeps the stored one. */
+  answersAmendment: number;
+  documentId: string | null;
+  /** Region codes (all the tender's, checked by `lockOwnBid`) and their unit prices, in the same order. */
+  codes: readonly string[];
+  prices: readonly number[];
+}
+
+/** The bid row as the save left it. */
+export interface SavedBidRow {
+  id: string;
+  status: BidStatus;
+  submitted_at: Date | string | null;
+  digest: string | null;
+  revision: number;
+  version: number;
+  updated_at: Date | string;
+  answers_amendment: number;
+  amendment_note: string | null;
+}
+
+/**
+ * The bid row and all its lines in one statement: the row inserted, or updated over the version the
+ * vendor loaded (every save is a new version); its lines upserted from two arrays (code, price) —
+ * a line whose price did not change is neither written nor locked again (a vendor saves a draft
+ * many times over, changing a few prices; the bid row's lock keeps its lines as read) — and the
+ * lines of regions no longer priced deleted; the prices of regions an amendment removed deleted
+ * too (they belonged to the receipt of an earlier submission, and this save replaces every figure:
+ * the vendor's own act, not a silent loss). The deletes cannot see the rows the upsert writes (one
+ * snapshot per statement) and touch only regions not priced now. No row back: the version is not the
+ * loaded one, or a first save raced another first save of the same vendor (another tab).
+ *
+ * As entities this had cost a change set per line (200 for a 200-region bid) and one round trip
+ * per table; bench:api, phase b, and the deadline rush measure it.
+ */
+export async function writeBid(tx: EntityManager, w: BidWrite): Promise<SavedBidRow | undefined> {
+  const [row] = await tx.execute<SavedBidRow[]>(
+    `with saved as (
+       insert into bid as b (id, tender_id, vendor_organisation_id, status, fixed_fee, capacity, submitted_at, digest, nonce, revision, version, answers_amendment, document_id)
+       values (gen_random_uuid(), ?, ?, ?::bid_status, ?, ?, ?, ?, ?, ?, 1, ?, ?)
+       on conflict (tender_id, vendor_organisation_id) do update set
+         status = excluded.status, fixed_fee = excluded.fixed_fee, capacity = excluded.capacity,
+         digest = excluded.digest, nonce = excluded.nonce, revision = excluded.revision, document_id = excluded.document_id,
+         submitted_at = case when ? then excluded.submitted_at else b.submitted_at end,
+         answers_amendment = case when ? then excluded.answers_amendment else b.answers_amendment end,
+         amendment_note = case when ? then null else b.amendment_note end,
+         version = b.version + 1, updated_at = now()
+       where b.version = ?::int
+       returning b.id, b.status, b.submitted_at, b.digest, b.revision, b.version, b.updated_at, b.answers_amendment, b.amendment_note),
+     priced as (
+       select r.id as region_id, l.unit_price
+         from unnest(?::text[], ?::numeric[]) as l(code, unit_price) join region r on r.tender_id = ? and r.code = l.code),
+     upserted as (
+       insert into bid_line (id, bid_id, region_id, unit_price)
+       select gen_random_uuid(), s.id, p.region_id, p.unit_price
+         from saved s cross join priced p
+         left join bid_line l on l.bid_id = s.id and l.region_id = p.region_id
+        where l.unit_price is distinct from p.unit_price
+       on conflict (bid_id, region_id) do update set unit_price = excluded.unit_price, updated_at = now()),
+     unpriced as (delete from bid_line l using saved s where l.bid_id = s.id and l.region_id not in (select region_id from priced)),
+     removed as (delete from bid_removed_line x using saved s where x.bid_id = s.id)
+     select * from saved`,
+    [
+      w.tenderId, w.vendorId, w.status, w.fixedFee, w.capacity, w.submittedAt, w.digest, w.nonce, w.revision, w.answersAmendment, w.documentId,
+      w.submit, w.submit, w.submit, w.loadedVersion,
+      textArray(w.codes), `{${w.prices.map(String).join(',')}}`, w.tenderId,
+    ],
+  );
+  return row;
 }
 
 /** A live bid of a closed tender as the tabulation reads it (numeric as text, as PostgreSQL sends it). */

@@ -70,19 +70,22 @@ function ordering(sort: TenderSort, dir: 'asc' | 'desc', a: string, status: stri
  * filter and order (a named statement: PostgreSQL plans it once, not on every request), through the
  * pg pool rather than the ORM's query builder — the list is read on every visit of the list screen
  * by every vendor (bench:api, phases a and e). The count of all matching tenders comes with the
- * page (an uncorrelated subquery, run once), even when the page asked for lies past the end; the
- * regions are counted and summed for the page's tenders only. A buyer's list, newest closing first,
+ * page (see `tenderListStatement`); the regions are counted and summed for the page's tenders only. A buyer's list, newest closing first,
  * is read from the index `tender_created_by_id_closes_at_id_index` and stops after the page.
  * Reads only, outside any transaction.
  */
 export async function tenderListRows(pool: Pool, f: TenderListFilter): Promise<TenderListPage> {
   const rows = (await pool.query<TenderListRow & { total: number }>(tenderListStatement(f))).rows;
-  // Past the end, the one row carries the count and no tender.
+  if (f.vendorOrganisationId && !rows.length && f.page > 1) {
+    // A vendor's page past the end carries no row, so no count: counted apart (only then).
+    return { rows: [], total: (await pool.query<{ total: number }>(vendorCountStatement(f))).rows[0]?.total ?? 0 };
+  }
+  // A buyer's page past the end: the one row carries the count and no tender.
   return { rows: rows.filter((r) => r.id !== null), total: rows[0]?.total ?? 0 };
 }
 
-/** The statement `tenderListRows` sends (also for `EXPLAIN` in bench:api, `--explain`). */
-export function tenderListStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
+/** The filter of a list, over `tender t`, with its parameters (`$n`) and the status expression. */
+function matching(f: TenderListFilter) {
   const values: unknown[] = [];
   const param = (v: unknown) => `$${values.push(v)}`;
   const where: string[] = [];
@@ -95,21 +98,41 @@ export function tenderListStatement(f: TenderListFilter): { name: string; text: 
     const like = param(`%${escapeLike(f.q)}%`);
     where.push(`(t.reference ilike ${like} or t.title ilike ${like} or t.commodity ilike ${like})`);
   }
-  const matching = `from tender t ${where.length ? `where ${where.join(' and ')}` : ''}`;
+  // The text depends only on which filters are set, so that (and the order) names a statement.
+  const shape = `${vendor ? 'v' : ''}${f.ownerId ? 'o' : ''}${f.status ? 's' : ''}${f.q ? 'q' : ''}`;
+  return { values, param, vendor, status, shape, from: `from tender t ${where.length ? `where ${where.join(' and ')}` : ''}` };
+}
+
+/** How many tenders a vendor's filter matches: only for a page past the end (`tenderListRows`). */
+function vendorCountStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
+  const m = matching(f);
+  return { name: `tender-count-${m.shape}`, text: `select count(*)::int as total ${m.from}`, values: m.values };
+}
+
+/** The statement `tenderListRows` sends (also for `EXPLAIN` in bench:api, `--explain`). */
+export function tenderListStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
+  const { values, param, vendor, status, shape, from } = matching(f);
   const limit = param(f.size);
   const offset = param((f.page - 1) * f.size);
-  const text = `select c.total, p.id, p.reference, p.title, p.commodity, p.unit, p.currency, p.status, p.closes_at, p.time_zone,
+  const columns = `t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone`;
+  // A vendor's list runs its invitation filter once: the count of all matches is a window over
+  // the same rows the page is cut from (a vendor is invited to few tenders, so all are sorted).
+  // A buyer's, newest closing first, is read from the index and stops after the page; its count
+  // (an uncorrelated subquery, run once, index-only) comes with the page even past the end.
+  const page = vendor
+    ? `(select ${columns}, count(*) over ()::int as total ${from}
+         order by ${ordering(f.sort, f.dir, 't', status)} limit ${limit} offset ${offset}) p`
+    : `(select count(*)::int as total ${from}) c
+    left join lateral (
+      select ${columns}
+        ${from}
+       order by ${ordering(f.sort, f.dir, 't', status)}
+       limit ${limit} offset ${offset}) p on true`;
+  const text = `select ${vendor ? 'p' : 'c'}.total, p.id, p.reference, p.title, p.commodity, p.unit, p.currency, p.status, p.closes_at, p.time_zone,
          coalesce(r.n, 0)::int as region_count, coalesce(r.forecast, 0) as total_forecast,
          ${vendor ? `(select b.status from bid b where b.tender_id = p.id and b.vendor_organisation_id = ${vendor})` : 'null'} as my_bid_status
-    from (select count(*)::int as total ${matching}) c
-    left join lateral (
-      select t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone
-        ${matching}
-       order by ${ordering(f.sort, f.dir, 't', status)}
-       limit ${limit} offset ${offset}) p on true
+    from ${page}
     left join lateral (select count(*) as n, sum(forecast) as forecast from region where region.tender_id = p.id) r on true
    order by ${ordering(f.sort, f.dir, 'p', 'p.status')}`;
-  // The text depends only on which filters are set and on the order, so that names the statement.
-  const name = `tender-page-${vendor ? 'v' : ''}${f.ownerId ? 'o' : ''}${f.status ? 's' : ''}${f.q ? 'q' : ''}-${f.sort}-${f.dir}`;
-  return { name, text, values };
+  return { name: `tender-page-${shape}-${f.sort}-${f.dir}`, text, values };
 }

@@ -1,0 +1,118 @@
+import { AuditEntry, Bid, MailMessage, Tender } from '../../server/entities';
+import { QUEUES } from '../../server/jobs/queue';
+import { makeUser, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
+import { openTender, tenderBody } from '../support/tenders';
+import { drainQueue } from '../support/wait';
+
+/**
+ * The bid save is SQL of its own (services/queries/bids.queries.ts): the bid row and all its lines
+ * in one statement, the receipt and the audit entry in the same transaction. These tests prove
+ * what it stores — every line whole, at the price sent — and that a refused save stores nothing:
+ * no line, no new version, no receipt, no audit entry.
+ */
+let t: TestApp;
+let buyer: Browser;
+
+beforeAll(async () => {
+  t = await startTestApp();
+  buyer = await signedIn(t, await makeUser(t, 'buyer'));
+});
+afterAll(() => t.close());
+
+const code = (i: number) => `R${String(i + 1).padStart(2, '0')}`;
+/** Distinct prices with four decimals, the most numeric(16,4) keeps. */
+const pricesFor = (n: number, base: number) => Object.fromEntries(Array.from({ length: n }, (_, i) => [code(i), base + i + 0.0001 * ((i % 9) + 1)]));
+
+async function vendorOn(regions: number): Promise<{ v: Browser; email: string; tenderId: string }> {
+  const u = await makeUser(t, 'vendor');
+  const tenderId = await openTender(buyer, [u.vendorOrganisation!.id], tenderBody(regions, 60));
+  return { v: await signedIn(t, u), email: u.email, tenderId };
+}
+
+/** The stored lines of the tender's one bid: region code → unit price, as PostgreSQL has them. */
+async function storedLines(tenderId: string): Promise<Record<string, string>> {
+  const rows = await t.em().getConnection().execute<{ code: string; unit_price: string }[]>(
+    `select r.code, l.unit_price::text as unit_price from bid b join bid_line l on l.bid_id = b.id join region r on r.id = l.region_id where b.tender_id = ?`,
+    [tenderId],
+  );
+  return Object.fromEntries(rows.map((r) => [r.code, r.unit_price]));
+}
+
+/** The prices as numeric(16,4) writes them. */
+const asStored = (prices: Record<string, number>) => Object.fromEntries(Object.entries(prices).map(([c, p]) => [c, p.toFixed(4)]));
+
+async function bidEntries(tenderId: string): Promise<string[]> {
+  return (await t.em().find(AuditEntry, { tender: tenderId, action: { $like: 'bid.%' } }, { orderBy: { seq: 'asc' } })).map((e) => e.action);
+}
+
+async function receipts(email: string): Promise<number> {
+  await drainQueue(t, QUEUES.mail);
+  return t.em().count(MailMessage, { toAddresses: { $contains: [email] }, subject: { $like: 'Receipt:%' } });
+}
+
+test('a 400-region submission stores every line whole at the price sent, with its receipt and its audit entry', async () => {
+  const { v, email, tenderId } = await vendorOn(400);
+  const prices = pricesFor(400, 40);
+  const res = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 120000, capacity: 90000, prices, submit: true, version: null });
+  expect(res.status).toBe(200);
+  expect(res.body).toMatchObject({ status: 'submitted', revision: 1, version: 1, fixedFee: 120000, capacity: 90000, prices });
+  const lines = await storedLines(tenderId);
+  expect(Object.keys(lines)).toHaveLength(400);
+  expect(lines).toEqual(asStored(prices));
+  const receipt = await waitForMail(t, email, 'Receipt:');
+  expect(receipt.text).toContain(res.body.digest);
+  expect(await bidEntries(tenderId)).toEqual(['bid.submitted']);
+  // The receipt's commitment verifies against the stored figures once the bids are opened.
+  await t.em().nativeUpdate(Tender, { id: tenderId }, { status: 'closed', closedAt: new Date() });
+  const tab = await buyer.get(`/api/tenders/${tenderId}/bids`);
+  expect(tab.body.bids).toHaveLength(1);
+  expect(tab.body.bids[0]).toMatchObject({ digest: res.body.digest, receiptVerified: true });
+});
+
+test('a revision that prices fewer regions replaces every line: the regions left out lose theirs, the others take the new prices', async () => {
+  const { v, tenderId } = await vendorOn(400);
+  const first = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 1000, capacity: null, prices: pricesFor(400, 40), submit: true, version: null });
+  expect(first.status).toBe(200);
+  const fewer = pricesFor(150, 70);
+  const revised = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 900, capacity: 500, prices: fewer, submit: true, version: first.body.version });
+  expect(revised.status).toBe(200);
+  expect(revised.body).toMatchObject({ status: 'revised', revision: 2, version: first.body.version + 1, fixedFee: 900, capacity: 500 });
+  expect(await storedLines(tenderId)).toEqual(asStored(fewer));
+  const stored = await t.em().findOneOrFail(Bid, { tender: tenderId });
+  expect(stored).toMatchObject({ status: 'revised', revision: 2, fixedFee: 900, capacity: 500, digest: revised.body.digest });
+  expect(await bidEntries(tenderId)).toEqual(['bid.submitted', 'bid.revised']);
+});
+
+test('a revision refused after the closing time leaves the earlier version untouched: figures, lines, version, one receipt, one audit entry', async () => {
+  const { v, email, tenderId } = await vendorOn(200);
+  const prices = pricesFor(200, 50);
+  const first = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 5000, capacity: 800, prices, submit: true, version: null });
+  expect(first.status).toBe(200);
+  // Closed a second ago: within the grace, so the tender is still open but this save is late.
+  await t.em().nativeUpdate(Tender, { id: tenderId }, { closesAt: new Date(Date.now() - 1000) });
+  const late = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 1, capacity: null, prices: pricesFor(200, 1), submit: true, version: first.body.version });
+  expect(late.status).toBe(409);
+  expect(late.body.detail).toMatch(/^Bidding closed at /);
+  const stored = await t.em().findOneOrFail(Bid, { tender: tenderId });
+  expect(stored).toMatchObject({ status: 'submitted', revision: 1, version: first.body.version, fixedFee: 5000, capacity: 800, digest: first.body.digest });
+  expect(await storedLines(tenderId)).toEqual(asStored(prices));
+  expect(await receipts(email)).toBe(1);
+  expect(await bidEntries(tenderId)).toEqual(['bid.submitted']);
+});
+
+test('a submission refused for a stale version or an unknown region stores nothing: no line, no receipt, no audit entry', async () => {
+  const { v, email, tenderId } = await vendorOn(3);
+  const draft = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 10, capacity: null, prices: { R01: 1.5 }, submit: false, version: null });
+  expect(draft.status).toBe(200);
+  const tabA = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 11, capacity: null, prices: { R01: 2.5, R02: 3 }, submit: false, version: draft.body.version });
+  expect(tabA.status).toBe(200);
+  const stale = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 12, capacity: null, prices: { R03: 9 }, submit: true, version: draft.body.version });
+  expect(stale.status).toBe(409);
+  const unknown = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 12, capacity: null, prices: { R01: 4, NULL: 9 }, submit: true, version: tabA.body.version });
+  expect(unknown.status).toBe(400);
+  expect(unknown.body.errors).toEqual([{ field: 'prices.NULL', message: 'Region NULL is not part of this tender.' }]);
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ status: 'draft', revision: 0, version: tabA.body.version, fixedFee: 11, digest: null });
+  expect(await storedLines(tenderId)).toEqual({ R01: '2.5000', R02: '3.0000' });
+  expect(await receipts(email)).toBe(0);
+  expect(await bidEntries(tenderId)).toEqual([]);
+});
