@@ -63,8 +63,8 @@ describe('NoticeSender', () => {
   let page: HTMLElement;
 
   const render = () => fixture.detectChanges();
-  // eslint-disable-next-line no-restricted-syntax -- two tests prove the poll has stopped by letting five poll intervals (NOTICE_POLL_MS, 10 ms) pass; a controllable clock would be better
-  const wait = (ms: number) => new Promise((resolve) => setTimeout(resolve, ms));
+  /** Whether the sender's poll is still scheduled (the polled resource's own flag: its timer stream is live). */
+  const polling = () => (fixture.componentInstance as unknown as { polling: () => boolean }).polling();
 
   /** Opens the sender for a tender in the given state whose notices are, so far, `notices`. */
   async function open(status: TenderStatus, notices: NoticeSummary[]): Promise<void> {
@@ -209,17 +209,19 @@ describe('NoticeSender', () => {
     expect(sendButton().getAttribute('aria-disabled')).toBe('true');
     expect(page.querySelector('#send-blocked')!.textContent).toBe('Every notice of this tender has been sent.');
 
-    // Several intervals later nothing more has been asked.
-    await wait(POLL_MS * 5);
+    // The poll has ended (its timer stream finalised), so nothing more will be asked.
+    expect(polling()).toBe(false);
     http.expectNone(tenderNotices);
   });
 
   it('stops asking when the page is left', async () => {
     await open('awarded', queuedPair);
 
+    expect(polling()).toBe(true);
+    const component = fixture.componentInstance as unknown as { polling: () => boolean };
     fixture.destroy();
-    await wait(POLL_MS * 5);
-
+    // Destroyed: the timer stream is finalised, so no request can follow.
+    expect(component.polling()).toBe(false);
     http.expectNone(tenderNotices);
   });
 
