@@ -48,8 +48,15 @@ export async function ensureQueues(boss: PgBoss): Promise<void> {
 }
 
 /** Queues one e-mail; the mail worker sends it, retrying while the SMTP server is unreachable. */
+/**
+ * Mail a person is waiting on (bid receipts, invitations, account links) goes before notifications
+ * (reminders, updates: `notifyOnce`, priority 0): at a deadline rush the 2-hour closing reminders to
+ * every invited vendor must not hold up the receipts of the bids arriving (bench:api rush).
+ */
+export const WAITED_MAIL_PRIORITY = 10;
+
 export async function enqueueMail(boss: PgBoss, mail: OutgoingMail, key?: string): Promise<string | null> {
-  return boss.send(QUEUES.mail, mail, key ? { singletonKey: key } : {});
+  return boss.send(QUEUES.mail, mail, { priority: WAITED_MAIL_PRIORITY, ...(key ? { singletonKey: key } : {}) });
 }
 
 export async function startMailWorker(boss: PgBoss, mailer: Mailer): Promise<void> {

@@ -1,5 +1,5 @@
 import { AuditEntry, Bid, MailMessage, Tender } from '../../server/entities';
-import { QUEUES } from '../../server/jobs/queue';
+import { QUEUES, WAITED_MAIL_PRIORITY } from '../../server/jobs/queue';
 import { makeUser, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
 import { openTender, tenderBody } from '../support/tenders';
 import { drainQueue } from '../support/wait';
@@ -50,7 +50,7 @@ async function receipts(email: string): Promise<number> {
   return t.em().count(MailMessage, { toAddresses: { $contains: [email] }, subject: { $like: 'Receipt:%' } });
 }
 
-test('a 400-region submission stores every line whole at the price sent, with its receipt and its audit entry', async () => {
+test('a 400-region submission stores every line whole at the price sent, with its receipt (queued ahead of notifications) and its audit entry', async () => {
   const { v, email, tenderId } = await vendorOn(400);
   const prices = pricesFor(400, 40);
   const res = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 120000, capacity: 90000, prices, submit: true, version: null });
@@ -61,6 +61,12 @@ test('a 400-region submission stores every line whole at the price sent, with it
   expect(lines).toEqual(asStored(prices));
   const receipt = await waitForMail(t, email, 'Receipt:');
   expect(receipt.text).toContain(res.body.digest);
+  // Queued ahead of reminders and updates (notifyOnce sends at pg-boss's default priority 0; pg-boss
+  // fetches by priority, then age): a deadline rush's receipts do not wait behind closing reminders.
+  const [job] = await t.em().execute<{ priority: number }[]>(
+    `select priority from pgboss.job where name = ? and data->>'subject' like ? and data->>'to' = ?`, [QUEUES.mail, 'Receipt:%', email],
+  );
+  expect(job.priority).toBe(WAITED_MAIL_PRIORITY);
   expect(await bidEntries(tenderId)).toEqual(['bid.submitted']);
   // The receipt's commitment verifies against the stored figures once the bids are opened.
   await t.em().nativeUpdate(Tender, { id: tenderId }, { status: 'closed', closedAt: new Date() });
