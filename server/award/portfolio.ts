@@ -40,7 +40,7 @@ const LNS_MIN_COLUMNS = 1000;
 // On sole award models the neighbourhood-search thread first spends this share of the limit on
 // the Lagrangian bound and heuristic (lagrangian.ts): a bound above the LP's, and awards repaired
 // from the relaxed solutions; the bound then closes the search once an award meets it.
-const LAGRANGIAN_SHARE = 0.15;
+const LAGRANGIAN_SHARE = 0.25;
 // Then, on the same thread, the kernel search (workers/lns-worker.ts) until this share of the
 // limit has passed: HiGHS on the model restricted to the promising vendors and pairs.
 const KERNEL_SHARE = 0.4;

@@ -48,7 +48,7 @@ function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model:
   let lpBound = -Infinity;
   let start: Float64Array | null = null;
   try {
-    lp.options.set({ output_flag: false, time_limit: Math.max(0.5, (until - Date.now()) / 2000) });
+    lp.options.set({ output_flag: false, time_limit: Math.max(0.5, (until - Date.now()) / 4000) });
     lp.run();
     if (lp.getModelStatus() === highs.constants.modelStatus.optimal) {
       lpBound = lp.getObjectiveValue();
@@ -102,7 +102,7 @@ function fixedUppers(model: MipModel, data: SoleData, fixing: LagrangianFixing |
 // Kernel search: each region keeps this many vendors of the kernel at first (those with the
 // smallest Lagrangian reduced cost c_ij − u_j), two more every round; the vendors outside the
 // kernel join it in this many buckets, one per round.
-const KERNEL_PAIRS = 6;
+const KERNEL_PAIRS = 4;
 const KERNEL_BUCKETS = 8;
 
 /**
@@ -164,7 +164,8 @@ function kernelSearch(args: {
       if (owner[j] >= 0) { upper[supply[owner[j]][j]] = 1; upper[open[owner[j]]] = 1; }
     }
     mip.changeColsBounds(all, lower, upper);
-    const limit = whole ? remaining : Math.min(roundLimit, remaining);
+    // A round may take a third of what is left of the phase (at least the neighbourhoods' round limit).
+    const limit = whole ? remaining : Math.min(Math.max(roundLimit, remaining / 3), remaining);
     mip.options.set({ time_limit: limit, random_seed: rounds });
     mip.setSolution({ colValue: incumbent.x });
     mip.run();
