@@ -264,6 +264,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     fixing = lagrangianFixing(sole, multipliers, best.objective);
     base = fixedUppers(model, sole, fixing);
   };
+  refix();
   const found = (x: Float64Array, objective: number) => {
     best = { x, objective };
     mine = true;
@@ -275,7 +276,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
   const outcome = (): EngineOutcome => ({
     status: closed() ? 'optimal' : best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: proven?.bound ?? null, boundSource: proven ? `${proven.source}${fixedWords()}` : null,
     seconds: (performance.now() - started) / 1000, engine: proven && sole ? `${engine} after the Lagrangian heuristic${kernelRounds ? ` and ${kernelRounds} kernel-search rounds` : ''}` : engine,
-    message: `${stats.rounds} neighbourhoods, ${kernelRounds} kernel-search rounds, ${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}${fixedWords()}`,
+    message: `${stats.rounds} neighbourhoods, ${kernelRounds ? `${kernelRounds} kernel-search rounds, ` : ''}${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}${fixedWords()}`,
   });
   if (!best || closed()) return outcome();
   // The local search of the Lagrangian heuristic also polishes the best award on the board (another run's).
