@@ -49,6 +49,8 @@ export function solverPool(file = 'highs-worker'): Piscina {
 }
 
 const inFlight = new Map<string, number>();
+// Pools being closed after a cancel (closeSolverPool waits for them too).
+const closing = new Set<Promise<void>>();
 
 /**
  * Runs one task on the pool of worker `file`, stopped when `signal` aborts (piscina terminates the
@@ -66,7 +68,8 @@ export async function runOnPool(file: string, payload: unknown, signal: AbortSig
     inFlight.set(file, left);
     if (signal.aborted && left === 0 && pools.get(file) === pool) {
       pools.delete(file);
-      void pool.close({ force: true });
+      const closed = pool.close({ force: true }).finally(() => closing.delete(closed));
+      closing.add(closed);
     }
   }
 }
@@ -86,5 +89,5 @@ export function solverThreads(): { threads: number; queued: number } {
 export async function closeSolverPool(): Promise<void> {
   const all = [...pools.values()];
   pools.clear();
-  await Promise.all(all.map((p) => p.close({ force: true })));
+  await Promise.all([...all.map((p) => p.close({ force: true })), ...closing]);
 }
