@@ -170,6 +170,12 @@ function coverCompletion(rest: number[], worth: Float64Array, cap: Float64Array,
     }
     return { value: f[target], open, exact: true };
   }
+  return coverLp(rest, worth, cap, need);
+}
+
+/** The LP of the covering knapsack: cheapest per unit of capacity first, the last vendor fractional (never above the exact cover). */
+function coverLp(rest: number[], worth: Float64Array, cap: Float64Array, need: number): Completion {
+  if (need <= 1e-9) return { value: 0, open: [], exact: true };
   const order = [...rest].sort((a, b) => worth[a] / cap[a] - worth[b] / cap[b]);
   const open: [number, number][] = [];
   let value = 0;
@@ -251,11 +257,11 @@ export function relaxed(data: SoleData, u: Float64Array): RelaxedSolution {
  * Repairs a relaxed solution into an award (the Lagrangian heuristic): the vendors it opens, each
  * region to the vendor that took it at the lowest price and still has room, the others in order
  * of regret (the dearer the second choice, the earlier) to the cheapest open vendor with room,
- * then regions shifted to cheaper open vendors with room and vendors left without regions closed.
+ * then the local search of `improve` (shift, swap, close a vendor, open a vendor).
  * Returns the model's column vector and its total, or null when the open vendors cannot cover.
  */
 export function repair(data: SoleData, relaxedSolution: RelaxedSolution): { x: Float64Array; objective: number; owner: Int32Array } | null {
-  const { m, n, cost, cap, demand, fee } = data;
+  const { m, n, cost, cap, demand } = data;
   const isOpen = Array.from(relaxedSolution.open, (v) => v > 1e-9);
   const residual = Float64Array.from(cap, (c, i) => (isOpen[i] ? c : 0));
   const owner = new Int32Array(n).fill(-1);
@@ -292,16 +298,13 @@ export function repair(data: SoleData, relaxedSolution: RelaxedSolution): { x: F
     owner[next] = nextVendor;
     residual[nextVendor] -= demand[next];
   }
-  // Shift moves, then close vendors that serve nothing (unless required).
-  for (let pass = 0, moved = true; moved && pass < 10; pass++) {
-    moved = false;
-    for (let j = 0; j < n; j++) {
-      const a = owner[j];
-      let best = a;
-      for (let i = 0; i < m; i++) if (i !== a && isOpen[i] && fits(i, j) && cost[i * n + j] < cost[best * n + j] - 1e-9) best = i;
-      if (best !== a) { owner[j] = best; residual[a] += demand[j]; residual[best] -= demand[j]; moved = true; }
-    }
-  }
+  // Then the local search (shift, swap, close a vendor, open a vendor).
+  return awardOf(data, improve(data, owner));
+}
+
+/** The award that gives region j to vendor owner[j]: its column vector and total (fees of the vendors that serve, and the required ones). */
+export function awardOf(data: SoleData, owner: Int32Array): { x: Float64Array; objective: number; owner: Int32Array } {
+  const { m, n, cost, fee } = data;
   const serves = new Uint8Array(m);
   for (let j = 0; j < n; j++) serves[owner[j]] = 1;
   const x = new Float64Array(data.numCols);
@@ -316,6 +319,120 @@ export function repair(data: SoleData, relaxedSolution: RelaxedSolution): { x: F
     objective += cost[owner[j] * n + j];
   }
   return { x, objective, owner };
+}
+
+// Passes of the local search over all moves; each pass that gains nothing ends it sooner.
+const MAX_PASSES = 50;
+
+/**
+ * Local search on a sole award given as one vendor per region (every region assigned, within
+ * the capacities): moves that lower the total, first-improvement for shifts and swaps,
+ * best-improvement for closing and opening a vendor, until none gains:
+ *  - shift: one region to another vendor with room (opening it pays its fee, emptying one saves it);
+ *  - swap: two regions of two vendors exchanged, when both still fit;
+ *  - close a vendor: all its regions to the cheapest other serving vendors with room, its fee saved;
+ *  - open a vendor: the regions it is cheaper for, most saving first, as far as its capacity goes.
+ * Only the capacities, the bids and the required vendors are kept here: the caller checks the
+ * award against every row of the model (satisfiesRows) before it publishes it. Returns a new owner array.
+ */
+export function improve(data: SoleData, start: Int32Array): Int32Array {
+  const { m, n, cost, cap, demand, fee, required } = data;
+  const owner = Int32Array.from(start);
+  const load = new Float64Array(m);
+  const count = new Int32Array(m);
+  for (let j = 0; j < n; j++) { load[owner[j]] += demand[j]; count[owner[j]]++; }
+  const room = (i: number, extra: number) => load[i] + extra <= cap[i] + 1e-9;
+  const eps = 1e-9;
+  const move = (j: number, to: number) => {
+    const from = owner[j];
+    load[from] -= demand[j]; count[from]--;
+    load[to] += demand[j]; count[to]++;
+    owner[j] = to;
+  };
+  // Fee paid when vendor i gains its first region / saved when it loses its last.
+  const opening = (i: number) => (count[i] === 0 && !required[i] ? fee[i] : 0);
+  const closing = (i: number) => (count[i] === 1 && !required[i] ? fee[i] : 0);
+  for (let pass = 0; pass < MAX_PASSES; pass++) {
+    let gained = false;
+    for (let j = 0; j < n; j++) {
+      const a = owner[j];
+      let best = -1;
+      let bestDelta = -eps;
+      for (let i = 0; i < m; i++) {
+        if (i === a || !(cost[i * n + j] < Infinity) || !room(i, demand[j])) continue;
+        const delta = cost[i * n + j] - cost[a * n + j] + opening(i) - closing(a);
+        if (delta < bestDelta) { bestDelta = delta; best = i; }
+      }
+      if (best >= 0) { move(j, best); gained = true; }
+    }
+    for (let j = 0; j < n; j++) {
+      for (let k = j + 1; k < n; k++) {
+        const a = owner[j];
+        const b = owner[k];
+        if (a === b) continue;
+        const delta = cost[a * n + k] + cost[b * n + j] - cost[a * n + j] - cost[b * n + k];
+        if (!(delta < -eps)) continue;
+        if (!room(a, demand[k] - demand[j]) || !room(b, demand[j] - demand[k])) continue;
+        move(j, b); move(k, a);
+        gained = true;
+      }
+    }
+    if (gained) continue;
+    // Close one vendor: the best such move, if any gains.
+    let close: { vendor: number; to: [number, number][]; delta: number } | null = null;
+    const extra = new Float64Array(m);
+    for (let a = 0; a < m; a++) {
+      if (count[a] === 0 || required[a]) continue;
+      extra.fill(0);
+      const regions: number[] = [];
+      for (let j = 0; j < n; j++) if (owner[j] === a) regions.push(j);
+      regions.sort((p, q) => demand[q] - demand[p]);
+      let delta = -fee[a];
+      const to: [number, number][] = [];
+      for (const j of regions) {
+        let pick = -1;
+        for (let i = 0; i < m; i++) {
+          if (i === a || count[i] === 0 || !(cost[i * n + j] < Infinity) || !room(i, extra[i] + demand[j])) continue;
+          if (pick < 0 || cost[i * n + j] < cost[pick * n + j]) pick = i;
+        }
+        if (pick < 0) { delta = Infinity; break; }
+        extra[pick] += demand[j];
+        delta += cost[pick * n + j] - cost[a * n + j];
+        to.push([j, pick]);
+      }
+      if (delta < -eps && (!close || delta < close.delta)) close = { vendor: a, to, delta };
+    }
+    if (close) {
+      for (const [j, i] of close.to) move(j, i);
+      continue;
+    }
+    // Open one vendor: the best such move, if any gains (the fees of vendors it empties are saved too).
+    let open: { to: number[]; vendor: number; delta: number } | null = null;
+    for (let i = 0; i < m; i++) {
+      if (count[i] > 0 || !(cap[i] > 0)) continue;
+      const gains: [number, number][] = [];
+      for (let j = 0; j < n; j++) {
+        const saving = cost[owner[j] * n + j] - cost[i * n + j];
+        if (saving > eps) gains.push([j, saving]);
+      }
+      gains.sort((p, q) => q[1] - p[1]);
+      let used = 0;
+      let delta = required[i] ? 0 : fee[i];
+      const to: number[] = [];
+      const left = Int32Array.from(count);
+      for (const [j, saving] of gains) {
+        if (used + demand[j] > cap[i] + 1e-9) continue;
+        used += demand[j];
+        delta -= saving;
+        if (--left[owner[j]] === 0 && !required[owner[j]]) delta -= fee[owner[j]];
+        to.push(j);
+      }
+      if (delta < -eps && (!open || delta < open.delta)) open = { to, vendor: i, delta };
+    }
+    if (!open) break;
+    for (const j of open.to) move(j, open.vendor);
+  }
+  return owner;
 }
 
 export interface SubgradientOptions {
@@ -395,4 +512,124 @@ export function subgradient(data: SoleData, options: SubgradientOptions): Subgra
     for (let j = 0; j < n; j++) u[j] += t * s[j];
   }
   return { bound: bestBound, multipliers: bestU, iterations: k, best };
+}
+
+/**
+ * An upper limit of V(c), the best value of a vendor's knapsack at every capacity c up to its own:
+ * the dynamic programme's table when it is small enough, else the Dantzig bound at c (items by
+ * value per unit, the last one fractional). Both are at least the knapsack's optimum at c.
+ */
+function knapsackProfile(values: Float64Array, weights: Float64Array, items: number[], capacity: number): (c: number) => number {
+  if (items.length === 0) return () => 0;
+  const allWhole = items.every((j) => Number.isInteger(weights[j])) && Number.isFinite(capacity);
+  if (allWhole) {
+    let g = 0;
+    for (const j of items) g = gcd(g, weights[j]);
+    const top = Math.floor(capacity / g + 1e-9);
+    if (items.length * (top + 1) <= DP_LIMIT) {
+      const best = new Float64Array(top + 1);
+      for (const j of items) {
+        const w = weights[j] / g;
+        for (let c = top; c >= w; c--) best[c] = Math.max(best[c], best[c - w] + values[j]);
+      }
+      return (c) => (c < -1e-9 ? -Infinity : best[Math.min(top, Math.floor(c / g + 1e-9))]);
+    }
+  }
+  const order = [...items].sort((a, b) => values[b] / weights[b] - values[a] / weights[a]);
+  const weightSum = new Float64Array(order.length + 1);
+  const valueSum = new Float64Array(order.length + 1);
+  order.forEach((j, k) => { weightSum[k + 1] = weightSum[k] + weights[j]; valueSum[k + 1] = valueSum[k] + values[j]; });
+  return (c) => {
+    if (c < -1e-9) return -Infinity;
+    let lo = 0;
+    let hi = order.length;
+    // The largest k with weightSum[k] ≤ c.
+    while (lo < hi) { const mid = (lo + hi + 1) >> 1; if (weightSum[mid] <= c + 1e-9) lo = mid; else hi = mid - 1; }
+    if (lo === order.length) return valueSum[lo];
+    const j = order[lo];
+    return valueSum[lo] + (values[j] * (c - weightSum[lo])) / weights[j];
+  };
+}
+
+export interface LagrangianFixing {
+  /** 1 where z_ij (at [i * n + j]) can be 1 in no award of total ≤ `upper`: fixed at 0. */
+  pairs: Uint8Array;
+  /** 1 where vendor i is open in no award of total ≤ `upper`: closed (all its pairs fixed too). */
+  vendors: Uint8Array;
+  fixedPairs: number;
+  closedVendors: number;
+}
+
+/**
+ * Reduced-cost fixing from the Lagrangian relaxation at multipliers u (MODEL.md, "Lagrangian
+ * bound"): a lower bound on every award that opens vendor i, and on every award that gives region
+ * j to vendor i, computed from the same relaxation with that choice forced; where that bound is
+ * above `upper` (every total whole: rounded up, then above), the choice is ruled out. Every award
+ * of total at most `upper` survives (the one of total `upper` too), so the optimum is never lost
+ * when `upper` is an award's total.
+ *  - Forcing z_ij = 1 opens i and puts j in its knapsack: i then contributes at least
+ *    F_i − (u_j − c_ij) − V_i(K̄_i − d_j), with V_i(·) the upper limit of `knapsackProfile`.
+ *  - The other vendors contribute at least the vendors that pay for themselves (and the required
+ *    ones), plus the LP of the covering knapsack for the capacity still needed and the cheapest
+ *    further vendors the fewest-vendors row still asks for, whichever is dearer.
+ */
+export function lagrangianFixing(data: SoleData, u: Float64Array, upper: number): LagrangianFixing {
+  const { m, n, fee, cap, demand, cost, required } = data;
+  const pairs = new Uint8Array(m * n);
+  const vendors = new Uint8Array(m);
+  const values = new Float64Array(n);
+  const take = new Uint8Array(n);
+  const worth = new Float64Array(m);
+  const profiles: ((c: number) => number)[] = [];
+  let sumU = 0;
+  for (let j = 0; j < n; j++) sumU += u[j];
+  for (let i = 0; i < m; i++) {
+    profiles.push(() => 0);
+    if (!(cap[i] > 0)) { worth[i] = Infinity; continue; }
+    const items: number[] = [];
+    for (let j = 0; j < n; j++) {
+      const v = u[j] - cost[i * n + j];
+      if (v > 0) { values[j] = v; items.push(j); }
+    }
+    worth[i] = fee[i] - knapsack(values, demand, items, cap[i], take).value;
+    profiles[i] = knapsackProfile(values, demand, items, cap[i]);
+  }
+  // S0: the vendors every relaxed solution opens (required, or paying for themselves).
+  let base = sumU;
+  let covered = 0;
+  let count = 0;
+  const inBase = new Uint8Array(m);
+  for (let i = 0; i < m; i++) {
+    if (worth[i] === Infinity) continue;
+    if (required[i] || worth[i] < 0) { inBase[i] = 1; base += worth[i]; covered += cap[i]; count++; }
+  }
+  const rest: number[] = [];
+  for (let i = 0; i < m; i++) if (!inBase[i] && worth[i] !== Infinity) rest.push(i);
+  const completion = (others: number[], need: number, more: number) => Math.max(coverLp(others, worth, cap, need).value, countCompletion(others, worth, more).value);
+  const plain = completion(rest, data.totalDemand - covered, data.fewestVendors - count);
+  const above = (bound: number) => {
+    const b = roundedBound(data, bound);
+    return b > upper + (data.integral ? 0.5 : 1e-6 * Math.max(1, Math.abs(upper)));
+  };
+  let fixedPairs = 0;
+  let closedVendors = 0;
+  for (let i = 0; i < m; i++) {
+    if (worth[i] === Infinity) continue;
+    // The bound with vendor i open, without its own contribution.
+    let others: number;
+    if (inBase[i]) others = base - worth[i] + plain;
+    else others = base + completion(rest.filter((k) => k !== i), data.totalDemand - covered - cap[i], data.fewestVendors - count - 1);
+    if (!required[i] && above(others + worth[i])) {
+      vendors[i] = 1;
+      closedVendors++;
+      for (let j = 0; j < n; j++) if (cost[i * n + j] < Infinity) { pairs[i * n + j] = 1; fixedPairs++; }
+      continue;
+    }
+    for (let j = 0; j < n; j++) {
+      if (!(cost[i * n + j] < Infinity)) continue;
+      const forced = fee[i] - (u[j] - cost[i * n + j]) - profiles[i](cap[i] - demand[j]);
+      if (above(others + forced)) { pairs[i * n + j] = 1; fixedPairs++; }
+    }
+  }
+  return { pairs, vendors, fixedPairs, closedVendors };
 }

@@ -12,8 +12,9 @@ import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome,
  *  - HiGHS A on the model as built, started at the same moment: nothing waits in front of it, so
  *    on problems HiGHS proves in well under a second the engine is as fast as HiGHS alone;
  *  - on sole award models of some size, instead of glpk.js, the Lagrangian bound and heuristic
- *    (lagrangian.ts) first in the neighbourhood-search thread: its bound closes the search once
- *    an award meets it;
+ *    (lagrangian.ts) first in the neighbourhood-search thread, then local search on the best
+ *    award, reduced-cost fixing and a kernel search: its bound closes the search once an award
+ *    meets it;
  *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
  *    (workers/lns-worker.ts) on the core glpk.js leaves free, at a lower thread priority and
  *    resting when it stops gaining: it improves the best award on the board and publishes what
@@ -40,7 +41,10 @@ const LNS_MIN_COLUMNS = 1000;
 // On sole award models the neighbourhood-search thread first spends this share of the limit on
 // the Lagrangian bound and heuristic (lagrangian.ts): a bound above the LP's, and awards repaired
 // from the relaxed solutions; the bound then closes the search once an award meets it.
-const LAGRANGIAN_SHARE = 0.15;
+const LAGRANGIAN_SHARE = 0.25;
+// Then, on the same thread, the kernel search (workers/lns-worker.ts) until this share of the
+// limit has passed: HiGHS on the model restricted to the promising vendors and pairs.
+const KERNEL_SHARE = 0.4;
 
 const decisive = (o: EngineOutcome) => o.status === 'optimal' || o.status === 'infeasible';
 
@@ -93,7 +97,7 @@ async function neighbourhoodRun(request: EngineRequest, board: SharedArrayBuffer
   const seconds = Math.max(0.5, (deadline - performance.now()) / 1000);
   return runInWorker(LNS_WORKER, {
     model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000,
-    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, relativeGap: request.relativeGap,
+    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, kernelShare: KERNEL_SHARE, relativeGap: request.relativeGap,
   }, signal);
 }
 

@@ -1,5 +1,5 @@
 import type { MipModel, ModelMap } from './model';
-import { solverPool } from './workers';
+import { runOnPool } from './workers';
 
 /** What one engine run reports back; `values` is the full column vector of the model. */
 export interface EngineOutcome {
@@ -58,7 +58,7 @@ export async function runInWorker<T extends EngineOutcome>(file: string, payload
   const started = performance.now();
   try {
     signal?.throwIfAborted();
-    return (await solverPool(file).run(payload, { signal: controller.signal })) as T;
+    return (await runOnPool(file, payload, controller.signal)) as T;
   } catch (err) {
     if (signal?.aborted) throw signal.reason ?? err;
     const message = err instanceof Error ? err.message : String(err);

@@ -48,9 +48,46 @@ export function solverPool(file = 'highs-worker'): Piscina {
   return pool;
 }
 
+const inFlight = new Map<string, number>();
+// Pools being closed after a cancel (closeSolverPool waits for them too).
+const closing = new Set<Promise<void>>();
+
+/**
+ * Runs one task on the pool of worker `file`, stopped when `signal` aborts (piscina terminates the
+ * thread running it). A task cancelled before its thread had loaded would leave that thread
+ * starting and then idle for the pool's idle timeout; so when a cancelled task leaves its pool
+ * with no task at all, the pool is closed: a cancel frees every thread it started.
+ */
+export async function runOnPool(file: string, payload: unknown, signal: AbortSignal): Promise<unknown> {
+  const pool = solverPool(file);
+  inFlight.set(file, (inFlight.get(file) ?? 0) + 1);
+  try {
+    return await pool.run(payload, { signal });
+  } finally {
+    const left = (inFlight.get(file) ?? 1) - 1;
+    inFlight.set(file, left);
+    if (signal.aborted && left === 0 && pools.get(file) === pool) {
+      pools.delete(file);
+      const closed = pool.close({ force: true }).finally(() => closing.delete(closed));
+      closing.add(closed);
+    }
+  }
+}
+
+/**
+ * How many solver threads the pools hold now (running or idle) and how many tasks wait for a
+ * thread (one still starting up): the cancellation test counts them.
+ */
+export function solverThreads(): { threads: number; queued: number } {
+  let threads = 0;
+  let queued = 0;
+  for (const pool of pools.values()) { threads += pool.threads.length; queued += pool.queueSize; }
+  return { threads, queued };
+}
+
 /** Stops the pools' threads (tests and the CLI call this so the process can exit at once). */
 export async function closeSolverPool(): Promise<void> {
   const all = [...pools.values()];
   pools.clear();
-  await Promise.all(all.map((p) => p.close({ force: true })));
+  await Promise.all([...all.map((p) => p.close({ force: true })), ...closing]);
 }

@@ -3,10 +3,10 @@ import type { AwardProblem } from '../../shared/award';
 import { buildModel } from '../../server/award/build-model';
 import { toInstance, validateProblem } from '../../server/award/instance';
 import { satisfiesRows } from '../../server/award/kernel';
-import { knapsack, relaxed, repair, soleData, subgradient, type SoleData } from '../../server/award/lagrangian';
+import { awardOf, improve, knapsack, lagrangianFixing, relaxed, repair, soleData, subgradient, type SoleData } from '../../server/award/lagrangian';
 import { createHighsModel } from '../../server/award/workers/highs-model';
 import { readInstance, readOptima, REFERENCE_DIR, referenceAvailable } from '../../server/bench/reference';
-import { largeSoleProblem } from './support/problems';
+import { baseProblem, largeSoleProblem } from './support/problems';
 import { referenceLp } from './support/reference-lp';
 
 // The Lagrangian bound for sole award (server/award/lagrangian.ts) is a lower bound: never above
@@ -109,6 +109,104 @@ describe('Lagrangian bound on seeded random sole tenders, against HiGHS\'s prove
     const { data } = dataOf(tightSoleProblem(8, 30, 2));
     const none = { bound: 0, open: new Float64Array(data.m), taken: new Uint8Array(data.m * data.n), exact: true };
     expect(repair(data, none)).toBeNull();
+  });
+});
+
+/** HiGHS's proven optimum of the engine's own model: its total and column vector. */
+function solveExactly(model: ReturnType<typeof buildModel>['model']): { objective: number; x: Float64Array } {
+  const mip = createHighsModel(highs, model, true);
+  try {
+    mip.options.set({ output_flag: false, mip_rel_gap: 0, mip_abs_gap: 1e-6 });
+    mip.run();
+    expect(mip.getModelStatus()).toBe(highs.constants.modelStatus.optimal);
+    return { objective: mip.getObjectiveValue(), x: Float64Array.from(mip.getSolution().colValue) };
+  } finally {
+    mip.dispose();
+  }
+}
+
+/** Vendor of each region in a sole award's column vector. */
+function owners(data: SoleData, x: ArrayLike<number>): Int32Array {
+  const owner = new Int32Array(data.n).fill(-1);
+  for (let i = 0; i < data.m; i++) for (let j = 0; j < data.n; j++) if (data.supply[i][j] >= 0 && x[data.supply[i][j]] > 0.5) owner[j] = i;
+  return owner;
+}
+
+/** True when every vendor's regions fit its effective capacity and every region goes to a vendor that bid it. */
+function withinCapacities(data: SoleData, owner: Int32Array): boolean {
+  const load = new Float64Array(data.m);
+  for (let j = 0; j < data.n; j++) {
+    if (owner[j] < 0 || !(data.cost[owner[j] * data.n + j] < Infinity)) return false;
+    load[owner[j]] += data.demand[j];
+  }
+  return load.every((l, i) => l <= data.cap[i] + 1e-9);
+}
+
+describe('local search of the Lagrangian heuristic (shift, swap, close a vendor, open a vendor)', () => {
+  test('the hand-worked tender: from V3 on Ashford and V1 on Brenley (560) to V1 on Ashford and V2 on Brenley (300, the optimum)', () => {
+    // Sole award costs (price × 100 t): V1 A 100, B 300; V2 A 300, B 100; V3 (cap 100 t) A 200, B 200; fees 50, 50, 10.
+    const { data, model } = dataOf(baseProblem({ sourcing: 'sole' }));
+    const start = Int32Array.of(2, 0);
+    expect(awardOf(data, start).objective).toBe(560);
+    const result = awardOf(data, improve(data, start));
+    expect(Array.from(result.owner)).toEqual([0, 1]);
+    expect(result.objective).toBe(300);
+    expect(satisfiesRows(model, result.x)).toBe(true);
+  });
+
+  test.each([1, 2, 3, 4, 5, 6])('seed %i (12 vendors × 60 regions, tight caps): from a poor award (each region to the vendor with most room left, in order), cheaper, within every cap, meets every row', (seed) => {
+    const { data, model } = dataOf(tightSoleProblem(12, 60, seed));
+    const load = new Float64Array(data.m);
+    const start = new Int32Array(data.n).fill(-1);
+    // A deliberately poor start: regions in their order, each to the vendor with the most room left.
+    for (let j = 0; j < data.n; j++) {
+      let pick = -1;
+      for (let i = 0; i < data.m; i++) {
+        if (!(data.cost[i * data.n + j] < Infinity) || load[i] + data.demand[j] > data.cap[i]) continue;
+        if (pick < 0 || data.cap[i] - load[i] > data.cap[pick] - load[pick]) pick = i;
+      }
+      expect(pick).toBeGreaterThanOrEqual(0);
+      start[j] = pick;
+      load[pick] += data.demand[j];
+    }
+    const before = awardOf(data, start);
+    const after = awardOf(data, improve(data, start));
+    expect(withinCapacities(data, after.owner)).toBe(true);
+    expect(satisfiesRows(model, after.x)).toBe(true);
+    expect(after.objective).toBeLessThan(before.objective);
+  });
+});
+
+describe('Lagrangian reduced-cost fixing never removes the optimum (seeded tenders, HiGHS\'s proven optimum)', () => {
+  test.each([1, 2, 3, 4, 5, 6])('seed %i (8 vendors × 30 regions, tight caps): with the optimum itself as the upper limit, some pairs are fixed, none of HiGHS\'s optimal award, and HiGHS on the fixed model finds the same optimum', (seed) => {
+    const problem = tightSoleProblem(8, 30, seed);
+    const { data, model } = dataOf(problem);
+    const exact = solveExactly(model);
+    const lp = lpRelaxation(model, data.n);
+    const r = subgradient(data, { upper: exact.objective, iterations: 300, start: lp.duals });
+    // The optimum itself as the upper limit: the tightest case, where a wrong fixing would show.
+    const fixing = lagrangianFixing(data, r.multipliers, exact.objective);
+    expect(fixing.fixedPairs).toBeGreaterThan(0);
+    const owner = owners(data, exact.x);
+    for (let j = 0; j < data.n; j++) expect(fixing.pairs[owner[j] * data.n + j]).toBe(0);
+    for (let i = 0; i < data.m; i++) if (exact.x[data.open[i]] > 0.5) expect(fixing.vendors[i]).toBe(0);
+    const colUpper = Float64Array.from(model.colUpper);
+    for (let i = 0; i < data.m; i++) {
+      if (fixing.vendors[i]) colUpper[data.open[i]] = 0;
+      for (let j = 0; j < data.n; j++) if (fixing.pairs[i * data.n + j]) colUpper[data.supply[i][j]] = 0;
+    }
+    const reduced = solveExactly({ ...model, colUpper: Array.from(colUpper) });
+    expect(Math.abs(reduced.objective - exact.objective)).toBeLessThanOrEqual(1e-6 * exact.objective);
+  });
+
+  test('an upper limit below the optimum (no award is that cheap) rules out pairs of the optimal award: the check above would see a wrong limit', () => {
+    const { data, model } = dataOf(tightSoleProblem(8, 30, 1));
+    const exact = solveExactly(model);
+    const r = subgradient(data, { upper: exact.objective, iterations: 300, start: lpRelaxation(model, data.n).duals });
+    // Seed 1's bound meets the optimum (test above): 1 below it, every choice is ruled out.
+    const fixing = lagrangianFixing(data, r.multipliers, exact.objective - 1);
+    const owner = owners(data, exact.x);
+    expect(Array.from(owner).some((i, j) => fixing.pairs[i * data.n + j] === 1)).toBe(true);
   });
 });
 

@@ -102,6 +102,24 @@ describe('the large neighbourhood search', () => {
     expect(outcome.message).toMatch(/^\d+ neighbourhoods, [1-9]\d* improvements$/);
   });
 
+  test('on a sole award tender it starts with the Lagrangian bound, counts the pairs its reduced-cost fixing rules out, and its award meets every row and rule', async () => {
+    const problem = largeSoleProblem(20, 90, 4);
+    const { valid, inst, model, map } = setUp(problem);
+    const board = newBoard(model);
+    const start = await poorStart(model, 5);
+    publishAward(board, costOf(model, start), start);
+    const outcome = await runInWorker<EngineOutcome>(LNS_WORKER, {
+      model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: 20, maxRounds: 3, randomSeed: 1, lagrangianShare: 0.1, kernelShare: 0.3,
+    });
+    expect(['feasible', 'optimal']).toContain(outcome.status);
+    expect(outcome.objective!).toBeLessThan(costOf(model, start));
+    expect(satisfiesRows(model, outcome.values!)).toBe(true);
+    const extracted = extractAward(inst, map, outcome.values!);
+    expect(verifyAward(valid, extracted.awards, extracted.objective)).toEqual([]);
+    expect(outcome.boundSource).toMatch(/^Lagrangian relaxation .*; Lagrangian reduced-cost fixing ruled out \d+ of \d+ region-vendor pairs and \d+ vendors$/);
+    expect(outcome.bound!).toBeLessThanOrEqual(outcome.objective! + 1e-6 * outcome.objective!);
+  });
+
   test('with no award ever on the board it returns none at its deadline', async () => {
     const { model, structure } = setUp(largeSoleProblem(10, 40, 2));
     const outcome = await runInWorker<EngineOutcome>(LNS_WORKER, { model, structure, board: newBoard(model), timeLimitSeconds: 1 });

@@ -1,4 +1,7 @@
+import { readFileSync } from 'node:fs';
 import { closeSolverPool, solveAward } from '../../server/award/index';
+import { solverThreads } from '../../server/award/workers';
+import { waitFor } from '../support/wait';
 import { baseProblem, largeSoleProblem } from './support/problems';
 
 // The solve runs in worker threads: the main event loop must keep turning, and a solve can be cancelled.
@@ -27,6 +30,25 @@ describe('solving off the main thread', () => {
     await expect(pending).rejects.toThrow('cancelled by the buyer');
     const after = await solveAward(baseProblem());
     expect(after).toMatchObject({ status: 'optimal', objective: 300 });
+  });
+
+  test('a cancelled solve frees its solver threads within 2 s: the pools hold none, and the process has no more threads than before the solve', async () => {
+    // The process's own thread count (Linux): a worker thread ended by the cancel is gone from it.
+    const osThreads = () => Number(/^Threads:\s+(\d+)/m.exec(readFileSync('/proc/self/status', 'utf8'))?.[1]);
+    // Warm-up, so that the count before is taken with libuv's thread pool and the loaders in place.
+    await solveAward(baseProblem());
+    await closeSolverPool();
+    const before = osThreads();
+    const controller = new AbortController();
+    // A large sole award tender: HiGHS A and the Lagrangian and neighbourhood-search thread run at once.
+    const pending = solveAward(largeSoleProblem(30, 150, 11), { timeLimitSeconds: 60, signal: controller.signal });
+    const outcome = pending.then(() => 'finished', (error: Error) => error.message);
+    // Running, not starting: two threads, no task still waiting for one to load its solver.
+    await waitFor('the solve to run on its solver threads', () => solverThreads().threads >= 2 && solverThreads().queued === 0, { everyMs: 20 });
+    controller.abort(new Error('cancelled by the buyer'));
+    // The promise itself is the bound of this wait: 2 s from the cancel, checked every 20 ms.
+    await waitFor('the cancelled solve\'s threads to end', () => solverThreads().threads === 0 && osThreads() <= before, { timeoutMs: 2000, everyMs: 20 });
+    expect(await outcome).toBe('cancelled by the buyer');
   });
 
   test('an already aborted signal solves nothing', async () => {

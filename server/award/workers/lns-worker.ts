@@ -8,7 +8,7 @@
 // The portfolio stops this worker by terminating its thread; on its own it stops at its deadline.
 import { bestAward, publishAward } from '../award-board';
 import { cleaned, costOf, randomSource, satisfiesRows } from '../kernel';
-import { roundedBound, soleData, subgradient, type SoleData } from '../lagrangian';
+import { awardOf, improve, lagrangianFixing, relaxed, roundedBound, soleData, subgradient, type LagrangianFixing, type SoleData } from '../lagrangian';
 import type { MipModel } from '../model';
 import type { EngineOutcome } from '../solve';
 import { createHighsModel, engineLabel, highsRuntime, type HighsModel } from './highs-model';
@@ -29,9 +29,13 @@ export interface NeighbourhoodTask {
    * the best award meets it.
    */
   lagrangianShare?: number;
+  /** After the Lagrangian phase, the kernel search runs until this share of the time has passed (sole award only). */
+  kernelShare?: number;
   relativeGap?: number;
 }
 
+// Subgradient steps taken even when the phase's time is up (see lagrangianPhase).
+const MIN_STEPS = 30;
 const LAGRANGIAN_SOURCE = 'Lagrangian relaxation of the assignment rows (one knapsack per vendor)';
 
 /**
@@ -39,12 +43,12 @@ const LAGRANGIAN_SOURCE = 'Lagrangian relaxation of the assignment rows (one kna
  * until `until`: every repaired award that meets the model's rows goes on the board. Returns the
  * better of the two bounds.
  */
-function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model: MipModel, data: SoleData, board: SharedArrayBuffer, until: number): { bound: number; source: string } | null {
+function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model: MipModel, data: SoleData, board: SharedArrayBuffer, until: number): { bound: number; source: string; multipliers: Float64Array | null } | null {
   let lp: HighsModel | null = createHighsModel(highs, model, false);
   let lpBound = -Infinity;
   let start: Float64Array | null = null;
   try {
-    lp.options.set({ output_flag: false, time_limit: Math.max(0.5, (until - Date.now()) / 2000) });
+    lp.options.set({ output_flag: false, time_limit: Math.max(0.5, (until - Date.now()) / 4000) });
     lp.run();
     if (lp.getModelStatus() === highs.constants.modelStatus.optimal) {
       lpBound = lp.getObjectiveValue();
@@ -56,17 +60,125 @@ function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model:
     lp.dispose();
     lp = null;
   }
+  // At least MIN_STEPS steps even past `until` (an LP slow on a busy machine must not leave the
+  // search without multipliers): a few seconds at most at 80 × 400.
+  let steps = 0;
   const r = subgradient(data, {
     start, upper: bestAward(board, model.numCols)?.objective ?? Infinity, iterations: 5000,
-    stop: () => Date.now() > until,
+    stop: () => ++steps > MIN_STEPS && Date.now() > until,
     onAward: (award) => {
       if (satisfiesRows(model, award.x)) publishAward(board, award.objective, award.x);
       const theirs = bestAward(board, model.numCols);
       return theirs?.objective;
     },
   });
-  if (r.bound > lpBound) return { bound: r.bound, source: `${LAGRANGIAN_SOURCE}, ${r.iterations} subgradient steps from the LP duals` };
-  return Number.isFinite(lpBound) ? { bound: lpBound, source: 'LP relaxation (HiGHS simplex)' } : null;
+  if (r.bound > lpBound) return { bound: r.bound, source: `${LAGRANGIAN_SOURCE}, ${r.iterations} subgradient steps from the LP duals`, multipliers: r.multipliers };
+  return Number.isFinite(lpBound) ? { bound: lpBound, source: 'LP relaxation (HiGHS simplex)', multipliers: start } : null;
+}
+
+/** The owner of each region in a sole award x (−1 where none). */
+function ownersOf(data: SoleData, x: ArrayLike<number>): Int32Array {
+  const owner = new Int32Array(data.n).fill(-1);
+  for (let i = 0; i < data.m; i++) {
+    for (let j = 0; j < data.n; j++) {
+      const c = data.supply[i][j];
+      if (c >= 0 && x[c] > 0.5) owner[j] = i;
+    }
+  }
+  return owner;
+}
+
+/** Column upper bounds of the model with the Lagrangian fixing applied (fixed pairs and closed vendors at 0). */
+function fixedUppers(model: MipModel, data: SoleData, fixing: LagrangianFixing | null): Float64Array {
+  const upper = Float64Array.from(model.colUpper);
+  if (!fixing) return upper;
+  for (let i = 0; i < data.m; i++) {
+    if (fixing.vendors[i] && data.open[i] >= 0) upper[data.open[i]] = 0;
+    for (let j = 0; j < data.n; j++) if (fixing.pairs[i * data.n + j] && data.supply[i][j] >= 0) upper[data.supply[i][j]] = 0;
+  }
+  return upper;
+}
+
+// Kernel search: each region keeps this many vendors of the kernel at first (those with the
+// smallest Lagrangian reduced cost c_ij − u_j), two more every round; the vendors outside the
+// kernel join it in this many buckets, one per round.
+const KERNEL_PAIRS = 4;
+const KERNEL_BUCKETS = 8;
+
+/**
+ * Kernel search (after Angelelli, Mansini & Speranza 2010; MODEL.md): HiGHS on the model
+ * restricted to a kernel of promising vendors — those of the best award and those the relaxation
+ * opens at the multipliers u — and, per region, the pairs with the smallest Lagrangian reduced
+ * cost; each round adds a bucket of further vendors (by how far their prices undercut u) and more
+ * pairs per region, seeded with the best award, which is the cutoff. The last round, once the kernel holds
+ * every vendor and pair the fixing left, is the exact model reduced by the fixing: a proof there is
+ * a proof for the whole model. Returns the rounds run and whether that last round proved the award.
+ */
+function kernelSearch(args: {
+  highs: Awaited<ReturnType<typeof highsRuntime>>; mip: HighsModel; model: MipModel; data: SoleData; u: Float64Array;
+  base: Float64Array; board: SharedArrayBuffer; until: number; roundLimit: number;
+  best: () => { x: Float64Array; objective: number }; found: (x: Float64Array, objective: number) => void;
+}): { rounds: number; proven: boolean } {
+  const { highs, mip, model, data, u, base, until, roundLimit } = args;
+  const { m, n, cost, open, supply } = data;
+  const usable = (i: number) => open[i] >= 0 && base[open[i]] > 0.5;
+  const start = args.best();
+  const startOwner = ownersOf(data, start.x);
+  const kernel = new Uint8Array(m);
+  for (let j = 0; j < n; j++) if (startOwner[j] >= 0) kernel[startOwner[j]] = 1;
+  // The vendors the relaxation opens at u.
+  const r = relaxed(data, u);
+  for (let i = 0; i < m; i++) if (r.open[i] > 1e-9 && usable(i)) kernel[i] = 1;
+  // Vendors whose prices undercut the multipliers most are the most promising.
+  const undercut = Array.from({ length: m }, (_, i) => {
+    let s = 0;
+    for (let j = 0; j < n; j++) s += Math.min(0, cost[i * n + j] - u[j]);
+    return s;
+  });
+  const rest = Array.from({ length: m }, (_, i) => i).filter((i) => usable(i) && !kernel[i]).sort((a, b) => undercut[a] - undercut[b]);
+  const bucketSize = Math.max(1, Math.ceil(rest.length / KERNEL_BUCKETS));
+  const lower = Float64Array.from(model.colLower);
+  const upper = new Float64Array(model.numCols);
+  const all = { kind: 'range', from: 0, to: model.numCols - 1 } as const;
+  let perRegion = KERNEL_PAIRS;
+  let rounds = 0;
+  for (;;) {
+    const remaining = (until - Date.now()) / 1000;
+    if (remaining < 0.3) return { rounds, proven: false };
+    const incumbent = args.best();
+    const owner = ownersOf(data, incumbent.x);
+    const whole = rest.length === 0 && perRegion >= m;
+    upper.set(base);
+    for (let i = 0; i < m; i++) if (!kernel[i] && open[i] >= 0 && owner.indexOf(i) < 0) upper[open[i]] = 0;
+    for (let j = 0; j < n; j++) {
+      const candidates: number[] = [];
+      for (let i = 0; i < m; i++) {
+        const c = supply[i][j];
+        if (c < 0) continue;
+        if (kernel[i] && base[c] > 0.5) candidates.push(i);
+        else upper[c] = 0;
+      }
+      candidates.sort((a, b) => (cost[a * n + j] - u[j]) - (cost[b * n + j] - u[j]));
+      for (const i of candidates.slice(perRegion)) upper[supply[i][j]] = 0;
+      // The best award stays feasible in every round: it is the starting award and the cutoff.
+      if (owner[j] >= 0) { upper[supply[owner[j]][j]] = 1; upper[open[owner[j]]] = 1; }
+    }
+    mip.changeColsBounds(all, lower, upper);
+    // A round may take a third of what is left of the phase (at least the neighbourhoods' round limit).
+    const limit = whole ? remaining : Math.min(Math.max(roundLimit, remaining / 3), remaining);
+    mip.options.set({ time_limit: limit, random_seed: rounds });
+    mip.setSolution({ colValue: incumbent.x });
+    mip.run();
+    rounds++;
+    if (Number(mip.info.get('primal_solution_status')) === 2) {
+      const x = cleaned(model, mip.getSolution().colValue);
+      const objective = costOf(model, x);
+      if (objective < incumbent.objective - 1e-6 * Math.max(1, incumbent.objective) && satisfiesRows(model, x)) args.found(x, objective);
+    }
+    if (whole) return { rounds, proven: mip.getModelStatus() === highs.constants.modelStatus.optimal };
+    for (const i of rest.splice(0, bucketSize)) kernel[i] = 1;
+    perRegion = rest.length === 0 && perRegion + 2 >= m ? m : perRegion + 2;
+  }
 }
 
 // A round's sub-problem may use this share of the time limit (between 0.5 and 5 s).
@@ -107,7 +219,7 @@ function rest(seconds: number, deadline: number): void {
  * `structure` is the model's map of vendor and region columns; `board` the shared award board.
  * Returns the best award it holds.
  */
-export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
+export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, kernelShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
   // A thread of this pool may have ended its last search at the lowest priority.
   setThreadPriority(GAINING_STEPS);
   const highs = await highsRuntime();
@@ -120,7 +232,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
   const random = randomSource(randomSeed);
   const stats = { rounds: 0, improvements: 0 };
 
-  let best: { x: Float64Array; objective: number } | null = null;
+  let best = null as { x: Float64Array; objective: number } | null;
   let mine = false;
   const adoptBoard = () => {
     const b = bestAward(board, model.numCols);
@@ -134,7 +246,9 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     return true;
   };
   const sole = lagrangianShare > 0 && structure.soleColumn ? soleData(model, { ...structure, soleColumn: structure.soleColumn }) : null;
-  const proven = sole ? lagrangianPhase(highs, model, sole, board, Math.min(deadline - 200, Date.now() + lagrangianShare * timeLimitSeconds * 1000)) : null;
+  const phase = sole ? lagrangianPhase(highs, model, sole, board, Math.min(deadline - 200, Date.now() + lagrangianShare * timeLimitSeconds * 1000)) : null;
+  let proven: { bound: number; source: string } | null = phase;
+  const multipliers = phase?.multipliers ?? null;
   // The best award is optimal once no award can be cheaper than the bound (every total a whole
   // number: the bound rounded up), within the relative gap asked for.
   const closed = () => !!best && !!proven && !!sole && roundedBound(sole, proven.bound) >= best.objective - eps(best.objective) - relativeGap * Math.abs(best.objective);
@@ -142,11 +256,39 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     adoptBoard();
     if (!best) sleep(50);
   }
+  // Column upper bounds of every sub-problem: the model's, with the Lagrangian reduced-cost fixing applied.
+  let base: Float64Array<ArrayBufferLike> = Float64Array.from(model.colUpper);
+  let fixing = null as LagrangianFixing | null;
+  const refix = () => {
+    if (!sole || !multipliers || !best) return;
+    fixing = lagrangianFixing(sole, multipliers, best.objective);
+    base = fixedUppers(model, sole, fixing);
+  };
+  refix();
+  const found = (x: Float64Array, objective: number) => {
+    best = { x, objective };
+    mine = true;
+    stats.improvements++;
+    publishAward(board, objective, x);
+  };
+  let kernelRounds = 0;
+  const fixedWords = () => (fixing ? `; Lagrangian reduced-cost fixing ruled out ${fixing.fixedPairs} of ${sole!.cost.filter((c) => c < Infinity).length} region-vendor pairs and ${fixing.closedVendors} vendors` : '');
   const outcome = (): EngineOutcome => ({
-    status: closed() ? 'optimal' : best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: proven?.bound ?? null, boundSource: proven?.source ?? null,
-    seconds: (performance.now() - started) / 1000, engine: proven && sole ? `${engine} after the Lagrangian heuristic` : engine, message: `${stats.rounds} neighbourhoods, ${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}`,
+    status: closed() ? 'optimal' : best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: proven?.bound ?? null, boundSource: proven ? `${proven.source}${fixedWords()}` : null,
+    seconds: (performance.now() - started) / 1000, engine: proven && sole ? `${engine} after the Lagrangian heuristic${kernelRounds ? ` and ${kernelRounds} kernel-search rounds` : ''}` : engine,
+    message: `${stats.rounds} neighbourhoods, ${kernelRounds ? `${kernelRounds} kernel-search rounds, ` : ''}${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}${fixedWords()}`,
   });
   if (!best || closed()) return outcome();
+  // The local search of the Lagrangian heuristic also polishes the best award on the board (another run's).
+  if (sole) {
+    const owner = ownersOf(sole, best.x);
+    if (owner.every((i) => i >= 0)) {
+      const polished = awardOf(sole, improve(sole, owner));
+      if (polished.objective < best.objective - eps(best.objective) && satisfiesRows(model, polished.x)) found(polished.x, polished.objective);
+    }
+  }
+  refix();
+  if (closed()) return outcome();
 
   const m = createHighsModel(highs, model, true);
   try {
@@ -154,6 +296,14 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     const lower = new Float64Array(model.numCols);
     const upper = new Float64Array(model.numCols);
     const all = { kind: 'range', from: 0, to: model.numCols - 1 } as const;
+    if (sole && multipliers && kernelShare > 0) {
+      const until = Math.min(deadline - 200, started + kernelShare * timeLimitSeconds * 1000 - performance.now() + Date.now());
+      const k = kernelSearch({ highs, mip: m, model, data: sole, u: multipliers, base, board, until, roundLimit: Math.max(roundLimit, 1), best: () => best!, found });
+      kernelRounds = k.rounds;
+      if (k.proven && best) proven = { bound: best.objective, source: 'optimum of the exact model reduced by Lagrangian reduced-cost fixing (HiGHS)' };
+      refix();
+      if (closed()) return outcome();
+    }
     // Each kind's size (vendors, or regions for 'regions') grows while its sub-problems are
     // solved well within the limit and shrinks when they are not: the search stays where HiGHS
     // still proves the sub-problem quickly.
@@ -184,7 +334,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
         // (server/award/MODEL.md, "Award increment").
         const open = free[c] === 1 || !model.integer[c];
         lower[c] = open ? model.colLower[c] : best.x[c];
-        upper[c] = open ? model.colUpper[c] : best.x[c];
+        upper[c] = open ? Math.max(base[c], best.x[c]) : best.x[c];
       }
       m.changeColsBounds(all, lower, upper);
       const limit = Math.min(roundLimit, remaining);
@@ -205,6 +355,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
           stats.improvements++;
           // A gain only when no other run had found as cheap an award: keeping up is none.
           if (publishAward(board, objective, x)) {
+            refix();
             idleRounds = 0;
             lastGain = performance.now();
             if (stalled) {
