@@ -10,6 +10,7 @@ import { costOf } from '../../server/award/reduced-model';
 import { HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome } from '../../server/award/solve';
 import { verifyAward } from '../../server/award/verify';
 import { closeSolverPool, solverPool } from '../../server/award/workers';
+import { waitFor } from '../support/wait';
 import { largeSoleProblem, prng } from './support/problems';
 
 // The large neighbourhood search (server/award/workers/lns-worker.ts) run on its own against a
@@ -94,8 +95,12 @@ describe('the large neighbourhood search', () => {
     const { model, structure } = setUp(largeSoleProblem(20, 90, 4));
     const board = newBoard(model);
     const start = await poorStart(model, 9);
+    // No thread left from earlier tests: a thread in the pool is this run's.
+    await closeSolverPool();
     const run = runInWorker<EngineOutcome>(LNS_WORKER, { model, structure, board, timeLimitSeconds: 40, maxRounds: 10, randomSeed: 1 });
-    setTimeout(() => publishAward(board, costOf(model, start), start), 300);
+    // Published only once the thread has started (the hook: the pool holds it), so it had to wait.
+    void waitFor('the search thread to start', () => solverPool(LNS_WORKER).threads.length > 0, { everyMs: 20 })
+      .then(() => publishAward(board, costOf(model, start), start));
     const outcome = await run;
     expect(outcome.status).toBe('feasible');
     expect(outcome.objective!).toBeLessThan(costOf(model, start));
@@ -131,14 +136,16 @@ describe('the large neighbourhood search', () => {
     const board = newBoard(model);
     const start = await poorStart(model, 2);
     publishAward(board, costOf(model, start), start);
+    const published = new Int32Array(board, 0, 2)[1];
     const controller = new AbortController();
     const run = runInWorker(LNS_WORKER, { model, structure, board, timeLimitSeconds: 60 }, controller.signal);
     // At the abort, the search runs on one of the pool's threads: the hook is their exit.
+    // Aborted once the search has improved the board at least once (so it surely runs), not after a guessed pause.
     let ended: Promise<unknown>[] = [];
-    setTimeout(() => {
+    void waitFor('the search to improve the board once', () => new Int32Array(board, 0, 2)[1] > published, { everyMs: 20 }).then(() => {
       ended = solverPool(LNS_WORKER).threads.map((thread) => once(thread, 'exit'));
       controller.abort(new Error('solve finished elsewhere'));
-    }, 1500);
+    });
     await expect(run).rejects.toThrow('solve finished elsewhere');
     const version = new Int32Array(board, 0, 2)[1];
     // Once every one of those threads has ended (the aborted one terminated, the idle ones by closing

@@ -132,7 +132,8 @@ test('sign-in by keyboard: Tab to the fields, type, Enter; then the skip link is
   await page.keyboard.press('Tab');
   await expect(focused(page.getByRole('button', { name: 'Show password' }))).resolves.toBe(true);
   await page.keyboard.press('Space');
-  await expect(page.getByLabel('Password', { exact: true }).getAttribute('type')).resolves.toBe('text');
+  // The field's type changes after the key press is handled: wait for it rather than read it at once.
+  await page.locator('input[type="text"]').and(page.getByLabel('Password', { exact: true })).waitFor();
   await tabTo(page, page.getByRole('button', { name: 'Sign in' }));
   await check(page, 'keyboard-sign-in-1366');
   await page.keyboard.press('Enter');
@@ -150,10 +151,10 @@ test('sign-in by keyboard: Tab to the fields, type, Enter; then the skip link is
   await expect(skip.isVisible()).resolves.toBe(true);
   await screenshot(page, 'keyboard-skip-link-1366');
   await page.keyboard.press('Enter');
-  await expect(page.evaluate(() => document.activeElement?.id)).resolves.toBe('main');
+  await page.waitForFunction(() => document.activeElement?.id === 'main');
   // From there the next Tab lands on the main content's first control, past the navigation.
   await page.keyboard.press('Tab');
-  await expect(page.evaluate(() => document.activeElement?.closest('main')?.id)).resolves.toBe('main');
+  await page.waitForFunction(() => document.activeElement?.closest('main')?.id === 'main');
   await expect(page.evaluate(() => document.activeElement?.closest('nav') == null)).resolves.toBe(true);
 });
 
@@ -177,10 +178,11 @@ test('bid form by keyboard: open the tender from the list, enter prices, save, c
   const noCap = page.getByRole('checkbox', { name: 'No cap' });
   await expect(focused(noCap)).resolves.toBe(true);
   await expect(ringShown(page)).resolves.toBe('shown');
+  // Each state is rendered after the key press: wait for it rather than read it at once.
   await page.keyboard.press('Space');
-  await expect(noCap.isChecked()).resolves.toBe(true);
+  await page.getByRole('checkbox', { name: 'No cap', checked: true }).waitFor();
   await page.keyboard.press('Space');
-  await expect(noCap.isChecked()).resolves.toBe(false);
+  await page.getByRole('checkbox', { name: 'No cap', checked: false }).waitFor();
   // "No cap" cleared the cap: Shift+Tab back to it and enter it again.
   await tabTo(page, page.getByLabel(/^Capacity cap/), { back: true });
   await page.keyboard.type('600');
@@ -281,7 +283,7 @@ test('scenario editor, runs and compare by keyboard: the dialog opens on its fir
   // The sourcing radios: Tab into the group, the arrow key picks the next choice.
   await tabTo(page, dialog.getByRole('radio', { name: /^Split award/ }));
   await page.keyboard.press('ArrowDown');
-  await expect(dialog.getByRole('radio', { name: /^Sole award/ }).isChecked()).resolves.toBe(true);
+  await dialog.getByRole('radio', { name: /^Sole award/, checked: true }).waitFor();
   await typeInto(page, dialog.getByLabel('Maximum number of vendors'), '2');
   await check(page, 'keyboard-scenario-editor-1366');
   await page.keyboard.press('Enter');
@@ -307,7 +309,7 @@ test('scenario editor, runs and compare by keyboard: the dialog opens on its fir
     await fromTop(page);
     await tabTo(page, box);
     await page.keyboard.press('Space');
-    await expect(box.isChecked()).resolves.toBe(true);
+    await page.getByRole('checkbox', { name: new RegExp(`^Compare ${scenario}`), checked: true }).first().waitFor();
   }
   await tabTo(page, page.getByRole('button', { name: 'Compare selected (2)' }));
   await page.keyboard.press('Enter');
