@@ -93,7 +93,7 @@ export function evaluationRoutes(deps: AppDeps): AnyRoute[] {
     }),
     route({
       method: 'post', path: '/runs/:id/explanation', tag: 'Evaluation', access: EVALUATORS, params: id, status: 202, response: explanationViewSchema,
-      summary: "Explain the run's award, region by region: one forced re-solve per region, within 7 × the run's solve time (a region not proven in its share keeps a range; ask for it exactly with POST /runs/{id}/explanation/regions/{region}) (on the solve queue; poll GET). Idempotent: one per run; a failed one is queued again. Debriefs are asked for per vendor (POST /runs/{id}/debrief/{vendorId}).",
+      summary: "Explain the run's award, region by region: one forced re-solve per region, within 6 × the run's solve time (a region not proven in its share keeps a range; ask for it exactly with POST /runs/{id}/explanation/regions/{region}) (on the solve queue; poll GET). Idempotent: one per run; a failed one is queued again. Debriefs are asked for per vendor (POST /runs/{id}/debrief/{vendorId}).",
       responses: { 200: 'The explanation already exists (queued, running or done): nothing queued', 202: 'Queued', 409: 'The run has no award' },
       handler: async ({ em, user, params, res }) => {
         const { view, queued } = await startExplanation(ctx(em), user, params.id);
