@@ -1,22 +1,18 @@
+import { waitFor as pollUntil } from '../../src/app/testing/wait-for';
 import type { TestApp } from './app';
 
 /**
  * Polls `check` until it returns something other than `undefined`, `null` or `false`, and returns
  * that; fails after `timeoutMs` naming `what`. The way a test waits: for a condition, never a fixed
- * time (the lint forbids plain sleeps in specs).
+ * time (the lint forbids plain sleeps in specs). The component tests' helper
+ * (`src/app/testing/wait-for.ts`) with the defaults of server and browser tests (60 s, every 100 ms).
  */
-export async function waitFor<T>(
+export function waitFor<T>(
   what: string,
   check: () => Promise<T | undefined | null | false> | T | undefined | null | false,
   { timeoutMs = 60_000, everyMs = 100 }: { timeoutMs?: number; everyMs?: number } = {},
 ): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const value = await check();
-    if (value !== undefined && value !== null && value !== false) return value;
-    if (Date.now() > deadline) throw new Error(`waited ${timeoutMs} ms for ${what}`);
-    await new Promise((resolve) => setTimeout(resolve, everyMs));
-  }
+  return pollUntil(what, check, { timeoutMs, everyMs });
 }
 
 /**

@@ -3,8 +3,8 @@
  * `undefined`, `null` or `false`, and returns that; fails after `timeoutMs` naming `what`. For a
  * request a screen makes only after an earlier answer has settled (a resource that depends on
  * another, a click's change detection), where `fixture.whenStable()` would wait on that very request.
- * The client's twin of `spec/support/wait.ts`, without its server imports (the client type-check
- * must not reach the server).
+ * The one polling wait of all tests: `spec/support/wait.ts` calls it with longer defaults (it lives
+ * here, not there, because the client type-check must not reach the server's test support).
  */
 export async function waitFor<T>(
   what: string,
