@@ -126,7 +126,7 @@ describe('AwardExplanation', () => {
     const check = (over: Partial<RegionCheckView>): RegionCheckView => ({ region: 'R01', status: 'queued', result: null, error: null, queuedAt: '2026-12-03T10:00:00.000Z', computedAt: null, ...over });
     await answer('GET', done);
     const button = page().querySelector<HTMLButtonElement>('button.region-check')!;
-    expect(button.getAttribute('aria-label')).toBe('Work out the exact extra cost for North depot');
+    expect(button.getAttribute('aria-label')).toBe('Work out exactly, North depot');
     button.click();
     http.expectOne({ method: 'POST', url: `${url}/regions/R01` }).flush({ ...done, regionChecks: [check({})] });
     fixture.detectChanges();
