@@ -10,10 +10,12 @@ export type ExplainJobKey =
   | { runId: string; vendorId: string; region?: undefined }
   | { runId: string; vendorId?: undefined; region: string };
 
-function target(key: ExplainJobKey): { table: 'run_explanation' | 'run_debrief' | 'run_region_check'; where: string; params: string[] } {
-  if (key.vendorId !== undefined) return { table: 'run_debrief', where: 'run_id = ? and vendor_id = ?', params: [key.runId, key.vendorId] };
-  if (key.region !== undefined) return { table: 'run_region_check', where: 'run_id = ? and region = ?', params: [key.runId, key.region] };
-  return { table: 'run_explanation', where: 'run_id = ?', params: [key.runId] };
+function target(key: ExplainJobKey): { table: 'run_explanation' | 'run_debrief' | 'run_region_check'; columns: string[]; where: string; params: string[] } {
+  const [table, columns, params]: ['run_explanation' | 'run_debrief' | 'run_region_check', string[], string[]] =
+    key.vendorId !== undefined ? ['run_debrief', ['run_id', 'vendor_id'], [key.runId, key.vendorId]]
+    : key.region !== undefined ? ['run_region_check', ['run_id', 'region'], [key.runId, key.region]]
+    : ['run_explanation', ['run_id'], [key.runId]];
+  return { table, columns, where: columns.map((c) => `${c} = ?`).join(' and '), params };
 }
 
 /**
@@ -21,29 +23,14 @@ function target(key: ExplainJobKey): { table: 'run_explanation' | 'run_debrief' 
  * one is left as it is. Returns whether it was queued now.
  */
 export async function queueExplainJob(tx: EntityManager, key: ExplainJobKey, id: string, requestedById: string): Promise<boolean> {
-  const rows = key.vendorId !== undefined
-    ? await tx.execute<{ id: string }[]>(
-      `insert into run_debrief (id, run_id, vendor_id, requested_by_id, status) values (?, ?, ?, ?, 'queued')
-         on conflict (run_id, vendor_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
-         where run_debrief.status = 'failed'
-       returning id`,
-      [id, key.runId, key.vendorId, requestedById],
-    )
-    : key.region !== undefined
-    ? await tx.execute<{ id: string }[]>(
-      `insert into run_region_check (id, run_id, region, requested_by_id, status) values (?, ?, ?, ?, 'queued')
-         on conflict (run_id, region) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
-         where run_region_check.status = 'failed'
-       returning id`,
-      [id, key.runId, key.region, requestedById],
-    )
-    : await tx.execute<{ id: string }[]>(
-      `insert into run_explanation (id, run_id, requested_by_id, status) values (?, ?, ?, 'queued')
-         on conflict (run_id) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
-         where run_explanation.status = 'failed'
-       returning id`,
-      [id, key.runId, requestedById],
-    );
+  const { table, columns, params } = target(key);
+  const rows = await tx.execute<{ id: string }[]>(
+    `insert into ${table} (id, ${columns.join(', ')}, requested_by_id, status) values (?, ${columns.map(() => '?').join(', ')}, ?, 'queued')
+       on conflict (${columns.join(', ')}) do update set status = 'queued', error = null, progress_done = 0, requested_by_id = excluded.requested_by_id, updated_at = now()
+       where ${table}.status = 'failed'
+     returning id`,
+    [id, ...params, requestedById],
+  );
   return rows.length > 0;
 }
 
