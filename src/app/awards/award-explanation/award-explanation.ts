@@ -4,6 +4,7 @@ import { MatButtonModule } from '@angular/material/button';
 import { MatIconModule } from '@angular/material/icon';
 import { MatProgressBarModule } from '@angular/material/progress-bar';
 import type { DebriefView, ExplanationView, RegionCheckView } from '@shared/explanation';
+import type { Observable } from 'rxjs';
 import { ApiError } from '../../core/http/api-error';
 import { AwardApi } from '../award-api';
 import { loadErrorMessage } from '../../ui/load-error';
@@ -70,63 +71,38 @@ export class AwardExplanation {
   protected readonly askingRegion = signal<string | null>(null);
 
   protected explain(): void {
-    this.asking.set(true);
-    this.actionError.set(null);
-    this.api
-      .explain(this.runId())
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (v) => {
-          this.asking.set(false);
-          this.polled.set(v);
-          this.polled.reload();
-        },
-        error: (error: unknown) => {
-          this.asking.set(false);
-          this.actionError.set(error instanceof ApiError ? error.userMessage : 'The explanation could not be started.');
-        },
-      });
+    this.send(this.api.explain(this.runId()), (on) => this.asking.set(on), (v) => this.polled.set(v), 'The explanation could not be started.');
   }
 
   /** Asks for one vendor's debrief, then polls until it is worked out. */
   protected askDebrief(vendor: string): void {
-    this.askingDebrief.set(vendor);
-    this.actionError.set(null);
-    this.api
-      .debrief(this.runId(), vendor)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (d) => {
-          this.askingDebrief.set(null);
-          const v = this.view();
-          if (v) this.polled.set({ ...v, debriefs: [...v.debriefs.filter((x) => x.vendor !== d.vendor), d] });
-          this.polled.reload();
-        },
-        error: (error: unknown) => {
-          this.askingDebrief.set(null);
-          this.actionError.set(error instanceof ApiError ? error.userMessage : 'The debrief could not be started.');
-        },
-      });
+    this.send(this.api.debrief(this.runId(), vendor), (on) => this.askingDebrief.set(on ? vendor : null), (d) => {
+      const v = this.view();
+      if (v) this.polled.set({ ...v, debriefs: [...v.debriefs.filter((x) => x.vendor !== d.vendor), d] });
+    }, 'The debrief could not be started.');
   }
 
   /** Asks for one region whose extra cost is a range to be worked out exactly, then polls until it is. */
   protected askRegion(region: string): void {
-    this.askingRegion.set(region);
+    this.send(this.api.exactRegion(this.runId(), region), (on) => this.askingRegion.set(on ? region : null), (v) => this.polled.set(v),
+      'The region could not be worked out.');
+  }
+
+  /** One request of the panel: its button off while it runs, its answer shown, then the polling starts again. */
+  private send<T>(request: Observable<T>, busy: (on: boolean) => void, show: (answer: T) => void, failed: string): void {
+    busy(true);
     this.actionError.set(null);
-    this.api
-      .exactRegion(this.runId(), region)
-      .pipe(takeUntilDestroyed(this.destroyRef))
-      .subscribe({
-        next: (v) => {
-          this.askingRegion.set(null);
-          this.polled.set(v);
-          this.polled.reload();
-        },
-        error: (error: unknown) => {
-          this.askingRegion.set(null);
-          this.actionError.set(error instanceof ApiError ? error.userMessage : 'The region could not be worked out.');
-        },
-      });
+    request.pipe(takeUntilDestroyed(this.destroyRef)).subscribe({
+      next: (answer) => {
+        busy(false);
+        show(answer);
+        this.polled.reload();
+      },
+      error: (error: unknown) => {
+        busy(false);
+        this.actionError.set(error instanceof ApiError ? error.userMessage : failed);
+      },
+    });
   }
 
   protected regionCheckStatus(c: RegionCheckView): string {
