@@ -17,6 +17,9 @@ beforeAll(async () => {
   t = await startTestApp();
   buyer = await signedIn(t, await makeUser(t, 'buyer'));
 });
+afterEach(() => {
+  t.deps.bidHooks = undefined;
+});
 afterAll(() => t.close());
 
 const code = (i: number) => `R${String(i + 1).padStart(2, '0')}`;
@@ -121,4 +124,42 @@ test('a submission refused for a stale version or an unknown region stores nothi
   expect(await storedLines(tenderId)).toEqual({ R01: '2.5000', R02: '3.0000' });
   expect(await receipts(email)).toBe(0);
   expect(await bidEntries(tenderId)).toEqual([]);
+});
+
+test('a submission that fails just before its commit stores nothing: the receipt is queued in the same transaction, so no receipt, no bid, no audit entry', async () => {
+  const { v, email, tenderId } = await vendorOn(3);
+  t.deps.bidHooks = {
+    beforeBidCommit: () => Promise.reject(new Error('the connection broke just before the commit')),
+  };
+  const failed = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 700, capacity: 90, prices: pricesFor(3, 20), submit: true, version: null });
+  expect(failed.status).toBe(500);
+  t.deps.bidHooks = undefined;
+  expect(await t.em().count(Bid, { tender: tenderId })).toBe(0);
+  expect(await storedLines(tenderId)).toEqual({});
+  expect(await receipts(email)).toBe(0);
+  expect(await bidEntries(tenderId)).toEqual([]);
+  // The same submission sent again is stored, receipted and audited once.
+  const again = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 700, capacity: 90, prices: pricesFor(3, 20), submit: true, version: null });
+  expect(again.status).toBe(200);
+  expect(await receipts(email)).toBe(1);
+  expect(await bidEntries(tenderId)).toEqual(['bid.submitted']);
+});
+
+test('a withdrawal is stored with its receipt and audit entry, and a stale one stores nothing', async () => {
+  const { v, email, tenderId } = await vendorOn(2);
+  const submitted = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 900, capacity: null, prices: pricesFor(2, 30), submit: true, version: null });
+  expect(submitted.status).toBe(200);
+  const stale = await v.send('post', `/api/tenders/${tenderId}/bid/withdraw`, { version: submitted.body.version + 5 });
+  expect(stale.status).toBe(409);
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ status: 'submitted', version: submitted.body.version });
+  const withdrawn = await v.send('post', `/api/tenders/${tenderId}/bid/withdraw`, { version: submitted.body.version });
+  expect(withdrawn.status).toBe(200);
+  expect(withdrawn.body).toMatchObject({ status: 'withdrawn', version: submitted.body.version + 1, digest: null, revision: 1 });
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ status: 'withdrawn', digest: null, nonce: null });
+  expect(await receipts(email)).toBe(2);
+  expect(await bidEntries(tenderId)).toEqual(['bid.submitted', 'bid.withdrawn']);
+  const again = await v.send('post', `/api/tenders/${tenderId}/bid/withdraw`, { version: withdrawn.body.version });
+  expect(again.status).toBe(409);
+  expect(again.body.detail).toBe('This bid is already withdrawn.');
+  expect(await receipts(email)).toBe(2);
 });
