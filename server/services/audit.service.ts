@@ -112,8 +112,8 @@ interface Waiting {
   done: (error?: Error) => void;
 }
 
-/** Per chain, the entries waiting for the batch being written to commit (this process only). */
-const waitingByChain = new Map<string, Waiting[]>();
+/** Per pool (one per database) and chain, the entries waiting for the batch being written to commit (this process only). */
+const waitingByPool = new WeakMap<Pool, Map<string, Waiting[]>>();
 
 /** Most entries in one batch (10 parameters each). */
 const BATCH_MAX = 500;
@@ -132,22 +132,24 @@ export function auditOnPool(pool: Pool, input: PoolAuditInput): Promise<void> {
   const key = auditLockKey(input.tenderId);
   return new Promise<void>((resolve, reject) => {
     const entry: Waiting = { content: entryContent(input), done: (error) => (error ? reject(error) : resolve()) };
-    const waiting = waitingByChain.get(key);
+    let chains = waitingByPool.get(pool);
+    if (!chains) waitingByPool.set(pool, (chains = new Map<string, Waiting[]>()));
+    const waiting = chains.get(key);
     if (waiting) {
       waiting.push(entry);
       return;
     }
-    waitingByChain.set(key, [entry]);
-    void writeBatches(pool, key, input.tenderId);
+    chains.set(key, [entry]);
+    void writeBatches(pool, chains, key, input.tenderId);
   });
 }
 
 /** Writes the chain's waiting entries batch after batch until none waits. */
-async function writeBatches(pool: Pool, key: string, tenderId: string | null): Promise<void> {
+async function writeBatches(pool: Pool, chains: Map<string, Waiting[]>, key: string, tenderId: string | null): Promise<void> {
   for (;;) {
-    const waiting = waitingByChain.get(key)!;
+    const waiting = chains.get(key)!;
     if (!waiting.length) {
-      waitingByChain.delete(key);
+      chains.delete(key);
       return;
     }
     const batch = waiting.splice(0, BATCH_MAX);
@@ -155,8 +157,9 @@ async function writeBatches(pool: Pool, key: string, tenderId: string | null): P
       await appendBatch(pool, key, tenderId, batch.map((w) => w.content));
       for (const w of batch) w.done();
     } catch (error) {
-      const failed = error instanceof Error ? error : new Error('The audit entry was not written.');
-      for (const w of batch) w.done(failed);
+      if (batch.length === 1) batch[0].done(error instanceof Error ? error : new Error('The audit entry was not written.'));
+      // One entry PostgreSQL refuses must not fail the others: each is tried again on its own.
+      else for (const w of batch) await appendBatch(pool, key, tenderId, [w.content]).then(() => w.done(), (e: unknown) => w.done(e instanceof Error ? e : new Error(String(e))));
     }
   }
 }

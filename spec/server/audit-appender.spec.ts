@@ -37,11 +37,21 @@ test('entries written at once through the pool appender and through audit() form
   expect(verified).toMatchObject({ ok: true, entries: before + 66, brokenAt: null });
 });
 
-test('an entry the appender could not write rejects its caller and leaves the chain as it was', async () => {
+test('an entry PostgreSQL refuses rejects its own caller only: the entries batched with it are written, and the chain verifies', async () => {
   const before = await t.em().count(AuditEntry, { tender: null });
-  // A subject longer than its column (varchar 200): PostgreSQL refuses the batch.
-  await expect(auditOnPool(t.deps.sessionPool, { tenderId: null, actorId: null, action: 'bid.submitted', subject: 'x'.repeat(201) })).rejects.toThrow(/too long/);
-  expect(await t.em().count(AuditEntry, { tender: null })).toBe(before);
-  await auditOnPool(t.deps.sessionPool, { tenderId: null, actorId: null, action: 'bid.submitted', subject: 'after the refusal' });
-  expect(await verifyTrail(t.em(), null)).toMatchObject({ ok: true, entries: before + 1 });
+  const entry = (subject: string) => auditOnPool(t.deps.sessionPool, { tenderId: null, actorId: null, action: 'bid.submitted', subject });
+  // Asked for at once: the first is written alone, the other three wait and go as one batch.
+  const [first, refused, second, third] = await Promise.allSettled([
+    entry('first'),
+    // A subject longer than its column (varchar 200).
+    entry('x'.repeat(201)),
+    entry('second'),
+    entry('third'),
+  ]);
+  expect([first.status, second.status, third.status]).toEqual(['fulfilled', 'fulfilled', 'fulfilled']);
+  expect(refused.status).toBe('rejected');
+  expect(String((refused as PromiseRejectedResult).reason)).toMatch(/too long/);
+  const written = await t.em().find(AuditEntry, { tender: null }, { orderBy: { seq: 'asc' } });
+  expect(written.slice(before).map((e) => e.subject)).toEqual(['first', 'second', 'third']);
+  expect(await verifyTrail(t.em(), null)).toMatchObject({ ok: true, entries: before + 3 });
 });
