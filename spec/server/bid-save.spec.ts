@@ -6,7 +6,8 @@ import { drainQueue } from '../support/wait';
 
 /**
  * The bid save is SQL of its own (services/queries/bids.queries.ts): the bid row and all its lines
- * in one statement, the receipt and the audit entry in the same transaction. These tests prove
+ * in one statement, the receipt queued in the same transaction, the audit entry just after its
+ * commit (audit.service.ts `auditOnPool`). These tests prove
  * what it stores — every line whole, at the price sent — and that a refused save stores nothing:
  * no line, no new version, no receipt, no audit entry.
  */
