@@ -12,7 +12,7 @@ export interface AppDeps {
   config: Config;
   orm: MikroORM;
   boss: PgBoss;
-  /** Pool of plain pg connections: the session store, the sign-in limits and the tender lists (services/queries). */
+  /** Pool of plain pg connections: the session store, the sign-in limits, the tender lists (services/queries) and the bid save with its audit entries and receipt. */
   sessionPool: Pool;
   /** Test hooks around a bid's transaction (spec/server/bid-arrival.spec.ts); none in production. */
   bidHooks?: BidHooks;

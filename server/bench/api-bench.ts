@@ -8,7 +8,7 @@ import { cpuMeter, drive, driveMany, joinPhases, summarise, summaryTable, type D
 import { BENCH_PASSWORD, seedBenchData } from './support/seed';
 
 /**
- * `npm run bench:api [-- --skip-rush] [-- --only a,b]`: the API under load, on a throwaway cluster
+ * `npm run bench:api [-- --skip-rush] [-- --only a,b | --only rush]`: the API under load, on a throwaway cluster
  * (see support/with-cluster.sh). The built server runs as its own process (`node dist/server/main.js`)
  * and so does the yardstick, bare Express 5 with one route and no middleware
  * (`dist/server/bench/bare-server.js`); this process drives both over 127.0.0.1 with autocannon,
@@ -27,7 +27,8 @@ import { BENCH_PASSWORD, seedBenchData } from './support/seed';
  *
  * then the deadline rush (see rush.ts). Prints tables and whether each target is met; asserts
  * nothing. `--only b` (or `a,c`…) runs the yardstick, the baseline and those phases alone, e.g. to
- * profile one of them (BENCH_NODE_ARGS, see support/processes.ts).
+ * profile one of them (BENCH_NODE_ARGS, see support/processes.ts); `--only rush` runs the deadline
+ * rush alone.
  */
 const CONNECTIONS = 20;
 const VENDORS_AT_ONCE = 50;
@@ -81,7 +82,11 @@ async function explainLists(databaseUrl: string, buyerId: string, vendorOrgId: s
 async function main(): Promise<void> {
   const skipRush = process.argv.includes('--skip-rush');
   const onlyAt = process.argv.indexOf('--only');
-  const only = onlyAt > 0 ? new Set(['0', 'd', ...(process.argv[onlyAt + 1] ?? '').split(',')]) : new Set(['0', 'a', 'b', 'c', 'd', 'e']);
+  const onlyKeys = onlyAt > 0 ? (process.argv[onlyAt + 1] ?? '').split(',') : null;
+  // `--only rush`: the deadline rush alone, no phase measured before it.
+  const rushOnly = onlyKeys?.join(',') === 'rush';
+  if (rushOnly && skipRush) throw new Error('--only rush and --skip-rush leave nothing to run.');
+  const only = rushOnly ? new Set<string>() : onlyKeys ? new Set(['0', 'd', ...onlyKeys]) : new Set(['0', 'a', 'b', 'c', 'd', 'e']);
   const { databaseUrl, dir: benchDir } = benchEnv();
   const seeded = await seedBenchData(databaseUrl, { vendors: skipRush ? 200 : RUSH_VENDORS, rushRegions: RUSH_REGIONS, buyerBulk: BUYER_BULK });
   if (process.argv.includes('--explain')) await explainLists(databaseUrl, seeded.buyerId, seeded.vendors[0].orgId);
@@ -141,48 +146,50 @@ async function main(): Promise<void> {
     process.stdout.write(`[bench] warm-up: ${p.latencies.length} answers in ${p.seconds.toFixed(1)} s, statuses ${JSON.stringify([...p.statuses])}\n`);
   }
 
-  const rows = new Map<string, Summary>();
-  const bareSlices: Phase[] = [];
-  MAX_SECONDS = SLICE_SECONDS;
-  for (const { key, run, label } of phases) {
-    if (key === '0') continue;
-    if (key === 'c') {
-      rows.set(key, summarise(await run(label)));
-      continue;
+  if (phases.length) {
+    const rows = new Map<string, Summary>();
+    const bareSlices: Phase[] = [];
+    MAX_SECONDS = SLICE_SECONDS;
+    for (const { key, run, label } of phases) {
+      if (key === '0') continue;
+      if (key === 'c') {
+        rows.set(key, summarise(await run(label)));
+        continue;
+      }
+      const mine: Phase[] = [];
+      const around: Phase[] = [];
+      for (let r = 0; r < ROUNDS; r++) {
+        around.push(await barePhase('bare'));
+        mine.push(await run(label));
+      }
+      bareSlices.push(...around);
+      const paired = summarise(joinPhases('bare', around));
+      rows.set(key, { ...summarise(joinPhases(label, mine)), baseRps: paired.rps });
     }
-    const mine: Phase[] = [];
-    const around: Phase[] = [];
-    for (let r = 0; r < ROUNDS; r++) {
-      around.push(await barePhase('bare'));
-      mine.push(await run(label));
+    const base = summarise(joinPhases('(0) bare Express 5, one route', bareSlices));
+    rows.set('0', base);
+    const order = ['0', 'd', 'a', 'e', 'b', 'c'];
+    const ordered = order.map((k) => rows.get(k)).filter((r): r is Summary => !!r);
+    process.stdout.write(`\nAPI under load: ${CONNECTIONS} connections for (0) (d) (a) (e), ${VENDORS_AT_ONCE} vendors at once for (b), 5 connections for (c); `
+      + `(d) (a) (e) (b) in ${ROUNDS} slices of ${SLICE_SECONDS} s, each after a slice of bare Express; % of bare = of those bare slices (c: of all)\n`);
+    process.stdout.write(summaryTable(ordered, base.rps));
+    const verdict = (ok: boolean) => (ok ? 'met' : 'MISSED');
+    const d = rows.get('d')!;
+    const targets = [`target: 0 errors ......................... ${verdict([...rows.values()].every((r) => r.errors === 0))}`];
+    const shares: [string, number][] = [['d', 40], ['a', 25], ['e', 15], ['b', 10]];
+    for (const [key, pct] of shares) {
+      const r = rows.get(key);
+      const of = r?.baseRps ?? base.rps;
+      if (r) targets.push(`target: (${key}) >= ${pct} % of bare Express ...... ${verdict(r.rps >= (pct / 100) * of)} (${((100 * r.rps) / of).toFixed(1)} %)`);
     }
-    bareSlices.push(...around);
-    const paired = summarise(joinPhases('bare', around));
-    rows.set(key, { ...summarise(joinPhases(label, mine)), baseRps: paired.rps });
+    for (const key of ['a', 'b'] as const) {
+      const r = rows.get(key);
+      if (r) targets.push(`target: (${key}) p95 <= 3 x baseline p95 ...... ${verdict(r.p95 <= 3 * d.p95)} (${r.p95.toFixed(1)} vs ${(3 * d.p95).toFixed(1)} ms)`);
+    }
+    const c = rows.get('c');
+    if (c) targets.push(`target: (c) p95 < 250 ms ................. ${verdict(c.p95 < 250)} (${c.p95.toFixed(1)} ms)`);
+    process.stdout.write(targets.join('\n') + '\n');
   }
-  const base = summarise(joinPhases('(0) bare Express 5, one route', bareSlices));
-  rows.set('0', base);
-  const order = ['0', 'd', 'a', 'e', 'b', 'c'];
-  const ordered = order.map((k) => rows.get(k)).filter((r): r is Summary => !!r);
-  process.stdout.write(`\nAPI under load: ${CONNECTIONS} connections for (0) (d) (a) (e), ${VENDORS_AT_ONCE} vendors at once for (b), 5 connections for (c); `
-    + `(d) (a) (e) (b) in ${ROUNDS} slices of ${SLICE_SECONDS} s, each after a slice of bare Express; % of bare = of those bare slices (c: of all)\n`);
-  process.stdout.write(summaryTable(ordered, base.rps));
-  const verdict = (ok: boolean) => (ok ? 'met' : 'MISSED');
-  const d = rows.get('d')!;
-  const targets = [`target: 0 errors ......................... ${verdict([...rows.values()].every((r) => r.errors === 0))}`];
-  const shares: [string, number][] = [['d', 40], ['a', 25], ['e', 15], ['b', 10]];
-  for (const [key, pct] of shares) {
-    const r = rows.get(key);
-    const of = r?.baseRps ?? base.rps;
-    if (r) targets.push(`target: (${key}) >= ${pct} % of bare Express ...... ${verdict(r.rps >= (pct / 100) * of)} (${((100 * r.rps) / of).toFixed(1)} %)`);
-  }
-  for (const key of ['a', 'b'] as const) {
-    const r = rows.get(key);
-    if (r) targets.push(`target: (${key}) p95 <= 3 x baseline p95 ...... ${verdict(r.p95 <= 3 * d.p95)} (${r.p95.toFixed(1)} vs ${(3 * d.p95).toFixed(1)} ms)`);
-  }
-  const c = rows.get('c');
-  if (c) targets.push(`target: (c) p95 < 250 ms ................. ${verdict(c.p95 < 250)} (${c.p95.toFixed(1)} ms)`);
-  process.stdout.write(targets.join('\n') + '\n');
 
   if (!skipRush) {
     const o = { before: 500, after: 100, beforeSeconds: 10, afterSeconds: 2 };

@@ -55,8 +55,9 @@ export async function ensureQueues(boss: PgBoss): Promise<void> {
  */
 export const WAITED_MAIL_PRIORITY = 10;
 
-export async function enqueueMail(boss: PgBoss, mail: OutgoingMail, key?: string): Promise<string | null> {
-  return boss.send(QUEUES.mail, mail, { priority: WAITED_MAIL_PRIORITY, ...(key ? { singletonKey: key } : {}) });
+/** `db`: queue it on that connection instead (pg-boss `send`'s `db` option), e.g. inside the caller's transaction. */
+export async function enqueueMail(boss: PgBoss, mail: OutgoingMail, key?: string, db?: PgBoss.Db): Promise<string | null> {
+  return boss.send(QUEUES.mail, mail, { priority: WAITED_MAIL_PRIORITY, ...(key ? { singletonKey: key } : {}), ...(db ? { db } : {}) });
 }
 
 export async function startMailWorker(boss: PgBoss, mailer: Mailer): Promise<void> {

@@ -13,8 +13,12 @@ import { sendDownload, XLSX } from '../http/download';
 
 
 export function bidRoutes(deps: AppDeps): AnyRoute[] {
-  const ctx = (em: import('@mikro-orm/postgresql').EntityManager, req: import('express').Request): bids.BidDeps => ({
-    em, boss: deps.boss, publicUrl: deps.config.publicUrl, arrivedAt: arrivedAt(req), hooks: deps.bidHooks,
+  // `em` stays a getter: the save and the withdrawal run on the plain pg pool and fork no EntityManager unless they need one.
+  const ctx = (input: { em: import('@mikro-orm/postgresql').EntityManager; req: import('express').Request }): bids.BidDeps => ({
+    get em() {
+      return input.em;
+    },
+    pool: deps.sessionPool, boss: deps.boss, publicUrl: deps.config.publicUrl, arrivedAt: arrivedAt(input.req), hooks: deps.bidHooks,
   });
   return [
     route({
@@ -81,13 +85,13 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       summary: 'Save a draft (submit: false) or submit/revise (submit: true) before closing: a request whose body arrived in full before the closing time is accepted and stamped with that time. Send the version you loaded (null for a first save).',
       responses: { 409: 'Closed, or changed elsewhere since loaded' },
       // The person as read with the session (no User entity): the save is SQL of its own.
-      handler: ({ em, params, body, req }) => bids.saveBid(ctx(em, req), req.user!, params.id, body),
+      handler: (input) => bids.saveBid(ctx(input), input.req.user!, input.params.id, input.body),
     }),
     route({
       method: 'post', path: '/tenders/:id/bid/withdraw', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,
       body: z.object({ version: z.number({ error: 'Version is required.' }).int().min(1) }),
       summary: 'Withdraw the bid before closing.',
-      handler: ({ em, params, body, req }) => bids.withdrawBid(ctx(em, req), req.user!, params.id, body.version),
+      handler: (input) => bids.withdrawBid(ctx(input), input.req.user!, input.params.id, input.body.version),
     }),
     route({
       method: 'get', path: '/tenders/:id/bid-workbook', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, produces: XLSX,

@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
+import type { Pool } from 'pg';
 import type { AuditEntryView, AuditVerification } from '@shared/evaluation';
 import { ROLE_LABELS, type Role } from '@shared/roles';
 import { SEALED_TENDER_STATUSES } from '@shared/tenders';
@@ -7,7 +8,10 @@ import { formatInZone } from '@shared/time-zone';
 import { AuditEntry, Tender, type User } from '../entities';
 import { csvCell } from '../workbooks/spreadsheet-text';
 import { auditNames, describeEntry } from './audit-words';
-import { appendAuditEntry, auditEntryRows, lastAuditHash, lockAuditChain } from './queries/audit.queries';
+import { inPoolTransaction } from './queries/transaction.queries';
+import {
+  appendAuditEntriesOn, appendAuditEntry, auditEntryRows, lastAuditHash, lastAuditHashOn, lockAuditChain, lockAuditChainOn, type NewAuditEntry,
+} from './queries/audit.queries';
 
 /** The hash before the first entry of a tender's chain. */
 export const GENESIS = '0'.repeat(64);
@@ -58,6 +62,34 @@ export interface AuditInput {
  */
 export const auditLockKey = (tenderId: string | null) => `audit:${tenderId ?? 'global'}`;
 
+/** What an entry records, stamped now; `actorId` rather than a User where no entity is at hand. */
+function entryContent(input: AuditInput | PoolAuditInput): EntryContent {
+  return {
+    at: new Date(),
+    tenderId: input.tenderId,
+    actorId: 'actorId' in input ? input.actorId : input.actor?.id ?? null,
+    action: input.action,
+    subject: input.subject,
+    detail: input.detail ?? {},
+    beforeDigest: input.before === undefined ? null : digestOf(input.before),
+    afterDigest: input.after === undefined ? null : digestOf(input.after),
+  };
+}
+
+/** Entries as stored, each chained to the one before, the first to `prevHash`: the one place a chain is extended. */
+function chainEntries(prevHash: string, contents: readonly EntryContent[]): NewAuditEntry[] {
+  let prev = prevHash;
+  return contents.map((c) => {
+    const hash = entryHash(prev, c);
+    const entry: NewAuditEntry = {
+      at: c.at, tender_id: c.tenderId, actor_id: c.actorId, action: c.action, subject: c.subject,
+      detail: c.detail, before_digest: c.beforeDigest, after_digest: c.afterDigest, prev_hash: prev, hash,
+    };
+    prev = hash;
+    return entry;
+  });
+}
+
 /**
  * Appends an entry to the tender's chain, inside the caller's transaction (so the change and its
  * record commit together). A transaction-scoped advisory lock per tender keeps the chain linear
@@ -66,20 +98,77 @@ export const auditLockKey = (tenderId: string | null) => `audit:${tenderId ?? 'g
 export async function audit(em: EntityManager, input: AuditInput): Promise<void> {
   await lockAuditChain(em, auditLockKey(input.tenderId));
   const prevHash = (await lastAuditHash(em, input.tenderId)) ?? GENESIS;
-  const content: EntryContent = {
-    at: new Date(),
-    tenderId: input.tenderId,
-    actorId: input.actor?.id ?? null,
-    action: input.action,
-    subject: input.subject,
-    detail: input.detail ?? {},
-    beforeDigest: input.before === undefined ? null : digestOf(input.before),
-    afterDigest: input.after === undefined ? null : digestOf(input.after),
-  };
-  await appendAuditEntry(em, {
-    at: content.at, tender_id: content.tenderId, actor_id: content.actorId, action: content.action, subject: content.subject,
-    detail: content.detail, before_digest: content.beforeDigest, after_digest: content.afterDigest,
-    prev_hash: prevHash, hash: entryHash(prevHash, content),
+  const [entry] = chainEntries(prevHash, [entryContent(input)]);
+  await appendAuditEntry(em, entry);
+}
+
+/** An entry written by `auditOnPool`: as `AuditInput`, with the actor's id. */
+export interface PoolAuditInput extends Omit<AuditInput, 'actor'> {
+  actorId: string | null;
+}
+
+interface Waiting {
+  content: EntryContent;
+  done: (error?: Error) => void;
+}
+
+/** Per pool (one per database) and chain, the entries waiting for the batch being written to commit (this process only). */
+const waitingByPool = new WeakMap<Pool, Map<string, Waiting[]>>();
+
+/** Most entries in one batch (10 parameters each). */
+const BATCH_MAX = 500;
+
+/**
+ * Appends an entry to a chain in a transaction of its own on the plain pg pool, and resolves once it
+ * has committed: for records that follow their change's commit (a bid's, `auditBid` in
+ * bids.service.ts). Entries of one chain that arrive while a batch is being written wait and go
+ * together in the next one (group commit): one transaction takes the chain's lock, reads the last
+ * hash, chains the batch (`chainEntries`, as `audit` does) and inserts it in one statement. At a
+ * deadline rush the chain's lock is then taken once per batch rather than once per bid, and held for
+ * two statements and the commit. The lock still keeps the chain linear against `audit()` and other
+ * processes.
+ */
+export function auditOnPool(pool: Pool, input: PoolAuditInput): Promise<void> {
+  const key = auditLockKey(input.tenderId);
+  return new Promise<void>((resolve, reject) => {
+    const entry: Waiting = { content: entryContent(input), done: (error) => (error ? reject(error) : resolve()) };
+    let chains = waitingByPool.get(pool);
+    if (!chains) waitingByPool.set(pool, (chains = new Map<string, Waiting[]>()));
+    const waiting = chains.get(key);
+    if (waiting) {
+      waiting.push(entry);
+      return;
+    }
+    chains.set(key, [entry]);
+    void writeBatches(pool, chains, key, input.tenderId);
+  });
+}
+
+/** Writes the chain's waiting entries batch after batch until none waits. */
+async function writeBatches(pool: Pool, chains: Map<string, Waiting[]>, key: string, tenderId: string | null): Promise<void> {
+  for (;;) {
+    const waiting = chains.get(key)!;
+    if (!waiting.length) {
+      chains.delete(key);
+      return;
+    }
+    const batch = waiting.splice(0, BATCH_MAX);
+    try {
+      await appendBatch(pool, key, tenderId, batch.map((w) => w.content));
+      for (const w of batch) w.done();
+    } catch (error) {
+      if (batch.length === 1) batch[0].done(error instanceof Error ? error : new Error('The audit entry was not written.'));
+      // One entry PostgreSQL refuses must not fail the others: each is tried again on its own.
+      else for (const w of batch) await appendBatch(pool, key, tenderId, [w.content]).then(() => w.done(), (e: unknown) => w.done(e instanceof Error ? e : new Error(String(e))));
+    }
+  }
+}
+
+async function appendBatch(pool: Pool, key: string, tenderId: string | null, contents: readonly EntryContent[]): Promise<void> {
+  await inPoolTransaction(pool, async (client) => {
+    await lockAuditChainOn(client, key);
+    const prevHash = (await lastAuditHashOn(client, tenderId)) ?? GENESIS;
+    await appendAuditEntriesOn(client, chainEntries(prevHash, contents));
   });
 }
 

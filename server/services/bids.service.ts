@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
-import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { Pool, PoolClient } from 'pg';
 import type PgBoss from 'pg-boss';
 import { recordByCode, type BidFigures } from '@shared/bids';
 import { bidsValidUntil } from '@shared/compliance';
@@ -14,10 +15,11 @@ import { renderMail } from '../mail/templates';
 import { buildBidWorkbook } from '../workbooks/bid-workbook';
 import { parseBidWorkbookOffThread } from '../workbooks/workbook-pool';
 import { assertBidMatchesDocument, keepsDocument } from './bid-documents';
-import { lockOwnBid, lockTenderForBid, writeBid } from './queries/bids.queries';
+import { lockOwnBid, lockTenderForBid, markBidWithdrawn, writeBid } from './queries/bids.queries';
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
-import { audit } from './audit.service';
+import { auditOnPool } from './audit.service';
+import { bossDbOf, inPoolTransaction } from './queries/transaction.queries';
 import { bidCommitment, commitBid } from './bid-commitment';
 import { closeIfDue, findVisibleTender } from './tender-access';
 import { isLiveBid, isSealed, LIVE_BID_STATUSES } from '@shared/tenders';
@@ -28,7 +30,10 @@ import { abnormallyLowFlags } from './evaluation/abnormally-low';
 import { exportName } from '../http/download';
 
 export interface BidDeps {
+  /** The request's EntityManager (a getter in the route: the save itself never forks one). */
   em: EntityManager;
+  /** The plain pg pool (`AppDeps.sessionPool`): the bid save's transaction and the bids' audit entries. */
+  pool: Pool;
   boss: PgBoss;
   publicUrl: string;
   /** When the request arrived in full, by this server's clock (http/arrival.ts): the receipt time. */
@@ -117,16 +122,15 @@ class BiddingClosed extends ConflictError {
 }
 
 /**
- * Runs a bid's transaction; when it is refused because bidding has closed, closes the tender too
- * (with its audit entry) if it is due and nothing else has yet, as every read does.
+ * Runs a bid's transaction (`run`); when it is refused because bidding has closed, closes the tender
+ * too (with its audit entry) if it is due and nothing else has yet, as every read does.
  */
-async function whileOpen<T>(deps: BidDeps, tenderId: string, work: (tx: EntityManager) => Promise<T>): Promise<T> {
-  const em = deps.em;
+async function whileOpen<T>(deps: BidDeps, tenderId: string, run: () => Promise<T>): Promise<T> {
   await deps.hooks?.beforeBidTransaction?.({ tenderId, arrivedAt: deps.arrivedAt });
   try {
-    return await em.transactional(work);
+    return await run();
   } catch (error) {
-    if (error instanceof BiddingClosed) await closeIfDue(em, tenderId);
+    if (error instanceof BiddingClosed) await closeIfDue(deps.em, tenderId);
     throw error;
   }
 }
@@ -148,7 +152,7 @@ interface BiddingTender {
  * time (`arrivedAt`, this server's clock at its edge) and that the tender is still open — not yet
  * closed and opened, which happens CLOSING_GRACE_MS after the closing time (tender-access.ts).
  */
-async function lockOpenTender(tx: EntityManager, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
+async function lockOpenTender(tx: PoolClient, tenderId: string, vendorId: string, arrivedAt: Date): Promise<BiddingTender> {
   const row = await lockTenderForBid(tx, tenderId, vendorId);
   if (!row || !row.invited || row.status === 'draft' || !row.published) throw new NotFoundError('The tender');
   const closesAt = new Date(row.closes_at);
@@ -160,14 +164,15 @@ const CHANGED_ELSEWHERE = 'This bid was changed elsewhere (another tab or a coll
 
 /**
  * Save a draft, submit, or revise — only before closing, and only over the version loaded. One
- * transaction of few round trips (SQL in queries/bids.queries.ts): the tender row locked and the
- * closing time checked; the vendor's bid locked and read with its workbook, the last amendment and
- * the codes that are no region; the bid row and every line written in one statement. A submission's
- * audit entry and receipt follow the commit (see `auditBid`), before the answer.
+ * transaction on a client of the plain pg pool, no ORM (SQL in queries/bids.queries.ts, named
+ * statements): the tender row locked and the closing time checked; the vendor's bid locked and read
+ * with its workbook, the last amendment and the codes that are no region; the bid row and every line
+ * written in one statement; a submission's receipt queued in the same transaction (stored and
+ * receipted, or neither). Its audit entry follows the commit (see `auditBid`), before the answer.
  */
 export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, input: BidSave): Promise<BidView> {
   const org = vendorOf(user);
-  const { fields, bidding, document } = await whileOpen(deps, tenderId, async (tx) => {
+  const { fields, document } = await whileOpen(deps, tenderId, () => inPoolTransaction(deps.pool, async (tx) => {
     const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
     const codes = Object.keys(input.prices);
     const own = await lockOwnBid(tx, { tenderId, vendorId: org.id, documentId: input.documentId ?? null, codes });
@@ -196,44 +201,39 @@ export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, 
       codes, prices: codes.map((code) => input.prices[code]),
     });
     if (!saved) throw new ConflictError(CHANGED_ELSEWHERE);
-    await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
     const fields: BidFields = {
       id: saved.id, status: saved.status, fixedFee: input.fixedFee, capacity: input.capacity, revision: saved.revision, version: saved.version,
       submittedAt: saved.submitted_at === null ? null : new Date(saved.submitted_at), digest: saved.digest,
       updatedAt: new Date(saved.updated_at), answersAmendment: saved.answers_amendment, amendmentNote: saved.amendment_note,
     };
+    if (input.submit) await queueReceipt(deps, tx, user, bidding, fields, 'submitted');
+    await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
     const document = attached && {
       id: attached.document_id!, filename: attached.document_filename!, size: attached.document_size!, digest: attached.document_digest!,
     };
-    return { fields, bidding, document };
-  });
-  if (input.submit) {
-    await auditBid(deps, tenderId, fields.revision > 1 ? 'bid.revised' : 'bid.submitted', fields);
-    await sendReceipt(deps, user, bidding, fields, 'submitted');
-  }
+    return { fields, document };
+  }));
+  if (input.submit) await auditBid(deps, tenderId, fields.revision > 1 ? 'bid.revised' : 'bid.submitted', fields);
   // The prices stored are the ones sent: at most 4 decimals, exact in numeric(16,4).
   return bidView(fields, input.prices, document);
 }
 
 export async function withdrawBid(deps: BidDeps, user: Principal, tenderId: string, version: number): Promise<BidView> {
   const org = vendorOf(user);
-  const withdrawn = await whileOpen(deps, tenderId, async (tx) => {
+  const withdrawn = await whileOpen(deps, tenderId, () => inPoolTransaction(deps.pool, async (tx) => {
     const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
-    const b = await tx.findOne(Bid, { tender: tenderId, vendorOrganisation: org.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
-    if (!b) throw new NotFoundError('Your bid');
-    if (b.version !== version) throw new ConflictError('This bid was changed elsewhere since you loaded it. Reload it; nothing was withdrawn.');
-    if (b.status === 'withdrawn') throw new ConflictError('This bid is already withdrawn.');
-    b.status = 'withdrawn';
-    b.digest = null;
-    b.nonce = null;
-    await tx.flush();
+    const own = await lockOwnBid(tx, { tenderId, vendorId: org.id, documentId: null, codes: [] });
+    if (!own.id) throw new NotFoundError('Your bid');
+    if (own.version !== version) throw new ConflictError('This bid was changed elsewhere since you loaded it. Reload it; nothing was withdrawn.');
+    if (own.status === 'withdrawn') throw new ConflictError('This bid is already withdrawn.');
+    const row = await markBidWithdrawn(tx, own.id);
+    const bid = { id: row.id, revision: row.revision, digest: null, answersAmendment: row.answers_amendment };
+    await queueReceipt(deps, tx, user, bidding, bid, 'withdrawn');
     await deps.hooks?.beforeBidCommit?.({ tenderId, arrivedAt: deps.arrivedAt });
-    return { b, bidding };
-  });
-  const { b: bid, bidding } = withdrawn;
-  await auditBid(deps, tenderId, 'bid.withdrawn', bid);
-  await sendReceipt(deps, user, bidding, bid, 'withdrawn');
-  const fresh = await deps.em.fork().findOneOrFail(Bid, { id: bid.id }, { populate: ['lines.region', 'document'] });
+    return bid;
+  }));
+  await auditBid(deps, tenderId, 'bid.withdrawn', withdrawn);
+  const fresh = await deps.em.fork().findOneOrFail(Bid, { id: withdrawn.id }, { populate: ['lines.region', 'document'] });
   return bidView(fresh, linePrices(fresh), documentView(fresh.document));
 }
 
@@ -249,12 +249,16 @@ export async function withdrawBid(deps: BidDeps, user: Principal, tenderId: stri
  */
 async function auditBid(deps: BidDeps, tenderId: string, action: string, bid: Pick<BidFields, 'id' | 'revision'>): Promise<void> {
   const detail = { revision: bid.revision, receivedAt: deps.arrivedAt.toISOString() };
-  await deps.em.fork().transactional((tx) => audit(tx, { tenderId, actor: null, action, subject: `bid ${bid.id}`, detail }));
+  await auditOnPool(deps.pool, { tenderId, actorId: null, action, subject: `bid ${bid.id}`, detail });
 }
 
-/** The receipt never carries figures: the admin can read the outbox before closing. */
-async function sendReceipt(
-  deps: BidDeps, user: Principal, tender: BiddingTender, bid: Pick<BidFields, 'revision' | 'digest' | 'answersAmendment'>, what: 'submitted' | 'withdrawn',
+/**
+ * Queues the receipt in the bid's own transaction (pg-boss `send` on its client): it is sent if and
+ * only if the bid (or its withdrawal) is stored. It never carries figures: the admin can read the
+ * outbox before closing.
+ */
+async function queueReceipt(
+  deps: BidDeps, tx: PoolClient, user: Principal, tender: BiddingTender, bid: Pick<BidFields, 'revision' | 'digest' | 'answersAmendment'>, what: 'submitted' | 'withdrawn',
 ): Promise<void> {
   const subject = what === 'submitted'
     ? `Receipt: your bid on ${tender.reference} (revision ${bid.revision})`
@@ -273,7 +277,7 @@ async function sendReceipt(
     timeZone: tender.timeZone,
     link: `${deps.publicUrl}/tenders/${tender.id}`,
   });
-  await enqueueMail(deps.boss, { to: user.email, ...mail });
+  await enqueueMail(deps.boss, { to: user.email, ...mail }, undefined, bossDbOf(tx));
 }
 
 /** Sealed until closing: before it, only the count of submitted bids. */

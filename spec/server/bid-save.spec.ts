@@ -6,7 +6,8 @@ import { drainQueue } from '../support/wait';
 
 /**
  * The bid save is SQL of its own (services/queries/bids.queries.ts): the bid row and all its lines
- * in one statement, the receipt and the audit entry in the same transaction. These tests prove
+ * in one statement, the receipt queued in the same transaction, the audit entry just after its
+ * commit (audit.service.ts `auditOnPool`). These tests prove
  * what it stores — every line whole, at the price sent — and that a refused save stores nothing:
  * no line, no new version, no receipt, no audit entry.
  */
@@ -16,6 +17,9 @@ let buyer: Browser;
 beforeAll(async () => {
   t = await startTestApp();
   buyer = await signedIn(t, await makeUser(t, 'buyer'));
+});
+afterEach(() => {
+  t.deps.bidHooks = undefined;
 });
 afterAll(() => t.close());
 
@@ -121,4 +125,42 @@ test('a submission refused for a stale version or an unknown region stores nothi
   expect(await storedLines(tenderId)).toEqual({ R01: '2.5000', R02: '3.0000' });
   expect(await receipts(email)).toBe(0);
   expect(await bidEntries(tenderId)).toEqual([]);
+});
+
+test('a submission that fails just before its commit stores nothing: the receipt is queued in the same transaction, so no receipt, no bid, no audit entry', async () => {
+  const { v, email, tenderId } = await vendorOn(3);
+  t.deps.bidHooks = {
+    beforeBidCommit: () => Promise.reject(new Error('the connection broke just before the commit')),
+  };
+  const failed = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 700, capacity: 90, prices: pricesFor(3, 20), submit: true, version: null });
+  expect(failed.status).toBe(500);
+  t.deps.bidHooks = undefined;
+  expect(await t.em().count(Bid, { tender: tenderId })).toBe(0);
+  expect(await storedLines(tenderId)).toEqual({});
+  expect(await receipts(email)).toBe(0);
+  expect(await bidEntries(tenderId)).toEqual([]);
+  // The same submission sent again is stored, receipted and audited once.
+  const again = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 700, capacity: 90, prices: pricesFor(3, 20), submit: true, version: null });
+  expect(again.status).toBe(200);
+  expect(await receipts(email)).toBe(1);
+  expect(await bidEntries(tenderId)).toEqual(['bid.submitted']);
+});
+
+test('a withdrawal is stored with its receipt and audit entry, and a stale one stores nothing', async () => {
+  const { v, email, tenderId } = await vendorOn(2);
+  const submitted = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 900, capacity: null, prices: pricesFor(2, 30), submit: true, version: null });
+  expect(submitted.status).toBe(200);
+  const stale = await v.send('post', `/api/tenders/${tenderId}/bid/withdraw`, { version: submitted.body.version + 5 });
+  expect(stale.status).toBe(409);
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ status: 'submitted', version: submitted.body.version });
+  const withdrawn = await v.send('post', `/api/tenders/${tenderId}/bid/withdraw`, { version: submitted.body.version });
+  expect(withdrawn.status).toBe(200);
+  expect(withdrawn.body).toMatchObject({ status: 'withdrawn', version: submitted.body.version + 1, digest: null, revision: 1 });
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ status: 'withdrawn', digest: null, nonce: null });
+  expect(await receipts(email)).toBe(2);
+  expect(await bidEntries(tenderId)).toEqual(['bid.submitted', 'bid.withdrawn']);
+  const again = await v.send('post', `/api/tenders/${tenderId}/bid/withdraw`, { version: withdrawn.body.version });
+  expect(again.status).toBe(409);
+  expect(again.body.detail).toBe('This bid is already withdrawn.');
+  expect(await receipts(email)).toBe(2);
 });

@@ -94,3 +94,14 @@ test('after the rush, the buyer sees exactly the accepted bids in the tabulation
   expect(res.body.bids).toHaveLength(stored);
   for (const bid of res.body.bids as { prices: Record<string, number> }[]) expect(bid.prices).toEqual(prices);
 });
+
+test("every accepted bid of the rush has exactly one audit entry with its revision and receipt time, and the tender's trail verifies", async () => {
+  const bids = await t.em().find(Bid, { tender: tenderId, status: 'submitted' });
+  const entries = await t.em().find(AuditEntry, { tender: tenderId, action: 'bid.submitted' });
+  expect(entries.map((e) => e.subject).sort()).toEqual(bids.map((b) => `bid ${b.id}`).sort());
+  const bySubject = new Map(entries.map((e) => [e.subject, e.detail]));
+  for (const b of bids) expect(bySubject.get(`bid ${b.id}`)).toEqual({ revision: 1, receivedAt: b.submittedAt!.toISOString() });
+  const verified = await buyer.get(`/api/tenders/${tenderId}/audit/verify`);
+  expect(verified.status).toBe(200);
+  expect(verified.body).toMatchObject({ ok: true, brokenAt: null });
+});

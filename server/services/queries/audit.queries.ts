@@ -1,4 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
+import type { ClientBase } from 'pg';
 import { uuidArray } from '../sql';
 
 /** The columns of one stored audit entry, as PostgreSQL sends them (`verifyTrail` rehashes them). */
@@ -49,6 +50,41 @@ export async function appendAuditEntry(em: EntityManager, e: NewAuditEntry): Pro
     `insert into audit_entry (at, tender_id, actor_id, action, subject, detail, before_digest, after_digest, prev_hash, hash)
      values (?, ?, ?, ?, ?, ?::jsonb, ?, ?, ?, ?)`,
     [e.at, e.tender_id, e.actor_id, e.action, e.subject, JSON.stringify(e.detail), e.before_digest, e.after_digest, e.prev_hash, e.hash],
+  );
+}
+
+/**
+ * On a plain pg client (the bid save's appender, audit.service.ts `auditOnPool`), in one statement:
+ * waits for the chain's lock (as `lockAuditChain`), taken until the client's transaction ends.
+ */
+export async function lockAuditChainOn(client: ClientBase, key: string): Promise<void> {
+  await client.query({ name: 'audit-lock-chain', text: 'select pg_advisory_xact_lock(hashtext($1))', values: [key] });
+}
+
+/** As `lastAuditHash`, on a plain pg client; a statement of its own, so its snapshot is taken under the lock. */
+export async function lastAuditHashOn(client: ClientBase, tenderId: string | null): Promise<string | null> {
+  // Two texts, so each uses the (tender_id, seq) index.
+  const { rows } = await client.query<{ hash: string }>(tenderId
+    ? { name: 'audit-last-hash', text: 'select hash from audit_entry where tender_id = $1 order by seq desc limit 1', values: [tenderId] }
+    : { name: 'audit-last-hash-global', text: 'select hash from audit_entry where tender_id is null order by seq desc limit 1' });
+  return rows[0]?.hash ?? null;
+}
+
+/**
+ * Several entries of one chain in one statement, on a plain pg client: one row per entry in the
+ * order given (a VALUES list is inserted in its order, so `seq` follows the chain).
+ */
+export async function appendAuditEntriesOn(client: ClientBase, entries: readonly NewAuditEntry[]): Promise<void> {
+  if (!entries.length) return;
+  const values: unknown[] = [];
+  const tuples = entries.map((e) => {
+    const at = values.length;
+    values.push(e.at, e.tender_id, e.actor_id, e.action, e.subject, JSON.stringify(e.detail), e.before_digest, e.after_digest, e.prev_hash, e.hash);
+    return `($${at + 1}::timestamptz, $${at + 2}::uuid, $${at + 3}::uuid, $${at + 4}, $${at + 5}, $${at + 6}::jsonb, $${at + 7}, $${at + 8}, $${at + 9}, $${at + 10})`;
+  });
+  await client.query(
+    `insert into audit_entry (at, tender_id, actor_id, action, subject, detail, before_digest, after_digest, prev_hash, hash) values ${tuples.join(', ')}`,
+    values,
   );
 }
 

@@ -1,4 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
+import type { ClientBase } from 'pg';
 import type { ComplianceDecision, ExclusionGround } from '@shared/compliance';
 import { LIVE_BID_STATUSES, type BidStatus, type TenderStatus } from '@shared/tenders';
 import type { BidDocumentFigures } from '../../entities/bid-document.entity';
@@ -23,13 +24,14 @@ export interface BiddingTenderRow {
  * decision (regions, amendments) is read by the next statement, whose snapshot is taken once the
  * lock is held.
  */
-export async function lockTenderForBid(tx: EntityManager, tenderId: string, vendorId: string): Promise<BiddingTenderRow | undefined> {
-  const [row] = await tx.execute<BiddingTenderRow[]>(
-    `select t.status, t.reference, t.title, t.closes_at, t.time_zone, t.published_at is not null as published,
-            exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = ?) as invited
-       from tender t where t.id = ? for share`,
-    [vendorId, tenderId],
-  );
+export async function lockTenderForBid(tx: ClientBase, tenderId: string, vendorId: string): Promise<BiddingTenderRow | undefined> {
+  const { rows: [row] } = await tx.query<BiddingTenderRow>({
+    name: 'bid-lock-tender',
+    text: `select t.status, t.reference, t.title, t.closes_at, t.time_zone, t.published_at is not null as published,
+            exists (select 1 from invitation i where i.tender_id = t.id and i.vendor_organisation_id = $2) as invited
+       from tender t where t.id = $1 for share`,
+    values: [tenderId, vendorId],
+  });
   return row;
 }
 
@@ -58,20 +60,21 @@ export interface OwnBidRow {
  * number, and which of `codes` are not regions of the tender.
  */
 export async function lockOwnBid(
-  tx: EntityManager, q: { tenderId: string; vendorId: string; documentId: string | null; codes: readonly string[] },
+  tx: ClientBase, q: { tenderId: string; vendorId: string; documentId: string | null; codes: readonly string[] },
 ): Promise<OwnBidRow> {
-  const [row] = await tx.execute<OwnBidRow[]>(
-    `with b as (select id, status, revision, version, document_id from bid where tender_id = ? and vendor_organisation_id = ? for update)
+  const { rows: [row] } = await tx.query<OwnBidRow>({
+    name: 'bid-lock-own',
+    text: `with b as (select id, status, revision, version, document_id from bid where tender_id = $1 and vendor_organisation_id = $2 for update)
      select b.id, b.status, b.revision, b.version,
             d.id as document_id, d.filename as document_filename, d.size as document_size, d.digest as document_digest, d.figures as document_figures,
-            (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = ?) as amendment,
-            array(select c.code from unnest(?::text[]) as c(code)
-                   where not exists (select 1 from region r where r.tender_id = ? and r.code = c.code)) as unknown_codes
+            (select coalesce(max(a.number), 0)::int from amendment a where a.tender_id = $1) as amendment,
+            array(select c.code from unnest($3::text[]) as c(code)
+                   where not exists (select 1 from region r where r.tender_id = $1 and r.code = c.code)) as unknown_codes
        from (select 1) as one
        left join b on true
-       left join bid_document d on d.id = coalesce(?::uuid, b.document_id) and d.tender_id = ? and d.vendor_organisation_id = ?`,
-    [q.tenderId, q.vendorId, q.tenderId, textArray(q.codes), q.tenderId, q.documentId, q.tenderId, q.vendorId],
-  );
+       left join bid_document d on d.id = coalesce($4::uuid, b.document_id) and d.tender_id = $1 and d.vendor_organisation_id = $2`,
+    values: [q.tenderId, q.vendorId, textArray(q.codes), q.documentId],
+  });
   // Always one row: the bid, if any, is joined to a row of its own.
   return row;
 }
@@ -126,23 +129,24 @@ export interface SavedBidRow {
  * As entities this had cost a change set per line (200 for a 200-region bid) and one round trip
  * per table; bench:api, phase b, and the deadline rush measure it.
  */
-export async function writeBid(tx: EntityManager, w: BidWrite): Promise<SavedBidRow | undefined> {
-  const [row] = await tx.execute<SavedBidRow[]>(
-    `with saved as (
+export async function writeBid(tx: ClientBase, w: BidWrite): Promise<SavedBidRow | undefined> {
+  const { rows: [row] } = await tx.query<SavedBidRow>({
+    name: 'bid-write',
+    text: `with saved as (
        insert into bid as b (id, tender_id, vendor_organisation_id, status, fixed_fee, capacity, submitted_at, digest, nonce, revision, version, answers_amendment, document_id)
-       values (gen_random_uuid(), ?, ?, ?::bid_status, ?, ?, ?, ?, ?, ?, 1, ?, ?)
+       values (gen_random_uuid(), $1, $2, $3::bid_status, $4, $5, $6, $7, $8, $9, 1, $10, $11)
        on conflict (tender_id, vendor_organisation_id) do update set
          status = excluded.status, fixed_fee = excluded.fixed_fee, capacity = excluded.capacity,
          digest = excluded.digest, nonce = excluded.nonce, revision = excluded.revision, document_id = excluded.document_id,
-         submitted_at = case when ? then excluded.submitted_at else b.submitted_at end,
-         answers_amendment = case when ? then excluded.answers_amendment else b.answers_amendment end,
-         amendment_note = case when ? then null else b.amendment_note end,
+         submitted_at = case when $12::boolean then excluded.submitted_at else b.submitted_at end,
+         answers_amendment = case when $12::boolean then excluded.answers_amendment else b.answers_amendment end,
+         amendment_note = case when $12::boolean then null else b.amendment_note end,
          version = b.version + 1, updated_at = now()
-       where b.version = ?::int
+       where b.version = $13::int
        returning b.id, b.status, b.submitted_at, b.digest, b.revision, b.version, b.updated_at, b.answers_amendment, b.amendment_note),
      priced as (
        select r.id as region_id, l.unit_price
-         from unnest(?::text[], ?::numeric[]) as l(code, unit_price) join region r on r.tender_id = ? and r.code = l.code),
+         from unnest($14::text[], $15::numeric[]) as l(code, unit_price) join region r on r.tender_id = $1 and r.code = l.code),
      upserted as (
        insert into bid_line (id, bid_id, region_id, unit_price)
        select gen_random_uuid(), s.id, p.region_id, p.unit_price
@@ -153,12 +157,30 @@ export async function writeBid(tx: EntityManager, w: BidWrite): Promise<SavedBid
      unpriced as (delete from bid_line l using saved s where l.bid_id = s.id and l.region_id not in (select region_id from priced)),
      removed as (delete from bid_removed_line x using saved s where x.bid_id = s.id)
      select * from saved`,
-    [
+    values: [
       w.tenderId, w.vendorId, w.status, w.fixedFee, w.capacity, w.submittedAt, w.digest, w.nonce, w.revision, w.answersAmendment, w.documentId,
-      w.submit, w.submit, w.submit, w.loadedVersion,
-      textArray(w.codes), `{${w.prices.map(String).join(',')}}`, w.tenderId,
+      w.submit, w.loadedVersion,
+      textArray(w.codes), `{${w.prices.map(String).join(',')}}`,
     ],
-  );
+  });
+  return row;
+}
+
+/** The bid as its withdrawal left it. */
+export interface WithdrawnBidRow {
+  id: string;
+  revision: number;
+  answers_amendment: number;
+}
+
+/** Withdraws the bid (locked by `lockOwnBid`): its receipt's commitment and nonce cleared, a new version. */
+export async function markBidWithdrawn(tx: ClientBase, bidId: string): Promise<WithdrawnBidRow> {
+  const { rows: [row] } = await tx.query<WithdrawnBidRow>({
+    name: 'bid-withdraw',
+    text: `update bid set status = 'withdrawn', digest = null, nonce = null, version = version + 1, updated_at = now()
+            where id = $1 returning id, revision, answers_amendment`,
+    values: [bidId],
+  });
   return row;
 }
 
