@@ -2,7 +2,7 @@ import type autocannon from 'autocannon';
 import { Client } from 'pg';
 import { tenderListStatement } from '../services/queries/tenders.queries';
 import { deadlineRush, rushHolds, rushTable, RUSH_REGIONS, RUSH_VENDORS } from './rush';
-import { benchEnv, startBare, startServer, stopAll } from './support/processes';
+import { benchEnv, startBare, startServer, startWorker, stopAll, waitForLog } from './support/processes';
 import { call, headersOf, signIn, signInAll, type Session } from './support/http';
 import { cpuMeter, drive, driveMany, joinPhases, summarise, summaryTable, type DriveOptions, type Phase, type Summary } from './support/measure';
 import { BENCH_PASSWORD, seedBenchData } from './support/seed';
@@ -91,7 +91,13 @@ async function main(): Promise<void> {
   const seeded = await seedBenchData(databaseUrl, { vendors: skipRush ? 200 : RUSH_VENDORS, rushRegions: RUSH_REGIONS, buyerBulk: BUYER_BULK });
   if (process.argv.includes('--explain')) await explainLists(databaseUrl, seeded.buyerId, seeded.vendors[0].orgId);
   const bare = await startBare();
-  const { proc, url } = await startServer();
+  // The layout of several machines (README): a web process that serves only, and a worker process
+  // for the jobs (receipts and other mail, reminders, closing). The web process is what is
+  // measured; the jobs it ran in the same process before (the reminder pass over every invited
+  // vendor, mail) were a share of its CPU unrelated to any request.
+  const { proc, url, smtpUrl } = await startServer({ RUN_WORKERS: '0' });
+  const jobs = startWorker(1, { SMTP_URL: smtpUrl });
+  await waitForLog(jobs, 'worker ready');
   const people = skipRush ? 200 : RUSH_VENDORS;
   process.stdout.write(`[bench] server pid ${proc.child.pid} at ${url}, bare Express pid ${bare.proc.child.pid}; signing in ${people + 1} people\n`);
   const buyer = await signIn(url, seeded.buyerEmail, BENCH_PASSWORD);

@@ -80,7 +80,7 @@ function launch(name: string, script: string, env: Record<string, string>): Proc
 }
 
 /** Starts `node dist/server/main.js` on a free port and waits until it answers. */
-export async function startServer(env: Record<string, string> = {}): Promise<{ proc: Proc; url: string }> {
+export async function startServer(env: Record<string, string> = {}): Promise<{ proc: Proc; url: string; smtpUrl: string }> {
   const port = await freePort();
   const mailPort = await freePort();
   const proc = launch('server', 'main.js', {
@@ -92,7 +92,7 @@ export async function startServer(env: Record<string, string> = {}): Promise<{ p
     if (proc.child.exitCode !== null) throw new Error(`the server did not start; see ${benchEnv().dir}/server.log`);
     try {
       const res = await fetch(`${url}/api/session`);
-      if (res.status === 401) return { proc, url };
+      if (res.status === 401) return { proc, url, smtpUrl: `smtp://127.0.0.1:${mailPort}` };
     } catch {
       // not listening yet
     }
