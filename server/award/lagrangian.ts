@@ -405,6 +405,13 @@ export function improve(data: SoleData, start: Int32Array): Int32Array {
     // Shift chains: region j to vendor b, which has no room for it, once b's region k moves on to
     // a third vendor c (or to j's vendor): among each region's NEAR cheapest vendors only.
     const near = nearestVendors(data);
+    const regionsOf: number[][] = Array.from({ length: m }, () => []);
+    for (let j = 0; j < n; j++) regionsOf[owner[j]].push(j);
+    const relist = (j: number, from: number, to: number) => {
+      const list = regionsOf[from];
+      list.splice(list.indexOf(j), 1);
+      regionsOf[to].push(j);
+    };
     for (let j = 0; j < n; j++) {
       const a = owner[j];
       for (let p = 0; p < NEAR; p++) {
@@ -414,16 +421,23 @@ export function improve(data: SoleData, start: Int32Array): Int32Array {
         if (first >= 0) break;
         const need = load[b] + demand[j] - cap[b];
         let done = false;
-        for (let k = 0; k < n && !done; k++) {
-          if (owner[k] !== b || demand[k] + 1e-9 < need) continue;
+        for (const k of regionsOf[b]) {
+          if (demand[k] + 1e-9 < need) continue;
           for (let q = 0; q < NEAR; q++) {
             const c = near[k * NEAR + q];
             if (c < 0 || c === b || (count[c] === 0 && c !== a)) continue;
             const fits = c === a ? load[a] - demand[j] + demand[k] <= cap[a] + 1e-9 : room(c, demand[k]);
             if (!fits) continue;
             const delta = first + cost[c * n + k] - cost[b * n + k] - (c !== a ? closing(a) : 0);
-            if (delta < -eps) { move(k, c); move(j, b); gained = true; done = true; break; }
+            if (delta < -eps) {
+              move(k, c); relist(k, b, c);
+              move(j, b); relist(j, a, b);
+              gained = true;
+              done = true;
+              break;
+            }
           }
+          if (done) break;
         }
         if (done) break;
       }
