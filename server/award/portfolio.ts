@@ -41,10 +41,13 @@ const LNS_MIN_COLUMNS = 1000;
 // On sole award models the neighbourhood-search thread first spends this share of the limit on
 // the Lagrangian bound and heuristic (lagrangian.ts): a bound above the LP's, and awards repaired
 // from the relaxed solutions; the bound then closes the search once an award meets it.
-const LAGRANGIAN_SHARE = 0.25;
-// Then, on the same thread, the kernel search (workers/lns-worker.ts) until this share of the
-// limit has passed: HiGHS on the model restricted to the promising vendors and pairs.
-const KERNEL_SHARE = 0.4;
+const LAGRANGIAN_SHARE = 0.15;
+// Then, on the same thread, the search over the vendors that serve (open-set-search.ts) until
+// this share of the limit has passed,
+const SEARCH_SHARE = 0.4;
+// and the kernel search (workers/lns-worker.ts) until this one: HiGHS on the model restricted to
+// the promising vendors and pairs.
+const KERNEL_SHARE = 0.5;
 
 const decisive = (o: EngineOutcome) => o.status === 'optimal' || o.status === 'infeasible';
 
@@ -97,7 +100,7 @@ async function neighbourhoodRun(request: EngineRequest, board: SharedArrayBuffer
   const seconds = Math.max(0.5, (deadline - performance.now()) / 1000);
   return runInWorker(LNS_WORKER, {
     model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000,
-    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, kernelShare: KERNEL_SHARE, relativeGap: request.relativeGap,
+    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, searchShare: SEARCH_SHARE, kernelShare: KERNEL_SHARE, relativeGap: request.relativeGap,
   }, signal);
 }
 

@@ -107,7 +107,7 @@ describe('Lagrangian bound on seeded random sole tenders, against HiGHS\'s prove
 
   test('repair returns nothing when the open vendors cannot cover the regions', () => {
     const { data } = dataOf(tightSoleProblem(8, 30, 2));
-    const none = { bound: 0, open: new Float64Array(data.m), taken: new Uint8Array(data.m * data.n), exact: true };
+    const none = { bound: 0, open: new Float64Array(data.m), taken: new Uint8Array(data.m * data.n), exact: true, worth: new Float64Array(data.m) };
     expect(repair(data, none)).toBeNull();
   });
 });

@@ -8,7 +8,8 @@
 // The portfolio stops this worker by terminating its thread; on its own it stops at its deadline.
 import { bestAward, publishAward } from '../award-board';
 import { cleaned, costOf, randomSource, satisfiesRows } from '../kernel';
-import { awardOf, improve, lagrangianFixing, relaxed, roundedBound, soleData, subgradient, type LagrangianFixing, type SoleData } from '../lagrangian';
+import { awardOf, lagrangianFixing, relaxed, roundedBound, soleData, subgradient, type LagrangianFixing, type SoleData } from '../lagrangian';
+import { searchOpenSets } from '../open-set-search';
 import type { MipModel } from '../model';
 import type { EngineOutcome } from '../solve';
 import { createHighsModel, engineLabel, highsRuntime, type HighsModel } from './highs-model';
@@ -25,11 +26,12 @@ export interface NeighbourhoodTask {
   maxRounds?: number;
   /**
    * On a sole award model, first the Lagrangian bound and heuristic (lagrangian.ts) for this share
-   * of the time (warm-started from the LP's duals); its bound then closes the search as soon as
-   * the best award meets it.
+   * of the time; its bound then closes the search as soon as the best award meets it.
    */
   lagrangianShare?: number;
-  /** After the Lagrangian phase, the kernel search runs until this share of the time has passed (sole award only). */
+  /** Then the search over the vendors that serve (open-set-search.ts) until this share of the time has passed (sole award only). */
+  searchShare?: number;
+  /** Then the kernel search until this share of the time has passed (sole award only). */
   kernelShare?: number;
   relativeGap?: number;
 }
@@ -39,32 +41,17 @@ const MIN_STEPS = 30;
 const LAGRANGIAN_SOURCE = 'Lagrangian relaxation of the assignment rows (one knapsack per vendor)';
 
 /**
- * The LP relaxation (for its bound and its duals), then the subgradient method from those duals
- * until `until`: every repaired award that meets the model's rows goes on the board. Returns the
- * better of the two bounds.
+ * The subgradient method (lagrangian.ts) from the cheapest prices, its first steps on the
+ * knapsacks' LPs, until `until`: every repaired award that meets the model's rows goes on the
+ * board. Returns the bound, its multipliers and the vendors' worth at them. (An LP solve for
+ * starting duals came first here once; at 60 × 200 and more it took a quarter of the phase and
+ * often ran out of time, while the knapsacks' LPs reach the same duals in a fraction of it.)
  */
-function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model: MipModel, data: SoleData, board: SharedArrayBuffer, until: number): { bound: number; source: string; multipliers: Float64Array | null } | null {
-  let lp: HighsModel | null = createHighsModel(highs, model, false);
-  let lpBound = -Infinity;
-  let start: Float64Array | null = null;
-  try {
-    lp.options.set({ output_flag: false, time_limit: Math.max(0.5, (until - Date.now()) / 4000) });
-    lp.run();
-    if (lp.getModelStatus() === highs.constants.modelStatus.optimal) {
-      lpBound = lp.getObjectiveValue();
-      const duals = lp.getSolution().rowDual;
-      const rowOf = new Map(model.rowNames.map((name, r) => [name, r]));
-      start = Float64Array.from({ length: data.n }, (_, j) => duals[rowOf.get(`demand_${j}`) ?? -1] ?? 0);
-    }
-  } finally {
-    lp.dispose();
-    lp = null;
-  }
-  // At least MIN_STEPS steps even past `until` (an LP slow on a busy machine must not leave the
-  // search without multipliers): a few seconds at most at 80 × 400.
+function lagrangianPhase(model: MipModel, data: SoleData, board: SharedArrayBuffer, until: number): { bound: number; source: string; multipliers: Float64Array; worth: Float64Array } {
+  // At least MIN_STEPS steps even past `until`: a few seconds at most at 80 × 400.
   let steps = 0;
   const r = subgradient(data, {
-    start, upper: bestAward(board, model.numCols)?.objective ?? Infinity, iterations: 5000,
+    upper: bestAward(board, model.numCols)?.objective ?? Infinity, iterations: 5000, lpFirst: true,
     stop: () => ++steps > MIN_STEPS && Date.now() > until,
     onAward: (award) => {
       if (satisfiesRows(model, award.x)) publishAward(board, award.objective, award.x);
@@ -72,8 +59,7 @@ function lagrangianPhase(highs: Awaited<ReturnType<typeof highsRuntime>>, model:
       return theirs?.objective;
     },
   });
-  if (r.bound > lpBound) return { bound: r.bound, source: `${LAGRANGIAN_SOURCE}, ${r.iterations} subgradient steps from the LP duals`, multipliers: r.multipliers };
-  return Number.isFinite(lpBound) ? { bound: lpBound, source: 'LP relaxation (HiGHS simplex)', multipliers: start } : null;
+  return { bound: r.bound, source: `${LAGRANGIAN_SOURCE}, ${r.iterations} subgradient steps`, multipliers: r.multipliers, worth: relaxed(data, r.multipliers).worth };
 }
 
 /** The owner of each region in a sole award x (−1 where none). */
@@ -219,7 +205,7 @@ function rest(seconds: number, deadline: number): void {
  * `structure` is the model's map of vendor and region columns; `board` the shared award board.
  * Returns the best award it holds.
  */
-export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, kernelShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
+export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, searchShare = 0, kernelShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
   // A thread of this pool may have ended its last search at the lowest priority.
   setThreadPriority(GAINING_STEPS);
   const highs = await highsRuntime();
@@ -246,7 +232,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     return true;
   };
   const sole = lagrangianShare > 0 && structure.soleColumn ? soleData(model, { ...structure, soleColumn: structure.soleColumn }) : null;
-  const phase = sole ? lagrangianPhase(highs, model, sole, board, Math.min(deadline - 200, Date.now() + lagrangianShare * timeLimitSeconds * 1000)) : null;
+  const phase = sole ? lagrangianPhase(model, sole, board, Math.min(deadline - 200, Date.now() + lagrangianShare * timeLimitSeconds * 1000)) : null;
   let proven: { bound: number; source: string } | null = phase;
   const multipliers = phase?.multipliers ?? null;
   // The best award is optimal once no award can be cheaper than the bound (every total a whole
@@ -272,20 +258,36 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     publishAward(board, objective, x);
   };
   let kernelRounds = 0;
+  let searchRounds = 0;
+  /** The search over the vendors that serve, from the best award, until `until`; true when it found a cheaper award. */
+  const openSetSearch = (until: number): boolean => {
+    if (!sole || !best) return false;
+    const owner = ownersOf(sole, best.x);
+    if (!owner.every((i) => i >= 0)) return false;
+    const before = best.objective;
+    searchRounds += searchOpenSets(sole, owner, {
+      worth: phase?.worth, random, rounds: Number.MAX_SAFE_INTEGER, stop: () => Date.now() > until,
+      onBest: (o, total) => {
+        if (!best || total >= best.objective - eps(best.objective)) return;
+        const a = awardOf(sole, o);
+        if (satisfiesRows(model, a.x)) found(a.x, a.objective);
+      },
+    }).rounds;
+    return best.objective < before - eps(before);
+  };
   const fixedWords = () => (fixing ? `; Lagrangian reduced-cost fixing ruled out ${fixing.fixedPairs} of ${sole!.cost.filter((c) => c < Infinity).length} region-vendor pairs and ${fixing.closedVendors} vendors` : '');
   const outcome = (): EngineOutcome => ({
     status: closed() ? 'optimal' : best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: proven?.bound ?? null, boundSource: proven ? `${proven.source}${fixedWords()}` : null,
     seconds: (performance.now() - started) / 1000, engine: proven && sole ? `${engine} after the Lagrangian heuristic${kernelRounds ? ` and ${kernelRounds} kernel-search rounds` : ''}` : engine,
-    message: `${stats.rounds} neighbourhoods, ${kernelRounds ? `${kernelRounds} kernel-search rounds, ` : ''}${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}${fixedWords()}`,
+    message: `${stats.rounds} neighbourhoods, ${searchRounds ? `${searchRounds} rounds of the search over the vendors that serve, ` : ''}${kernelRounds ? `${kernelRounds} kernel-search rounds, ` : ''}${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}${fixedWords()}`,
   });
   if (!best || closed()) return outcome();
-  // The local search of the Lagrangian heuristic also polishes the best award on the board (another run's).
+  // The search over the vendors that serve, from the best award on the board (its local search
+  // first: it polishes another run's award too), until its share of the time has passed.
+  const at = (share: number) => Math.min(deadline - 200, started + share * timeLimitSeconds * 1000 - performance.now() + Date.now());
   if (sole) {
-    const owner = ownersOf(sole, best.x);
-    if (owner.every((i) => i >= 0)) {
-      const polished = awardOf(sole, improve(sole, owner));
-      if (polished.objective < best.objective - eps(best.objective) && satisfiesRows(model, polished.x)) found(polished.x, polished.objective);
-    }
+    adoptBoard();
+    openSetSearch(Math.max(Date.now(), at(searchShare)));
   }
   refix();
   if (closed()) return outcome();
@@ -297,7 +299,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     const upper = new Float64Array(model.numCols);
     const all = { kind: 'range', from: 0, to: model.numCols - 1 } as const;
     if (sole && multipliers && kernelShare > 0) {
-      const until = Math.min(deadline - 200, started + kernelShare * timeLimitSeconds * 1000 - performance.now() + Date.now());
+      const until = at(kernelShare);
       const k = kernelSearch({ highs, mip: m, model, data: sole, u: multipliers, base, board, until, roundLimit: Math.max(roundLimit, 1), best: () => best!, found });
       kernelRounds = k.rounds;
       if (k.proven && best) proven = { bound: best.objective, source: 'optimum of the exact model reduced by Lagrangian reduced-cost fixing (HiGHS)' };
@@ -368,7 +370,24 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
       const [low, high] = limits[kind];
       if (solved && took < limit / 3) sizes[kind] = Math.min(high, Math.max(sizes[kind] + 1, Math.round(sizes[kind] * 1.2)));
       else if (!solved) sizes[kind] = Math.max(low, Math.min(sizes[kind] - 1, Math.round(sizes[kind] * 0.8)));
-      if (stalled) rest(took * Math.min(MAX_REST_RATIO, 1 + stalledRounds++ / REST_GROWTH_ROUNDS), deadline);
+      // On a sole award model, each neighbourhood is followed by as long a search over the vendors
+      // that serve: the two find different kinds of gains (an assignment HiGHS proves best within
+      // a neighbourhood, another set of vendors).
+      let spent = took;
+      if (sole && remaining > 0.4) {
+        const t1 = performance.now();
+        if (openSetSearch(Math.min(deadline - 200, Date.now() + took * 1000))) {
+          refix();
+          idleRounds = 0;
+          lastGain = performance.now();
+          if (stalled) {
+            stalled = false;
+            setThreadPriority(GAINING_STEPS);
+          }
+        }
+        spent += (performance.now() - t1) / 1000;
+      }
+      if (stalled) rest(spent * Math.min(MAX_REST_RATIO, 1 + stalledRounds++ / REST_GROWTH_ROUNDS), deadline);
     }
   } finally {
     m.dispose();
