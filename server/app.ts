@@ -8,6 +8,7 @@ import helmet from 'helmet';
 import { setting } from './config';
 import { configurePassport } from './auth/passport';
 import { createSessionStore, slideSessionCookie } from './auth/session-store';
+import { changesSession, sessionRead } from './auth/session-read';
 import { signInLimits } from './auth/sign-in-limits';
 import { stampArrival } from './http/arrival';
 import { noStore } from './http/cache-control';
@@ -85,7 +86,11 @@ export function createApp(deps: AppDeps): Express {
   api.use(xsrf());
   api.use(express.json({ limit: '1mb' }));
   api.use(lazyRequestContext(orm.em));
-  api.use(
+  // What writes a session: express-session with its store, the cookie slide and passport. It runs
+  // for the routes that change the session and for a session due to slide; every other request
+  // reads its session on the lean path (auth/session-read.ts).
+  const writer = express.Router();
+  writer.use(
     session({
       name: SESSION_COOKIE,
       secret: sessionSecret,
@@ -99,15 +104,17 @@ export function createApp(deps: AppDeps): Express {
       cookie: { httpOnly: true, sameSite: 'lax', secure: 'auto', maxAge: SESSION_HOURS * 3600_000, path: '/' },
     }),
   );
-  api.use(slideSessionCookie(SESSION_COOKIE, sessionSecret));
+  writer.use(slideSessionCookie(SESSION_COOKIE, sessionSecret));
   const auth = configurePassport(orm);
-  api.use(auth.initialize());
-  api.use(auth.session());
+  writer.use(auth.initialize());
+  writer.use(auth.session());
+  const routes = apiRoutes(deps, auth);
+  api.use(sessionRead({ name: SESSION_COOKIE, secret: sessionSecret, pool: deps.sessionPool, changes: changesSession(routes), writer }));
   api.use(xsrfSessionBinding());
   // Failed sign-ins: per IP across e-mails, and per IP and (normalised) e-mail; counted in
   // PostgreSQL, so that every web process sees the same failures.
   api.post('/session', ...signInLimits(config.signInIpLimit, deps.sessionPool));
-  mountRoutes(api, apiRoutes(deps, auth));
+  mountRoutes(api, routes);
   api.use(apiNotFound);
   app.use('/api', api);
 

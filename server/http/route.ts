@@ -53,6 +53,12 @@ export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
   response?: z.ZodType;
   /** The success body's content type when it is not JSON (exports). */
   produces?: string;
+  /**
+   * The route changes the session (sign-in, sign-out): it runs through express-session and passport.
+   * Every other route reads the session on the lean path, where `req.session` is frozen
+   * (auth/session-read.ts). Exact paths only.
+   */
+  changesSession?: boolean;
   /** A multipart upload of one file in `field` (kept in memory, at most `maxBytes`). */
   upload?: { field: string; maxBytes: number };
   /** Returns the JSON body (or a promise of it), or writes the response itself and returns undefined. */
