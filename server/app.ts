@@ -4,7 +4,6 @@ import { lazyRequestContext } from './http/orm-context';
 import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import session from 'express-session';
-import helmet from 'helmet';
 import { setting } from './config';
 import { configurePassport } from './auth/passport';
 import { createSessionStore, slideSessionCookie } from './auth/session-store';
@@ -16,6 +15,7 @@ import { SESSION_COOKIE, type AppDeps } from './context';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
 import { requestLog } from './http/request-log';
+import { securityHeaders } from './http/security-headers';
 import { mountRoutes, route, type AnyRoute } from './http/route';
 import { xsrf, xsrfSessionBinding } from './http/xsrf';
 import { logger } from './logger';
@@ -61,23 +61,8 @@ export function createApp(deps: AppDeps): Express {
   // First of all: when each request arrived in full is when a bid was received (http/arrival.ts).
   app.use(stampArrival());
 
-  app.use(
-    helmet({
-      contentSecurityPolicy: {
-        directives: {
-          'default-src': ["'self'"],
-          'script-src': ["'self'"],
-          // Angular and Material add component styles at run time.
-          'style-src': ["'self'", "'unsafe-inline'"],
-          'img-src': ["'self'", 'data:'],
-          'font-src': ["'self'"],
-          'frame-src': ["'self'"],
-          'upgrade-insecure-requests': config.trustProxy ? [] : null,
-        },
-      },
-      strictTransportSecurity: config.trustProxy,
-    }),
-  );
+  // helmet's headers, computed once at start (http/security-headers.ts).
+  app.use(securityHeaders(config.trustProxy));
   app.use(requestLog(logger));
 
   const api = express.Router();
