@@ -9,6 +9,15 @@ import { userEntity } from '../auth/session-user';
 import { ForbiddenError, UnauthorizedError } from './errors';
 import { parseOr400 } from './validate';
 
+/**
+ * A JSON answer already written as text (by PostgreSQL, e.g. the tender list): sent as it is, with
+ * the JSON content type, not parsed and serialised again. Its shape is still the route's `response`
+ * schema, which a test of the route must check.
+ */
+export class JsonText {
+  constructor(readonly text: string) {}
+}
+
 /** Who may call a route: anyone, anyone signed in, or the listed roles. */
 export type Access = 'public' | 'signed-in' | readonly Role[];
 
@@ -109,6 +118,7 @@ export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
       if (res.headersSent) return;
       const status = def.status ?? 200;
       if (status === 204 || result === undefined) res.status(status === 200 ? 204 : status).end();
+      else if (result instanceof JsonText) res.status(status).type('application/json; charset=utf-8').send(result.text);
       else res.status(status).json(result);
     });
   }
