@@ -58,6 +58,10 @@ export function createApp(deps: AppDeps): Express {
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy ? 1 : false);
   app.set('query parser', 'simple');
+  // No ETag on answers sent with res.send/res.json (the API's): every API answer is no-store, so no
+  // client can revalidate it, and hashing each body cost 8–12 µs per request (profiled, bench:api).
+  // Static files and index.html keep theirs (serve-static and sendFile set their own).
+  app.set('etag', false);
   // First of all: when each request arrived in full is when a bid was received (http/arrival.ts).
   app.use(stampArrival());
 

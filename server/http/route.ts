@@ -92,6 +92,24 @@ export function requireRole(access: Access): RequestHandler {
   };
 }
 
+const contextEm = () => RequestContext.getEntityManager() as EntityManager;
+
+/**
+ * A handler's input. `em` and `user` are getters, on the prototype (no closures per request): a
+ * handler that reads neither forks no EntityManager and builds no entity.
+ */
+class Input implements RouteInput<unknown, unknown, unknown> {
+  constructor(readonly params: unknown, readonly query: unknown, readonly body: unknown, readonly req: Request, readonly res: Response) {}
+
+  get user(): User {
+    return (this.req.user ? userEntity(contextEm(), this.req.user) : undefined) as User;
+  }
+
+  get em(): EntityManager {
+    return contextEm();
+  }
+}
+
 /** Mounts every route on `router`: guard → validation → handler. */
 export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
   for (const def of routes) {
@@ -99,21 +117,13 @@ export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
       ? [multer({ storage: multer.memoryStorage(), limits: { fileSize: def.upload.maxBytes, files: 1, fields: 20 } }).single(def.upload.field)]
       : [];
     router[def.method](def.path, requireRole(def.access), ...upload, async (req: Request, res: Response) => {
-      // `em` and `user` are getters: a handler that reads neither forks no EntityManager and builds no entity.
-      const em = () => RequestContext.getEntityManager() as EntityManager;
-      const input: RouteInput<unknown, unknown, unknown> = {
-        params: def.params ? parseOr400(def.params, req.params) : req.params,
-        query: def.query ? parseOr400(def.query, req.query) : {},
-        body: def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
-        get user() {
-          return (req.user ? userEntity(em(), req.user) : undefined) as User;
-        },
-        get em() {
-          return em();
-        },
+      const input = new Input(
+        def.params ? parseOr400(def.params, req.params) : req.params,
+        def.query ? parseOr400(def.query, req.query) : {},
+        def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
         req,
         res,
-      };
+      );
       const result = await def.handler(input);
       if (res.headersSent) return;
       const status = def.status ?? 200;

@@ -114,6 +114,13 @@ test("the security headers computed once at start are helmet's own, name for nam
   }
 });
 
+test('an API answer is no-store and carries no ETag (nothing may keep it, so nothing revalidates it)', async () => {
+  const res = await new Browser(t.app).agent.get('/api/openapi.json');
+  expect(res.status).toBe(200);
+  expect(res.headers['cache-control']).toBe('no-store');
+  expect(res.headers.etag).toBeUndefined();
+});
+
 test('an unknown API path is a 404 problem, never the client app', async () => {
   const res = await new Browser(t.app).agent.get('/api/no-such-thing');
   expect(res.status).toBe(404);
