@@ -103,8 +103,9 @@ function matching(f: TenderListFilter) {
   const param = (v: unknown) => `$${values.push(v)}`;
   const where: string[] = [];
   const vendor = f.vendorOrganisationId ? param(f.vendorOrganisationId) : null;
-  // A vendor's tenders are read through its invitations (one per tender and vendor, unique), by
-  // index: as `exists`, a generic plan scanned every tender and hashed the invitations (--explain).
+  // A vendor's tenders are joined from its invitations (one per tender and vendor, unique). On the
+  // bench data (1,077 tenders) PostgreSQL still hashes them against a scan of all tenders, 0.15 ms
+  // (bench:api --explain); the join leaves it free to go by index when tenders are many more.
   if (vendor) where.push(`i.vendor_organisation_id = ${vendor}`, `t.status <> 'draft' and t.published_at is not null`);
   if (f.ownerId) where.push(`t.created_by_id = ${param(f.ownerId)}`);
   const status = vendor ? vendorStatus(vendor) : CURRENT_STATUS;
