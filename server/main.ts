@@ -15,6 +15,7 @@ import { logger } from './logger';
 import { startMailCatcher, type MailCatcher } from './mail/catcher';
 import { createMailer } from './mail/mailer';
 import { ormConfig } from './mikro-orm.config';
+import { SESSION_POOL_OPTIONS } from './context';
 import { DEMO_PASSWORD, DEMO_SIGN_INS } from '../seeds/demo-people';
 
 export interface Running {
@@ -31,7 +32,7 @@ export async function start(config: Config): Promise<Running> {
     throw new Error(`The database needs ${pending.length} migration(s): run node dist/server/ops/migrate.js (npm start does).`);
   }
   // The session store, the sign-in limits and the tender lists (prepared statements, see services/queries).
-  const sessionPool = new Pool({ connectionString: config.databaseUrl, max: 10 });
+  const sessionPool = new Pool({ connectionString: config.databaseUrl, max: 10, options: SESSION_POOL_OPTIONS });
   const boss = createBoss(config.databaseUrl);
   await boss.start();
   let catcher: MailCatcher | undefined;

@@ -73,7 +73,7 @@ export function createSessionStore(pool: Pool, options: { pruneSessionInterval?:
     override get(sid: string, callback: (err: unknown, session?: session.SessionData | null) => void): void {
       sessionWithPerson<session.SessionData & WithLoaded>(pool, sid).then((row) => {
         if (!row) return callback(null, null);
-        Object.defineProperty(row.sess, LOADED, { value: { expireMs: row.expire.getTime(), user: row.names_person ? row.person : undefined } satisfies Loaded, enumerable: false });
+        Object.defineProperty(row.sess, LOADED, { value: { expireMs: row.expireMs, user: row.namesPerson ? row.person : undefined } satisfies Loaded, enumerable: false });
         callback(null, row.sess);
       }, (err: unknown) => callback(err));
     }

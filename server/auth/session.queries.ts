@@ -1,52 +1,96 @@
 import type { Pool } from 'pg';
 import type { MembershipState } from '../entities/user.entity';
 
-/** The signed-in person's row, read with the session in the same query (null: none, or deactivated). */
+/** The signed-in person's row, read with the session in the same query (times in ms since the epoch). */
 export interface SessionUserRow {
   id: string;
-  created_at: string;
-  updated_at: string;
+  created_at: number;
+  updated_at: number;
   email: string;
   name: string;
   role: string;
   active: boolean;
   membership: MembershipState;
-  last_sign_in_at: string | null;
+  last_sign_in_at: number | null;
   vendor_organisation: {
-    id: string; created_at: string; updated_at: string; name: string; registration_number: string; sme: boolean; contact_email: string;
+    id: string; created_at: number; updated_at: number; name: string; registration_number: string; sme: boolean; contact_email: string;
   } | null;
 }
 
 /** A stored session as `sessionWithPerson` reads it. */
 export interface SessionRow<S> {
   sess: S;
-  expire: Date;
+  /** The stored expiry, in ms since the epoch. */
+  expireMs: number;
   /** The person the session names, if active and approved (null: none such). */
   person: SessionUserRow | null;
   /** Whether the session names a person at all (signed in). */
+  namesPerson: boolean;
+}
+
+/** The statement's row: the person's and organisation's columns side by side (null when none). */
+interface FlatRow<S> {
+  sess: S;
+  expire_ms: number;
   names_person: boolean;
+  id: string | null;
+  email: string;
+  name: string;
+  role: string;
+  active: boolean;
+  membership: MembershipState;
+  created_ms: number;
+  updated_ms: number;
+  last_sign_in_ms: number | null;
+  org_id: string | null;
+  org_name: string;
+  org_registration_number: string;
+  org_sme: boolean;
+  org_contact_email: string;
+  org_created_ms: number;
+  org_updated_ms: number;
 }
 
 /**
  * The session, read with one query that also reads the person it names (only if active and, in a
- * vendor organisation, approved by its contact) and their
- * organisation — the session store read and the user lookup were two round trips on every request
- * (bench:api, phase d). The person is read afresh on every request, so a deactivation, a role
- * change or a password reset that deletes the person's sessions takes effect on the very next one.
+ * vendor organisation, approved by its contact) and their organisation — the session store read
+ * and the user lookup were two round trips on every request (bench:api, phase d). The person is
+ * read afresh on every request, so a deactivation, a role change or a password reset that deletes
+ * the person's sessions takes effect on the very next one.
+ *
+ * Plain columns, times as float8 milliseconds: building the person as jsonb, then parsing it and
+ * its timestamps in the web process, was garbage on every signed-in request (profiled, phase d).
  */
 const SESSION_WITH_PERSON = `
-  select s.sess, s.expire,
-         (select to_jsonb(u) - 'password_hash'
-                 || jsonb_build_object('vendor_organisation', (select to_jsonb(o) from vendor_organisation o where o.id = u.vendor_organisation_id))
-            from app_user u
-           where u.id = case when s.sess #>> '{passport,user}' ~ '^[0-9a-fA-F-]{36}$' then (s.sess #>> '{passport,user}')::uuid end
-             and u.active and u.membership = 'approved') as person,
-         s.sess #>> '{passport,user}' is not null as names_person
+  select s.sess, (extract(epoch from s.expire) * 1000)::float8 as expire_ms,
+         s.sess #>> '{passport,user}' is not null as names_person,
+         u.id, u.email, u.name, u.role, u.active, u.membership,
+         (extract(epoch from u.created_at) * 1000)::float8 as created_ms,
+         (extract(epoch from u.updated_at) * 1000)::float8 as updated_ms,
+         (extract(epoch from u.last_sign_in_at) * 1000)::float8 as last_sign_in_ms,
+         o.id as org_id, o.name as org_name, o.registration_number as org_registration_number, o.sme as org_sme,
+         o.contact_email as org_contact_email,
+         (extract(epoch from o.created_at) * 1000)::float8 as org_created_ms,
+         (extract(epoch from o.updated_at) * 1000)::float8 as org_updated_ms
     from http_session s
+    left join app_user u
+      on u.id = case when s.sess #>> '{passport,user}' ~ '^[0-9a-fA-F-]{36}$' then (s.sess #>> '{passport,user}')::uuid end
+     and u.active and u.membership = 'approved'
+    left join vendor_organisation o on o.id = u.vendor_organisation_id
    where s.sid = $1 and s.expire >= now()`;
 
 /** The unexpired session `sid` with its person; a named statement (planned once per connection), read on every request. */
 export async function sessionWithPerson<S>(pool: Pool, sid: string): Promise<SessionRow<S> | null> {
-  const { rows } = await pool.query<SessionRow<S>>({ name: 'tendara-session-get', text: SESSION_WITH_PERSON, values: [sid] });
-  return rows[0] ?? null;
+  const { rows } = await pool.query<FlatRow<S>>({ name: 'tendara-session-get', text: SESSION_WITH_PERSON, values: [sid] });
+  const r = rows[0];
+  if (!r) return null;
+  const person: SessionUserRow | null = r.id === null ? null : {
+    id: r.id, created_at: r.created_ms, updated_at: r.updated_ms, email: r.email, name: r.name, role: r.role,
+    active: r.active, membership: r.membership, last_sign_in_at: r.last_sign_in_ms,
+    vendor_organisation: r.org_id === null ? null : {
+      id: r.org_id, created_at: r.org_created_ms, updated_at: r.org_updated_ms, name: r.org_name,
+      registration_number: r.org_registration_number, sme: r.org_sme, contact_email: r.org_contact_email,
+    },
+  };
+  return { sess: r.sess, expireMs: r.expire_ms, person, namesPerson: r.names_person };
 }

@@ -2,6 +2,7 @@ import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { DriverException, UniqueConstraintViolationException } from '@mikro-orm/core';
 import { MulterError } from 'multer';
 import { AppError } from './errors';
+import { requestLogger } from './request-log';
 
 const PROBLEM = 'application/problem+json';
 
@@ -52,16 +53,16 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     // A path that is not valid percent-encoding, such as /api/tenders/%.
     problem = new AppError(400, 'Malformed path', 'The request path is not valid URL encoding.', [{ field: '(path)', message: 'The request path is not valid URL encoding.' }]);
   } else if (CLIENT_DATA_ERRORS[sqlState(err) ?? ''] !== undefined) {
-    req.log?.warn({ err }, 'database refused a value the request schemas let through');
+    requestLogger(req).warn({ err }, 'database refused a value the request schemas let through');
     const message = CLIENT_DATA_ERRORS[sqlState(err)!];
     problem = new AppError(400, 'Invalid value', message, [{ field: '(body)', message }]);
   } else if (err instanceof UniqueConstraintViolationException) {
     problem = new AppError(409, 'Conflict', 'This would duplicate something that must be unique.');
   } else {
-    req.log?.error({ err }, 'unhandled error');
+    requestLogger(req).error({ err }, 'unhandled error');
     problem = new AppError(500, 'Internal error', 'Something went wrong on our side. It has been logged; try again later.');
   }
-  if (problem.status >= 500 && err instanceof AppError) req.log?.error({ err }, 'server error');
+  if (problem.status >= 500 && err instanceof AppError) requestLogger(req).error({ err }, 'server error');
   if (res.headersSent) return;
   res.status(problem.status).type(PROBLEM).json({
     type: 'about:blank',

@@ -2,32 +2,39 @@ import { randomUUID } from 'node:crypto';
 import type { IncomingMessage } from 'node:http';
 import type { RequestHandler } from 'express';
 import type { Logger } from 'pino';
+import { logger as rootLogger } from '../logger';
 
 declare module 'http' {
   interface IncomingMessage {
     /** This request's id (the caller's `X-Request-Id`, at most 64 characters, else a new UUID). */
     id?: string;
-    /** A logger whose lines carry this request's id, method and path (made when first asked for). */
-    log?: Logger;
   }
 }
 
 /** What a request's log line says of it: never headers (they carry cookies and tokens), never the query. */
-function describe(req: IncomingMessage, id: string) {
-  return { id, method: req.method, url: (req.url ?? '').split('?')[0] };
+function describe(req: IncomingMessage, url: string) {
+  const q = url.indexOf('?');
+  return { id: req.id, method: req.method, url: q < 0 ? url : url.slice(0, q) };
+}
+
+/** A logger whose lines carry this request's id, method and path (for the error handler; made only when used). */
+export function requestLogger(req: IncomingMessage, logger: Logger = rootLogger): Logger {
+  return logger.child({ req: describe(req, (req as IncomingMessage & { originalUrl?: string }).originalUrl ?? req.url ?? '') });
 }
 
 /**
  * One line per API request when its answer is finished (`request completed`, or `request aborted`
  * when the client went away first): method, path, status and time taken, at `error` for a 5xx and
  * `info` otherwise — a 4xx is the client's business (a 401 on GET /api/session is how the page learns
- * it is signed out). Every request gets an id, answered as `X-Request-Id`; `req.log` gives a logger
- * bound to the request for the error handler.
+ * it is signed out). Every request gets an id, answered as `X-Request-Id`; `requestLogger(req)` gives
+ * a logger bound to the request for the error handler.
  *
  * Written here rather than with pino-http, whose per-request child logger and serializers were most of
  * the logging's cost on every signed-in request (bench:api, phase d, profiled): here a request that
- * logs nothing else costs one `logger.info` call. The line's shape stays pino-http's (`req`, `res`,
- * `responseTime`). The logger writes asynchronously (server/logger.ts), so no answer waits for it.
+ * logs nothing else costs one `logger.info` call and one `close` listener (a response emits `close`
+ * after `finish`, or alone when the client went away first), no per-request property getter or child.
+ * The line's shape stays pino-http's (`req`, `res`, `responseTime`). The logger writes asynchronously
+ * (server/logger.ts), so no answer waits for it.
  */
 export function requestLog(logger: Logger): RequestHandler {
   return (req, res, next) => {
@@ -35,25 +42,15 @@ export function requestLog(logger: Logger): RequestHandler {
     const id = (typeof header === 'string' ? header.slice(0, 64) : '') || randomUUID();
     res.setHeader('X-Request-Id', id);
     req.id = id;
-    let child: Logger | undefined;
-    Object.defineProperty(req, 'log', {
-      configurable: true, enumerable: false,
-      get: () => (child ??= logger.child({ req: describe(req, id) })),
-    });
     if (!req.url.startsWith('/api')) return next();
+    const url = req.url;
     const start = performance.now();
-    const done = (aborted: boolean) => {
-      res.removeListener('finish', finished);
-      res.removeListener('close', closed);
-      const line = { req: describe(req, id), res: { statusCode: res.statusCode }, responseTime: Math.round(performance.now() - start) };
-      if (aborted) logger.warn(line, 'request aborted');
+    res.once('close', () => {
+      const line = { req: describe(req, url), res: { statusCode: res.statusCode }, responseTime: Math.round(performance.now() - start) };
+      if (!res.writableFinished) logger.warn(line, 'request aborted');
       else if (res.statusCode >= 500) logger.error(line, 'request errored');
       else logger.info(line, 'request completed');
-    };
-    const finished = () => done(false);
-    const closed = () => done(!res.writableFinished);
-    res.once('finish', finished);
-    res.once('close', closed);
+    });
     next();
   };
 }

@@ -9,6 +9,15 @@ import { userEntity } from '../auth/session-user';
 import { ForbiddenError, UnauthorizedError } from './errors';
 import { parseOr400 } from './validate';
 
+/**
+ * A JSON answer already written as text (by PostgreSQL, e.g. the tender list): sent as it is, with
+ * the JSON content type, not parsed and serialised again. Its shape is still the route's `response`
+ * schema, which a test of the route must check.
+ */
+export class JsonText {
+  constructor(readonly text: string) {}
+}
+
 /** Who may call a route: anyone, anyone signed in, or the listed roles. */
 export type Access = 'public' | 'signed-in' | readonly Role[];
 
@@ -53,6 +62,12 @@ export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
   response?: z.ZodType;
   /** The success body's content type when it is not JSON (exports). */
   produces?: string;
+  /**
+   * The route changes the session (sign-in, sign-out): it runs through express-session and passport.
+   * Every other route reads the session on the lean path, where `req.session` is frozen
+   * (auth/session-read.ts). Exact paths only.
+   */
+  changesSession?: boolean;
   /** A multipart upload of one file in `field` (kept in memory, at most `maxBytes`). */
   upload?: { field: string; maxBytes: number };
   /** Returns the JSON body (or a promise of it), or writes the response itself and returns undefined. */
@@ -77,6 +92,24 @@ export function requireRole(access: Access): RequestHandler {
   };
 }
 
+const contextEm = () => RequestContext.getEntityManager() as EntityManager;
+
+/**
+ * A handler's input. `em` and `user` are getters, on the prototype (no closures per request): a
+ * handler that reads neither forks no EntityManager and builds no entity.
+ */
+class Input implements RouteInput<unknown, unknown, unknown> {
+  constructor(readonly params: unknown, readonly query: unknown, readonly body: unknown, readonly req: Request, readonly res: Response) {}
+
+  get user(): User {
+    return (this.req.user ? userEntity(contextEm(), this.req.user) : undefined) as User;
+  }
+
+  get em(): EntityManager {
+    return contextEm();
+  }
+}
+
 /** Mounts every route on `router`: guard → validation → handler. */
 export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
   for (const def of routes) {
@@ -84,25 +117,18 @@ export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
       ? [multer({ storage: multer.memoryStorage(), limits: { fileSize: def.upload.maxBytes, files: 1, fields: 20 } }).single(def.upload.field)]
       : [];
     router[def.method](def.path, requireRole(def.access), ...upload, async (req: Request, res: Response) => {
-      // `em` and `user` are getters: a handler that reads neither forks no EntityManager and builds no entity.
-      const em = () => RequestContext.getEntityManager() as EntityManager;
-      const input: RouteInput<unknown, unknown, unknown> = {
-        params: def.params ? parseOr400(def.params, req.params) : req.params,
-        query: def.query ? parseOr400(def.query, req.query) : {},
-        body: def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
-        get user() {
-          return (req.user ? userEntity(em(), req.user) : undefined) as User;
-        },
-        get em() {
-          return em();
-        },
+      const input = new Input(
+        def.params ? parseOr400(def.params, req.params) : req.params,
+        def.query ? parseOr400(def.query, req.query) : {},
+        def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
         req,
         res,
-      };
+      );
       const result = await def.handler(input);
       if (res.headersSent) return;
       const status = def.status ?? 200;
       if (status === 204 || result === undefined) res.status(status === 200 ? 204 : status).end();
+      else if (result instanceof JsonText) res.status(status).type('application/json; charset=utf-8').send(result.text);
       else res.status(status).json(result);
     });
   }

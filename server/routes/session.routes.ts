@@ -54,7 +54,7 @@ export function sessionRoutes(auth: passport.PassportStatic): AnyRoute[] {
       },
     }),
     route({
-      method: 'post', path: '/session', tag: 'Session', access: 'public', body: signInSchema,
+      method: 'post', path: '/session', tag: 'Session', access: 'public', body: signInSchema, changesSession: true,
       summary: 'Sign in with e-mail and password (needs the X-XSRF-TOKEN header; answers with a new XSRF-TOKEN cookie, and the old token stops working). The same 401 for any bad pair; 429 after repeated failures.',
       responses: { 200: '{ user }', 401: 'E-mail or password is not correct', 429: 'Too many failed attempts' },
       handler: async ({ req, res, em }) => {
@@ -65,7 +65,7 @@ export function sessionRoutes(auth: passport.PassportStatic): AnyRoute[] {
       },
     }),
     route({
-      method: 'delete', path: '/session', tag: 'Session', access: 'public', status: 204,
+      method: 'delete', path: '/session', tag: 'Session', access: 'public', status: 204, changesSession: true,
       summary: 'Sign out (ends the session).',
       handler: ({ req, res }) =>
         new Promise<void>((resolve, reject) => {

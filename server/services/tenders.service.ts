@@ -3,14 +3,15 @@ import type PgBoss from 'pg-boss';
 import type { Pool } from 'pg';
 import { describeAwardBasis } from '@shared/award-basis';
 import type { RegionInput } from '@shared/bids';
-import type { InvitationInput, TenderInput, TenderListQuery, TenderPage, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
+import type { InvitationInput, TenderInput, TenderListQuery, TenderStatus, TenderSummary, TenderView } from '@shared/tenders';
 import { Amendment, Bid, Invitation, Notice, Region, Tender, User, VendorOrganisation } from '../entities';
 import { ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from './people.service';
 import { audit } from './audit.service';
-import { AFTER_AWARD, tenderListRows } from './queries/tenders.queries';
+import { AFTER_AWARD, tenderListJson } from './queries/tenders.queries';
+import { JsonText } from '../http/route';
 import { CLOSING_GRACE_MS, closeIfDue, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
 import type { Principal } from '../auth/session-user';
 import { LIVE_BID_STATUSES, statusesBefore } from '@shared/tenders';
@@ -42,22 +43,18 @@ export function regionInputs(tender: Tender): RegionInput[] {
   return tender.regions.getItems().map((r) => ({ code: r.code, name: r.name, forecast: r.forecast }));
 }
 
-export async function listTenders(pool: Pool, user: Principal, query: TenderListQuery): Promise<TenderPage> {
+/** One page of the tender list as the JSON of `TenderPage`, written by PostgreSQL (queries/tenders.queries.ts). */
+export async function listTenders(pool: Pool, user: Principal, query: TenderListQuery): Promise<JsonText> {
   // No write here: closing (and its audit entry) is the close job's and the bid save's. Until the
   // job has run, a tender past its closing time is listed as closed all the same (CURRENT_STATUS).
-  // One prepared statement, a page at a time, counts and totals by PostgreSQL (queries/tenders.queries.ts).
+  // One prepared statement, a page at a time, counts and totals by PostgreSQL.
   const vendor = user.role === 'vendor' ? user.vendorOrganisation!.id : null;
-  const { rows, total } = await tenderListRows(pool, {
+  const { items, total } = await tenderListJson(pool, {
     vendorOrganisationId: vendor, ownerId: tenderOwnerScope(user), status: query.status, q: query.q,
     page: query.page, size: query.size, sort: query.sort, dir: query.dir ?? (query.sort === 'closesAt' ? 'desc' : 'asc'),
   });
-  const items = rows.map((t): TenderSummary => ({
-    id: t.id, reference: t.reference, title: t.title, commodity: t.commodity, unit: t.unit, currency: t.currency,
-    status: t.status, closesAt: new Date(t.closes_at).toISOString(), timeZone: t.time_zone,
-    regionCount: t.region_count, totalForecast: Number(t.total_forecast),
-    ...(vendor ? { myBidStatus: t.my_bid_status } : {}),
-  }));
-  return { items, total, page: query.page, size: query.size };
+  // The keys and order of TenderPage; the numbers are integers (validated query, count).
+  return new JsonText(`{"items":${items},"total":${total},"page":${query.page},"size":${query.size}}`);
 }
 
 export async function tenderView(em: EntityManager, user: User, id: string): Promise<TenderView> {

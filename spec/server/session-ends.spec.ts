@@ -1,6 +1,7 @@
+import { createHmac } from 'node:crypto';
 import { SESSION_COOKIE } from '../../server/context';
 import { TOUCH_EVERY_MS } from '../../server/auth/session-store';
-import { Browser, makeUser, signedIn, startTestApp, type TestApp } from '../support/app';
+import { Browser, makeUser, signedIn, startTestApp, TEST_PASSWORD, type TestApp } from '../support/app';
 
 /**
  * A signed-in request reads its session and its person in one query and writes the session back
@@ -116,4 +117,39 @@ test('a signed-in request writes the session back at most once a minute, and mov
   // The same session as before: the cookie it names still works on its own.
   const again = await new Browser(t.app).agent.get('/api/session').set('Cookie', slid!.split(';')[0]);
   expect(again.body.user?.id).toBe(user.id);
+});
+
+/** A session cookie for `sid` signed with `secret` as express-session signs it (HMAC-SHA-256, base64 without padding). */
+const signedCookie = (sid: string, secret: string) => `${SESSION_COOKIE}=${encodeURIComponent(`s:${sid}.${createHmac('sha256', secret).update(sid).digest('base64').replace(/=+$/, '')}`)}`;
+
+test('a forged or tampered session cookie is 401: another secret, a changed signature or id, no signature', async () => {
+  const user = await makeUser(t, 'buyer');
+  await signedIn(t, user);
+  const [{ sid }] = await sessionsOf(user.id);
+  const status = async (cookie: string) => (await new Browser(t.app).agent.get('/api/session').set('Cookie', cookie)).status;
+  // The cookie made here with the server's secret is accepted: the refusals below are of the forgeries alone.
+  expect(await status(signedCookie(sid, t.config.sessionSecret!))).toBe(200);
+  expect(await status(signedCookie(sid, `${t.config.sessionSecret!}x`))).toBe(401);
+  const good = decodeURIComponent(signedCookie(sid, t.config.sessionSecret!).split('=').slice(1).join('='));
+  const flipped = good.slice(0, -1) + (good.endsWith('A') ? 'B' : 'A');
+  expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(flipped)}`)).toBe(401);
+  const otherSid = `${sid.slice(0, -1)}${sid.endsWith('a') ? 'b' : 'a'}`;
+  expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(`s:${otherSid}${good.slice(2 + sid.length)}`)}`)).toBe(401);
+  expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(sid)}`)).toBe(401);
+  expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(`s:${sid}`)}`)).toBe(401);
+});
+
+test('on the read path the session is read-only; sign-in and sign-out, also by a loosely matched path, still write it', async () => {
+  const user = await makeUser(t, 'vendor');
+  const b = await new Browser(t.app).init();
+  // Express matches /api/Session/ to the sign-in route: it must go through express-session too.
+  const signIn = await b.agent.post('/api/Session/').set('X-XSRF-TOKEN', b.token).send({ email: user.email, password: TEST_PASSWORD });
+  expect(signIn.status).toBe(200);
+  expect(await sessionsOf(user.id)).toHaveLength(1);
+  expect((await b.get('/api/session')).body.user.id).toBe(user.id);
+  // Sign-in answered with a fresh XSRF token, bound to the new session.
+  const token = ([] as string[]).concat((signIn.headers['set-cookie'] as unknown as string[] | undefined) ?? []).find((c) => c.startsWith('XSRF-TOKEN='))!.split(';')[0].split('=')[1];
+  expect((await b.agent.delete('/api/session/').set('X-XSRF-TOKEN', token)).status).toBe(204);
+  expect(await sessionsOf(user.id)).toHaveLength(0);
+  expect((await b.get('/api/session')).status).toBe(401);
 });

@@ -1,4 +1,8 @@
+import express from 'express';
+import helmet from 'helmet';
+import request from 'supertest';
 import { SESSION_COOKIE } from '../../server/context';
+import { helmetOptions } from '../../server/http/security-headers';
 import { Browser, makeUser, startTestApp, TEST_PASSWORD, type TestApp } from '../support/app';
 
 let t: TestApp;
@@ -84,6 +88,37 @@ test('security headers are set (helmet): CSP, nosniff, frame options', async () 
   expect(res.headers['x-content-type-options']).toBe('nosniff');
   expect(res.headers['x-frame-options']).toBe('SAMEORIGIN');
   expect(res.headers['x-powered-by']).toBeUndefined();
+});
+
+test("the security headers computed once at start are helmet's own, name for name and value for value, with and without a TLS proxy", async () => {
+  const HELMET_HEADERS = [
+    'content-security-policy', 'cross-origin-opener-policy', 'cross-origin-resource-policy', 'origin-agent-cluster', 'referrer-policy',
+    'strict-transport-security', 'x-content-type-options', 'x-dns-prefetch-control', 'x-download-options', 'x-frame-options',
+    'x-permitted-cross-domain-policies', 'x-xss-protection', 'x-powered-by',
+  ];
+  const pick = (headers: Record<string, unknown>) => Object.fromEntries(HELMET_HEADERS.filter((h) => headers[h] !== undefined).map((h) => [h, headers[h]]));
+  for (const trustProxy of [false, true]) {
+    const proxied = trustProxy ? await startTestApp({ workers: false, env: { TRUST_PROXY: '1' } }) : t;
+    try {
+      const bare = express();
+      bare.use(helmet(helmetOptions(trustProxy)));
+      bare.get('/api/session', (_req, res) => res.send('ok'));
+      const expected = pick((await request(bare).get('/api/session')).headers);
+      const actual = pick((await new Browser(proxied.app).agent.get('/api/session')).headers);
+      // helmet sets eleven headers here (twelve with HSTS behind a TLS proxy).
+      expect(Object.keys(expected)).toHaveLength(trustProxy ? 12 : 11);
+      expect(actual).toEqual(expected);
+    } finally {
+      if (proxied !== t) await proxied.close();
+    }
+  }
+});
+
+test('an API answer is no-store and carries no ETag (nothing may keep it, so nothing revalidates it)', async () => {
+  const res = await new Browser(t.app).agent.get('/api/openapi.json');
+  expect(res.status).toBe(200);
+  expect(res.headers['cache-control']).toBe('no-store');
+  expect(res.headers.etag).toBeUndefined();
 });
 
 test('an unknown API path is a 404 problem, never the client app', async () => {

@@ -1,3 +1,5 @@
+import { z } from 'zod';
+import { tenderPageSchema, tenderSummarySchema } from '@shared/tenders';
 import { AuditEntry, MailMessage, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
@@ -145,6 +147,36 @@ test("a vendor's list comes a page at a time with the count of its invitations o
   expect((await vendor.get('/api/tenders').query({ size: 2, page: 9 })).body).toEqual({ items: [], total: 3, page: 9, size: 2 });
   const searched = await vendor.get('/api/tenders').query({ q: early, size: 1 });
   expect(searched.body).toMatchObject({ total: 1, items: [{ reference: early }] });
+});
+
+test("the list's JSON, written by PostgreSQL, is exactly the declared page schema and says of each tender what the tender's own view says", async () => {
+  // A buyer and a vendor of their own: two tenders, one with a bid saved by the vendor.
+  const own = await signedIn(t, await makeUser(t, 'buyer'));
+  const u = await makeUser(t, 'vendor');
+  const vendor = await signedIn(t, u);
+  const ids: string[] = [];
+  for (const [k, minutes] of [200, 100].entries()) {
+    const body = tenderBody(2 + k, minutes, { closesAt: new Date(Date.now() + minutes * 60_000 + 123).toISOString() });
+    ids.push(await openTender(own, [u.vendorOrganisation!.id], body));
+  }
+  expect((await vendor.send('put', `/api/tenders/${ids[0]}/bid`, { fixedFee: 100, capacity: null, prices: { R01: 10, R02: 11 }, submit: false, version: null })).status).toBe(200);
+  // Strict: no key beyond the schema's, none missing, every value of its declared type.
+  const strictPage = tenderPageSchema.extend({ items: z.array(tenderSummarySchema.strict()) }).strict();
+  for (const [who, withBid] of [[own, false], [vendor, true]] as const) {
+    const res = await who.get('/api/tenders');
+    expect(res.type).toBe('application/json');
+    const page = strictPage.parse(res.body);
+    expect(page).toMatchObject({ total: 2, page: 1, size: 25 });
+    expect(page.items.map((x) => x.id)).toEqual(ids);
+    for (const item of page.items) {
+      const view = (await who.get(`/api/tenders/${item.id}`)).body;
+      const summary = Object.fromEntries(Object.keys(tenderSummarySchema.shape).filter((k) => k in view || k in item).map((k) => [k, view[k]]));
+      expect(item).toEqual(withBid ? summary : { ...summary, myBidStatus: undefined });
+    }
+    expect(page.items[0].closesAt).toMatch(/\.\d{3}Z$/);
+    if (withBid) expect(page.items.map((x) => x.myBidStatus)).toEqual(['draft', null]);
+    else expect(page.items.every((x) => !('myBidStatus' in x))).toBe(true);
+  }
 });
 
 test('a page, page size, order or direction out of range is refused naming the parameter', async () => {

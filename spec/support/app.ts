@@ -6,7 +6,7 @@ import type PgBoss from 'pg-boss';
 import request from 'supertest';
 import type { Role } from '@shared/roles';
 import { createApp } from '../../server/app';
-import type { AppDeps } from '../../server/context';
+import { SESSION_POOL_OPTIONS, type AppDeps } from '../../server/context';
 import { loadConfig, type Config } from '../../server/config';
 import { MailMessage, User, VendorOrganisation } from '../../server/entities';
 import { createBoss, startMailWorker, startTenderCloseWorker } from '../../server/jobs/queue';
@@ -59,7 +59,7 @@ export async function startTestApp(options: { workers?: boolean; solver?: boolea
     if (options.solver !== false) await startSolveWorker(boss, orm);
     await startNoticeWorker(boss, orm, mailer);
   }
-  const sessionPool = new Pool({ connectionString: databaseUrl, max: 3 });
+  const sessionPool = new Pool({ connectionString: databaseUrl, max: 3, options: SESSION_POOL_OPTIONS });
   const deps: AppDeps = { config, orm, boss, sessionPool };
   const app = createApp(deps);
   return {

@@ -1,0 +1,117 @@
+import { createHmac, timingSafeEqual } from 'node:crypto';
+import type { Request, RequestHandler } from 'express';
+import type session from 'express-session';
+import type { Pool } from 'pg';
+import { TOUCH_EVERY_MS } from './session-store';
+import { sessionWithPerson } from './session.queries';
+import { SessionPerson } from './session-user';
+
+/** What the read path takes from a stored session (express-session's JSON in `http_session.sess`). */
+interface StoredSession {
+  cookie?: { originalMaxAge?: number | null };
+  xsrf?: string;
+}
+
+/**
+ * The session cookie's value as express-session writes it: `s:` then the session id signed as its
+ * `cookie-signature` dependency does (`sid.` + HMAC-SHA-256 of the sid in base64 without padding).
+ * The id, or undefined for a cookie that is not ours, forged or tampered with. Compared in constant
+ * time, like `cookie-signature`'s `unsign`.
+ */
+export function unsignSessionCookie(value: string, secret: string): string | undefined {
+  if (!value.startsWith('s:')) return undefined;
+  const signed = value.slice(2);
+  const dot = signed.lastIndexOf('.');
+  if (dot < 1) return undefined;
+  const sid = signed.slice(0, dot);
+  const expected = Buffer.from(createHmac('sha256', secret).update(sid).digest('base64').replace(/=+$/, ''));
+  const given = Buffer.from(signed.slice(dot + 1));
+  return expected.length === given.length && timingSafeEqual(expected, given) ? sid : undefined;
+}
+
+/** A request of a route that changes the session (sign-in, sign-out): `changesSession` on its `route()`. */
+export type ChangesSession = (req: Request) => boolean;
+
+/** Method and path below /api of every route that changes the session; exact paths only. */
+export function changesSession(routes: readonly { method: string; path: string; changesSession?: boolean }[]): ChangesSession {
+  const keys = new Set<string>();
+  const methods = new Set<string>();
+  for (const r of routes.filter((x) => x.changesSession)) {
+    if (r.path.includes(':') || r.path.includes('*')) throw new Error(`A route that changes the session needs an exact path: ${r.path}`);
+    keys.add(`${r.method.toUpperCase()} ${normalise(r.path)}`);
+    methods.add(r.method.toUpperCase());
+  }
+  return (req) => {
+    if (!methods.has(req.method)) return false;
+    const q = req.url.indexOf('?');
+    return keys.has(`${req.method} ${normalise(q < 0 ? req.url : req.url.slice(0, q))}`);
+  };
+}
+
+/** As Express routes match by default: case-insensitive, a trailing slash ignored. */
+function normalise(path: string): string {
+  return path.toLowerCase().replace(/\/+$/, '');
+}
+
+export interface SessionReadOptions {
+  /** The session cookie's name (read from `req.cookies`, so mount after cookie-parser). */
+  name: string;
+  secret: string;
+  pool: Pool;
+  changes: ChangesSession;
+  /** express-session, the cookie slide and passport, in that order: what writes a session. */
+  writer: RequestHandler;
+}
+
+/**
+ * The session on the read path, without express-session and passport: cookie → signature → one
+ * named statement (the session and its person, session.queries.ts) → `req.user` (a SessionPerson),
+ * `req.sessionID` and a frozen `req.session` holding what the read path uses (the XSRF token bound at
+ * sign-in, `xsrfSessionBinding`). A route that tried to change it would fail loudly (frozen, no
+ * `regenerate`/`destroy`/`save`) rather than lose the change: such a route says `changesSession`.
+ *
+ * `writer` (express-session with its store, `slideSessionCookie`, passport) still runs for:
+ * - the routes that change the session (sign-in regenerates, sign-out destroys);
+ * - a session whose expiry is due to slide (a minute or more behind, `TOUCH_EVERY_MS`): it moves the
+ *   stored expiry and sends the cookie again, as before, at most once a minute per session;
+ * - a session that names a person no longer active or approved, or none: passport drops the person
+ *   from it and express-session saves that, as before.
+ * Everything else on that path is what express-session would do too: no cookie, a cookie not signed
+ * with our secret, or no unexpired session by that id → signed out, nothing stored, no cookie set.
+ *
+ * Why not express-session on every request (the project prefers well-kept packages): profiled on
+ * bench:api phase d (GET /api/session signed in, `--cpu-prof`), express-session with its cookie
+ * parsing, signature, session object, hashing for change detection and `res.end` wrapper cost
+ * 225 µs of 858 µs of server CPU per request, and passport's `initialize` and session strategy 45 µs
+ * more; this path costs what is left of it (see DEVELOPERS.md, "A signed-in request's own cost").
+ */
+export function sessionRead(options: SessionReadOptions): RequestHandler {
+  const { name, secret, pool, changes, writer } = options;
+  return (req, res, next) => {
+    if (changes(req)) {
+      writer(req, res, next);
+      return;
+    }
+    const value = (req.cookies as Record<string, unknown> | undefined)?.[name];
+    const sid = typeof value === 'string' ? unsignSessionCookie(value, secret) : undefined;
+    if (sid === undefined) {
+      next();
+      return;
+    }
+    sessionWithPerson<StoredSession>(pool, sid).then((row) => {
+      if (!row) {
+        next();
+        return;
+      }
+      const maxAge = row.sess.cookie?.originalMaxAge;
+      if (!row.person || typeof maxAge !== 'number' || Date.now() + maxAge - row.expireMs >= TOUCH_EVERY_MS) {
+        writer(req, res, next);
+        return;
+      }
+      req.sessionID = sid;
+      req.session = Object.freeze({ id: sid, xsrf: row.sess.xsrf }) as unknown as session.Session & Partial<session.SessionData>;
+      req.user = new SessionPerson(row.person);
+      next();
+    }, next);
+  };
+}
