@@ -1,13 +1,13 @@
 import loadHighs from 'highs';
-import type { AwardProblem } from '../../shared/award';
 import { buildModel } from '../../server/award/build-model';
 import { toInstance, validateProblem } from '../../server/award/instance';
 import { satisfiesRows } from '../../server/award/kernel';
-import { awardOf, improve, knapsack, lagrangianFixing, relaxed, repair, soleData, subgradient, type SoleData } from '../../server/award/lagrangian';
+import { awardOf, improve, knapsack, lagrangianFixing, relaxed, repair, soleData, subgradient } from '../../server/award/lagrangian';
 import { createHighsModel } from '../../server/award/workers/highs-model';
 import { readInstance, readOptima, REFERENCE_DIR, referenceAvailable } from '../../server/bench/reference';
-import { baseProblem, largeSoleProblem } from './support/problems';
+import { baseProblem } from './support/problems';
 import { referenceLp } from './support/reference-lp';
+import { dataOf, owners, tightSoleProblem, withinCapacities } from './support/sole';
 
 // The Lagrangian bound for sole award (server/award/lagrangian.ts) is a lower bound: never above
 // an optimum proven by HiGHS from npm on the independently written model (support/reference-lp.ts)
@@ -16,20 +16,6 @@ jest.setTimeout(300_000);
 
 let highs: Awaited<ReturnType<typeof loadHighs>>;
 beforeAll(async () => { highs = await loadHighs(); });
-
-/** largeSoleProblem with tight capacities (1.2–1.5 × an even share of the forecast): where the LP is weak. */
-function tightSoleProblem(vendors: number, regions: number, seed: number): AwardProblem {
-  const base = largeSoleProblem(vendors, regions, seed);
-  const total = base.regions.reduce((s, r) => s + r.demand, 0);
-  return { ...base, vendors: base.vendors.map((v, i) => ({ ...v, capacity: Math.ceil((total / vendors) * (1.2 + 0.1 * (i % 4))) })) };
-}
-
-function dataOf(problem: AwardProblem): { data: SoleData; model: ReturnType<typeof buildModel>['model'] } {
-  const { model, map } = buildModel(toInstance(validateProblem(problem)));
-  const data = soleData(model, map);
-  expect(data).not.toBeNull();
-  return { data: data!, model };
-}
 
 /** The LP relaxation of the engine's model by HiGHS: its value and the assignment rows' duals. */
 function lpRelaxation(model: ReturnType<typeof buildModel>['model'], n: number): { value: number; duals: Float64Array } {
@@ -123,23 +109,6 @@ function solveExactly(model: ReturnType<typeof buildModel>['model']): { objectiv
   } finally {
     mip.dispose();
   }
-}
-
-/** Vendor of each region in a sole award's column vector. */
-function owners(data: SoleData, x: ArrayLike<number>): Int32Array {
-  const owner = new Int32Array(data.n).fill(-1);
-  for (let i = 0; i < data.m; i++) for (let j = 0; j < data.n; j++) if (data.supply[i][j] >= 0 && x[data.supply[i][j]] > 0.5) owner[j] = i;
-  return owner;
-}
-
-/** True when every vendor's regions fit its effective capacity and every region goes to a vendor that bid it. */
-function withinCapacities(data: SoleData, owner: Int32Array): boolean {
-  const load = new Float64Array(data.m);
-  for (let j = 0; j < data.n; j++) {
-    if (owner[j] < 0 || !(data.cost[owner[j] * data.n + j] < Infinity)) return false;
-    load[owner[j]] += data.demand[j];
-  }
-  return load.every((l, i) => l <= data.cap[i] + 1e-9);
 }
 
 describe('local search of the Lagrangian heuristic (shift, swap, close a vendor, open a vendor)', () => {

@@ -1,13 +1,10 @@
 import loadHighs from 'highs';
-import type { AwardProblem } from '../../shared/award';
-import { buildModel } from '../../server/award/build-model';
-import { toInstance, validateProblem } from '../../server/award/instance';
 import { randomSource, satisfiesRows } from '../../server/award/kernel';
-import { awardOf, improve, relaxed, soleData, subgradient, type SoleData } from '../../server/award/lagrangian';
+import { awardOf, improve, relaxed, subgradient, type SoleData } from '../../server/award/lagrangian';
 import { searchOpenSets, totalOf } from '../../server/award/open-set-search';
 import { readInstance, readOptima, REFERENCE_DIR, referenceAvailable } from '../../server/bench/reference';
-import { largeSoleProblem } from './support/problems';
 import { referenceLp } from './support/reference-lp';
+import { dataOf, owners, tightSoleProblem, withinCapacities } from './support/sole';
 
 // The search over the vendors that serve (server/award/open-set-search.ts) and the shift chains of
 // the local search (lagrangian.ts, improve) find awards, never proofs: each check compares with
@@ -17,35 +14,6 @@ jest.setTimeout(300_000);
 
 let highs: Awaited<ReturnType<typeof loadHighs>>;
 beforeAll(async () => { highs = await loadHighs(); });
-
-/** largeSoleProblem with tight capacities (1.2–1.5 × an even share of the forecast). */
-function tightSoleProblem(vendors: number, regions: number, seed: number): AwardProblem {
-  const base = largeSoleProblem(vendors, regions, seed);
-  const total = base.regions.reduce((s, r) => s + r.demand, 0);
-  return { ...base, vendors: base.vendors.map((v, i) => ({ ...v, capacity: Math.ceil((total / vendors) * (1.2 + 0.1 * (i % 4))) })) };
-}
-
-function dataOf(problem: AwardProblem): { data: SoleData; model: ReturnType<typeof buildModel>['model'] } {
-  const { model, map } = buildModel(toInstance(validateProblem(problem)));
-  const data = soleData(model, map);
-  expect(data).not.toBeNull();
-  return { data: data!, model };
-}
-
-function ownersOf(data: SoleData, x: ArrayLike<number>): Int32Array {
-  const owner = new Int32Array(data.n).fill(-1);
-  for (let i = 0; i < data.m; i++) for (let j = 0; j < data.n; j++) if (data.supply[i][j] >= 0 && x[data.supply[i][j]] > 0.5) owner[j] = i;
-  return owner;
-}
-
-function withinCapacities(data: SoleData, owner: Int32Array): boolean {
-  const load = new Float64Array(data.m);
-  for (let j = 0; j < data.n; j++) {
-    if (owner[j] < 0 || !(data.cost[owner[j] * data.n + j] < Infinity)) return false;
-    load[owner[j]] += data.demand[j];
-  }
-  return load.every((l, i) => l <= data.cap[i] + 1e-9);
-}
 
 describe('shift chains in the local search', () => {
   test('hand-worked: Eastmoor to Brook (full) once Brook\'s Fenwick moves on to Cliff: 160 → 120, which no single shift or swap reaches', () => {
@@ -76,7 +44,7 @@ describe('search over the vendors that serve, on seeded random sole tenders, aga
     const { data, model } = dataOf(problem);
     const lagrangian = subgradient(data, { upper: Infinity, iterations: 100, lpFirst: true });
     expect(lagrangian.best).not.toBeNull();
-    const start = ownersOf(data, lagrangian.best!.x);
+    const start = owners(data, lagrangian.best!.x);
     const r = searchOpenSets(data, start, { worth: relaxed(data, lagrangian.multipliers).worth, random: randomSource(seed), rounds: 300 });
     expect(r.rounds).toBe(300);
     expect(withinCapacities(data, r.owner)).toBe(true);
@@ -111,7 +79,7 @@ if (!available) {
       expect(entry.soleOptimum).toBe(30181);
       const { data } = dataOf(readInstance(entry, 'sole'));
       const lagrangian = subgradient(data, { upper: Infinity, iterations: 200, lpFirst: true });
-      const r = searchOpenSets(data, ownersOf(data, lagrangian.best!.x), { worth: relaxed(data, lagrangian.multipliers).worth, random: randomSource(1), rounds: 1500 });
+      const r = searchOpenSets(data, owners(data, lagrangian.best!.x), { worth: relaxed(data, lagrangian.multipliers).worth, random: randomSource(1), rounds: 1500 });
       expect(withinCapacities(data, r.owner)).toBe(true);
       expect(r.total).toBeGreaterThanOrEqual(30181 - 0.01);
       expect(r.total).toBeLessThanOrEqual(30181 * 1.01);

@@ -316,6 +316,16 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     let lastGain = performance.now();
     let stalled = false;
     let stalledRounds = 0;
+    /** A cheaper award than any run had: fix again with it, and back to the gaining priority. */
+    const gaining = () => {
+      refix();
+      idleRounds = 0;
+      lastGain = performance.now();
+      if (stalled) {
+        stalled = false;
+        setThreadPriority(GAINING_STEPS);
+      }
+    };
     for (;;) {
       const remaining = (deadline - Date.now()) / 1000;
       if (remaining < 0.2 || stats.rounds >= maxRounds) break;
@@ -356,15 +366,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
           mine = true;
           stats.improvements++;
           // A gain only when no other run had found as cheap an award: keeping up is none.
-          if (publishAward(board, objective, x)) {
-            refix();
-            idleRounds = 0;
-            lastGain = performance.now();
-            if (stalled) {
-              stalled = false;
-              setThreadPriority(GAINING_STEPS);
-            }
-          }
+          if (publishAward(board, objective, x)) gaining();
         }
       }
       const [low, high] = limits[kind];
@@ -376,15 +378,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
       let spent = took;
       if (sole && remaining > 0.4) {
         const t1 = performance.now();
-        if (openSetSearch(Math.min(deadline - 200, Date.now() + took * 1000))) {
-          refix();
-          idleRounds = 0;
-          lastGain = performance.now();
-          if (stalled) {
-            stalled = false;
-            setThreadPriority(GAINING_STEPS);
-          }
-        }
+        if (openSetSearch(Math.min(deadline - 200, Date.now() + took * 1000))) gaining();
         spent += (performance.now() - t1) / 1000;
       }
       if (stalled) rest(spent * Math.min(MAX_REST_RATIO, 1 + stalledRounds++ / REST_GROWTH_ROUNDS), deadline);
