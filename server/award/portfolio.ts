@@ -12,7 +12,8 @@ import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome,
  *  - HiGHS A on the model as built, started at the same moment: nothing waits in front of it, so
  *    on problems HiGHS proves in well under a second the engine is as fast as HiGHS alone;
  *  - on sole award models of some size, instead of glpk.js, the Lagrangian bound and heuristic
- *    (lagrangian.ts) first in the neighbourhood-search thread, then local search on the best
+ *    (lagrangian.ts) first in the neighbourhood-search thread, then the search over the vendors
+ *    that serve (open-set-search.ts) from the best
  *    award, reduced-cost fixing and a kernel search: its bound closes the search once an award
  *    meets it;
  *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
