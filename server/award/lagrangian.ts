@@ -310,21 +310,23 @@ export function repair(data: SoleData, relaxedSolution: RelaxedSolution): { x: F
 
 /** The award that gives region j to vendor owner[j]: its column vector and total (fees of the vendors that serve, and the required ones). */
 export function awardOf(data: SoleData, owner: Int32Array): { x: Float64Array; objective: number; owner: Int32Array } {
-  const { m, n, cost, fee } = data;
-  const serves = new Uint8Array(m);
-  for (let j = 0; j < n; j++) serves[owner[j]] = 1;
   const x = new Float64Array(data.numCols);
-  let objective = 0;
-  for (let i = 0; i < m; i++) {
-    if (!(serves[i] || data.required[i]) || data.open[i] < 0) continue;
-    x[data.open[i]] = 1;
-    objective += fee[i];
-  }
-  for (let j = 0; j < n; j++) {
+  for (let j = 0; j < data.n; j++) {
     x[data.supply[owner[j]][j]] = 1;
-    objective += cost[owner[j] * n + j];
+    if (data.open[owner[j]] >= 0) x[data.open[owner[j]]] = 1;
   }
-  return { x, objective, owner };
+  for (let i = 0; i < data.m; i++) if (data.required[i] && data.open[i] >= 0) x[data.open[i]] = 1;
+  return { x, objective: totalOf(data, owner), owner };
+}
+
+/** The total of the award that gives region j to owner[j]: the fees of the vendors that serve (and of the required ones), plus the prices. */
+export function totalOf(data: SoleData, owner: Int32Array): number {
+  const { m, n, cost, fee, required, open } = data;
+  const serves = new Uint8Array(m);
+  let total = 0;
+  for (let j = 0; j < n; j++) { serves[owner[j]] = 1; total += cost[owner[j] * n + j]; }
+  for (let i = 0; i < m; i++) if ((serves[i] || required[i]) && open[i] >= 0) total += fee[i];
+  return total;
 }
 
 // Passes of the local search over all moves; each pass that gains nothing ends it sooner.

@@ -1,4 +1,4 @@
-import { improve, type SoleData } from './lagrangian';
+import { improve, totalOf, type SoleData } from './lagrangian';
 
 /**
  * Iterated local search over which vendors serve, for the sole award model (MODEL.md, "Searching
@@ -33,16 +33,6 @@ const THRESHOLD = 0.002;
 // Back to the best award after this many rounds without a new best.
 const RESTART_ROUNDS = 40;
 const STRENGTH = 2;
-
-/** The total of the award that gives region j to owner[j]: fees of the vendors that serve (and the required ones), plus prices. */
-export function totalOf(data: SoleData, owner: Int32Array): number {
-  const { m, n, cost, fee, required } = data;
-  const serves = new Uint8Array(m);
-  let total = 0;
-  for (let j = 0; j < n; j++) { serves[owner[j]] = 1; total += cost[owner[j] * n + j]; }
-  for (let i = 0; i < m; i++) if (serves[i] || required[i]) total += fee[i];
-  return total;
-}
 
 /** One forced change of the vendors that serve, in place; false when it cannot be made within the capacities. */
 function perturb(data: SoleData, owner: Int32Array, worthOrder: number[] | null, random: () => number): boolean {
