@@ -1,3 +1,4 @@
+import { I18nPluralPipe } from '@angular/common';
 import { ChangeDetectionStrategy, Component, computed, input } from '@angular/core';
 import { MatTableModule } from '@angular/material/table';
 import type { RegionView } from '@shared/tenders';
@@ -8,7 +9,7 @@ import { ScrollFrame } from '../../ui/scroll-frame';
 @Component({
   selector: 'app-region-table',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [ScrollFrame, MatTableModule],
+  imports: [I18nPluralPipe, ScrollFrame, MatTableModule],
   template: `
     <div class="table-card">
       <div class="table-scroll" [appScrollFrame]="label()">
@@ -21,7 +22,7 @@ import { ScrollFrame } from '../../ui/scroll-frame';
           <ng-container matColumnDef="name">
             <th mat-header-cell *matHeaderCellDef>Region</th>
             <td mat-cell *matCellDef="let r">{{ r.name }}</td>
-            <th mat-footer-cell *matFooterCellDef scope="row">Total ({{ regions().length }} regions)</th>
+            <th mat-footer-cell *matFooterCellDef scope="row">Total ({{ regions().length | i18nPlural: regionCount }})</th>
           </ng-container>
           <ng-container matColumnDef="forecast">
             <th mat-header-cell *matHeaderCellDef class="num">Forecast ({{ unit() }})</th>
@@ -42,6 +43,7 @@ export class RegionTable {
   readonly unit = input.required<string>();
   readonly label = input('Regions');
   protected readonly columns = ['code', 'name', 'forecast'];
+  protected readonly regionCount = { '=1': '1 region', other: '# regions' };
   protected readonly quantity = quantity;
   protected readonly total = computed(() => quantity(this.regions().reduce((sum, r) => sum + r.forecast, 0)));
 }
