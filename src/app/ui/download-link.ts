@@ -2,6 +2,7 @@ import { HttpClient } from '@angular/common/http';
 import { ChangeDetectionStrategy, Component, DestroyRef, inject, input, signal } from '@angular/core';
 import { takeUntilDestroyed } from '@angular/core/rxjs-interop';
 import { MatButtonModule } from '@angular/material/button';
+import { MatIconModule } from '@angular/material/icon';
 import { type Subscription } from 'rxjs';
 import { apiProblem } from './load-error';
 import { ProgressNote } from './progress-note';
@@ -12,14 +13,19 @@ import { downloadFile, type Transfer } from './transfer';
  * without scripts), but a click fetches the file through `downloadFile` and shows what is happening
  * below it ("Preparing the workbook…", then the download's percentage) until the browser has it.
  *
- *     <app-download-link [href]="exportUrl()" preparing="Preparing the workbook…"><mat-icon>download</mat-icon>Export to .xlsx</app-download-link>
+ *     <app-download-link [href]="exportUrl()" preparing="Preparing the workbook…">Export to .xlsx</app-download-link>
+ *
+ * The link draws its own icon (`icon`, "download" unless told) in the button's icon slot: an icon
+ * passed in as content would land inside the button's label, where Material neither sizes nor
+ * spaces it (a component's content is matched against the button's slots by its own template).
  */
 @Component({
   selector: 'app-download-link',
   changeDetection: ChangeDetectionStrategy.OnPush,
-  imports: [MatButtonModule, ProgressNote],
+  imports: [MatButtonModule, MatIconModule, ProgressNote],
   template: `
     <a mat-stroked-button [href]="href()" download [attr.aria-describedby]="describedBy() || null" [attr.aria-busy]="transfer() ? 'true' : null" (click)="start($event)">
+      <mat-icon aria-hidden="true">{{ icon() }}</mat-icon>
       <ng-content />
     </a>
     @if (transfer(); as t) {
@@ -41,6 +47,8 @@ export class DownloadLink {
   /** What the server is doing meanwhile: "Preparing the workbook…". */
   readonly preparing = input('Preparing the file…');
   readonly describedBy = input('');
+  /** A Material Symbols name shown before the label. */
+  readonly icon = input('download');
 
   protected readonly transfer = signal<Transfer<string> | null>(null);
   protected readonly outcome = signal('');
