@@ -181,6 +181,28 @@ test('the buyer drafts a tender in the editor, with messages under the fields it
   await page.getByRole('alert').filter({ hasText: 'Invite at least one vendor.' }).waitFor();
   await screenshot(page, 'tender-detail-draft-1280');
   expect(await seriousViolations(page)).toEqual([]);
+
+  // The Invite button: two registered vendors chosen from the list are then shown as invited, and
+  // are no longer offered. The tender stays a draft (no vendor sees it yet).
+  await page.keyboard.press('Escape');
+  await page.getByRole('combobox', { name: 'Vendor organisations' }).click();
+  await page.getByRole('option', { name: 'Quarnby Minerals Ltd' }).click();
+  await page.getByRole('option', { name: 'Saltmere Supply Co. (SME)' }).click();
+  await page.keyboard.press('Escape');
+  await page.getByRole('button', { name: 'Invite', exact: true }).click();
+  const invited = page.getByRole('list', { name: 'Invited organisations' });
+  await invited.getByText('Quarnby Minerals Ltd').waitFor();
+  await invited.getByText('Saltmere Supply Co.').waitFor();
+  expect(await invited.getByRole('listitem').count()).toBe(2);
+  await page.getByRole('combobox', { name: 'Vendor organisations' }).click();
+  await page.getByRole('option', { name: 'Northfell Haulage & Salt (SME)' }).waitFor();
+  expect(await page.getByRole('option', { name: 'Quarnby Minerals Ltd' }).count()).toBe(0);
+  await page.keyboard.press('Escape');
+  await page.getByText('Draft', { exact: true }).waitFor();
+  await page.getByRole('heading', { name: 'Invite vendors' }).scrollIntoViewIfNeeded();
+  await animationsDone(page);
+  await screenshot(page, 'tender-detail-invited-1280');
+  expect(await seriousViolations(page)).toEqual([]);
 });
 
 test('the buyer sets the award basis, buying body and time zone; a refused forecast is marked; the tender page states the basis', async () => {
