@@ -11,7 +11,8 @@ cd "$root"
 # shellcheck source=server/ops/cluster.sh
 source server/ops/cluster.sh
 
-say() { printf '\033[1m[tendara]\033[0m %s\n' "$*"; }
+# Each step with the minutes and seconds since the command started (where CI's time goes).
+say() { printf '\033[1m[tendara %d:%02d]\033[0m %s\n' $((SECONDS / 60)) $((SECONDS % 60)) "$*"; }
 die() { printf '[tendara] %s\n' "$*" >&2; exit 1; }
 
 data="$root/.data"
