@@ -15,7 +15,7 @@ import { renderMail } from '../mail/templates';
 import { buildBidWorkbook } from '../workbooks/bid-workbook';
 import { parseBidWorkbookOffThread } from '../workbooks/workbook-pool';
 import { assertBidMatchesDocument, keepsDocument } from './bid-documents';
-import { lockOwnBid, lockTenderForBid, markBidWithdrawn, writeBid } from './queries/bids.queries';
+import { lockOwnBid, lockTenderForBid, markBidWithdrawn, saveDraftInOneCall, writeBid, type DraftWrite } from './queries/bids.queries';
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
 import { auditOnPool } from './audit.service';
@@ -161,6 +161,52 @@ async function lockOpenTender(tx: PoolClient, tenderId: string, vendorId: string
 }
 
 const CHANGED_ELSEWHERE = 'This bid was changed elsewhere (another tab or a colleague) since you loaded it. Reload it to see the current figures; nothing was saved.';
+const DRAFT_OVER_SUBMITTED = 'This bid is submitted. Submit your changes as a revision, or withdraw the bid.';
+
+/** 400 naming each price whose code is no region of the tender. */
+const notRegions = (codes: readonly string[]) =>
+  new ValidationError(codes.map((code) => ({ field: `prices.${code}`, message: `Region ${code} is not part of this tender.` })));
+
+/**
+ * A draft save without a workbook named: one call of `bid_save_draft` (`saveDraftInOneCall`), one
+ * round trip, its own transaction — the same locks, checks and writes as the transaction of
+ * `saveBid` below, in the same order, each statement seeing what was committed before the tender's
+ * lock was granted. Refusals become the same errors. Null when the bid has a workbook attached:
+ * whether the draft keeps it (`keepsDocument`) is decided by the multi-statement save.
+ * With the test hook `beforeBidCommit`, the call runs in a transaction held open before its commit.
+ */
+async function saveDraft(deps: BidDeps, vendorId: string, tenderId: string, input: BidSave): Promise<BidView | null> {
+  const codes = Object.keys(input.prices);
+  const draft: DraftWrite = {
+    tenderId, vendorId, arrivedAt: deps.arrivedAt, loadedVersion: input.version ?? null,
+    fixedFee: input.fixedFee, capacity: input.capacity, codes, prices: codes.map((code) => input.prices[code]),
+  };
+  const row = await whileOpen(deps, tenderId, async () => {
+    const hook = deps.hooks?.beforeBidCommit;
+    const answer = hook
+      ? await inPoolTransaction(deps.pool, async (tx) => {
+        const held = await saveDraftInOneCall(tx, draft);
+        if (held.outcome === 'saved') await hook({ tenderId, arrivedAt: deps.arrivedAt });
+        return held;
+      })
+      : await saveDraftInOneCall(deps.pool, draft);
+    switch (answer.outcome) {
+      case 'saved': case 'document': return answer;
+      case 'not-found': throw new NotFoundError('The tender');
+      case 'closed': throw new BiddingClosed(new Date(answer.closes_at), answer.time_zone, answer.tender_status === 'cancelled');
+      case 'unknown-codes': throw notRegions(answer.unknown_codes);
+      case 'changed': throw new ConflictError(CHANGED_ELSEWHERE);
+      case 'submitted': throw new ConflictError(DRAFT_OVER_SUBMITTED);
+    }
+  });
+  if (row.outcome === 'document') return null;
+  const fields: BidFields = {
+    id: row.id, status: row.status, fixedFee: input.fixedFee, capacity: input.capacity, revision: row.revision, version: row.version,
+    submittedAt: row.submitted_at === null ? null : new Date(row.submitted_at), digest: null,
+    updatedAt: new Date(row.updated_at), answersAmendment: row.answers_amendment, amendmentNote: row.amendment_note,
+  };
+  return bidView(fields, input.prices, null);
+}
 
 /**
  * Save a draft, submit, or revise — only before closing, and only over the version loaded. One
@@ -172,17 +218,18 @@ const CHANGED_ELSEWHERE = 'This bid was changed elsewhere (another tab or a coll
  */
 export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, input: BidSave): Promise<BidView> {
   const org = vendorOf(user);
+  if (!input.submit && !input.documentId) {
+    const draft = await saveDraft(deps, org.id, tenderId, input);
+    // None: a workbook is attached, and whether this draft keeps it is decided below.
+    if (draft) return draft;
+  }
   const { fields, document } = await whileOpen(deps, tenderId, () => inPoolTransaction(deps.pool, async (tx) => {
     const bidding = await lockOpenTender(tx, tenderId, org.id, deps.arrivedAt);
     const codes = Object.keys(input.prices);
     const own = await lockOwnBid(tx, { tenderId, vendorId: org.id, documentId: input.documentId ?? null, codes });
-    if (own.unknown_codes.length) {
-      throw new ValidationError(own.unknown_codes.map((code) => ({ field: `prices.${code}`, message: `Region ${code} is not part of this tender.` })));
-    }
+    if (own.unknown_codes.length) throw notRegions(own.unknown_codes);
     if (own.version !== (input.version ?? null)) throw new ConflictError(CHANGED_ELSEWHERE);
-    if (own.status && !input.submit && isLiveBid(own.status)) {
-      throw new ConflictError('This bid is submitted. Submit your changes as a revision, or withdraw the bid.');
-    }
+    if (own.status && !input.submit && isLiveBid(own.status)) throw new ConflictError(DRAFT_OVER_SUBMITTED);
     let attached = own.document_id === null ? null : own;
     if (input.documentId) {
       if (!attached) throw new ValidationError([{ field: 'documentId', message: 'This uploaded workbook is not yours or does not exist.' }]);

@@ -2,6 +2,7 @@ import { AuditEntry, Bid, MailMessage, Tender } from '../../server/entities';
 import { QUEUES, WAITED_MAIL_PRIORITY } from '../../server/jobs/queue';
 import { makeUser, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
 import { openTender, tenderBody } from '../support/tenders';
+import { whileDecisionHoldsTender } from '../support/race';
 import { drainQueue } from '../support/wait';
 
 /**
@@ -9,7 +10,9 @@ import { drainQueue } from '../support/wait';
  * in one statement, the receipt queued in the same transaction, the audit entry just after its
  * commit (audit.service.ts `auditOnPool`). These tests prove
  * what it stores — every line whole, at the price sent — and that a refused save stores nothing:
- * no line, no new version, no receipt, no audit entry.
+ * no line, no new version, no receipt, no audit entry. A draft without a workbook named is one call
+ * of the PL/pgSQL function `bid_save_draft` (`saveDraftInOneCall`): the same guarantees, proven
+ * here for it too — an amendment committed while it waits for the tender's lock is seen.
  */
 let t: TestApp;
 let buyer: Browser;
@@ -163,4 +166,80 @@ test('a withdrawal is stored with its receipt and audit entry, and a stale one s
   expect(again.status).toBe(409);
   expect(again.body.detail).toBe('This bid is already withdrawn.');
   expect(await receipts(email)).toBe(2);
+});
+
+test('a draft saved in one call stores every line at the price sent, replaces them on the next save, and sends no receipt and no audit entry', async () => {
+  const { v, email, tenderId } = await vendorOn(40);
+  const first = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 30000, capacity: 5000, prices: pricesFor(40, 55), submit: false, version: null });
+  expect(first.status).toBe(200);
+  expect(first.body).toMatchObject({ status: 'draft', revision: 0, version: 1, fixedFee: 30000, capacity: 5000, digest: null, submittedAt: null, answersAmendment: 0, document: null });
+  const fewer = pricesFor(25, 60);
+  const second = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 30001, capacity: null, prices: fewer, submit: false, version: first.body.version });
+  expect(second.status).toBe(200);
+  expect(second.body).toMatchObject({ id: first.body.id, status: 'draft', revision: 0, version: 2, fixedFee: 30001, capacity: null, prices: fewer });
+  expect(await storedLines(tenderId)).toEqual(asStored(fewer));
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ status: 'draft', version: 2, fixedFee: 30001, capacity: null });
+  expect(await receipts(email)).toBe(0);
+  expect(await bidEntries(tenderId)).toEqual([]);
+});
+
+test('a draft refused after the closing time, or over a submitted bid, leaves the earlier version untouched', async () => {
+  const { v, tenderId } = await vendorOn(3);
+  const draft = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 10, capacity: 20, prices: pricesFor(3, 5), submit: false, version: null });
+  expect(draft.status).toBe(200);
+  const submitted = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 11, capacity: 20, prices: pricesFor(3, 6), submit: true, version: draft.body.version });
+  expect(submitted.status).toBe(200);
+  const overSubmitted = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 1, capacity: null, prices: pricesFor(1, 1), submit: false, version: submitted.body.version });
+  expect(overSubmitted.status).toBe(409);
+  expect(overSubmitted.body.detail).toBe('This bid is submitted. Submit your changes as a revision, or withdraw the bid.');
+  // Closed a second ago: within the grace, so the tender is still open but this save is late.
+  await t.em().nativeUpdate(Tender, { id: tenderId }, { closesAt: new Date(Date.now() - 1000) });
+  const late = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 1, capacity: null, prices: pricesFor(1, 1), submit: false, version: submitted.body.version });
+  expect(late.status).toBe(409);
+  expect(late.body.detail).toMatch(/^Bidding closed at .+ UTC\. Bids can no longer be saved, revised or withdrawn\.$/);
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ status: 'submitted', revision: 1, version: submitted.body.version, fixedFee: 11, digest: submitted.body.digest });
+  expect(await storedLines(tenderId)).toEqual(asStored(pricesFor(3, 6)));
+});
+
+test('a draft of a vendor not invited, or on a cancelled tender, is refused as not found or cancelled, and stores nothing', async () => {
+  const { tenderId } = await vendorOn(2);
+  const stranger = await signedIn(t, await makeUser(t, 'vendor'));
+  const notInvited = await stranger.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 1, capacity: null, prices: pricesFor(2, 1), submit: false, version: null });
+  expect(notInvited.status).toBe(404);
+  const { v, tenderId: cancelledId } = await vendorOn(2);
+  await t.em().nativeUpdate(Tender, { id: cancelledId }, { status: 'cancelled' });
+  const cancelled = await v.send('put', `/api/tenders/${cancelledId}/bid`, { fixedFee: 1, capacity: null, prices: pricesFor(2, 1), submit: false, version: null });
+  expect(cancelled.status).toBe(409);
+  expect(cancelled.body.detail).toBe('The buyer cancelled this tender. Bids can no longer be saved, revised or withdrawn; they stay sealed.');
+  expect(await t.em().count(Bid, { tender: { $in: [tenderId, cancelledId] } })).toBe(0);
+});
+
+test('a draft that waits for the tender lock sees the region an amendment removed meanwhile: refused naming the price, nothing stored', async () => {
+  const { v, tenderId } = await vendorOn(3);
+  const draft = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 10, capacity: null, prices: { R01: 1, R02: 2 }, submit: false, version: null });
+  expect(draft.status).toBe(200);
+  const res = await whileDecisionHoldsTender(
+    t, tenderId,
+    (tx) => tx.query(`delete from region where tender_id = $1 and code = 'R03'`, [tenderId]),
+    () => v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 11, capacity: null, prices: { R01: 3, R03: 4 }, submit: false, version: draft.body.version }),
+  );
+  expect(res.status).toBe(400);
+  expect(res.body.errors).toEqual([{ field: 'prices.R03', message: 'Region R03 is not part of this tender.' }]);
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ version: draft.body.version, fixedFee: 10 });
+  expect(await storedLines(tenderId)).toEqual({ R01: '1.0000', R02: '2.0000' });
+});
+
+test('a first draft that waits for the tender lock answers the amendment committed meanwhile', async () => {
+  const { v, tenderId } = await vendorOn(2);
+  const res = await whileDecisionHoldsTender(
+    t, tenderId,
+    (tx) => tx.query(
+      `insert into amendment (id, tender_id, number, reason, changes, issued_by_id)
+       select gen_random_uuid(), t.id, 1, 'Delivery window corrected', '{}'::jsonb, t.created_by_id from tender t where t.id = $1`, [tenderId],
+    ),
+    () => v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 12, capacity: null, prices: pricesFor(2, 7), submit: false, version: null }),
+  );
+  expect(res.status).toBe(200);
+  expect(res.body).toMatchObject({ status: 'draft', version: 1, answersAmendment: 1 });
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ answersAmendment: 1 });
 });

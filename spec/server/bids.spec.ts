@@ -189,10 +189,9 @@ test('many vendors saving at the same instant are all stored', async () => {
   expect((await buyer.get(`/api/tenders/${id}/bids`)).body).toEqual({ submitted: 8 });
 });
 
-test('workbook round trip: download, fill in, upload → the same figures; then submit with the document', async () => {
-  const [, , v] = vendors;
-  const id = await openTender(buyer, [v.org]);
-  const dl = await v.b.get(`/api/tenders/${id}/bid-workbook`).buffer(true).parse((r, cb) => {
+/** Downloads the tender's bid workbook, checks its name, fills `cells` of its Bid sheet and uploads it as my-bid.xlsx. */
+async function uploadFilled(v: Browser, tender: string, cells: Record<string, number>) {
+  const dl = await v.get(`/api/tenders/${tender}/bid-workbook`).buffer(true).parse((r, cb) => {
     const chunks: Buffer[] = [];
     r.on('data', (c: Buffer) => chunks.push(c));
     r.on('end', () => cb(null, Buffer.concat(chunks)));
@@ -200,12 +199,14 @@ test('workbook round trip: download, fill in, upload → the same figures; then 
   expect(dl.status).toBe(200);
   expect(dl.headers['content-disposition']).toMatch(/-bid\.xlsx/);
   const wb = await XlsxPopulate.fromDataAsync(dl.body as Buffer);
-  const sheet = wb.sheet('Bid')!;
-  sheet.cell('C4').value(18000);
-  sheet.cell('E8').value(70.25);
-  sheet.cell('E10').value(71);
-  const filled = (await wb.outputAsync());
-  const up = await v.b.agent.post(`/api/tenders/${id}/bid-workbook`).set('X-XSRF-TOKEN', v.b.token).attach('file', filled, 'my-bid.xlsx');
+  for (const [cell, value] of Object.entries(cells)) wb.sheet('Bid')!.cell(cell).value(value);
+  return v.agent.post(`/api/tenders/${tender}/bid-workbook`).set('X-XSRF-TOKEN', v.token).attach('file', await wb.outputAsync(), 'my-bid.xlsx');
+}
+
+test('workbook round trip: download, fill in, upload → the same figures; then submit with the document', async () => {
+  const [, , v] = vendors;
+  const id = await openTender(buyer, [v.org]);
+  const up = await uploadFilled(v.b, id, { C4: 18000, E8: 70.25, E10: 71 });
   expect(up.status).toBe(200);
   expect(up.body.bid).toEqual({ fixedFee: 18000, capacity: null, prices: { R01: 70.25, R03: 71 } });
   const saved = await put(v.b, id, { ...up.body.bid, submit: true, version: null, documentId: up.body.documentId });
@@ -216,6 +217,28 @@ test('workbook round trip: download, fill in, upload → the same figures; then 
   const bids = await buyer.get(`/api/tenders/${id}/bids`);
   const doc = await buyer.get(`/api/tenders/${id}/documents/${bids.body.bids[0].documentId}`);
   expect(doc.status).toBe(200);
+});
+
+test('a draft naming no workbook keeps the one attached while its figures are the workbook\'s, and lets it go when they differ', async () => {
+  const [, , v] = vendors;
+  const id = await openTender(buyer, [v.org]);
+  const up = await uploadFilled(v.b, id, { C4: 18000, E8: 70.25, E10: 71 });
+  expect(up.status).toBe(200);
+  const attached = await put(v.b, id, { ...up.body.bid, submit: false, version: null, documentId: up.body.documentId });
+  expect(attached.status).toBe(200);
+  expect(attached.body.document).toMatchObject({ id: up.body.documentId, filename: 'my-bid.xlsx' });
+  // The same figures again, no workbook named: the draft keeps it (decided by keepsDocument, not by the one-call save).
+  const same = await put(v.b, id, { ...up.body.bid, submit: false, version: attached.body.version });
+  expect(same.status).toBe(200);
+  expect(same.body).toMatchObject({ version: attached.body.version + 1, document: { id: up.body.documentId, filename: 'my-bid.xlsx' } });
+  const typed = await put(v.b, id, { ...up.body.bid, fixedFee: 17500, submit: false, version: same.body.version });
+  expect(typed.status).toBe(200);
+  expect(typed.body).toMatchObject({ version: same.body.version + 1, fixedFee: 17500, document: null });
+  expect(await t.em().findOneOrFail(Bid, { tender: id })).toMatchObject({ fixedFee: 17500, document: null, status: 'draft' });
+  // Without a workbook attached any more, the next draft is the one-call save.
+  const next = await put(v.b, id, { ...up.body.bid, fixedFee: 17000, submit: false, version: typed.body.version });
+  expect(next.status).toBe(200);
+  expect(next.body).toMatchObject({ version: typed.body.version + 1, fixedFee: 17000, document: null });
 });
 
 test('a broken upload is refused naming the cell, a renamed non-xlsx file by content, an oversize file with 413', async () => {

@@ -36,3 +36,34 @@ export async function race(t: TestApp, tenderId: string, requests: (() => Promis
     await hold.end();
   }
 }
+
+/**
+ * Runs `request` while a decision on the tender is under way: from a connection of its own, the
+ * tender row locked FOR NO KEY UPDATE (as a decision, an amendment or closing, locks it), `change`
+ * made in that transaction; once the request waits for a lock (or has answered), commits. What the
+ * request then reads after its tender lock must include `change`.
+ */
+export async function whileDecisionHoldsTender(
+  t: TestApp, tenderId: string, change: (tx: Client) => Promise<unknown>, request: () => PromiseLike<Response>,
+): Promise<Response> {
+  const hold = new Client({ connectionString: t.config.databaseUrl });
+  await hold.connect();
+  try {
+    await hold.query('begin');
+    await hold.query('select 1 from tender where id = $1 for no key update', [tenderId]);
+    await change(hold);
+    let answered = false;
+    const pending = Promise.resolve(request()).then((res) => { answered = true; return res; });
+    await waitFor('the request to wait for the tender lock', async () => {
+      await hold.query('select pg_stat_clear_snapshot()');
+      const { rows } = await hold.query<{ n: number }>(
+        `select count(*)::int as n from pg_stat_activity where datname = current_database() and wait_event_type = 'Lock' and pid <> pg_backend_pid()`,
+      );
+      return answered || rows[0].n > 0;
+    }, { timeoutMs: 30_000, everyMs: 10 });
+    await hold.query('commit');
+    return await pending;
+  } finally {
+    await hold.end();
+  }
+}

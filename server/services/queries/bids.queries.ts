@@ -1,5 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { ClientBase } from 'pg';
+import type { ClientBase, Pool } from 'pg';
 import type { ComplianceDecision, ExclusionGround } from '@shared/compliance';
 import { LIVE_BID_STATUSES, type BidStatus, type TenderStatus } from '@shared/tenders';
 import type { BidDocumentFigures } from '../../entities/bid-document.entity';
@@ -160,10 +160,56 @@ export async function writeBid(tx: ClientBase, w: BidWrite): Promise<SavedBidRow
     values: [
       w.tenderId, w.vendorId, w.status, w.fixedFee, w.capacity, w.submittedAt, w.digest, w.nonce, w.revision, w.answersAmendment, w.documentId,
       w.submit, w.loadedVersion,
-      textArray(w.codes), `{${w.prices.map(String).join(',')}}`,
+      textArray(w.codes), numericArray(w.prices),
     ],
   });
   return row;
+}
+
+/** A draft save's parameters: no workbook named, no submission. */
+export interface DraftWrite {
+  tenderId: string;
+  vendorId: string;
+  /** When the request arrived in full (this server's clock at its edge): on time if before the closing time. */
+  arrivedAt: Date;
+  loadedVersion: number | null;
+  fixedFee: number;
+  capacity: number | null;
+  codes: readonly string[];
+  prices: readonly number[];
+}
+
+/** What `bid_save_draft` answers: an outcome, and the row saved or what the refusal's message needs. */
+export type DraftSaveRow =
+  | ({ outcome: 'saved' } & Omit<SavedBidRow, 'digest'>)
+  | { outcome: 'document' }
+  | { outcome: 'not-found' | 'changed' | 'submitted' }
+  | { outcome: 'closed'; tender_status: TenderStatus; closes_at: Date | string; time_zone: string }
+  | { outcome: 'unknown-codes'; unknown_codes: string[] };
+
+/**
+ * A draft save in one statement, so one round trip and its own transaction: the PL/pgSQL function
+ * `bid_save_draft` (migration `Migration20261210010000`) runs `lockTenderForBid`'s, `lockOwnBid`'s
+ * and `writeBid`'s statements in turn, each with a snapshot of its own (taken after the tender's
+ * row lock is granted), and refuses before writing anything. `client` is the pool itself (the call
+ * commits on its own) or a client inside a transaction (the test hook before the commit).
+ */
+export async function saveDraftInOneCall(client: Pool | ClientBase, w: DraftWrite): Promise<DraftSaveRow> {
+  const { rows: [row] } = await client.query<DraftSaveRow>({
+    name: 'bid-save-draft',
+    text: `select outcome, tender_status, closes_at, time_zone, unknown_codes, id, status, revision, version, updated_at, submitted_at, answers_amendment, amendment_note
+             from bid_save_draft($1, $2, $3, $4, $5, $6, $7::text[], $8::numeric[])`,
+    values: [
+      w.tenderId, w.vendorId, w.arrivedAt, w.loadedVersion, w.fixedFee, w.capacity,
+      textArray(w.codes), numericArray(w.prices),
+    ],
+  });
+  return row;
+}
+
+/** Numbers as one PostgreSQL array parameter (`?::numeric[]`). */
+function numericArray(values: readonly number[]): string {
+  return `{${values.map(String).join(',')}}`;
 }
 
 /** The bid as its withdrawal left it. */

@@ -1,4 +1,4 @@
-import { bidInputSchema, regionListSchema } from '@shared/bids';
+import { bidInputSchema, isPlainPrice, regionCodeSchema, regionListSchema, unitPriceSchema } from '@shared/bids';
 
 function issues(result: { success: boolean; error?: { issues: Array<{ path: PropertyKey[]; message: string }> } }) {
   return (result.error?.issues ?? []).map((i) => ({ path: i.path.join('.'), message: i.message }));
@@ -32,6 +32,36 @@ describe('bid input schema (PUT /api/tenders/:id/bid)', () => {
     expect(issues(bidInputSchema.safeParse({ fixedFee: 0, capacity: null, prices: {}, submit: true }))).toEqual([
       { path: 'prices', message: 'Enter a unit price for at least one region before submitting.' },
     ]);
+  });
+});
+
+describe('the quick path of a bid\'s prices (isPlainPrice)', () => {
+  it('takes exactly the entries both schemas accept unchanged, so every other one is worded by the schemas', () => {
+    const codes = ['R01', 'north-2.b_x', 'A'.repeat(20), 'A'.repeat(21), ' R01', 'R01 ', '', 'bad code', 'x/y', '__proto__', 'toString', 'CONSTRUCTOR', 'NULL'];
+    const prices: unknown[] = [1, 61.1234, 0.0001, 1e12 - 0.5, 0, -1, 1.23456, 0.00001, 1e12, NaN, Infinity, '5', null, undefined, true];
+    const pairs = codes.flatMap((code) => prices.map((price) => ({ code, price })));
+    expect(pairs.length).toBe(195);
+    const differing = pairs.filter(({ code, price }) => {
+      const k = regionCodeSchema.safeParse(code);
+      const v = unitPriceSchema.safeParse(price);
+      const bySchemas = k.success && v.success && k.data === code && v.data === price;
+      return isPlainPrice(code, price) !== bySchemas;
+    });
+    expect(differing).toEqual([]);
+    // The quick path is taken for the ordinary entries (else it would save nothing): the codes R01,
+    // north-2.b_x, 20 A's and NULL with the prices 1, 61.1234, 0.0001 and 1e12 - 0.5.
+    expect(pairs.filter(({ code, price }) => isPlainPrice(code, price)).length).toBe(4 * 4);
+  });
+
+  it('words a bad price next to quick-path ones as before, and keeps the good ones', () => {
+    const result = bidInputSchema.safeParse({ fixedFee: 10, capacity: null, prices: { R01: 5, R02: 0, ' R03': 7, toString: 2 }, submit: false });
+    expect(issues(result)).toEqual([
+      { path: 'prices.R02', message: 'Unit price must be a positive number.' },
+      { path: 'prices.toString', message: expect.stringMatching(/^Region code "toString" is a reserved word/) },
+    ]);
+    const ok = bidInputSchema.parse({ fixedFee: 10, capacity: null, prices: { R01: 5, ' R03': 7 }, submit: false });
+    expect({ ...ok.prices }).toEqual({ R01: 5, R03: 7 });
+    expect(Object.getPrototypeOf(ok.prices)).toBeNull();
   });
 });
 
