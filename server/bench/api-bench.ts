@@ -1,6 +1,7 @@
 import type autocannon from 'autocannon';
 import { Client } from 'pg';
-import { tenderListStatement } from '../services/queries/tenders.queries';
+import { SESSION_POOL_OPTIONS } from '../context';
+import { tenderListJsonStatement } from '../services/queries/tenders.queries';
 import { deadlineRush, rushHolds, rushTable, RUSH_REGIONS, RUSH_VENDORS } from './rush';
 import { benchEnv, startBare, startServer, startWorker, stopAll, waitForLog } from './support/processes';
 import { call, headersOf, signIn, signInAll, type Session } from './support/http';
@@ -59,9 +60,13 @@ function rotating(url: string, sessions: Session[]): DriveOptions {
   };
 }
 
-/** `--explain`: the plans of the buyer's and a vendor's first page of the tender list, on the bench data. */
+/**
+ * `--explain`: the plans of the buyer's and a vendor's first page of the tender list, on the bench
+ * data — the statement the route sends (with its JSON), planned as the session pool plans it (the
+ * generic plan, SESSION_POOL_OPTIONS), after a few runs as on a warm connection.
+ */
 async function explainLists(databaseUrl: string, buyerId: string, vendorOrgId: string): Promise<void> {
-  const db = new Client({ connectionString: databaseUrl });
+  const db = new Client({ connectionString: databaseUrl, options: SESSION_POOL_OPTIONS });
   await db.connect();
   try {
     const first = { page: 1, size: 25, sort: 'closesAt', dir: 'desc' } as const;
@@ -70,8 +75,12 @@ async function explainLists(databaseUrl: string, buyerId: string, vendorOrgId: s
       ['buyer, page 20', { ...first, page: 20, vendorOrganisationId: null, ownerId: buyerId }],
       ['vendor, first page', { ...first, vendorOrganisationId: vendorOrgId, ownerId: null }],
     ] as const) {
-      const { text, values } = tenderListStatement(filter);
-      const { rows } = await db.query<{ 'QUERY PLAN': string }>(`explain (analyze, buffers, costs off) ${text}`, values);
+      const { name, text, values } = tenderListJsonStatement(filter);
+      const plain = `explain-${name}`;
+      await db.query(`prepare "${plain}" as ${text}`);
+      const args = values.map((v) => db.escapeLiteral(String(v))).join(', ');
+      for (let k = 0; k < 3; k++) await db.query(`execute "${plain}"(${args})`);
+      const { rows } = await db.query<{ 'QUERY PLAN': string }>(`explain (analyze, buffers, costs off) execute "${plain}"(${args})`);
       process.stdout.write(`\n[bench] plan of the tender list, ${label}:\n${rows.map((r) => r['QUERY PLAN']).join('\n')}\n`);
     }
   } finally {
