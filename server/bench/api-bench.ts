@@ -70,13 +70,13 @@ async function explainLists(databaseUrl: string, buyerId: string, vendorOrgId: s
   await db.connect();
   try {
     const first = { page: 1, size: 25, sort: 'closesAt', dir: 'desc' } as const;
-    for (const [label, filter] of [
+    for (const [n, [label, filter]] of ([
       ['buyer, first page', { ...first, vendorOrganisationId: null, ownerId: buyerId }],
       ['buyer, page 20', { ...first, page: 20, vendorOrganisationId: null, ownerId: buyerId }],
       ['vendor, first page', { ...first, vendorOrganisationId: vendorOrgId, ownerId: null }],
-    ] as const) {
-      const { name, text, values } = tenderListJsonStatement(filter);
-      const plain = `explain-${name}`;
+    ] as const).entries()) {
+      const { text, values } = tenderListJsonStatement(filter);
+      const plain = `explain-${n}`;
       await db.query(`prepare "${plain}" as ${text}`);
       const args = values.map((v) => db.escapeLiteral(String(v))).join(', ');
       for (let k = 0; k < 3; k++) await db.query(`execute "${plain}"(${args})`);
