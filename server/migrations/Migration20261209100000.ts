@@ -6,7 +6,8 @@ import { Migration } from '@mikro-orm/migrations';
  * the regions of every tender they show. PostgreSQL keeps them, in the statement that writes the
  * regions and so in its transaction, whoever writes them (the services, an amendment, the seeds,
  * plain SQL): statement-level triggers recount the tenders whose regions were inserted, updated or
- * deleted. The columns in the form `migration:create` writes; the rest by hand.
+ * deleted. And the index a vendor's list starts from covers the tender's id. The columns and
+ * indexes in the form `migration:create` writes; the rest by hand.
  */
 export class Migration20261209100000 extends Migration {
 
@@ -35,9 +36,14 @@ export class Migration20261209100000 extends Migration {
     this.addSql(`create trigger region_totals_delete after delete on "region" referencing old table as changed_region for each statement execute function region_totals();`);
     // The lists no longer count regions: the index they did it from goes.
     this.addSql(`drop index "region_tender_id_forecast_index";`);
+    // A vendor's list reads its invitations' tenders from the index alone (no heap page per invitation).
+    this.addSql(`drop index "invitation_vendor_organisation_id_index";`);
+    this.addSql(`create index "invitation_vendor_organisation_id_tender_id_index" on "invitation" ("vendor_organisation_id", "tender_id");`);
   }
 
   override async down(): Promise<void> {
+    this.addSql(`drop index "invitation_vendor_organisation_id_tender_id_index";`);
+    this.addSql(`create index "invitation_vendor_organisation_id_index" on "invitation" ("vendor_organisation_id");`);
     this.addSql(`create index "region_tender_id_forecast_index" on "region" ("tender_id") include ("forecast");`);
     this.addSql(`drop trigger region_totals_delete on "region";`);
     this.addSql(`drop trigger region_totals_update on "region";`);
