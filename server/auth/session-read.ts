@@ -3,14 +3,8 @@ import type { Request, RequestHandler } from 'express';
 import type session from 'express-session';
 import type { Pool } from 'pg';
 import { TOUCH_EVERY_MS } from './session-store';
-import { sessionWithPerson } from './session.queries';
+import { sessionForRead } from './session.queries';
 import { SessionPerson } from './session-user';
-
-/** What the read path takes from a stored session (express-session's JSON in `http_session.sess`). */
-interface StoredSession {
-  cookie?: { originalMaxAge?: number | null };
-  xsrf?: string;
-}
 
 /**
  * The session cookie's value as express-session writes it: `s:` then the session id signed as its
@@ -27,6 +21,38 @@ export function unsignSessionCookie(value: string, secret: string): string | und
   const expected = Buffer.from(createHmac('sha256', secret).update(sid).digest('base64').replace(/=+$/, ''));
   const given = Buffer.from(signed.slice(dot + 1));
   return expected.length === given.length && timingSafeEqual(expected, given) ? sid : undefined;
+}
+
+/**
+ * Session cookies whose signature was checked, each with its session id: a signed-in browser sends
+ * the same cookie on every request, and checking it (an HMAC, two buffers, a constant-time compare)
+ * was a share of every signed-in request's own CPU (profiled, bench:api phase d). Only values that
+ * verified are kept, so a forged cookie is checked every time it comes; what the cache answers is
+ * what `unsignSessionCookie` would answer. At most `LIMIT` values, emptied when full (a cookie
+ * dropped is checked again on its next request). Whether the session is still valid is read from
+ * PostgreSQL on every request all the same: sign-out, deactivation and a password reset delete or
+ * refuse the session row, not the cookie.
+ */
+export class VerifiedCookies {
+  static readonly LIMIT = 10_000;
+  private readonly sids = new Map<string, string>();
+
+  constructor(private readonly secret: string) {}
+
+  sid(value: string): string | undefined {
+    const known = this.sids.get(value);
+    if (known !== undefined) return known;
+    const sid = unsignSessionCookie(value, this.secret);
+    if (sid !== undefined) {
+      if (this.sids.size >= VerifiedCookies.LIMIT) this.sids.clear();
+      this.sids.set(value, sid);
+    }
+    return sid;
+  }
+
+  get size(): number {
+    return this.sids.size;
+  }
 }
 
 /** A request of a route that changes the session (sign-in, sign-out): `changesSession` on its `route()`. */
@@ -87,29 +113,30 @@ export interface SessionReadOptions {
  */
 export function sessionRead(options: SessionReadOptions): RequestHandler {
   const { name, secret, pool, changes, writer } = options;
+  const verified = new VerifiedCookies(secret);
   return (req, res, next) => {
     if (changes(req)) {
       writer(req, res, next);
       return;
     }
     const value = (req.cookies as Record<string, unknown> | undefined)?.[name];
-    const sid = typeof value === 'string' ? unsignSessionCookie(value, secret) : undefined;
+    const sid = typeof value === 'string' ? verified.sid(value) : undefined;
     if (sid === undefined) {
       next();
       return;
     }
-    sessionWithPerson<StoredSession>(pool, sid).then((row) => {
+    sessionForRead(pool, sid).then((row) => {
       if (!row) {
         next();
         return;
       }
-      const maxAge = row.sess.cookie?.originalMaxAge;
+      const maxAge = row.maxAge;
       if (!row.person || typeof maxAge !== 'number' || Date.now() + maxAge - row.expireMs >= TOUCH_EVERY_MS) {
         writer(req, res, next);
         return;
       }
       req.sessionID = sid;
-      req.session = Object.freeze({ id: sid, xsrf: row.sess.xsrf }) as unknown as session.Session & Partial<session.SessionData>;
+      req.session = Object.freeze({ id: sid, xsrf: row.xsrf }) as unknown as session.Session & Partial<session.SessionData>;
       req.user = new SessionPerson(row.person);
       next();
     }, next);

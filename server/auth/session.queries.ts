@@ -61,9 +61,7 @@ interface FlatRow<S> {
  * Plain columns, times as float8 milliseconds: building the person as jsonb, then parsing it and
  * its timestamps in the web process, was garbage on every signed-in request (profiled, phase d).
  */
-const SESSION_WITH_PERSON = `
-  select s.sess, (extract(epoch from s.expire) * 1000)::float8 as expire_ms,
-         s.sess #>> '{passport,user}' is not null as names_person,
+const PERSON_COLUMNS = `
          u.id, u.email, u.name, u.role, u.active, u.membership,
          (extract(epoch from u.created_at) * 1000)::float8 as created_ms,
          (extract(epoch from u.updated_at) * 1000)::float8 as updated_ms,
@@ -71,7 +69,10 @@ const SESSION_WITH_PERSON = `
          o.id as org_id, o.name as org_name, o.registration_number as org_registration_number, o.sme as org_sme,
          o.contact_email as org_contact_email,
          (extract(epoch from o.created_at) * 1000)::float8 as org_created_ms,
-         (extract(epoch from o.updated_at) * 1000)::float8 as org_updated_ms
+         (extract(epoch from o.updated_at) * 1000)::float8 as org_updated_ms`;
+
+/** The session by id, unexpired, with its person (active and approved) and their organisation. */
+const SESSION_AND_PERSON = `
     from http_session s
     left join app_user u
       on u.id = case when s.sess #>> '{passport,user}' ~ '^[0-9a-fA-F-]{36}$' then (s.sess #>> '{passport,user}')::uuid end
@@ -79,12 +80,48 @@ const SESSION_WITH_PERSON = `
     left join vendor_organisation o on o.id = u.vendor_organisation_id
    where s.sid = $1 and s.expire >= now()`;
 
+const SESSION_WITH_PERSON = `
+  select s.sess, (extract(epoch from s.expire) * 1000)::float8 as expire_ms,
+         s.sess #>> '{passport,user}' is not null as names_person,${PERSON_COLUMNS}${SESSION_AND_PERSON}`;
+
+/**
+ * The read path's statement (session-read.ts): of the stored session only the cookie's lifetime and
+ * the XSRF token, not the whole JSON to parse in the web process on every request (profiled, phase d).
+ */
+const SESSION_FOR_READ = `
+  select (s.sess #>> '{cookie,originalMaxAge}')::float8 as max_age, s.sess ->> 'xsrf' as xsrf,
+         (extract(epoch from s.expire) * 1000)::float8 as expire_ms,
+         s.sess #>> '{passport,user}' is not null as names_person,${PERSON_COLUMNS}${SESSION_AND_PERSON}`;
+
 /** The unexpired session `sid` with its person; a named statement (planned once per connection), read on every request. */
 export async function sessionWithPerson<S>(pool: Pool, sid: string): Promise<SessionRow<S> | null> {
   const { rows } = await pool.query<FlatRow<S>>({ name: 'tendara-session-get', text: SESSION_WITH_PERSON, values: [sid] });
   const r = rows[0];
-  if (!r) return null;
-  const person: SessionUserRow | null = r.id === null ? null : {
+  return r ? { sess: r.sess, expireMs: r.expire_ms, person: personOf(r), namesPerson: r.names_person } : null;
+}
+
+/** What the read path takes of a stored session (`sessionForRead`). */
+export interface SessionReadRow {
+  /** The session cookie's lifetime (`cookie.originalMaxAge`), null when it has none. */
+  maxAge: number | null;
+  /** The XSRF token bound at sign-in, if any. */
+  xsrf: string | undefined;
+  expireMs: number;
+  person: SessionUserRow | null;
+  namesPerson: boolean;
+}
+
+/** `sessionWithPerson` for the read path: the same session and person, without the session's JSON. */
+export async function sessionForRead(pool: Pool, sid: string): Promise<SessionReadRow | null> {
+  const { rows } = await pool.query<Omit<FlatRow<never>, 'sess'> & { max_age: number | null; xsrf: string | null }>(
+    { name: 'tendara-session-read', text: SESSION_FOR_READ, values: [sid] },
+  );
+  const r = rows[0];
+  return r ? { maxAge: r.max_age, xsrf: r.xsrf ?? undefined, expireMs: r.expire_ms, person: personOf(r), namesPerson: r.names_person } : null;
+}
+
+function personOf(r: Omit<FlatRow<unknown>, 'sess'>): SessionUserRow | null {
+  return r.id === null ? null : {
     id: r.id, created_at: r.created_ms, updated_at: r.updated_ms, email: r.email, name: r.name, role: r.role,
     active: r.active, membership: r.membership, last_sign_in_at: r.last_sign_in_ms,
     vendor_organisation: r.org_id === null ? null : {
@@ -92,5 +129,4 @@ export async function sessionWithPerson<S>(pool: Pool, sid: string): Promise<Ses
       registration_number: r.org_registration_number, sme: r.org_sme, contact_email: r.org_contact_email,
     },
   };
-  return { sess: r.sess, expireMs: r.expire_ms, person, namesPerson: r.names_person };
 }

@@ -7,8 +7,9 @@ import { VendorOrganisation } from './vendor-organisation.entity';
 /** A vendor organisation asked to bid on a tender. Only invited vendors see the tender. */
 @Entity({ tableName: 'invitation' })
 @Unique({ properties: ['tender', 'vendorOrganisation'] })
-// A vendor's tender list starts from its invitations.
-@Index({ name: 'invitation_vendor_organisation_id_index', properties: ['vendorOrganisation'] })
+// A vendor's tender list starts from its invitations: their tenders read from this index alone
+// (an index-only scan, Migration20261209100000).
+@Index({ name: 'invitation_vendor_organisation_id_tender_id_index', properties: ['vendorOrganisation', 'tender'] })
 export class Invitation extends BaseEntity {
   @ManyToOne({ entity: () => Tender, deleteRule: 'cascade' })
   tender!: Tender;

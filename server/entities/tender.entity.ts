@@ -98,4 +98,18 @@ export class Tender extends BaseEntity {
 
   @OneToMany({ entity: () => Region, mappedBy: 'tender', orderBy: { position: 'asc' } })
   regions = new Collection<Region>(this);
+
+  /**
+   * How many regions the tender has, and the total of their forecasts: kept by PostgreSQL, in the
+   * statement that writes the regions (the `region_totals_*` triggers on region,
+   * Migration20261209100000), for the tender lists, which read them instead of counting and summing
+   * every listed tender's regions. Never set here; lazy, so never loaded (or written back) with the
+   * entity: read `regions` instead.
+   */
+  @Property({ type: 'integer', default: 0, lazy: true })
+  regionCount?: number & Opt;
+
+  /** See `regionCount`: numeric as the sum of the forecasts, `0` without regions. */
+  @Property({ type: 'decimal', columnType: 'numeric', default: 0, lazy: true })
+  totalForecast?: string & Opt;
 }

@@ -1,5 +1,6 @@
 import { createHmac } from 'node:crypto';
 import { SESSION_COOKIE } from '../../server/context';
+import { unsignSessionCookie, VerifiedCookies } from '../../server/auth/session-read';
 import { TOUCH_EVERY_MS } from '../../server/auth/session-store';
 import { Browser, makeUser, signedIn, startTestApp, TEST_PASSWORD, type TestApp } from '../support/app';
 
@@ -137,6 +138,23 @@ test('a forged or tampered session cookie is 401: another secret, a changed sign
   expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(`s:${otherSid}${good.slice(2 + sid.length)}`)}`)).toBe(401);
   expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(sid)}`)).toBe(401);
   expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(`s:${sid}`)}`)).toBe(401);
+});
+
+test('the cache of checked session cookies answers as the signature check does, keeps only cookies that verified, and stays bounded', () => {
+  const secret = 'a-secret-of-at-least-thirty-two-characters';
+  const cookies = new VerifiedCookies(secret);
+  const value = (sid: string, key = secret) => decodeURIComponent(signedCookie(sid, key).split('=').slice(1).join('='));
+  const good = value('sid-one');
+  expect(cookies.sid(good)).toBe('sid-one');
+  expect(cookies.sid(good)).toBe(unsignSessionCookie(good, secret));
+  // Forged after a good one was cached: refused every time, and never kept.
+  const forged = value('sid-one', `${secret}x`);
+  expect([cookies.sid(forged), cookies.sid(forged)]).toEqual([undefined, undefined]);
+  expect(cookies.sid(`${good.slice(0, -1)}${good.endsWith('A') ? 'B' : 'A'}`)).toBeUndefined();
+  expect(cookies.size).toBe(1);
+  for (let k = 0; k < VerifiedCookies.LIMIT + 5; k++) expect(cookies.sid(value(`sid-${k}`))).toBe(`sid-${k}`);
+  expect(cookies.size).toBeLessThanOrEqual(VerifiedCookies.LIMIT);
+  expect(cookies.sid(good)).toBe('sid-one');
 });
 
 test('on the read path the session is read-only; sign-in and sign-out, also by a loosely matched path, still write it', async () => {

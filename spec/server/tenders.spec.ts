@@ -149,6 +149,41 @@ test("a vendor's list comes a page at a time with the count of its invitations o
   expect(searched.body).toMatchObject({ total: 1, items: [{ reference: early }] });
 });
 
+test("a vendor's list filters by status as of now, searches, sorts by each column both ways, and shows its own bid per tender", async () => {
+  // A vendor of its own, invited to three tenders: a bid saved on one, another past its closing time.
+  const u = await makeUser(t, 'vendor');
+  const vendor = await signedIn(t, u);
+  const org = u.vendorOrganisation!.id;
+  const stamp = Date.now().toString(36);
+  const ids: string[] = [];
+  for (const [k, [minutes, title]] of ([[300, 'Brine'], [100, 'Alpha grit'], [200, 'Zinc posts']] as const).entries()) {
+    ids.push(await openTender(buyer, [org], tenderBody(2, minutes, { reference: `VL-${k}-${stamp}`, title })));
+  }
+  const [brine, grit, zinc] = ids;
+  expect((await vendor.send('put', `/api/tenders/${zinc}/bid`, { fixedFee: 100, capacity: null, prices: { R01: 10, R02: 11 }, submit: false, version: null })).status).toBe(200);
+  await passClosingTime(t, grit);
+  const list = async (query: Record<string, string | number>) => {
+    const res = await vendor.get('/api/tenders').query(query);
+    expect(res.status).toBe(200);
+    return res.body as { total: number; items: { id: string; status: string; myBidStatus: string | null }[] };
+  };
+  // Past its closing time and not yet closed by the job: listed, and filtered, as closed.
+  expect(await list({ status: 'closed' })).toMatchObject({ total: 1, items: [{ id: grit, status: 'closed', myBidStatus: null }] });
+  expect((await list({ status: 'open' })).items.map((x) => x.id)).toEqual([brine, zinc]);
+  expect((await list({ status: 'open', q: 'zinc' })).items.map((x) => x.id)).toEqual([zinc]);
+  expect((await list({ status: 'draft' })).total).toBe(0);
+  expect((await list({})).items.map((x) => [x.id, x.myBidStatus])).toEqual([[brine, null], [zinc, 'draft'], [grit, null]]);
+  expect((await list({ sort: 'title' })).items.map((x) => x.id)).toEqual([grit, brine, zinc]);
+  expect((await list({ sort: 'title', dir: 'desc' })).items.map((x) => x.id)).toEqual([zinc, brine, grit]);
+  expect((await list({ sort: 'reference', dir: 'desc', size: 2 })).items.map((x) => x.id)).toEqual([zinc, grit]);
+  expect((await list({ sort: 'closesAt', dir: 'asc' })).items.map((x) => x.id)).toEqual([grit, zinc, brine]);
+  // By status in the order of the procedure (open before closed); ties newest closing first.
+  expect((await list({ sort: 'status' })).items.map((x) => x.id)).toEqual([brine, zinc, grit]);
+  expect((await list({ sort: 'status', dir: 'desc' })).items.map((x) => x.id)).toEqual([grit, brine, zinc]);
+  // Past the end, a filtered list still counts what matches.
+  expect(await list({ status: 'open', size: 1, page: 5 })).toEqual({ items: [], total: 2, page: 5, size: 1 });
+});
+
 test("the list's JSON, written by PostgreSQL, is exactly the declared page schema and says of each tender what the tender's own view says", async () => {
   // A buyer and a vendor of their own: two tenders, one with a bid saved by the vendor.
   const own = await signedIn(t, await makeUser(t, 'buyer'));

@@ -79,12 +79,19 @@ function launch(name: string, script: string, env: Record<string, string>): Proc
   return proc;
 }
 
-/** Starts `node dist/server/main.js` on a free port and waits until it answers. */
-export async function startServer(env: Record<string, string> = {}): Promise<{ proc: Proc; url: string; smtpUrl: string }> {
+/**
+ * Starts `node dist/server/main.js` on a free port and waits until it answers. It runs the mail
+ * catcher, unless `smtpUrl` names another process's: then it only serves (bench:api measures a web
+ * process that does nothing else; its mail goes to a catcher in a process of its own).
+ */
+export async function startServer(
+  env: Record<string, string> = {}, options: { name?: string; smtpUrl?: string } = {},
+): Promise<{ proc: Proc; url: string; smtpUrl: string }> {
   const port = await freePort();
-  const mailPort = await freePort();
-  const proc = launch('server', 'main.js', {
-    HOST: '127.0.0.1', PORT: String(port), MAIL_CATCHER_PORT: String(mailPort), SMTP_URL: `smtp://127.0.0.1:${mailPort}`, ...env,
+  const mailPort = options.smtpUrl === undefined ? await freePort() : undefined;
+  const smtpUrl = options.smtpUrl ?? `smtp://127.0.0.1:${mailPort}`;
+  const proc = launch(options.name ?? 'server', 'main.js', {
+    HOST: '127.0.0.1', PORT: String(port), ...(mailPort === undefined ? {} : { MAIL_CATCHER_PORT: String(mailPort) }), SMTP_URL: smtpUrl, ...env,
   });
   const url = `http://127.0.0.1:${port}`;
   const deadline = Date.now() + 60_000;
@@ -92,7 +99,7 @@ export async function startServer(env: Record<string, string> = {}): Promise<{ p
     if (proc.child.exitCode !== null) throw new Error(`the server did not start; see ${benchEnv().dir}/server.log`);
     try {
       const res = await fetch(`${url}/api/session`);
-      if (res.status === 401) return { proc, url, smtpUrl: `smtp://127.0.0.1:${mailPort}` };
+      if (res.status === 401) return { proc, url, smtpUrl };
     } catch {
       // not listening yet
     }

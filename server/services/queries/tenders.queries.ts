@@ -15,7 +15,7 @@ const vendorStatus = (vendor: string) => `(case when ${CURRENT_STATUS} in (${sql
     and not exists (select 1 from notice n where n.tender_id = t.id and n.vendor_organisation_id = ${vendor} and n.status = 'sent')
   then 'closed'::tender_status else ${CURRENT_STATUS} end)`;
 
-/** One row of `tenderListStatement`: what the list screen shows, counted and summed by PostgreSQL. */
+/** One row of `tenderListStatement`: what the list screen shows. */
 export interface TenderListRow {
   id: string;
   reference: string;
@@ -31,8 +31,9 @@ export interface TenderListRow {
   /** A Date from pg's own parser (a string if another parser was set for timestamptz). */
   closes_at: Date | string;
   time_zone: string;
+  /** From the tender's row, kept by triggers on region (Migration20261209100000). */
   region_count: number;
-  /** numeric, as PostgreSQL sends it. */
+  /** numeric, as PostgreSQL sends it: the sum of the forecasts (four decimals), `0` without regions. */
   total_forecast: string;
   /** The vendor's own bid's status (vendors' lists only; null when none). */
   my_bid_status: BidStatus | null;
@@ -64,8 +65,11 @@ function ordering(sort: TenderSort, dir: 'asc' | 'desc', a: string, status: stri
  * filter and order (a named statement: PostgreSQL plans it once, not on every request), through the
  * pg pool rather than the ORM's query builder — the list is read on every visit of the list screen
  * by every vendor (bench:api, phases a and e). The count of all matching tenders comes with the
- * page (see `tenderListStatement`); the regions are counted and summed for the page's tenders only. A buyer's list, newest closing first,
- * is read from the index `tender_created_by_id_closes_at_id_index` and stops after the page.
+ * page (see `tenderListStatement`). A tender's count of regions and total forecast are read from its
+ * own row (`region_count`, `total_forecast`: kept by PostgreSQL's triggers on region whenever regions
+ * are written, Migration20261209100000), not counted and summed per listed tender. A buyer's list,
+ * newest closing first, is read from the index `tender_created_by_id_closes_at_id_index` and stops
+ * after the page; a vendor's from its invitations (see `matching`).
  *
  * PostgreSQL writes the page's items as the JSON the API answers (`tenderSummarySchema`: the same
  * keys, `closesAt` as JavaScript's `toISOString` writes it, numbers as numbers), and the route sends
@@ -83,8 +87,44 @@ export async function tenderListJson(pool: Pool, f: TenderListFilter): Promise<{
   return { items: row.items, total: row.total };
 }
 
-/** `tenderListStatement` with its page written as a JSON array of `TenderSummary` (`tenderListJson`). */
-function tenderListJsonStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
+/** The texts of `tenderListJsonStatement` by name: one per shape of filter and order (at most 128). */
+const jsonStatements = new Map<string, string>();
+
+/**
+ * The parameters of the list's statement, in the order `matching` and `tenderListStatement` number
+ * them: vendor, owner, status, search, page size, offset (each filter only when set).
+ */
+function listValues(f: TenderListFilter): unknown[] {
+  const values: unknown[] = [];
+  if (f.vendorOrganisationId) values.push(f.vendorOrganisationId);
+  if (f.ownerId) values.push(f.ownerId);
+  if (f.status) values.push(f.status);
+  if (f.q) values.push(`%${escapeLike(f.q)}%`);
+  values.push(f.size, (f.page - 1) * f.size);
+  return values;
+}
+
+/**
+ * `tenderListStatement` with its page written as a JSON array of `TenderSummary` (`tenderListJson`).
+ * Its text is built once per name, not on every request (profiled, bench:api phase a); the first
+ * time, the parameters `listValues` gives are checked against those the text was built with.
+ */
+export function tenderListJsonStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
+  const values = listValues(f);
+  const name = `tender-json-${shapeOf(f)}-${f.sort}-${f.dir}`;
+  let text = jsonStatements.get(name);
+  if (text === undefined) {
+    const built = buildJsonStatement(f);
+    if (built.name !== name || JSON.stringify(built.values) !== JSON.stringify(values)) {
+      throw new Error(`tenderListJsonStatement: ${built.name} numbers its parameters unlike listValues`);
+    }
+    text = built.text;
+    jsonStatements.set(name, text);
+  }
+  return { name, text, values };
+}
+
+function buildJsonStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
   const page = tenderListStatement(f);
   const text = `with l as (${page.text})
   select coalesce(json_agg(j order by ${ordering(f.sort, f.dir, 'l', 'l.status')}) filter (where l.id is not null), '[]')::text as items,
@@ -97,16 +137,26 @@ function tenderListJsonStatement(f: TenderListFilter): { name: string; text: str
   return { name: page.name.replace(/^tender-page-/, 'tender-json-'), text, values: page.values };
 }
 
+/** The tender's columns a list reads (and filters and orders by), over `tender t`. */
+const TENDER_COLUMNS = 't.id, t.reference, t.title, t.commodity, t.unit, t.currency, t.status, t.closes_at, t.time_zone, t.region_count, t.total_forecast';
+
+/** The text depends only on which filters are set, so that (and the order) names a statement. */
+function shapeOf(f: TenderListFilter): string {
+  return `${f.vendorOrganisationId ? 'v' : ''}${f.ownerId ? 'o' : ''}${f.status ? 's' : ''}${f.q ? 'q' : ''}`;
+}
+
 /** The filter of a list, over `tender t`, with its parameters (`$n`) and the status expression. */
 function matching(f: TenderListFilter) {
   const values: unknown[] = [];
   const param = (v: unknown) => `$${values.push(v)}`;
   const where: string[] = [];
   const vendor = f.vendorOrganisationId ? param(f.vendorOrganisationId) : null;
-  // A vendor's tenders are joined from its invitations (one per tender and vendor, unique). On the
-  // bench data (1,077 tenders) PostgreSQL still hashes them against a scan of all tenders, 0.15 ms
-  // (bench:api --explain); the join leaves it free to go by index when tenders are many more.
-  if (vendor) where.push(`i.vendor_organisation_id = ${vendor}`, `t.status <> 'draft' and t.published_at is not null`);
+  // A vendor's tenders are read from its invitations (one per tender and vendor, unique), each
+  // tender by its primary key: the lateral subquery (its `limit 1` keeps PostgreSQL from flattening
+  // it into a join) holds the plan to a nested loop over the vendor's few invitations. As a plain
+  // join, the generic plan hashed them against a scan of every tender (1,077 on the bench data,
+  // bench:api --explain): PostgreSQL's CPU per list about twice what it is now.
+  if (vendor) where.push(`i.vendor_organisation_id = ${vendor}`);
   if (f.ownerId) where.push(`t.created_by_id = ${param(f.ownerId)}`);
   const status = vendor ? vendorStatus(vendor) : CURRENT_STATUS;
   if (f.status) where.push(`${status} = ${param(f.status)}::tender_status`);
@@ -114,24 +164,26 @@ function matching(f: TenderListFilter) {
     const like = param(`%${escapeLike(f.q)}%`);
     where.push(`(t.reference ilike ${like} or t.title ilike ${like} or t.commodity ilike ${like})`);
   }
-  // The text depends only on which filters are set, so that (and the order) names a statement.
-  const shape = `${vendor ? 'v' : ''}${f.ownerId ? 'o' : ''}${f.status ? 's' : ''}${f.q ? 'q' : ''}`;
-  const tables = vendor ? 'invitation i join tender t on t.id = i.tender_id' : 'tender t';
+  const shape = shapeOf(f);
+  const tables = vendor
+    ? `invitation i cross join lateral (
+        select ${TENDER_COLUMNS} from tender t where t.id = i.tender_id and t.status <> 'draft' and t.published_at is not null limit 1) t`
+    : 'tender t';
   return { values, param, vendor, status, shape, from: `from ${tables} ${where.length ? `where ${where.join(' and ')}` : ''}` };
 }
 
-/** How many tenders a vendor's filter matches: only for a page past the end (`tenderListRows`). */
+/** How many tenders a vendor's filter matches: only for a page past the end (`tenderListJson`). */
 function vendorCountStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
   const m = matching(f);
   return { name: `tender-count-${m.shape}`, text: `select count(*)::int as total ${m.from}`, values: m.values };
 }
 
-/** The statement `tenderListRows` sends (also for `EXPLAIN` in bench:api, `--explain`). */
+/** One page of the list as rows; `tenderListJsonStatement` writes them as JSON (bench:api `--explain` shows its plan). */
 export function tenderListStatement(f: TenderListFilter): { name: string; text: string; values: unknown[] } {
   const { values, param, vendor, status, shape, from } = matching(f);
   const limit = param(f.size);
   const offset = param((f.page - 1) * f.size);
-  const columns = `t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone`;
+  const columns = `t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone, t.region_count, t.total_forecast`;
   // A vendor's list runs its invitation filter once: the count of all matches is a window over
   // the same rows the page is cut from (a vendor is invited to few tenders, so all are sorted).
   // A buyer's, newest closing first, is read from the index and stops after the page; its count
@@ -145,11 +197,13 @@ export function tenderListStatement(f: TenderListFilter): { name: string; text: 
         ${from}
        order by ${ordering(f.sort, f.dir, 't', status)}
        limit ${limit} offset ${offset}) p on true`;
+  // The vendor's own bid: a join, at most one row (one bid per tender and vendor, unique), read for
+  // the page's tenders together rather than by a subquery per tender.
   const text = `select ${vendor ? 'p' : 'c'}.total, p.id, p.reference, p.title, p.commodity, p.unit, p.currency, p.status, p.closes_at, p.time_zone,
-         coalesce(r.n, 0)::int as region_count, coalesce(r.forecast, 0) as total_forecast,
-         ${vendor ? `(select b.status from bid b where b.tender_id = p.id and b.vendor_organisation_id = ${vendor})` : 'null'} as my_bid_status
-    from ${page}
-    left join lateral (select count(*) as n, sum(forecast) as forecast from region where region.tender_id = p.id) r on true
+         p.region_count, p.total_forecast,
+         ${vendor ? 'b.status' : 'null'} as my_bid_status
+    from ${page}${vendor ? `
+    left join bid b on b.tender_id = p.id and b.vendor_organisation_id = ${vendor}` : ''}
    order by ${ordering(f.sort, f.dir, 'p', 'p.status')}`;
   return { name: `tender-page-${shape}-${f.sort}-${f.dir}`, text, values };
 }
