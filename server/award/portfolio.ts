@@ -14,8 +14,8 @@ import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome,
  *  - on sole award models of some size, instead of glpk.js, the Lagrangian bound and heuristic
  *    (lagrangian.ts) first in the neighbourhood-search thread, then the search over the vendors
  *    that serve (open-set-search.ts) from the best
- *    award, reduced-cost fixing and a kernel search: its bound closes the search once an award
- *    meets it;
+ *    award, reduced-cost fixing, HiGHS on the best award's vendors alone and a kernel search: its
+ *    bound closes the search once an award meets it;
  *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
  *    (workers/lns-worker.ts) on the core glpk.js leaves free, at a lower thread priority and
  *    resting when it stops gaining: it improves the best award on the board and publishes what
