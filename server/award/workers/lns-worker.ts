@@ -315,9 +315,6 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
   let kernelRounds = 0;
   let searchRounds = 0;
   let restrictedRounds = 0;
-  // The set of vendors of the award the last assignment round started from ('' before the first).
-  let assignedSet = '';
-  const vendorSet = (x: Float64Array) => [...new Set(ownersOf(sole!, x))].sort((p, q) => p - q).join(',');
   /** The search over the vendors that serve, from the best award, until `until`; true when it found a cheaper award. */
   const openSetSearch = (until: number): boolean => {
     if (!sole || !best) return false;
@@ -354,26 +351,15 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
   const m = createHighsModel(highs, model, true);
   try {
     m.options.set({ output_flag: false, mip_rel_gap: 0, mip_abs_gap: 1e-6 });
-    /**
-     * HiGHS on the best award's vendors alone (restrictedRound), only the regions' assignment
-     * free, once per set of vendors: true when it found a cheaper award.
-     */
-    const assignment = (limit: number): boolean => {
-      if (!sole || !best || limit < 0.3) return false;
-      const key = vendorSet(best.x);
-      if (key === assignedSet) return false;
-      assignedSet = key;
-      restrictedRounds++;
-      const before = best.objective;
-      restrictedRound({ highs, mip: m, model, data: sole, base, vendors: new Set(key.split(',').map(Number).filter((i) => i >= 0)), limit, seed: restrictedRounds, u: multipliers, perRegion: RESTRICTED_PAIRS, best: () => best!, found });
-      return best.objective < before - eps(before);
-    };
     const lower = new Float64Array(model.numCols);
     const upper = new Float64Array(model.numCols);
     const all = { kind: 'range', from: 0, to: model.numCols - 1 } as const;
-    if (sole && assignmentShare > 0) {
+    const limit = (at(assignmentShare) - Date.now()) / 1000;
+    if (sole && assignmentShare > 0 && limit >= 0.3) {
       // The best award's vendors alone, only the regions' assignment free, to its share of the time.
-      assignment((at(assignmentShare) - Date.now()) / 1000);
+      restrictedRounds++;
+      const vendors = new Set(ownersOf(sole, best.x).filter((i) => i >= 0));
+      restrictedRound({ highs, mip: m, model, data: sole, base, vendors, limit, seed: restrictedRounds, u: multipliers, perRegion: RESTRICTED_PAIRS, best: () => best!, found });
       refix();
       if (closed()) return outcome();
     }
@@ -458,8 +444,6 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
       if (sole && remaining > 0.4) {
         const t1 = performance.now();
         if (openSetSearch(Math.min(deadline - 200, Date.now() + took * 1000))) gaining();
-        // A new set of vendors that serve gets its regions' assignment from HiGHS once.
-        if (assignment(Math.min(roundLimit, (deadline - 200 - Date.now()) / 1000))) gaining();
         spent += (performance.now() - t1) / 1000;
       }
       if (stalled) rest(spent * Math.min(MAX_REST_RATIO, 1 + stalledRounds++ / REST_GROWTH_ROUNDS), deadline);
