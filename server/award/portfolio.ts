@@ -14,8 +14,8 @@ import { GLPK_WORKER, HIGHS_WORKER, LNS_WORKER, runInWorker, type EngineOutcome,
  *  - on sole award models of some size, instead of glpk.js, the Lagrangian bound and heuristic
  *    (lagrangian.ts) first in the neighbourhood-search thread, then the search over the vendors
  *    that serve (open-set-search.ts) from the best
- *    award, reduced-cost fixing, HiGHS on the best award's vendors alone and a kernel search: its
- *    bound closes the search once an award meets it;
+ *    award, reduced-cost fixing and a kernel search: its bound closes the search once an award
+ *    meets it;
  *  - once glpk.js stops without a proof, on models of some size, a large neighbourhood search
  *    (workers/lns-worker.ts) on the core glpk.js leaves free, at a lower thread priority and
  *    resting when it stops gaining: it improves the best award on the board and publishes what
@@ -45,10 +45,7 @@ const LNS_MIN_COLUMNS = 1000;
 const LAGRANGIAN_SHARE = 0.15;
 // Then, on the same thread, the search over the vendors that serve (open-set-search.ts) until
 // this share of the limit has passed,
-const SEARCH_SHARE = 0.35;
-// then HiGHS on the model restricted to the best award's vendors, only the regions' assignment
-// free (workers/lns-worker.ts, restrictedRound), until this one,
-const ASSIGNMENT_SHARE = 0.4;
+const SEARCH_SHARE = 0.4;
 // and the kernel search (workers/lns-worker.ts) until this one: HiGHS on the model restricted to
 // the promising vendors and pairs.
 const KERNEL_SHARE = 0.5;
@@ -104,7 +101,7 @@ async function neighbourhoodRun(request: EngineRequest, board: SharedArrayBuffer
   const seconds = Math.max(0.5, (deadline - performance.now()) / 1000);
   return runInWorker(LNS_WORKER, {
     model, structure: { open: map.open, supply: map.supply, soleColumn: map.soleColumn }, board, timeLimitSeconds: seconds, deadlineEpochMs: Date.now() + seconds * 1000,
-    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, searchShare: SEARCH_SHARE, assignmentShare: ASSIGNMENT_SHARE, kernelShare: KERNEL_SHARE, relativeGap: request.relativeGap,
+    randomSeed: 20_260, lagrangianShare: LAGRANGIAN_SHARE, searchShare: SEARCH_SHARE, kernelShare: KERNEL_SHARE, relativeGap: request.relativeGap,
   }, signal);
 }
 

@@ -31,11 +31,6 @@ export interface NeighbourhoodTask {
   lagrangianShare?: number;
   /** Then the search over the vendors that serve (open-set-search.ts) until this share of the time has passed (sole award only). */
   searchShare?: number;
-  /**
-   * Then HiGHS on the model restricted to the best award's vendors (only the regions' assignment
-   * free) until this share of the time has passed (sole award only).
-   */
-  assignmentShare?: number;
   /** Then the kernel search until this share of the time has passed (sole award only). */
   kernelShare?: number;
   relativeGap?: number;
@@ -172,56 +167,6 @@ function kernelSearch(args: {
   }
 }
 
-/**
- * HiGHS on the model restricted to a set of vendors: every other vendor closed, per region only the
- * pairs of the set with the smallest Lagrangian reduced cost c_ij − u_j (all of them without
- * multipliers) that the fixing left free, seeded with the best award (its vendors are in the set,
- * its pairs kept), which is the cutoff. With the best award's vendors alone only the regions'
- * assignment is left (a generalized assignment problem): it places the regions the local search
- * left on the wrong vendor of the right set. True when it proved the restricted model's optimum.
- */
-export function restrictedRound(args: {
-  highs: Awaited<ReturnType<typeof highsRuntime>>; mip: HighsModel; model: MipModel; data: SoleData; base: Float64Array;
-  vendors: Set<number>; limit: number; seed: number; u?: Float64Array | null; perRegion?: number;
-  best: () => { x: Float64Array; objective: number }; found: (x: Float64Array, objective: number) => void;
-}): boolean {
-  const { highs, mip, model, data, base, vendors, limit, u, perRegion = Infinity } = args;
-  const { m, n, cost, open, supply } = data;
-  const incumbent = args.best();
-  const owner = ownersOf(data, incumbent.x);
-  const upper = Float64Array.from(base);
-  for (let i = 0; i < m; i++) {
-    if (vendors.has(i) || data.required[i]) continue;
-    if (open[i] >= 0) upper[open[i]] = 0;
-    for (let j = 0; j < n; j++) if (supply[i][j] >= 0) upper[supply[i][j]] = 0;
-  }
-  if (u && perRegion < m) {
-    // Per region only the pairs of the set with the smallest Lagrangian reduced cost c_ij − u_j.
-    for (let j = 0; j < n; j++) {
-      const candidates: number[] = [];
-      for (let i = 0; i < m; i++) if (supply[i][j] >= 0 && upper[supply[i][j]] > 0.5) candidates.push(i);
-      candidates.sort((a, b) => (cost[a * n + j] - u[j]) - (cost[b * n + j] - u[j]));
-      for (const i of candidates.slice(perRegion)) upper[supply[i][j]] = 0;
-    }
-  }
-  // The best award stays feasible: it is the starting award and the cutoff.
-  for (let j = 0; j < data.n; j++) if (owner[j] >= 0) { upper[data.supply[owner[j]][j]] = 1; upper[data.open[owner[j]]] = 1; }
-  mip.changeColsBounds({ kind: 'range', from: 0, to: model.numCols - 1 }, Float64Array.from(model.colLower), upper);
-  mip.options.set({ time_limit: limit, random_seed: args.seed });
-  mip.setSolution({ colValue: incumbent.x });
-  mip.run();
-  if (Number(mip.info.get('primal_solution_status')) === 2) {
-    const x = cleaned(model, mip.getSolution().colValue);
-    const objective = costOf(model, x);
-    if (objective < incumbent.objective - 1e-6 * Math.max(1, incumbent.objective) && satisfiesRows(model, x)) args.found(x, objective);
-  }
-  return mip.getModelStatus() === highs.constants.modelStatus.optimal;
-}
-
-// Per region, the round restricted to the best award's vendors keeps the pairs of the set with the
-// smallest Lagrangian reduced cost.
-const RESTRICTED_PAIRS = 6;
-
 // A round's sub-problem may use this share of the time limit (between 0.5 and 5 s).
 const ROUND_SHARE = 0.05;
 // Neighbourhood kinds (workers/neighbourhoods.ts), drawn in these proportions.
@@ -260,7 +205,7 @@ function rest(seconds: number, deadline: number): void {
  * `structure` is the model's map of vendor and region columns; `board` the shared award board.
  * Returns the best award it holds.
  */
-export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, searchShare = 0, assignmentShare = 0, kernelShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
+export default async function searchNeighbourhoods({ model, structure, board, timeLimitSeconds, deadlineEpochMs, randomSeed = 1, maxRounds = Infinity, lagrangianShare = 0, searchShare = 0, kernelShare = 0, relativeGap = 0 }: NeighbourhoodTask): Promise<EngineOutcome> {
   // A thread of this pool may have ended its last search at the lowest priority.
   setThreadPriority(GAINING_STEPS);
   const highs = await highsRuntime();
@@ -314,7 +259,6 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
   };
   let kernelRounds = 0;
   let searchRounds = 0;
-  let restrictedRounds = 0;
   /** The search over the vendors that serve, from the best award, until `until`; true when it found a cheaper award. */
   const openSetSearch = (until: number): boolean => {
     if (!sole || !best) return false;
@@ -335,7 +279,7 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
   const outcome = (): EngineOutcome => ({
     status: closed() ? 'optimal' : best ? 'feasible' : 'unknown', values: best?.x ?? null, objective: best?.objective ?? null, bound: proven?.bound ?? null, boundSource: proven ? `${proven.source}${fixedWords()}` : null,
     seconds: (performance.now() - started) / 1000, engine: proven && sole ? `${engine} after the Lagrangian heuristic${kernelRounds ? ` and ${kernelRounds} kernel-search rounds` : ''}` : engine,
-    message: `${stats.rounds} neighbourhoods, ${searchRounds ? `${searchRounds} rounds of the search over the vendors that serve, ` : ''}${restrictedRounds ? `${restrictedRounds} rounds on the best award's vendors alone, ` : ''}${kernelRounds ? `${kernelRounds} kernel-search rounds, ` : ''}${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}${fixedWords()}`,
+    message: `${stats.rounds} neighbourhoods, ${searchRounds ? `${searchRounds} rounds of the search over the vendors that serve, ` : ''}${kernelRounds ? `${kernelRounds} kernel-search rounds, ` : ''}${stats.improvements} improvements${mine ? '' : ' (best award found by another run)'}${fixedWords()}`,
   });
   if (!best || closed()) return outcome();
   // The search over the vendors that serve, from the best award on the board (its local search
@@ -354,15 +298,6 @@ export default async function searchNeighbourhoods({ model, structure, board, ti
     const lower = new Float64Array(model.numCols);
     const upper = new Float64Array(model.numCols);
     const all = { kind: 'range', from: 0, to: model.numCols - 1 } as const;
-    const limit = (at(assignmentShare) - Date.now()) / 1000;
-    if (sole && assignmentShare > 0 && limit >= 0.3) {
-      // The best award's vendors alone, only the regions' assignment free, to its share of the time.
-      restrictedRounds++;
-      const vendors = new Set(ownersOf(sole, best.x).filter((i) => i >= 0));
-      restrictedRound({ highs, mip: m, model, data: sole, base, vendors, limit, seed: restrictedRounds, u: multipliers, perRegion: RESTRICTED_PAIRS, best: () => best!, found });
-      refix();
-      if (closed()) return outcome();
-    }
     if (sole && multipliers && kernelShare > 0) {
       const until = at(kernelShare);
       const k = kernelSearch({ highs, mip: m, model, data: sole, u: multipliers, base, board, until, roundLimit: Math.max(roundLimit, 1), best: () => best!, found });
