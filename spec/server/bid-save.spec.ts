@@ -183,6 +183,21 @@ test('a draft saved in one call stores every line at the price sent, replaces th
   expect(await bidEntries(tenderId)).toEqual([]);
 });
 
+// The bid's lines are written by two pieces of SQL (the function bid_save_draft and writeBid): a
+// submission over lines the one-call draft wrote must leave exactly the submitted prices.
+test('a submission over a draft saved in one call keeps the prices it repeats, takes the new ones and drops the regions it leaves out', async () => {
+  const { v, tenderId } = await vendorOn(40);
+  const draft = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 500, capacity: null, prices: pricesFor(40, 55), submit: false, version: null });
+  expect(draft.status).toBe(200);
+  expect(await storedLines(tenderId)).toEqual(asStored(pricesFor(40, 55)));
+  // Regions 1–10 at the draft's prices, 11–30 at new ones, 31–40 left out.
+  const submitted = { ...pricesFor(30, 80), ...pricesFor(10, 55) };
+  const res = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 500, capacity: null, prices: submitted, submit: true, version: draft.body.version });
+  expect(res.status).toBe(200);
+  expect(res.body).toMatchObject({ status: 'submitted', revision: 1, prices: submitted });
+  expect(await storedLines(tenderId)).toEqual(asStored(submitted));
+});
+
 test('a draft refused after the closing time, or over a submitted bid, leaves the earlier version untouched', async () => {
   const { v, tenderId } = await vendorOn(3);
   const draft = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 10, capacity: 20, prices: pricesFor(3, 5), submit: false, version: null });
