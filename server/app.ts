@@ -7,7 +7,7 @@ import session from 'express-session';
 import { setting } from './config';
 import { configurePassport } from './auth/passport';
 import { createSessionStore, slideSessionCookie } from './auth/session-store';
-import { changesSession, sessionRead } from './auth/session-read';
+import { changesSession, readsWithSession, sessionRead } from './auth/session-read';
 import { signInLimits } from './auth/sign-in-limits';
 import { stampArrival } from './http/arrival';
 import { noStore } from './http/cache-control';
@@ -100,7 +100,7 @@ export function createApp(deps: AppDeps): Express {
   writer.use(auth.initialize());
   writer.use(auth.session());
   const routes = apiRoutes(deps, auth);
-  api.use(sessionRead({ name: SESSION_COOKIE, secret: sessionSecret, pool: deps.sessionPool, changes: changesSession(routes), writer }));
+  api.use(sessionRead({ name: SESSION_COOKIE, secret: sessionSecret, pool: deps.sessionPool, changes: changesSession(routes), writer, withSession: readsWithSession(routes) }));
   api.use(xsrfSessionBinding());
   // Failed sign-ins: per IP across e-mails, and per IP and (normalised) e-mail; counted in
   // PostgreSQL, so that every web process sees the same failures.

@@ -2,8 +2,9 @@ import { createHmac, timingSafeEqual } from 'node:crypto';
 import type { Request, RequestHandler } from 'express';
 import type session from 'express-session';
 import type { Pool } from 'pg';
+import type { ZodType } from 'zod';
 import { TOUCH_EVERY_MS } from './session-store';
-import { sessionForRead } from './session.queries';
+import { sessionForRead, sessionForReadWith, type ReadWithSession, type SessionReadRow } from './session.queries';
 import { SessionPerson } from './session-user';
 
 /**
@@ -74,6 +75,30 @@ export function changesSession(routes: readonly { method: string; path: string; 
   };
 }
 
+/**
+ * `SessionReadOptions.withSession` from the routes that declare `readsWithSession`: for a GET of
+ * such a route's exact path whose query is valid, its read; otherwise (an invalid query is the
+ * route's to refuse) none.
+ */
+export function readsWithSession(
+  routes: readonly { method: string; path: string; query?: ZodType; readsWithSession?: (query: never, sid: string) => ReadWithSession | undefined }[],
+): NonNullable<SessionReadOptions['withSession']> {
+  const byPath = new Map<string, { query?: ZodType; read: (query: never, sid: string) => ReadWithSession | undefined }>();
+  for (const r of routes) {
+    if (!r.readsWithSession) continue;
+    if (r.method !== 'get' || r.path.includes(':') || r.path.includes('*')) throw new Error(`A route that reads with the session is a GET of an exact path: ${r.path}`);
+    byPath.set(normalise(r.path), { query: r.query, read: r.readsWithSession });
+  }
+  return (req, sid) => {
+    if (req.method !== 'GET' || !byPath.size) return undefined;
+    const q = req.url.indexOf('?');
+    const found = byPath.get(normalise(q < 0 ? req.url : req.url.slice(0, q)));
+    if (!found) return undefined;
+    const query = found.query ? found.query.safeParse(req.query) : { success: true as const, data: {} };
+    return query.success ? found.read(query.data as never, sid) : undefined;
+  };
+}
+
 /** As Express routes match by default: case-insensitive, a trailing slash ignored. */
 function normalise(path: string): string {
   return path.toLowerCase().replace(/\/+$/, '');
@@ -87,6 +112,23 @@ export interface SessionReadOptions {
   changes: ChangesSession;
   /** express-session, the cookie slide and passport, in that order: what writes a session. */
   writer: RequestHandler;
+  /**
+   * The read a route does with the session's, in the same statement (`readsWithSession` on its
+   * `route()`), or undefined: the route reads on its own.
+   */
+  withSession?: (req: Request, sid: string) => ReadWithSession | undefined;
+}
+
+/** What a request's route read with its session (`sessionRead`'s `withSession`). */
+const readWithSession = new WeakMap<Request, Record<string, unknown>>();
+
+/**
+ * The row a route's read gave in the statement that read this request's session, or undefined
+ * (signed out, none asked for, or the session went through the writer: then the route reads on its
+ * own). Only ever set for a request whose session and person were read and checked in that statement.
+ */
+export function rowReadWithSession(req: Request): Record<string, unknown> | undefined {
+  return readWithSession.get(req);
 }
 
 /**
@@ -112,8 +154,12 @@ export interface SessionReadOptions {
  * more; this path costs what is left of it (see DEVELOPERS.md, "A signed-in request's own cost").
  */
 export function sessionRead(options: SessionReadOptions): RequestHandler {
-  const { name, secret, pool, changes, writer } = options;
+  const { name, secret, pool, changes, writer, withSession } = options;
   const verified = new VerifiedCookies(secret);
+  const read = (req: Request, sid: string): Promise<SessionReadRow | { session: SessionReadRow; row: Record<string, unknown> } | null> => {
+    const other = withSession?.(req, sid);
+    return other ? sessionForReadWith(pool, sid, other) : sessionForRead(pool, sid);
+  };
   return (req, res, next) => {
     if (changes(req)) {
       writer(req, res, next);
@@ -125,11 +171,12 @@ export function sessionRead(options: SessionReadOptions): RequestHandler {
       next();
       return;
     }
-    sessionForRead(pool, sid).then((row) => {
-      if (!row) {
+    read(req, sid).then((found) => {
+      if (!found) {
         next();
         return;
       }
+      const row = 'session' in found ? found.session : found;
       const maxAge = row.maxAge;
       if (!row.person || typeof maxAge !== 'number' || Date.now() + maxAge - row.expireMs >= TOUCH_EVERY_MS) {
         writer(req, res, next);
@@ -138,6 +185,7 @@ export function sessionRead(options: SessionReadOptions): RequestHandler {
       req.sessionID = sid;
       req.session = Object.freeze({ id: sid, xsrf: row.xsrf }) as unknown as session.Session & Partial<session.SessionData>;
       req.user = new SessionPerson(row.person);
+      if ('row' in found) readWithSession.set(req, found.row);
       next();
     }, next);
   };

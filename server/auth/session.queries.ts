@@ -120,6 +120,59 @@ export async function sessionForRead(pool: Pool, sid: string): Promise<SessionRe
   return r ? { maxAge: r.max_age, xsrf: r.xsrf ?? undefined, expireMs: r.expire_ms, person: personOf(r), namesPerson: r.names_person } : null;
 }
 
+/** A read that goes with the session's (`sessionForReadWith`). */
+export interface ReadWithSession {
+  name: string;
+  /**
+   * A select over the session's row `s` (the columns of the read path's statement: the person's
+   * `id`, `role`, `org_id`…; no row when the session is gone or expired), run as a lateral join on
+   * it, so it sees exactly the session and person the request is checked against. Its columns must
+   * not share a name with the session's.
+   */
+  text: string;
+  /** Its parameters; the first is the session id (`$1`), which the session's read uses. */
+  values: unknown[];
+}
+
+/** The texts of `sessionForReadWith` by name. */
+const withSessionTexts = new Map<string, string>();
+
+/**
+ * `sessionForRead` and another read in one statement, one round trip (`ReadWithSession`): the
+ * session as `sessionForRead` reads it and the other read's first row (its columns by name, all
+ * null when it gave none), or null without a session.
+ */
+export async function sessionForReadWith(pool: Pool, sid: string, other: ReadWithSession): Promise<{ session: SessionReadRow; row: Record<string, unknown> } | null> {
+  if (other.values[0] !== sid) throw new Error(`sessionForReadWith: ${other.name} must take the session id as $1`);
+  let text = withSessionTexts.get(other.name);
+  if (text === undefined) {
+    text = `with s as materialized (${SESSION_FOR_READ})
+  select s.max_age as "s.max_age", s.xsrf as "s.xsrf", s.expire_ms as "s.expire_ms", s.names_person as "s.names_person",
+         s.id as "s.id", s.email as "s.email", s.name as "s.name", s.role as "s.role", s.active as "s.active",
+         s.membership as "s.membership", s.created_ms as "s.created_ms", s.updated_ms as "s.updated_ms",
+         s.last_sign_in_ms as "s.last_sign_in_ms", s.org_id as "s.org_id", s.org_name as "s.org_name",
+         s.org_registration_number as "s.org_registration_number", s.org_sme as "s.org_sme",
+         s.org_contact_email as "s.org_contact_email", s.org_created_ms as "s.org_created_ms", s.org_updated_ms as "s.org_updated_ms",
+         x.*
+    from s left join lateral (${other.text}) x on true`;
+    withSessionTexts.set(other.name, text);
+  }
+  const { rows } = await pool.query<Record<string, unknown>>({ name: `tendara-session-with-${other.name}`, text, values: other.values });
+  const r = rows[0];
+  if (!r) return null;
+  const flat: Record<string, unknown> = {};
+  const row: Record<string, unknown> = {};
+  for (const [k, v] of Object.entries(r)) {
+    if (k.startsWith('s.')) flat[k.slice(2)] = v;
+    else row[k] = v;
+  }
+  const f = flat as unknown as Omit<FlatRow<never>, 'sess'> & { max_age: number | null; xsrf: string | null };
+  return {
+    session: { maxAge: f.max_age, xsrf: f.xsrf ?? undefined, expireMs: f.expire_ms, person: personOf(f), namesPerson: f.names_person },
+    row,
+  };
+}
+
 function personOf(r: Omit<FlatRow<unknown>, 'sess'>): SessionUserRow | null {
   return r.id === null ? null : {
     id: r.id, created_at: r.created_ms, updated_at: r.updated_ms, email: r.email, name: r.name, role: r.role,

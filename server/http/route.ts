@@ -6,6 +6,7 @@ import { z } from 'zod';
 import type { Role } from '@shared/roles';
 import type { User } from '../entities';
 import { userEntity } from '../auth/session-user';
+import type { ReadWithSession } from '../auth/session.queries';
 import { ForbiddenError, UnauthorizedError } from './errors';
 import { parseOr400 } from './validate';
 
@@ -68,6 +69,13 @@ export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
    * (auth/session-read.ts). Exact paths only.
    */
   changesSession?: boolean;
+  /**
+   * A read of a GET route made in the statement that reads the session (one round trip instead of
+   * two; auth/session-read.ts): given the valid query and the session id, a `ReadWithSession`. Its
+   * row reaches the handler through `rowReadWithSession(req)` once the session, the person and the
+   * role check have passed; the handler must still read on its own when there is none. Exact paths only.
+   */
+  readsWithSession?: (query: Q, sid: string) => ReadWithSession | undefined;
   /** A multipart upload of one file in `field` (kept in memory, at most `maxBytes`). */
   upload?: { field: string; maxBytes: number };
   /** Returns the JSON body (or a promise of it), or writes the response itself and returns undefined. */

@@ -3,6 +3,7 @@ import { closureDaysInputSchema, invitationInputSchema, tenderIdParamSchema, ten
 import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
+import { rowReadWithSession } from '../auth/session-read';
 import * as tenders from '../services/tenders.service';
 import { parseRegionFileOffThread } from '../workbooks/workbook-pool';
 
@@ -13,8 +14,10 @@ export function tenderRoutes(deps: AppDeps): AnyRoute[] {
       method: 'get', path: '/tenders', tag: 'Tenders', access: ['admin', 'buyer', 'compliance', 'vendor'], query: tenderListQuerySchema,
       response: tenderPageSchema,
       summary: 'One page of the tenders (newest closing first unless sorted otherwise) with how many match in all; filter by status, search reference/title/commodity. A vendor sees only published tenders it is invited to.',
-      // The person as read with the session: the list forks no EntityManager and builds no entity.
-      handler: ({ req, query }) => tenders.listTenders(deps.sessionPool, req.user!, query),
+      // A vendor's page is read in the statement that reads the session; the person as read with
+      // the session: the list forks no EntityManager and builds no entity.
+      readsWithSession: (query, sid) => tenders.vendorListReadWithSession(query, sid),
+      handler: ({ req, query }) => tenders.listTenders(deps.sessionPool, req.user!, query, rowReadWithSession(req)),
     }),
     route({
       method: 'post', path: '/tenders', tag: 'Tenders', access: ['buyer'], body: tenderInputSchema, status: 201,

@@ -10,7 +10,8 @@ import { enqueueMail, QUEUES } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { addPerson, registerOrganisation, sendAfterCommit, type MailOut } from './people.service';
 import { audit } from './audit.service';
-import { AFTER_AWARD, tenderListJson } from './queries/tenders.queries';
+import { AFTER_AWARD, tenderListJson, tenderListPage, vendorListWithSession, type TenderListFilter, type TenderListJsonRow } from './queries/tenders.queries';
+import type { ReadWithSession } from '../auth/session.queries';
 import { JsonText } from '../http/route';
 import { CLOSING_GRACE_MS, closeIfDue, findVisibleTender, lockTender, tenderOwnerScope } from './tender-access';
 import type { Principal } from '../auth/session-user';
@@ -44,17 +45,34 @@ export function regionInputs(tender: Tender): RegionInput[] {
 }
 
 /** One page of the tender list as the JSON of `TenderPage`, written by PostgreSQL (queries/tenders.queries.ts). */
-export async function listTenders(pool: Pool, user: Principal, query: TenderListQuery): Promise<JsonText> {
+export async function listTenders(pool: Pool, user: Principal, query: TenderListQuery, readWithSession?: Record<string, unknown>): Promise<JsonText> {
   // No write here: closing (and its audit entry) is the close job's and the bid save's. Until the
   // job has run, a tender past its closing time is listed as closed all the same (CURRENT_STATUS).
   // One prepared statement, a page at a time, counts and totals by PostgreSQL.
   const vendor = user.role === 'vendor' ? user.vendorOrganisation!.id : null;
-  const { items, total } = await tenderListJson(pool, {
-    vendorOrganisationId: vendor, ownerId: tenderOwnerScope(user), status: query.status, q: query.q,
-    page: query.page, size: query.size, sort: query.sort, dir: query.dir ?? (query.sort === 'closesAt' ? 'desc' : 'asc'),
-  });
+  const filter = listFilter(vendor, tenderOwnerScope(user), query);
+  // A vendor's page may have come with its session, in the same statement (`vendorListReadWithSession`).
+  const { items, total } = vendor && readWithSession
+    ? await tenderListPage(pool, filter, readWithSession as unknown as TenderListJsonRow)
+    : await tenderListJson(pool, filter);
   // The keys and order of TenderPage; the numbers are integers (validated query, count).
   return new JsonText(`{"items":${items},"total":${total},"page":${query.page},"size":${query.size}}`);
+}
+
+function listFilter(vendorOrganisationId: string | null, ownerId: string | null, query: TenderListQuery): TenderListFilter {
+  return {
+    vendorOrganisationId, ownerId, status: query.status, q: query.q,
+    page: query.page, size: query.size, sort: query.sort, dir: query.dir ?? (query.sort === 'closesAt' ? 'desc' : 'asc'),
+  };
+}
+
+/**
+ * The vendor's page of the list, read with the session (`readsWithSession` of `GET /tenders`): the
+ * vendor is the session person's organisation, and a person who is not a vendor gets no tender
+ * from it (and reads its own list as before).
+ */
+export function vendorListReadWithSession(query: TenderListQuery, sid: string): ReadWithSession {
+  return vendorListWithSession(listFilter('(the session\'s)', null, query), sid);
 }
 
 export async function tenderView(em: EntityManager, user: User, id: string): Promise<TenderView> {

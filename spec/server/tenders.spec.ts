@@ -5,6 +5,8 @@ import { QUEUES } from '../../server/jobs/queue';
 import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
 import { openTender, passClosingTime, tenderBody } from '../support/tenders';
 import { drainQueue, waitFor } from '../support/wait';
+import { sessionForReadWith } from '../../server/auth/session.queries';
+import { tenderListJson, tenderListPage, vendorListWithSession, type TenderListFilter, type TenderListJsonRow } from '../../server/services/queries/tenders.queries';
 
 let t: TestApp;
 let buyer: Browser;
@@ -277,4 +279,54 @@ test('a tender past its closing time is listed as closed before the close job ru
   const trail = await buyer.get(`/api/tenders/${id}/audit`);
   expect(trail.body.map((e: { action: string }) => e.action)).toEqual(['tender.created', 'invitations.added', 'tender.published', 'tender.closed']);
   expect((await buyer.get(`/api/tenders/${id}/audit/verify`)).body.ok).toBe(true);
+});
+
+test("a vendor's page read in the session's statement is the page its own statement reads, in every shape; anyone else's session gives no tender from it", async () => {
+  // A vendor invited to three tenders (one with its bid, one past its closing time) and a buyer.
+  const u = await makeUser(t, 'vendor');
+  const vendor = await signedIn(t, u);
+  const org = u.vendorOrganisation!.id;
+  const stamp = Date.now().toString(36);
+  const ids: string[] = [];
+  for (const [k, minutes] of [300, 100, 200].entries()) ids.push(await openTender(buyer, [org], tenderBody(2, minutes, { reference: `VS-${k}-${stamp}` })));
+  expect((await vendor.send('put', `/api/tenders/${ids[2]}/bid`, { fixedFee: 100, capacity: null, prices: { R01: 10, R02: 11 }, submit: false, version: null })).status).toBe(200);
+  await passClosingTime(t, ids[1]);
+  const sidOf = async (email: string) =>
+    (await t.em().getConnection().execute<{ sid: string }[]>(
+      `select s.sid from http_session s join app_user u on u.id::text = s.sess #>> '{passport,user}' where u.email = ? order by s.expire desc limit 1`, [email],
+    ))[0].sid;
+  const sid = await sidOf(u.email);
+  const pool = t.deps.sessionPool;
+  const shapes: Partial<TenderListFilter>[] = [
+    {}, { status: 'open' }, { status: 'closed' }, { q: `VS-1-${stamp}` }, { q: 'no such tender' }, { status: 'open', q: 'VS' },
+    { sort: 'title', dir: 'asc' }, { sort: 'status', dir: 'desc' }, { sort: 'reference', dir: 'desc', size: 2 }, { size: 2, page: 2 }, { size: 1, page: 9 },
+  ];
+  for (const shape of shapes) {
+    const f: TenderListFilter = { vendorOrganisationId: org, ownerId: null, page: 1, size: 25, sort: 'closesAt', dir: 'desc', ...shape };
+    const own = await tenderListJson(pool, f);
+    const withSession = await sessionForReadWith(pool, sid, vendorListWithSession(f, sid));
+    expect(withSession?.session.person?.id).toBe(u.id);
+    expect(await tenderListPage(pool, f, withSession!.row as unknown as TenderListJsonRow)).toEqual(own);
+  }
+  // The route reads it so, and answers what the vendor's own statement reads.
+  const f: TenderListFilter = { vendorOrganisationId: org, ownerId: null, page: 1, size: 25, sort: 'closesAt', dir: 'desc' };
+  const answered = (await vendor.get('/api/tenders')).body as { items: unknown[]; total: number };
+  const own = await tenderListJson(pool, f);
+  expect(answered).toEqual({ items: JSON.parse(own.items), total: own.total, page: 1, size: 25 });
+  expect(answered.total).toBe(3);
+  // A buyer's session reads no tender through the vendor's statement, and its list is the buyer's own.
+  const buyerUser = await makeUser(t, 'buyer');
+  const otherBuyer = await signedIn(t, buyerUser);
+  const buyerSid = await sidOf(buyerUser.email);
+  expect((await sessionForReadWith(pool, buyerSid, vendorListWithSession(f, buyerSid)))?.row).toMatchObject({ items: '[]', total: 0, n: 0 });
+  expect((await otherBuyer.get('/api/tenders')).body).toMatchObject({ items: [], total: 0 });
+  // The vendor deactivated: its session names no person, so no tender either, and the list is 401.
+  await t.em().getConnection().execute(`update app_user set active = false where id = ?`, [u.id]);
+  const inactive = await sessionForReadWith(pool, sid, vendorListWithSession(f, sid));
+  expect(inactive?.session.person).toBeNull();
+  expect(inactive?.row).toMatchObject({ items: '[]', total: 0, n: 0 });
+  expect((await vendor.get('/api/tenders')).status).toBe(401);
+  // A session gone reads nothing at all.
+  await t.em().getConnection().execute(`delete from http_session where sid = ?`, [sid]);
+  expect(await sessionForReadWith(pool, sid, vendorListWithSession(f, sid))).toBeNull();
 });
