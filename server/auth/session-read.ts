@@ -87,12 +87,14 @@ export function readsWithSession(
   for (const r of routes) {
     if (!r.readsWithSession) continue;
     if (r.method !== 'get' || r.path.includes(':') || r.path.includes('*')) throw new Error(`A route that reads with the session is a GET of an exact path: ${r.path}`);
-    byPath.set(normalise(r.path), { query: r.query, read: r.readsWithSession });
+    byPath.set(r.path, { query: r.query, read: r.readsWithSession });
   }
   return (req, sid) => {
     if (req.method !== 'GET' || !byPath.size) return undefined;
+    // The path as declared: another spelling Express also routes there (case, a trailing slash)
+    // reads on its own, which answers the same.
     const q = req.url.indexOf('?');
-    const found = byPath.get(normalise(q < 0 ? req.url : req.url.slice(0, q)));
+    const found = byPath.get(q < 0 ? req.url : req.url.slice(0, q));
     if (!found) return undefined;
     const query = found.query ? found.query.safeParse(req.query) : { success: true as const, data: {} };
     return query.success ? found.read(query.data as never, sid) : undefined;

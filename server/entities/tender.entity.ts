@@ -112,4 +112,12 @@ export class Tender extends BaseEntity {
   /** See `regionCount`: numeric as the sum of the forecasts, `0` without regions. */
   @Property({ type: 'decimal', columnType: 'numeric', default: 0, lazy: true })
   totalForecast?: string & Opt;
+
+  /**
+   * The tender's own keys of its entry in the tender lists, as JSON without the braces: kept by
+   * PostgreSQL (the `tender_summary_json` trigger, Migration20261211010000) before every insert and
+   * update of the row. Never set here; lazy, so never loaded (or written back) with the entity.
+   */
+  @Property({ type: 'text', default: '', lazy: true })
+  summaryJson?: string & Opt;
 }

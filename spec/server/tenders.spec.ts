@@ -330,3 +330,41 @@ test("a vendor's page read in the session's statement is the page its own statem
   await t.em().getConnection().execute(`delete from http_session where sid = ?`, [sid]);
   expect(await sessionForReadWith(pool, sid, vendorListWithSession(f, sid))).toBeNull();
 });
+
+test("a tender's list entry, kept on its row, follows every change of the tender: odd text, a draft's edit, an amendment, plain SQL", async () => {
+  const u = await makeUser(t, 'vendor');
+  const vendor = await signedIn(t, u);
+  const own = await signedIn(t, await makeUser(t, 'buyer'));
+  /** The entry of tender `id` in `who`'s list against what the tender's own view says (as the schema test above). */
+  const entryIsView = async (who: Browser, id: string, reference: string) => {
+    const list = await who.get('/api/tenders').query({ q: reference });
+    expect(list.status).toBe(200);
+    const item = (list.body.items as Record<string, unknown>[]).find((x) => x['id'] === id)!;
+    const view = (await who.get(`/api/tenders/${id}`)).body as Record<string, unknown>;
+    const keys = Object.keys(tenderSummarySchema.shape).filter((k) => k !== 'myBidStatus');
+    expect(Object.fromEntries(keys.map((k) => [k, item[k]]))).toEqual(Object.fromEntries(keys.map((k) => [k, view[k]])));
+    return item;
+  };
+  // Quotes, a backslash, a control-free line of accents and an emoji: JSON's escaping, as json_agg wrote it.
+  const body = tenderBody(3, 240, { title: 'Salt "coarse" \\ grade — Ærø 🧂', commodity: 'Sel gemme <b>&' });
+  const draft = await own.post('/api/tenders', body);
+  expect(draft.status).toBe(201);
+  const id = draft.body.id as string;
+  expect(await entryIsView(own, id, body.reference)).toMatchObject({ title: body.title, regionCount: 3, totalForecast: 6000, status: 'draft' });
+  // The draft edited: title, closing time, regions.
+  const edited = { ...body, title: 'Gritting salt, edited', closesAt: new Date(Date.now() + 300 * 60_000 + 7).toISOString(), regions: body.regions.slice(0, 2) };
+  expect((await own.send('put', `/api/tenders/${id}`, edited)).status).toBe(200);
+  expect(await entryIsView(own, id, body.reference)).toMatchObject({ title: 'Gritting salt, edited', regionCount: 2, totalForecast: 3000 });
+  // Published, then amended: a later closing time and one more region.
+  expect((await own.post(`/api/tenders/${id}/invitations`, { vendorOrganisationIds: [u.vendorOrganisation!.id] })).status).toBe(200);
+  expect((await own.post(`/api/tenders/${id}/publish`, {})).status).toBe(200);
+  const later = new Date(Date.now() + 600 * 60_000 + 321).toISOString();
+  const amended = await own.post(`/api/tenders/${id}/amendments`, {
+    reason: 'A new depot and more time.', closesAt: later, regions: [...edited.regions, { code: 'R09', name: 'Depot 9', forecast: 1234.5 }],
+  });
+  expect(amended.status).toBe(201);
+  for (const who of [own, vendor]) expect(await entryIsView(who, id, body.reference)).toMatchObject({ closesAt: later, regionCount: 3, totalForecast: 4234.5, status: 'open' });
+  // Behind the API's back, in plain SQL: the trigger still writes the entry.
+  await t.em().getConnection().execute(`update tender set title = ?, unit = ? where id = ?`, ['Written "by hand"', 'kg', id]);
+  expect(await entryIsView(vendor, id, body.reference)).toMatchObject({ title: 'Written "by hand"', unit: 'kg', myBidStatus: null });
+});

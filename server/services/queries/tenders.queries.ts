@@ -35,6 +35,8 @@ export interface TenderListRow {
   region_count: number;
   /** numeric, as PostgreSQL sends it: the sum of the forecasts (four decimals), `0` without regions. */
   total_forecast: string;
+  /** The tender's own keys of its list entry as JSON, kept on its row (Migration20261211010000). */
+  summary_json: string;
   /** The vendor's own bid's status (vendors' lists only; null when none). */
   my_bid_status: BidStatus | null;
 }
@@ -74,7 +76,10 @@ function ordering(sort: TenderSort, dir: 'asc' | 'desc', a: string, status: stri
  * PostgreSQL writes the page's items as the JSON the API answers (`tenderSummarySchema`: the same
  * keys, `closesAt` as JavaScript's `toISOString` writes it, numbers as numbers), and the route sends
  * that text as it is: parsing every row, its dates and numbers, mapping and serialising them again
- * was most of the web process's own work for a list (profiled, bench:api phases a and e).
+ * was most of the web process's own work for a list (profiled, bench:api phases a and e). Each
+ * entry is the tender's own keys as its row keeps them (`tender.summary_json`, written by a trigger,
+ * Migration20261211010000) joined with its status as of now and the vendor's own bid's status:
+ * building each entry with `json_agg` was most of PostgreSQL's CPU for a list.
  * `spec/server/tenders.spec.ts` checks the answer against the schema. Reads only, outside any transaction.
  */
 export async function tenderListJson(pool: Pool, f: TenderListFilter): Promise<{ items: string; total: number }> {
@@ -158,19 +163,19 @@ function jsonStatement(f: TenderListFilter, name: string, sid?: string): { name:
 
 function buildJsonStatement(f: TenderListFilter, vendorSql?: string): { name: string; text: string; values: unknown[] } {
   const page = tenderListStatement(f, vendorSql);
+  // Each entry: the tender's own keys as its row keeps them (`summary_json`), then the status as of
+  // now and, in a vendor's list, its own bid's status (enum labels: nothing to escape).
+  const entry = `'{' || l.summary_json || ',"status":"' || l.status::text || '"'${
+    f.vendorOrganisationId ? ` || ',"myBidStatus":' || coalesce('"' || l.my_bid_status::text || '"', 'null')` : ''} || '}'`;
   const text = `with l as (${page.text})
-  select coalesce(json_agg(j order by ${ordering(f.sort, f.dir, 'l', 'l.status')}) filter (where l.id is not null), '[]')::text as items,
+  select '[' || coalesce(string_agg(${entry}, ',' order by ${ordering(f.sort, f.dir, 'l', 'l.status')}) filter (where l.id is not null), '') || ']' as items,
          coalesce(max(l.total), 0)::int as total, count(l.id)::int as n
-    from l
-    cross join lateral (
-      select l.id, l.reference, l.title, l.commodity, l.unit, l.currency, l.status,
-             to_char(l.closes_at at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') as "closesAt", l.time_zone as "timeZone",
-             l.region_count as "regionCount", l.total_forecast as "totalForecast"${f.vendorOrganisationId ? ', l.my_bid_status as "myBidStatus"' : ''}) j`;
+    from l`;
   return { name: page.name.replace(/^tender-page-/, 'tender-json-'), text, values: page.values };
 }
 
 /** The tender's columns a list reads (and filters and orders by), over `tender t`. */
-const TENDER_COLUMNS = 't.id, t.reference, t.title, t.commodity, t.unit, t.currency, t.status, t.closes_at, t.time_zone, t.region_count, t.total_forecast';
+const TENDER_COLUMNS = 't.id, t.reference, t.title, t.commodity, t.unit, t.currency, t.status, t.closes_at, t.time_zone, t.region_count, t.total_forecast, t.summary_json';
 
 /** The text depends only on which filters are set, so that (and the order) names a statement. */
 function shapeOf(f: TenderListFilter): string {
@@ -216,7 +221,7 @@ export function tenderListStatement(f: TenderListFilter, vendorSql?: string): { 
   const { values, param, vendor, status, shape, from } = matching(f, vendorSql);
   const limit = param(f.size);
   const offset = param((f.page - 1) * f.size);
-  const columns = `t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone, t.region_count, t.total_forecast`;
+  const columns = `t.id, t.reference, t.title, t.commodity, t.unit, t.currency, ${status} as status, t.closes_at, t.time_zone, t.region_count, t.total_forecast, t.summary_json`;
   // A vendor's list runs its invitation filter once: the count of all matches is a window over
   // the same rows the page is cut from (a vendor is invited to few tenders, so all are sorted).
   // A buyer's, newest closing first, is read from the index and stops after the page; its count
@@ -233,7 +238,7 @@ export function tenderListStatement(f: TenderListFilter, vendorSql?: string): { 
   // The vendor's own bid: a join, at most one row (one bid per tender and vendor, unique), read for
   // the page's tenders together rather than by a subquery per tender.
   const text = `select ${vendor ? 'p' : 'c'}.total, p.id, p.reference, p.title, p.commodity, p.unit, p.currency, p.status, p.closes_at, p.time_zone,
-         p.region_count, p.total_forecast,
+         p.region_count, p.total_forecast, p.summary_json,
          ${vendor ? 'b.status' : 'null'} as my_bid_status
     from ${page}${vendor ? `
     left join bid b on b.tender_id = p.id and b.vendor_organisation_id = ${vendor}` : ''}
