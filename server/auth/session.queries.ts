@@ -75,23 +75,23 @@ const PERSON_COLUMNS = `
 const SESSION_AND_PERSON = `
     from http_session s
     left join app_user u
-      on u.id = case when s.sess #>> '{passport,user}' ~ '^[0-9a-fA-F-]{36}$' then (s.sess #>> '{passport,user}')::uuid end
+      on u.id = s.person_id
      and u.active and u.membership = 'approved'
     left join vendor_organisation o on o.id = u.vendor_organisation_id
    where s.sid = $1 and s.expire >= now()`;
 
 const SESSION_WITH_PERSON = `
   select s.sess, (extract(epoch from s.expire) * 1000)::float8 as expire_ms,
-         s.sess #>> '{passport,user}' is not null as names_person,${PERSON_COLUMNS}${SESSION_AND_PERSON}`;
+         s.names_person,${PERSON_COLUMNS}${SESSION_AND_PERSON}`;
 
 /**
  * The read path's statement (session-read.ts): of the stored session only the cookie's lifetime and
  * the XSRF token, not the whole JSON to parse in the web process on every request (profiled, phase d).
  */
 const SESSION_FOR_READ = `
-  select (s.sess #>> '{cookie,originalMaxAge}')::float8 as max_age, s.sess ->> 'xsrf' as xsrf,
+  select s.max_age, s.xsrf,
          (extract(epoch from s.expire) * 1000)::float8 as expire_ms,
-         s.sess #>> '{passport,user}' is not null as names_person,${PERSON_COLUMNS}${SESSION_AND_PERSON}`;
+         s.names_person,${PERSON_COLUMNS}${SESSION_AND_PERSON}`;
 
 /** The unexpired session `sid` with its person; a named statement (planned once per connection), read on every request. */
 export async function sessionWithPerson<S>(pool: Pool, sid: string): Promise<SessionRow<S> | null> {

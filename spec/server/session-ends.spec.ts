@@ -140,6 +140,24 @@ test('a forged or tampered session cookie is 401: another secret, a changed sign
   expect(await status(`${SESSION_COOKIE}=${encodeURIComponent(`s:${sid}`)}`)).toBe(401);
 });
 
+test("the session's columns that PostgreSQL computes follow every write of it; a stored person id that is not a UUID names nobody", async () => {
+  const user = await makeUser(t, 'vendor');
+  const b = await signedIn(t, user);
+  const cols = async (sid: string) => (await sql<{ person_id: string | null; names_person: boolean; max_age: number; xsrf: string | null; sess_xsrf: string | null }>(
+    `select person_id, names_person, max_age, xsrf, sess ->> 'xsrf' as sess_xsrf from http_session where sid = ?`, [sid]))[0];
+  const [{ sid }] = await sessionsOf(user.id);
+  const signedInCols = await cols(sid);
+  expect(signedInCols).toMatchObject({ person_id: user.id, names_person: true, max_age: expect.any(Number) });
+  expect(signedInCols.xsrf).toBe(signedInCols.sess_xsrf);
+  expect(signedInCols.xsrf).toMatch(/^[A-Za-z0-9_-]{32,64}$/);
+  expect((await b.get('/api/tenders')).status).toBe(200);
+  // Rewritten behind the API's back: the columns follow, and a malformed id names nobody (401, no error).
+  await sql(`update http_session set sess = jsonb_set(sess::jsonb, '{passport,user}', '"not-a-uuid"')::json where sid = ?`, [sid]);
+  expect(await cols(sid)).toMatchObject({ person_id: null, names_person: true });
+  expect((await b.get('/api/tenders')).status).toBe(401);
+  expect((await b.get('/api/session')).status).toBe(401);
+});
+
 test('the cache of checked session cookies answers as the signature check does, keeps only cookies that verified, and stays bounded', () => {
   const secret = 'a-secret-of-at-least-thirty-two-characters';
   const cookies = new VerifiedCookies(secret);
