@@ -308,9 +308,14 @@ test("a vendor's page read in the session's statement is the page its own statem
     expect(withSession?.session.person?.id).toBe(u.id);
     expect(await tenderListPage(pool, f, withSession!.row as unknown as TenderListJsonRow)).toEqual(own);
   }
-  // The route reads it so, and answers what the vendor's own statement reads.
+  // The route reads it so — one statement for the session and the page — and answers what the
+  // vendor's own statement reads.
   const f: TenderListFilter = { vendorOrganisationId: org, ownerId: null, page: 1, size: 25, sort: 'closesAt', dir: 'desc' };
+  const sent = jest.spyOn(pool, 'query');
   const answered = (await vendor.get('/api/tenders')).body as { items: unknown[]; total: number };
+  const names = sent.mock.calls.map(([q]) => (q as { name?: string }).name);
+  sent.mockRestore();
+  expect(names).toEqual([expect.stringMatching(/^tendara-session-with-tender-json-session-/)]);
   const own = await tenderListJson(pool, f);
   expect(answered).toEqual({ items: JSON.parse(own.items), total: own.total, page: 1, size: 25 });
   expect(answered.total).toBe(3);
