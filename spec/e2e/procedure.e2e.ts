@@ -144,6 +144,8 @@ test('a buyer cancels a draft with a reason: the page names it cancelled with th
   await page.goto(`${baseUrl()}/tenders`);
   await page.getByRole('listbox', { name: 'Filter by status' }).getByRole('option', { name: 'Cancelled' }).click();
   await page.getByRole('row', { name: /NHP-2027-019/ }).getByText('cancelled before closing').waitFor();
+  // NHP-2027-019 is in the unfiltered list too: wait for the filtered page to replace it.
+  await page.getByRole('row', { name: /NHP-2027-002/ }).waitFor({ state: 'detached' });
   await expect(page.getByRole('row', { name: /NHP-2027-002/ }).count()).resolves.toBe(0);
   await screenshot(page, 'procedure-tender-list-cancelled-1280');
   expect(await seriousViolations(page)).toEqual([]);
