@@ -1,7 +1,6 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { lazyRequestContext } from './http/orm-context';
-import cookieParser from 'cookie-parser';
 import express, { type Express } from 'express';
 import session from 'express-session';
 import { setting } from './config';
@@ -11,6 +10,8 @@ import { changesSession, readsWithSession, sessionRead } from './auth/session-re
 import { signInLimits } from './auth/sign-in-limits';
 import { stampArrival } from './http/arrival';
 import { noStore } from './http/cache-control';
+import { cookies } from './http/cookies';
+import { inSeries } from './http/in-series';
 import { SESSION_COOKIE, type AppDeps } from './context';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { openApiDocument } from './http/openapi';
@@ -63,20 +64,13 @@ export function createApp(deps: AppDeps): Express {
   // Static files and index.html keep theirs (serve-static and sendFile set their own).
   app.set('etag', false);
   // First of all: when each request arrived in full is when a bid was received (http/arrival.ts).
-  app.use(stampArrival());
-
-  // helmet's headers, computed once at start (http/security-headers.ts).
-  app.use(securityHeaders(config.trustProxy));
-  app.use(requestLog(logger));
+  // Then helmet's headers, computed once at start (http/security-headers.ts), and the request's log
+  // line. One router layer for the three (http/in-series.ts).
+  app.use(inSeries(stampArrival(), securityHeaders(config.trustProxy), requestLog(logger)));
 
   const api = express.Router();
-  api.use(noStore());
-  api.use(cookieParser());
-  api.use(xsrf());
   // A GET or HEAD carries no body to parse: skipped before the parser's own checks (bench:api phase d).
   const json = express.json({ limit: '1mb' });
-  api.use((req, res, next) => (req.method === 'GET' || req.method === 'HEAD' ? next() : json(req, res, next)));
-  api.use(lazyRequestContext(orm.em));
   // What writes a session: express-session with its store, the cookie slide and passport. It runs
   // for the routes that change the session and for a session due to slide; every other request
   // reads its session on the lean path (auth/session-read.ts).
@@ -100,8 +94,18 @@ export function createApp(deps: AppDeps): Express {
   writer.use(auth.initialize());
   writer.use(auth.session());
   const routes = apiRoutes(deps, auth);
-  api.use(sessionRead({ name: SESSION_COOKIE, secret: sessionSecret, pool: deps.sessionPool, changes: changesSession(routes), writer, withSession: readsWithSession(routes) }));
-  api.use(xsrfSessionBinding());
+  // In front of every API route, in this order, as one router layer (http/in-series.ts): no caching,
+  // the cookies, the XSRF check, the JSON body, the request's ORM context, the session, the XSRF
+  // token's binding to the session.
+  api.use(inSeries(
+    noStore(),
+    cookies(),
+    xsrf(),
+    (req, res, next) => (req.method === 'GET' || req.method === 'HEAD' ? next() : json(req, res, next)),
+    lazyRequestContext(orm.em),
+    sessionRead({ name: SESSION_COOKIE, secret: sessionSecret, pool: deps.sessionPool, changes: changesSession(routes), writer, withSession: readsWithSession(routes) }),
+    xsrfSessionBinding(),
+  ));
   // Failed sign-ins: per IP across e-mails, and per IP and (normalised) e-mail; counted in
   // PostgreSQL, so that every web process sees the same failures.
   api.post('/session', ...signInLimits(config.signInIpLimit, deps.sessionPool));

@@ -33,11 +33,13 @@ export function logDestination(dest: number | string): ReturnType<typeof pino.de
  * batches (`logDestination`): no request waits for its log line to reach the file or pipe (a
  * synchronous write per request was a measurable share of GET /api/session, bench:api).
  */
-export const logger = pino(
-  {
+export const logger = pino(loggerOptions(), logDestination(1));
+
+/** The server logger's options: its level, its `app` field, and what it never writes (cookies, XSRF tokens, passwords). */
+export function loggerOptions(): pino.LoggerOptions {
+  return {
     level: setting('LOG_LEVEL'),
     base: { app: 'tendara' },
     redact: { paths: ['req.headers.cookie', 'req.headers["x-xsrf-token"]', 'password', '*.password'], remove: true },
-  },
-  logDestination(1),
-);
+  };
+}

@@ -107,7 +107,7 @@ function normalise(path: string): string {
 }
 
 export interface SessionReadOptions {
-  /** The session cookie's name (read from `req.cookies`, so mount after cookie-parser). */
+  /** The session cookie's name (read from `req.cookies`, so mount after `cookies()`). */
   name: string;
   secret: string;
   pool: Pool;

@@ -38,13 +38,13 @@ export function packageOf(url: string): string {
  * hashing, file writes) is charged to the nearest package up the stack that called it.
  */
 const PARTS: [string, RegExp][] = [
-  ['session store (express-session, connect-pg-simple, cookies)', /^(express-session|connect-pg-simple|cookie|cookie-signature|on-headers|uid-safe|random-bytes|tendara:server\/auth\/session-store\.js)$/],
+  ['session store (express-session, connect-pg-simple), cookie parsing', /^(express-session|connect-pg-simple|cookie|cookie-signature|on-headers|uid-safe|random-bytes|tendara:server\/auth\/session-store\.js)$/],
   ['user lookup (passport)', /^(passport|passport-strategy|passport-local|tendara:server\/auth\/(passport|session-user)\.js)$/],
   ['ORM (MikroORM, knex, tarn)', /^(@mikro-orm\/.*|knex|tarn|dataloader|mikro-orm)$/],
   ['PostgreSQL driver (pg, all queries)', /^(pg|pg-pool|pg-protocol|pg-types|pg-connection-string|postgres-.*|buffer-writer|packet-reader)$/],
   ['request logging (pino, request-log)', /^(tendara:server\/http\/request-log\.js|tendara:server\/logger\.js|@pinojs\/redact|pino|pino-http|pino-std-serializers|sonic-boom|fast-redact|quick-format-unescaped|atomic-sleep|safe-stable-stringify|on-exit-leak-free|thread-stream|get-caller-file)$/],
   ['security headers (helmet)', /^helmet$/],
-  ['XSRF (cookie-parser, xsrf)', /^(cookie-parser|tendara:server\/http\/xsrf\.js)$/],
+  ['XSRF and cookies (cookies, xsrf)', /^(tendara:server\/http\/cookies\.js|tendara:server\/http\/xsrf\.js)$/],
   ['rate limiter', /^express-rate-limit$/],
   ['JSON body parser', /^(body-parser|raw-body|iconv-lite|type-is|media-typer|content-type|bytes)$/],
   ['Express and router', /^(express|router|finalhandler|parseurl|path-to-regexp|send|serve-static|accepts|negotiator|mime-types|fresh|etag|vary|encodeurl|escape-html|statuses|depd|merge-descriptors|content-disposition|qs|proxy-addr|forwarded|range-parser)$/],

@@ -34,9 +34,12 @@ export function requestLogger(req: IncomingMessage, logger: Logger = rootLogger)
  * logs nothing else costs one `logger.info` call and one `close` listener (a response emits `close`
  * after `finish`, or alone when the client went away first), no per-request property getter or child.
  * The line's shape stays pino-http's (`req`, `res`, `responseTime`). The logger writes asynchronously
- * (server/logger.ts), so no answer waits for it.
+ * (server/logger.ts), so no answer waits for it. The line holds nothing the logger's redaction looks
+ * for (no headers, no body), so it is written by a child without redaction: redaction copied every
+ * line's objects (allocations sampled, bench:api phase d).
  */
-export function requestLog(logger: Logger): RequestHandler {
+export function requestLog(parent: Logger): RequestHandler {
+  const logger = parent.child({}, { redact: [] });
   return (req, res, next) => {
     const header = req.headers['x-request-id'];
     const id = (typeof header === 'string' ? header.slice(0, 64) : '') || randomUUID();

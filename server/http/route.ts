@@ -90,14 +90,17 @@ export function route<P = Record<string, never>, Q = Record<string, never>, B = 
   return def;
 }
 
-/** The one server guard: 401 when signed out, 403 when the role is not allowed. */
+/** The one server guard: 401 when signed out, 403 when the role is not allowed; undefined when allowed. */
+export function refusal(access: Access, req: Request): UnauthorizedError | ForbiddenError | undefined {
+  if (access === 'public') return undefined;
+  if (!req.user) return new UnauthorizedError();
+  if (access !== 'signed-in' && !access.includes(req.user.role)) return new ForbiddenError();
+  return undefined;
+}
+
+/** `refusal` as middleware, in front of a route's upload (no file is read for a caller refused). */
 export function requireRole(access: Access): RequestHandler {
-  return (req: Request, _res: Response, next: NextFunction) => {
-    if (access === 'public') return next();
-    if (!req.user) return next(new UnauthorizedError());
-    if (access !== 'signed-in' && !access.includes(req.user.role)) return next(new ForbiddenError());
-    next();
-  };
+  return (req: Request, _res: Response, next: NextFunction) => next(refusal(access, req));
 }
 
 const contextEm = () => RequestContext.getEntityManager() as EntityManager;
@@ -118,13 +121,14 @@ class Input implements RouteInput<unknown, unknown, unknown> {
   }
 }
 
-/** Mounts every route on `router`: guard → validation → handler. */
+/**
+ * Mounts every route on `router`: guard → validation → handler. A route without an upload is one
+ * handler that checks the role first (one router layer less per request); an upload's route checks
+ * the role in a layer of its own, before multer reads the file.
+ */
 export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
   for (const def of routes) {
-    const upload: RequestHandler[] = def.upload
-      ? [multer({ storage: multer.memoryStorage(), limits: { fileSize: def.upload.maxBytes, files: 1, fields: 20 } }).single(def.upload.field)]
-      : [];
-    router[def.method](def.path, requireRole(def.access), ...upload, async (req: Request, res: Response) => {
+    const run = async (req: Request, res: Response) => {
       const input = new Input(
         def.params ? parseOr400(def.params, req.params) : req.params,
         def.query ? parseOr400(def.query, req.query) : {},
@@ -138,6 +142,16 @@ export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
       if (status === 204 || result === undefined) res.status(status === 200 ? 204 : status).end();
       else if (result instanceof JsonText) res.status(status).type('application/json; charset=utf-8').send(result.text);
       else res.status(status).json(result);
-    });
+    };
+    if (def.upload) {
+      const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: def.upload.maxBytes, files: 1, fields: 20 } }).single(def.upload.field);
+      router[def.method](def.path, requireRole(def.access), upload, run);
+    } else {
+      router[def.method](def.path, (req: Request, res: Response) => {
+        const refused = refusal(def.access, req);
+        if (refused) throw refused;
+        return run(req, res);
+      });
+    }
   }
 }
