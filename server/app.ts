@@ -6,7 +6,7 @@ import session from 'express-session';
 import { setting } from './config';
 import { configurePassport } from './auth/passport';
 import { createSessionStore, slideSessionCookie } from './auth/session-store';
-import { changesSession, readsWithSession, sessionRead } from './auth/session-read';
+import { changesSession, readsWithSession, sessionRead, writesWithSession } from './auth/session-read';
 import { signInLimits } from './auth/sign-in-limits';
 import { stampArrival } from './http/arrival';
 import { noStore } from './http/cache-control';
@@ -94,16 +94,24 @@ export function createApp(deps: AppDeps): Express {
   writer.use(auth.initialize());
   writer.use(auth.session());
   const routes = apiRoutes(deps, auth);
-  // In front of every API route, in this order, as one router layer (http/in-series.ts): no caching,
-  // the cookies, the XSRF check, the JSON body, the request's ORM context, the session, the XSRF
-  // token's binding to the session.
+  // In front of every API route, in this order, as router layers of their own (http/in-series.ts):
+  // no caching, the cookies, the XSRF check, the JSON body, the request's ORM context; then the
+  // writes planned for the statement that reads the session (auth/session-read.ts); then the
+  // session and the XSRF token's binding to it.
   api.use(inSeries(
     noStore(),
     cookies(),
     xsrf(),
     (req, res, next) => (req.method === 'GET' || req.method === 'HEAD' ? next() : json(req, res, next)),
     lazyRequestContext(orm.em),
-    sessionRead({ name: SESSION_COOKIE, secret: sessionSecret, pool: deps.sessionPool, changes: changesSession(routes), writer, withSession: readsWithSession(routes) }),
+  ));
+  const writes = writesWithSession(api, routes);
+  const reads = readsWithSession(routes);
+  api.use(inSeries(
+    sessionRead({
+      name: SESSION_COOKIE, secret: sessionSecret, pool: deps.sessionPool, changes: changesSession(routes), writer,
+      withSession: (req, sid) => reads(req, sid) ?? writes(req, sid),
+    }),
     xsrfSessionBinding(),
   ));
   // Failed sign-ins: per IP across e-mails, and per IP and (normalised) e-mail; counted in

@@ -1,10 +1,10 @@
 import { createHmac, timingSafeEqual } from 'node:crypto';
-import type { Request, RequestHandler } from 'express';
+import type { Request, RequestHandler, Router } from 'express';
 import type session from 'express-session';
 import type { Pool } from 'pg';
 import type { ZodType } from 'zod';
 import { TOUCH_EVERY_MS } from './session-store';
-import { sessionForRead, sessionForReadWith, type ReadWithSession, type SessionReadRow } from './session.queries';
+import { sessionForRead, sessionForReadWith, type ReadWithSession, type ReadWithSessionRow, type SessionReadRow } from './session.queries';
 import { SessionPerson } from './session-user';
 
 /**
@@ -101,6 +101,45 @@ export function readsWithSession(
   };
 }
 
+/** A route's write planned for the statement that reads the session, by request (`writesWithSession`). */
+const plannedWrites = new WeakMap<Request, (sid: string) => ReadWithSession | undefined>();
+
+/** What `writesWithSession` needs of a route (its `route()` definition). */
+interface WritingRoute {
+  method: string;
+  path: string;
+  params?: ZodType;
+  body?: ZodType;
+  writesWithSession?: (input: { params: never; body: never; req: Request }, sid: string) => ReadWithSession | undefined;
+}
+
+/**
+ * The routes that write in the statement that reads the session (`writesWithSession` on their
+ * `route()`): mounts on `router`, where it is called (after the body parser, before `sessionRead`),
+ * one layer per such route that plans the write when the request's params and body are valid, and
+ * returns `SessionReadOptions.withSession` for those plans. The same route must be the first to
+ * handle the request when the routes are mounted (`mountRoutes` mounts these routes first, and the
+ * router matches the plan's layer and the route's by the same path): a request Express routes
+ * elsewhere plans nothing.
+ */
+export function writesWithSession(router: Router, routes: readonly WritingRoute[]): NonNullable<SessionReadOptions['withSession']> {
+  for (const r of routes) {
+    const write = r.writesWithSession;
+    if (!write) continue;
+    if (r.method === 'get') throw new Error(`A route that writes with the session is not a GET: ${r.path}`);
+    router[r.method as 'put' | 'post' | 'patch' | 'delete'](r.path, (req, _res, next) => {
+      if (!plannedWrites.has(req)) {
+        const params = r.params ? r.params.safeParse(req.params) : { success: true as const, data: {} };
+        const body = r.body ? r.body.safeParse(req.body ?? {}) : { success: true as const, data: undefined };
+        // Invalid input is the route's to refuse, after the sign-in and role checks.
+        if (params.success && body.success) plannedWrites.set(req, (sid) => write({ params: params.data as never, body: body.data as never, req }, sid));
+      }
+      next();
+    });
+  }
+  return (req, sid) => plannedWrites.get(req)?.(sid);
+}
+
 /** As Express routes match by default: case-insensitive, a trailing slash ignored. */
 function normalise(path: string): string {
   return path.toLowerCase().replace(/\/+$/, '');
@@ -127,7 +166,8 @@ const readWithSession = new WeakMap<Request, Record<string, unknown>>();
 /**
  * The row a route's read gave in the statement that read this request's session, or undefined
  * (signed out, none asked for, or the session went through the writer: then the route reads on its
- * own). Only ever set for a request whose session and person were read and checked in that statement.
+ * own). Only ever set for a request whose session and person were read and checked in that statement;
+ * a write's row (`ReadWithSession.writes`) also when the session then went through the writer.
  */
 export function rowReadWithSession(req: Request): Record<string, unknown> | undefined {
   return readWithSession.get(req);
@@ -158,7 +198,7 @@ export function rowReadWithSession(req: Request): Record<string, unknown> | unde
 export function sessionRead(options: SessionReadOptions): RequestHandler {
   const { name, secret, pool, changes, writer, withSession } = options;
   const verified = new VerifiedCookies(secret);
-  const read = (req: Request, sid: string): Promise<SessionReadRow | { session: SessionReadRow; row: Record<string, unknown> } | null> => {
+  const read = (req: Request, sid: string): Promise<SessionReadRow | ReadWithSessionRow | null> => {
     const other = withSession?.(req, sid);
     return other ? sessionForReadWith(pool, sid, other) : sessionForRead(pool, sid);
   };
@@ -181,6 +221,8 @@ export function sessionRead(options: SessionReadOptions): RequestHandler {
       const row = 'session' in found ? found.session : found;
       const maxAge = row.maxAge;
       if (!row.person || typeof maxAge !== 'number' || Date.now() + maxAge - row.expireMs >= TOUCH_EVERY_MS) {
+        // What a write wrote is written: its row reaches the route whichever way the session goes.
+        if ('row' in found && found.writes) readWithSession.set(req, found.row);
         writer(req, res, next);
         return;
       }

@@ -132,17 +132,29 @@ export interface ReadWithSession {
   text: string;
   /** Its parameters; the first is the session id (`$1`), which the session's read uses. */
   values: unknown[];
+  /**
+   * It writes (`writesWithSession`): its row reaches the route also when the session then goes
+   * through the writer (a session due to slide), since what it wrote is written.
+   */
+  writes?: boolean;
 }
 
 /** The texts of `sessionForReadWith` by name. */
 const withSessionTexts = new Map<string, string>();
+
+/** What `sessionForReadWith` answers: the session, the other read's row, and whether it was a write. */
+export interface ReadWithSessionRow {
+  session: SessionReadRow;
+  row: Record<string, unknown>;
+  writes: boolean;
+}
 
 /**
  * `sessionForRead` and another read in one statement, one round trip (`ReadWithSession`): the
  * session as `sessionForRead` reads it and the other read's first row (its columns by name, all
  * null when it gave none), or null without a session.
  */
-export async function sessionForReadWith(pool: Pool, sid: string, other: ReadWithSession): Promise<{ session: SessionReadRow; row: Record<string, unknown> } | null> {
+export async function sessionForReadWith(pool: Pool, sid: string, other: ReadWithSession): Promise<ReadWithSessionRow | null> {
   if (other.values[0] !== sid) throw new Error(`sessionForReadWith: ${other.name} must take the session id as $1`);
   let text = withSessionTexts.get(other.name);
   if (text === undefined) {
@@ -170,6 +182,7 @@ export async function sessionForReadWith(pool: Pool, sid: string, other: ReadWit
   return {
     session: { maxAge: f.max_age, xsrf: f.xsrf ?? undefined, expireMs: f.expire_ms, person: personOf(f), namesPerson: f.names_person },
     row,
+    writes: other.writes === true,
   };
 }
 

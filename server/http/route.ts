@@ -76,6 +76,16 @@ export interface RouteDef<P = unknown, Q = unknown, B = unknown> {
    * role check have passed; the handler must still read on its own when there is none. Exact paths only.
    */
   readsWithSession?: (query: Q, sid: string) => ReadWithSession | undefined;
+  /**
+   * A write made in the statement that reads the session (one round trip instead of two;
+   * `writesWithSession` in auth/session-read.ts): given the valid params and body, the request and
+   * the session id, a `ReadWithSession` with `writes: true` whose statement writes only when the
+   * session's person may make the request (the guard is the statement's: it runs before the role
+   * and XSRF checks), or undefined to write in the handler as usual. Its row reaches the handler
+   * through `rowReadWithSession(req)`; the handler must still write on its own when there is none.
+   * Such a route is mounted before the others.
+   */
+  writesWithSession?: (input: { params: P; body: B; req: Request }, sid: string) => ReadWithSession | undefined;
   /** A multipart upload of one file in `field` (kept in memory, at most `maxBytes`). */
   upload?: { field: string; maxBytes: number };
   /** Returns the JSON body (or a promise of it), or writes the response itself and returns undefined. */
@@ -122,12 +132,14 @@ class Input implements RouteInput<unknown, unknown, unknown> {
 }
 
 /**
- * Mounts every route on `router`: guard → validation → handler. A route without an upload is one
+ * Mounts every route on `router`: guard → validation → handler, those that write with the session
+ * first (`writesWithSession`). A route without an upload is one
  * handler that checks the role first (one router layer less per request); an upload's route checks
  * the role in a layer of its own, before multer reads the file.
  */
 export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
-  for (const def of routes) {
+  // A route that writes with the session first: the request its plan was made for is the one it handles.
+  for (const def of [...routes.filter((r) => r.writesWithSession), ...routes.filter((r) => !r.writesWithSession)]) {
     const run = async (req: Request, res: Response) => {
       const input = new Input(
         def.params ? parseOr400(def.params, req.params) : req.params,

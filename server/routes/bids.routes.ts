@@ -2,7 +2,9 @@ import { z } from 'zod';
 import { abnormallyLowInputSchema, bidIdParamsSchema, complianceInputSchema, validityExtensionInputSchema } from '@shared/compliance';
 import { bidSaveSchema, tenderIdParamSchema } from '@shared/tenders';
 import { UPLOAD_MAX_BYTES, type AppDeps } from '../context';
+import { rowReadWithSession } from '../auth/session-read';
 import { arrivedAt } from '../http/arrival';
+import { XSRF_HEADER } from '../http/xsrf';
 import { ValidationError } from '../http/errors';
 import { route, type AnyRoute } from '../http/route';
 import * as bids from '../services/bids.service';
@@ -84,8 +86,10 @@ export function bidRoutes(deps: AppDeps): AnyRoute[] {
       method: 'put', path: '/tenders/:id/bid', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema, body: bidSaveSchema,
       summary: 'Save a draft (submit: false) or submit/revise (submit: true) before closing: a request whose body arrived in full before the closing time is accepted and stamped with that time. Send the version you loaded (null for a first save).',
       responses: { 409: 'Closed, or changed elsewhere since loaded' },
+      // A draft is saved in the statement that reads the session (one round trip; not with the test hooks).
+      writesWithSession: ({ params, body, req }, sid) => (deps.bidHooks ? undefined : bids.draftWithSession(sid, params.id, body, arrivedAt(req), req.get(XSRF_HEADER))),
       // The person as read with the session (no User entity): the save is SQL of its own.
-      handler: (input) => bids.saveBid(ctx(input), input.req.user!, input.params.id, input.body),
+      handler: (input) => bids.saveBid(ctx(input), input.req.user!, input.params.id, input.body, rowReadWithSession(input.req)),
     }),
     route({
       method: 'post', path: '/tenders/:id/bid/withdraw', tag: 'Bids', access: ['vendor'], params: tenderIdParamSchema,

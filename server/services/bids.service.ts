@@ -9,13 +9,14 @@ import { formatInZone } from '@shared/time-zone';
 import type { BidSave, BidView, BidsAnswer, TabulatedBid } from '@shared/tenders';
 import { Bid, BidDocument, BidRemovedLine, type Tender, type User } from '../entities';
 import type { Principal } from '../auth/session-user';
+import type { ReadWithSession } from '../auth/session.queries';
 import { AppError, ConflictError, NotFoundError, ValidationError } from '../http/errors';
 import { enqueueMail } from '../jobs/queue';
 import { renderMail } from '../mail/templates';
 import { buildBidWorkbook } from '../workbooks/bid-workbook';
 import { parseBidWorkbookOffThread } from '../workbooks/workbook-pool';
 import { assertBidMatchesDocument, keepsDocument } from './bid-documents';
-import { lockOwnBid, lockTenderForBid, markBidWithdrawn, saveDraftInOneCall, writeBid, type DraftWrite } from './queries/bids.queries';
+import { lockOwnBid, lockTenderForBid, markBidWithdrawn, draftSavedWithSession, saveDraftInOneCall, saveDraftWithSession, writeBid, type DraftSaveRow, type DraftWrite } from './queries/bids.queries';
 import { buildTabulationWorkbook } from '../workbooks/tabulation-workbook';
 import { regionInputs } from './tenders.service';
 import { auditOnPool } from './audit.service';
@@ -175,21 +176,17 @@ const notRegions = (codes: readonly string[]) =>
  * whether the draft keeps it (`keepsDocument`) is decided by the multi-statement save.
  * With the test hook `beforeBidCommit`, the call runs in a transaction held open before its commit.
  */
-async function saveDraft(deps: BidDeps, vendorId: string, tenderId: string, input: BidSave): Promise<BidView | null> {
-  const codes = Object.keys(input.prices);
-  const draft: DraftWrite = {
-    tenderId, vendorId, arrivedAt: deps.arrivedAt, loadedVersion: input.version ?? null,
-    fixedFee: input.fixedFee, capacity: input.capacity, codes, prices: codes.map((code) => input.prices[code]),
-  };
+async function saveDraft(deps: BidDeps, vendorId: string, tenderId: string, input: BidSave, savedWithSession?: DraftSaveRow): Promise<BidView | null> {
+  const draft = draftWrite(tenderId, input, deps.arrivedAt);
   const row = await whileOpen(deps, tenderId, async () => {
     const hook = deps.hooks?.beforeBidCommit;
-    const answer = hook
+    const answer = savedWithSession ?? (hook
       ? await inPoolTransaction(deps.pool, async (tx) => {
-        const held = await saveDraftInOneCall(tx, draft);
+        const held = await saveDraftInOneCall(tx, { ...draft, vendorId });
         if (held.outcome === 'saved') await hook({ tenderId, arrivedAt: deps.arrivedAt });
         return held;
       })
-      : await saveDraftInOneCall(deps.pool, draft);
+      : await saveDraftInOneCall(deps.pool, { ...draft, vendorId }));
     switch (answer.outcome) {
       case 'saved': case 'document': return answer;
       case 'not-found': throw new NotFoundError('The tender');
@@ -208,6 +205,25 @@ async function saveDraft(deps: BidDeps, vendorId: string, tenderId: string, inpu
   return bidView(fields, input.prices, null);
 }
 
+function draftWrite(tenderId: string, input: BidSave, arrivedAt: Date): Omit<DraftWrite, 'vendorId'> {
+  const codes = Object.keys(input.prices);
+  return {
+    tenderId, arrivedAt, loadedVersion: input.version ?? null,
+    fixedFee: input.fixedFee, capacity: input.capacity, codes, prices: codes.map((code) => input.prices[code]),
+  };
+}
+
+/**
+ * A draft's save made in the statement that reads the session (`writesWithSession` of the save's
+ * route; `saveDraftWithSession`): none for a submission, a draft that names a workbook, or a request
+ * without the XSRF header (refused before the session is read). `saveBid` then takes its answer
+ * (`savedWithSession`) in place of `saveDraftInOneCall`'s.
+ */
+export function draftWithSession(sid: string, tenderId: string, input: BidSave, arrivedAt: Date, xsrfHeader: string | undefined): ReadWithSession | undefined {
+  if (input.submit || input.documentId || !xsrfHeader) return undefined;
+  return saveDraftWithSession(sid, draftWrite(tenderId, input, arrivedAt), xsrfHeader);
+}
+
 /**
  * Save a draft, submit, or revise — only before closing, and only over the version loaded. One
  * transaction on a client of the plain pg pool, no ORM (SQL in queries/bids.queries.ts, named
@@ -216,10 +232,11 @@ async function saveDraft(deps: BidDeps, vendorId: string, tenderId: string, inpu
  * written in one statement; a submission's receipt queued in the same transaction (stored and
  * receipted, or neither). Its audit entry follows the commit (see `auditBid`), before the answer.
  */
-export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, input: BidSave): Promise<BidView> {
+export async function saveBid(deps: BidDeps, user: Principal, tenderId: string, input: BidSave, readWithSession?: Record<string, unknown>): Promise<BidView> {
   const org = vendorOf(user);
   if (!input.submit && !input.documentId) {
-    const draft = await saveDraft(deps, org.id, tenderId, input);
+    // Saved already if the route's statement that read the session saved it (`draftWithSession`).
+    const draft = await saveDraft(deps, org.id, tenderId, input, draftSavedWithSession(readWithSession));
     // None: a workbook is attached, and whether this draft keeps it is decided below.
     if (draft) return draft;
   }

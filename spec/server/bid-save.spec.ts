@@ -1,6 +1,8 @@
 import { AuditEntry, Bid, MailMessage, Tender } from '../../server/entities';
 import { QUEUES, WAITED_MAIL_PRIORITY } from '../../server/jobs/queue';
-import { makeUser, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
+import { makeUser, sessionIdOf, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
+import { sessionForReadWith } from '../../server/auth/session.queries';
+import { saveDraftWithSession } from '../../server/services/queries/bids.queries';
 import { openTender, tenderBody } from '../support/tenders';
 import { whileDecisionHoldsTender } from '../support/race';
 import { drainQueue } from '../support/wait';
@@ -227,6 +229,96 @@ test('a draft of a vendor not invited, or on a cancelled tender, is refused as n
   expect(cancelled.status).toBe(409);
   expect(cancelled.body.detail).toBe('The buyer cancelled this tender. Bids can no longer be saved, revised or withdrawn; they stay sealed.');
   expect(await t.em().count(Bid, { tender: { $in: [tenderId, cancelledId] } })).toBe(0);
+});
+
+// A draft without a workbook is saved in the statement that reads the session
+// (`saveDraftWithSession`, the route's `writesWithSession`): one round trip. Its guard is the
+// statement's, ahead of the role and XSRF checks, so these prove it writes only what the checks
+// after it let through.
+test('a draft is saved in the statement that reads the session: one statement, the same answers, a stale version refused', async () => {
+  const { v, tenderId } = await vendorOn(3);
+  const url = `/api/tenders/${tenderId}/bid`;
+  const statements = async (run: () => Promise<{ status: number }>) => {
+    const sent = jest.spyOn(t.deps.sessionPool, 'query');
+    const answer = await run();
+    const names = sent.mock.calls.map(([q]) => (q as { name?: string }).name);
+    sent.mockRestore();
+    return { answer, names };
+  };
+  const first = await statements(() => v.send('put', url, { fixedFee: 10, capacity: null, prices: pricesFor(3, 5), submit: false, version: null }));
+  expect(first.answer.status).toBe(200);
+  expect(first.names).toEqual(['tendara-session-with-bid-save-draft']);
+  const again = await statements(() => v.send('put', url, { fixedFee: 11, capacity: 7, prices: pricesFor(2, 6), submit: false, version: 1 }));
+  expect(again.answer).toMatchObject({ status: 200, body: { status: 'draft', version: 2, fixedFee: 11, capacity: 7, prices: pricesFor(2, 6) } });
+  expect(again.names).toEqual(['tendara-session-with-bid-save-draft']);
+  const stale = await statements(() => v.send('put', url, { fixedFee: 12, capacity: null, prices: pricesFor(3, 5), submit: false, version: 1 }));
+  expect(stale.answer.status).toBe(409);
+  expect(stale.names).toEqual(['tendara-session-with-bid-save-draft']);
+  expect(await storedLines(tenderId)).toEqual(asStored(pricesFor(2, 6)));
+  // A submission is not saved with the session: the session's statement, then its transaction.
+  const submit = await statements(() => v.send('put', url, { fixedFee: 12, capacity: null, prices: pricesFor(3, 5), submit: true, version: 2 }));
+  expect(submit.answer.status).toBe(200);
+  expect(submit.names[0]).toBe('tendara-session-read');
+});
+
+test('a draft saved with the session writes nothing for a request refused after it: a buyer, a deactivated vendor, a token not bound to the session, invalid input', async () => {
+  const { v, email, tenderId } = await vendorOn(3);
+  const url = `/api/tenders/${tenderId}/bid`;
+  expect((await v.send('put', url, { fixedFee: 10, capacity: null, prices: pricesFor(3, 5), submit: false, version: null })).status).toBe(200);
+  const db = t.em().getConnection();
+  /** The bid as stored, and the tender row's xmax (a FOR SHARE lock would set it). */
+  const state = async () => ({
+    bid: await db.execute<{ version: number; fixed_fee: string }[]>(`select version, fixed_fee::text from bid where tender_id = ?`, [tenderId]),
+    lines: await storedLines(tenderId),
+    xmax: (await db.execute<{ xmax: string }[]>(`select xmax::text from tender where id = ?`, [tenderId]))[0].xmax,
+  });
+  const before = await state();
+  const attempt = (who: typeof v, fee: number) => who.send('put', url, { fixedFee: fee, capacity: null, prices: pricesFor(3, 9), submit: false, version: 1 });
+  // The buyer who owns the tender: 403.
+  expect((await attempt(buyer, 99)).status).toBe(403);
+  expect(await state()).toEqual(before);
+  // Straight through the statement: the guard refuses the buyer's session, and the function then
+  // finds no tender — nothing locked, nothing written.
+  const buyerSid = await sessionIdOf(t, (await buyer.get('/api/session')).body.user.email);
+  const asBuyer = await sessionForReadWith(t.deps.sessionPool, buyerSid, saveDraftWithSession(buyerSid, {
+    tenderId, arrivedAt: new Date(), loadedVersion: 1, fixedFee: 98, capacity: null, codes: ['R01'], prices: [1],
+  }, buyer.token));
+  expect(asBuyer?.row).toMatchObject({ draft_allowed: false, outcome: 'not-found' });
+  expect(await state()).toEqual(before);
+  // Invalid input (a negative fee): 400, and no statement wrote.
+  const invalid = await v.send('put', url, { fixedFee: -1, capacity: null, prices: pricesFor(3, 9), submit: false, version: 1 });
+  expect(invalid.status).toBe(400);
+  expect(await state()).toEqual(before);
+  // The XSRF token the browser sends is not the one bound to its session (the session's changed): 403.
+  const sid = await sessionIdOf(t, email);
+  await db.execute(`update http_session set sess = jsonb_set(sess::jsonb, '{xsrf}', to_jsonb(?::text))::json where sid = ?`, ['B'.repeat(43), sid]);
+  expect((await attempt(v, 97)).status).toBe(403);
+  expect(await state()).toEqual(before);
+  await db.execute(`update http_session set sess = jsonb_set(sess::jsonb, '{xsrf}', to_jsonb(?::text))::json where sid = ?`, [v.token, sid]);
+  // The vendor deactivated: 401.
+  await db.execute(`update app_user set active = false where email = ?`, [email]);
+  expect((await attempt(v, 96)).status).toBe(401);
+  expect(await state()).toEqual(before);
+  // (That session no longer names the person, as after any deactivation.) Active again and signed
+  // in again, the same request is saved, once.
+  await db.execute(`update app_user set active = true where email = ?`, [email]);
+  expect((await v.signIn(email)).status).toBe(200);
+  expect((await attempt(v, 95)).body).toMatchObject({ version: 2, fixedFee: 95 });
+});
+
+test('a draft saved with a session due to slide is saved once, and the session slides', async () => {
+  const { v, email, tenderId } = await vendorOn(2);
+  const sid = await sessionIdOf(t, email);
+  const db = t.em().getConnection();
+  // The stored expiry two minutes behind the cookie's: due to slide (TOUCH_EVERY_MS is a minute).
+  await db.execute(`update http_session set expire = expire - interval '2 minutes' where sid = ?`, [sid]);
+  const expireOf = async () => (await db.execute<{ ms: number }[]>(`select (extract(epoch from expire) * 1000)::float8 as ms from http_session where sid = ?`, [sid]))[0].ms;
+  const behind = await expireOf();
+  const saved = await v.send('put', `/api/tenders/${tenderId}/bid`, { fixedFee: 5, capacity: null, prices: pricesFor(2, 3), submit: false, version: null });
+  expect(saved.status).toBe(200);
+  expect(saved.body).toMatchObject({ version: 1, fixedFee: 5 });
+  expect(await t.em().findOneOrFail(Bid, { tender: tenderId })).toMatchObject({ version: 1, fixedFee: 5 });
+  expect(await expireOf()).toBeGreaterThan(behind + 60_000);
 });
 
 test('a draft that waits for the tender lock sees the region an amendment removed meanwhile: refused naming the price, nothing stored', async () => {

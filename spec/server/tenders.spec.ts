@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { tenderPageSchema, tenderSummarySchema } from '@shared/tenders';
 import { AuditEntry, MailMessage, Region, Tender } from '../../server/entities';
 import { QUEUES } from '../../server/jobs/queue';
-import { Browser, makeUser, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
+import { Browser, makeUser, sessionIdOf, signedIn, startTestApp, waitForMail, type TestApp } from '../support/app';
 import { openTender, passClosingTime, tenderBody } from '../support/tenders';
 import { drainQueue, waitFor } from '../support/wait';
 import { sessionForReadWith } from '../../server/auth/session.queries';
@@ -291,10 +291,7 @@ test("a vendor's page read in the session's statement is the page its own statem
   for (const [k, minutes] of [300, 100, 200].entries()) ids.push(await openTender(buyer, [org], tenderBody(2, minutes, { reference: `VS-${k}-${stamp}` })));
   expect((await vendor.send('put', `/api/tenders/${ids[2]}/bid`, { fixedFee: 100, capacity: null, prices: { R01: 10, R02: 11 }, submit: false, version: null })).status).toBe(200);
   await passClosingTime(t, ids[1]);
-  const sidOf = async (email: string) =>
-    (await t.em().getConnection().execute<{ sid: string }[]>(
-      `select s.sid from http_session s join app_user u on u.id::text = s.sess #>> '{passport,user}' where u.email = ? order by s.expire desc limit 1`, [email],
-    ))[0].sid;
+  const sidOf = (email: string) => sessionIdOf(t, email);
   const sid = await sidOf(u.email);
   const pool = t.deps.sessionPool;
   const shapes: Partial<TenderListFilter>[] = [

@@ -143,6 +143,14 @@ export async function signedIn(t: TestApp, user: User): Promise<Browser> {
   return b;
 }
 
+/** The id of `email`'s latest session, as stored in `http_session` (the cookie's sid). */
+export async function sessionIdOf(t: TestApp, email: string): Promise<string> {
+  const rows = await t.em().getConnection().execute<{ sid: string }[]>(
+    `select s.sid from http_session s join app_user u on u.id = s.person_id where u.email = ? order by s.expire desc limit 1`, [email],
+  );
+  return rows[0].sid;
+}
+
 /** Waits until the catcher has stored a message to `to` (the mail worker polls every second). */
 export async function waitForMail(t: TestApp, to: string, subjectStart = '', timeoutMs = 15_000): Promise<MailMessage> {
   const deadline = Date.now() + timeoutMs;

@@ -14,8 +14,8 @@ export interface Phase {
   /** Answers other than the expected status, plus connection errors and timeouts. */
   errors: number;
   statuses: Map<number, number>;
-  /** CPU time the measured processes used during the phase (see `cpuMeter`), in ms. */
-  cpu?: { server: number; db: number };
+  /** CPU time the measured processes and this load driver used during the phase (see `cpuMeter`), in ms. */
+  cpu?: { server: number; db: number; driver: number };
 }
 
 export interface DriveOptions {
@@ -95,7 +95,7 @@ export function joinPhases(label: string, parts: Phase[]): Phase {
     for (const ms of p.latencies) out.latencies.push(ms);
     out.errors += p.errors;
     for (const [status, n] of p.statuses) out.statuses.set(status, (out.statuses.get(status) ?? 0) + n);
-    if (p.cpu) out.cpu = { server: (out.cpu?.server ?? 0) + p.cpu.server, db: (out.cpu?.db ?? 0) + p.cpu.db };
+    if (p.cpu) out.cpu = { server: (out.cpu?.server ?? 0) + p.cpu.server, db: (out.cpu?.db ?? 0) + p.cpu.db, driver: (out.cpu?.driver ?? 0) + p.cpu.driver };
   }
   return out;
 }
@@ -136,15 +136,21 @@ function clusterPids(pgDir: string): number[] {
 /**
  * CPU time per request, which a machine shared with other work changes far less than requests/s:
  * user + system time of the measured server process and of the PostgreSQL cluster's processes over
- * a phase (a backend that exits meanwhile is counted through its parent, the postmaster).
+ * a phase (a backend that exits meanwhile is counted through its parent, the postmaster), and of
+ * this process, the load driver (autocannon): a driver near a whole core (its µs/req × req/s near
+ * a million) limits the phase, not the server.
  */
 export function cpuMeter(serverPid: number, pgDir: string | null): <T extends Phase>(run: () => Promise<T>) => Promise<T> {
   // The postmaster first, with the time of the backends it has reaped, then the live ones.
   const db = () => (pgDir ? clusterPids(pgDir).reduce((sum, pid, k) => sum + processCpuMs(pid, k === 0), 0) : 0);
   return async (run) => {
-    const before = { server: processCpuMs(serverPid), db: db() };
+    const driver = () => {
+      const u = process.cpuUsage();
+      return (u.user + u.system) / 1000;
+    };
+    const before = { server: processCpuMs(serverPid), db: db(), driver: driver() };
     const phase = await run();
-    phase.cpu = { server: processCpuMs(serverPid) - before.server, db: db() - before.db };
+    phase.cpu = { server: processCpuMs(serverPid) - before.server, db: db() - before.db, driver: driver() - before.driver };
     return phase;
   };
 }
@@ -166,15 +172,16 @@ export interface Summary {
   p95: number;
   p99: number;
   errors: number;
-  /** CPU µs per request of the server process and of PostgreSQL, when measured. */
+  /** CPU µs per request of the server process, of PostgreSQL and of the load driver, when measured. */
   serverCpuUs?: number;
   dbCpuUs?: number;
+  driverCpuUs?: number;
 }
 
 export function summarise(p: Phase): Summary {
   const n = p.latencies.length || 1;
   return {
-    ...(p.cpu ? { serverCpuUs: (1000 * p.cpu.server) / n, dbCpuUs: (1000 * p.cpu.db) / n } : {}),
+    ...(p.cpu ? { serverCpuUs: (1000 * p.cpu.server) / n, dbCpuUs: (1000 * p.cpu.db) / n, driverCpuUs: (1000 * p.cpu.driver) / n } : {}),
     label: p.label,
     requests: p.latencies.length,
     rps: p.latencies.length / (p.seconds || 1),
@@ -198,7 +205,7 @@ export function summaryTable(rows: Summary[], baseRps?: number): string {
   const cpu = rows.some((s) => s.serverCpuUs !== undefined);
   const us = (v: number | undefined) => (v === undefined ? '' : Math.round(v));
   return table(
-    ['phase', 'requests', 'req/s', ...(baseRps ? ['% of bare'] : []), 'p50 ms', 'p95 ms', 'p99 ms', 'errors', ...(cpu ? ['server CPU µs/req', 'PostgreSQL CPU µs/req'] : [])],
-    rows.map((s) => [s.label, s.requests, s.rps, ...(baseRps ? [(100 * s.rps) / (s.baseRps ?? baseRps)] : []), s.p50, s.p95, s.p99, s.errors, ...(cpu ? [us(s.serverCpuUs), us(s.dbCpuUs)] : [])]),
+    ['phase', 'requests', 'req/s', ...(baseRps ? ['% of bare'] : []), 'p50 ms', 'p95 ms', 'p99 ms', 'errors', ...(cpu ? ['server CPU µs/req', 'PostgreSQL CPU µs/req', 'driver CPU µs/req'] : [])],
+    rows.map((s) => [s.label, s.requests, s.rps, ...(baseRps ? [(100 * s.rps) / (s.baseRps ?? baseRps)] : []), s.p50, s.p95, s.p99, s.errors, ...(cpu ? [us(s.serverCpuUs), us(s.dbCpuUs), us(s.driverCpuUs)] : [])]),
   );
 }

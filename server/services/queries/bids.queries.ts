@@ -3,6 +3,7 @@ import type { ClientBase, Pool } from 'pg';
 import type { ComplianceDecision, ExclusionGround } from '@shared/compliance';
 import { LIVE_BID_STATUSES, type BidStatus, type TenderStatus } from '@shared/tenders';
 import type { BidDocumentFigures } from '../../entities/bid-document.entity';
+import type { ReadWithSession } from '../../auth/session.queries';
 import { sqlList, textArray } from '../sql';
 
 /** The tender of a bid being saved or withdrawn, read under its row lock. */
@@ -205,6 +206,43 @@ export async function saveDraftInOneCall(client: Pool | ClientBase, w: DraftWrit
     ],
   });
   return row;
+}
+
+/**
+ * Who may save a draft in the statement that reads the session (`saveDraftWithSession`): a person
+ * the session names who is active and approved (the session's person columns are null otherwise),
+ * a vendor, whose request carries the XSRF token bound to the session (`$9`, as
+ * `xsrfSessionBinding` checks it; a session without a bound token binds none).
+ */
+const DRAFT_GUARD = `s.id is not null and s.role = 'vendor' and s.org_id is not null and (s.xsrf is null or s.xsrf = $9)`;
+
+/**
+ * `saveDraftInOneCall` in the statement that reads the session (`writesWithSession` of
+ * `PUT /tenders/:id/bid`, auth/session-read.ts): one round trip for the session and the save. The
+ * vendor is the session person's organisation. Unless `DRAFT_GUARD` holds, `bid_save_draft` is
+ * called with no tender and no vendor, which finds no tender and answers 'not-found' before locking
+ * or writing anything; `draft_allowed` says which it was. The request then goes on through the
+ * role and XSRF checks as any other: a request they refuse never had its draft written, one they
+ * pass had it written exactly as `saveDraftInOneCall` would have.
+ */
+export function saveDraftWithSession(sid: string, w: Omit<DraftWrite, 'vendorId'>, xsrfHeader: string): ReadWithSession {
+  return {
+    name: 'bid-save-draft',
+    writes: true,
+    text: `select (${DRAFT_GUARD}) as draft_allowed,
+                  d.outcome, d.tender_status, d.closes_at, d.time_zone, d.unknown_codes, d.id, d.status, d.revision, d.version,
+                  d.updated_at, d.submitted_at, d.answers_amendment, d.amendment_note
+             from bid_save_draft(case when ${DRAFT_GUARD} then $2::uuid end, case when ${DRAFT_GUARD} then s.org_id end,
+                                 $3, $4, $5, $6, $7::text[], $8::numeric[]) d`,
+    values: [
+      sid, w.tenderId, w.arrivedAt, w.loadedVersion, w.fixedFee, w.capacity, textArray(w.codes), numericArray(w.prices), xsrfHeader,
+    ],
+  };
+}
+
+/** A draft saved with the session (`saveDraftWithSession`): its answer, if the guard let it run. */
+export function draftSavedWithSession(row: Record<string, unknown> | undefined): DraftSaveRow | undefined {
+  return row && row['draft_allowed'] === true ? (row as unknown as DraftSaveRow) : undefined;
 }
 
 /** Numbers as one PostgreSQL array parameter (`?::numeric[]`). */
