@@ -133,9 +133,9 @@ class Input implements RouteInput<unknown, unknown, unknown> {
 
 /**
  * Mounts every route on `router`: guard → validation → handler, those that write with the session
- * first (`writesWithSession`). A route without an upload is one
- * handler that checks the role first (one router layer less per request); an upload's route checks
- * the role in a layer of its own, before multer reads the file.
+ * first (`writesWithSession`). A route without an upload is one handler that checks the role first
+ * (one router layer less per request); an upload's route checks the role in a layer of its own,
+ * before multer reads the file.
  */
 export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
   // A route that writes with the session first: the request its plan was made for is the one it handles.
