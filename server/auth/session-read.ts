@@ -3,6 +3,7 @@ import type { Request, RequestHandler, Router } from 'express';
 import type session from 'express-session';
 import type { Pool } from 'pg';
 import type { ZodType } from 'zod';
+import { keepValidated } from '../http/route';
 import { TOUCH_EVERY_MS } from './session-store';
 import { sessionForRead, sessionForReadWith, type ReadWithSession, type ReadWithSessionRow, type SessionReadRow } from './session.queries';
 import { SessionPerson } from './session-user';
@@ -131,8 +132,12 @@ export function writesWithSession(router: Router, routes: readonly WritingRoute[
       if (!plannedWrites.has(req)) {
         const params = r.params ? r.params.safeParse(req.params) : { success: true as const, data: {} };
         const body = r.body ? r.body.safeParse(req.body ?? {}) : { success: true as const, data: undefined };
-        // Invalid input is the route's to refuse, after the sign-in and role checks.
-        if (params.success && body.success) plannedWrites.set(req, (sid) => write({ params: params.data as never, body: body.data as never, req }, sid));
+        // Invalid input is the route's to refuse, after the sign-in and role checks; valid input
+        // the route takes as validated here (`keepValidated`).
+        if (params.success && body.success) {
+          keepValidated(req, r, params.data, body.data);
+          plannedWrites.set(req, (sid) => write({ params: params.data as never, body: body.data as never, req }, sid));
+        }
       }
       next();
     });

@@ -131,6 +131,17 @@ class Input implements RouteInput<unknown, unknown, unknown> {
   }
 }
 
+/** The params and body a route's `writesWithSession` layer validated, by request, with the route they are for. */
+const validatedAhead = new WeakMap<Request, { def: object; params: unknown; body: unknown }>();
+
+/**
+ * Keeps the params and body that `writesWithSession`'s layer (auth/session-read.ts) validated for
+ * route `def`, so that the route takes them instead of validating the same values again.
+ */
+export function keepValidated(req: Request, def: object, params: unknown, body: unknown): void {
+  validatedAhead.set(req, { def, params, body });
+}
+
 /**
  * Mounts every route on `router`: guard → validation → handler, those that write with the session
  * first (`writesWithSession`). A route without an upload is one handler that checks the role first
@@ -141,10 +152,12 @@ export function mountRoutes(router: Router, routes: readonly AnyRoute[]): void {
   // A route that writes with the session first: the request its plan was made for is the one it handles.
   for (const def of [...routes.filter((r) => r.writesWithSession), ...routes.filter((r) => !r.writesWithSession)]) {
     const run = async (req: Request, res: Response) => {
+      const ahead = validatedAhead.get(req);
+      const kept = ahead?.def === def ? ahead : undefined;
       const input = new Input(
-        def.params ? parseOr400(def.params, req.params) : req.params,
+        kept ? kept.params : def.params ? parseOr400(def.params, req.params) : req.params,
         def.query ? parseOr400(def.query, req.query) : {},
-        def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
+        kept ? kept.body : def.body ? parseOr400(def.body, req.body ?? {}) : undefined,
         req,
         res,
       );

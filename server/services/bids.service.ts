@@ -177,16 +177,16 @@ const notRegions = (codes: readonly string[]) =>
  * With the test hook `beforeBidCommit`, the call runs in a transaction held open before its commit.
  */
 async function saveDraft(deps: BidDeps, vendorId: string, tenderId: string, input: BidSave, savedWithSession?: DraftSaveRow): Promise<BidView | null> {
-  const draft = draftWrite(tenderId, input, deps.arrivedAt);
+  const draft: DraftWrite = { ...draftWrite(tenderId, input, deps.arrivedAt), vendorId };
   const row = await whileOpen(deps, tenderId, async () => {
     const hook = deps.hooks?.beforeBidCommit;
     const answer = savedWithSession ?? (hook
       ? await inPoolTransaction(deps.pool, async (tx) => {
-        const held = await saveDraftInOneCall(tx, { ...draft, vendorId });
+        const held = await saveDraftInOneCall(tx, draft);
         if (held.outcome === 'saved') await hook({ tenderId, arrivedAt: deps.arrivedAt });
         return held;
       })
-      : await saveDraftInOneCall(deps.pool, { ...draft, vendorId }));
+      : await saveDraftInOneCall(deps.pool, draft));
     switch (answer.outcome) {
       case 'saved': case 'document': return answer;
       case 'not-found': throw new NotFoundError('The tender');

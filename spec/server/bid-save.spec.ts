@@ -3,6 +3,7 @@ import { QUEUES, WAITED_MAIL_PRIORITY } from '../../server/jobs/queue';
 import { makeUser, sessionIdOf, signedIn, startTestApp, waitForMail, type Browser, type TestApp } from '../support/app';
 import { sessionForReadWith } from '../../server/auth/session.queries';
 import { saveDraftWithSession } from '../../server/services/queries/bids.queries';
+import { bidSaveSchema } from '@shared/tenders';
 import { openTender, tenderBody } from '../support/tenders';
 import { whileDecisionHoldsTender } from '../support/race';
 import { drainQueue } from '../support/wait';
@@ -245,7 +246,11 @@ test('a draft is saved in the statement that reads the session: one statement, t
     sent.mockRestore();
     return { answer, names };
   };
+  // The body is validated once: the route takes what the plan's layer validated.
+  const validations = jest.spyOn(bidSaveSchema, 'safeParse');
   const first = await statements(() => v.send('put', url, { fixedFee: 10, capacity: null, prices: pricesFor(3, 5), submit: false, version: null }));
+  expect(validations).toHaveBeenCalledTimes(1);
+  validations.mockRestore();
   expect(first.answer.status).toBe(200);
   expect(first.names).toEqual(['tendara-session-with-bid-save-draft']);
   const again = await statements(() => v.send('put', url, { fixedFee: 11, capacity: 7, prices: pricesFor(2, 6), submit: false, version: 1 }));
